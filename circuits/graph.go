@@ -1,0 +1,375 @@
+package circuits
+
+import (
+	"bufio"
+	"crypto/sha256"
+	"encoding/hex"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"strconv"
+	"strings"
+)
+
+// Edge is an unordered coupling between qubits A and B, stored as given.
+type Edge struct{ A, B int }
+
+// Graph is a coupling graph: which qubit pairs can take a two-qubit gate.
+// A valid Graph has at least two qubits, no self-loops, no duplicate edges,
+// every qubit on an edge, and is connected. Edges keep the order in which they
+// were listed; schedules depend on that order.
+type Graph struct {
+	// Name is the family spec ("grid:3x4") or the file the graph came from.
+	Name string
+	// Family is the family name ("line", "ring", "grid", "complete", "star"),
+	// or "" for a graph read from a file.
+	Family string
+	// Rows and Cols are the grid shape when Family is "grid".
+	Rows, Cols int
+	// Qubits is the number of qubits n.
+	Qubits int
+	// Edges lists the couplings.
+	Edges []Edge
+}
+
+// Sentinel errors wrapped by *ParseError and by NewGraph.
+var (
+	ErrUnknownFamily  = errors.New("unknown graph family")
+	ErrBadSize        = errors.New("bad graph size")
+	ErrFieldCount     = errors.New("wrong number of fields")
+	ErrNotNumber      = errors.New("not a whole number")
+	ErrNegativeID     = errors.New("negative qubit id")
+	ErrSelfLoop       = errors.New("self-loop")
+	ErrDuplicateEdge  = errors.New("duplicate edge")
+	ErrIsolatedQubit  = errors.New("isolated qubit")
+	ErrDisconnected   = errors.New("disconnected graph")
+	ErrTooFewQubits   = errors.New("fewer than 2 qubits")
+	ErrQubitRange     = errors.New("qubit id out of range")
+	ErrOverlap        = errors.New("gates in one layer share a qubit")
+	ErrNotInGraph     = errors.New("edge not in the graph")
+	ErrLayoutMismatch = errors.New("layout does not match the graph")
+)
+
+// ParseError is an error in a graph or layout file, or in a graph spec.
+// Line is 1-based; 0 means the error concerns the whole input.
+type ParseError struct {
+	File string
+	Line int
+	Err  error
+	// Detail says what exactly is wrong, for the message.
+	Detail string
+}
+
+func (e *ParseError) Error() string {
+	var b strings.Builder
+	b.WriteString("circuits: ")
+	if e.File != "" {
+		b.WriteString(e.File)
+		if e.Line > 0 {
+			fmt.Fprintf(&b, ":%d", e.Line)
+		}
+		b.WriteString(": ")
+	} else if e.Line > 0 {
+		fmt.Fprintf(&b, "line %d: ", e.Line)
+	}
+	b.WriteString(e.Err.Error())
+	if e.Detail != "" {
+		b.WriteString(": ")
+		b.WriteString(e.Detail)
+	}
+	return b.String()
+}
+
+func (e *ParseError) Unwrap() error { return e.Err }
+
+// NewGraph validates edges on qubits 0..n-1 and returns the graph.
+// The error, if any, is a *ParseError with Line 0 (or the 1-based position of
+// the offending edge in edges).
+func NewGraph(name string, n int, edges []Edge) (*Graph, error) {
+	if n < 2 {
+		return nil, &ParseError{File: name, Err: ErrTooFewQubits, Detail: fmt.Sprintf("%d qubit(s); a coupling graph needs at least one edge", n)}
+	}
+	seen := make(map[[2]int]int, len(edges))
+	deg := make([]int, n)
+	for i, e := range edges {
+		if e.A < 0 || e.B < 0 {
+			return nil, &ParseError{File: name, Line: i + 1, Err: ErrNegativeID, Detail: fmt.Sprintf("edge %d %d", e.A, e.B)}
+		}
+		if e.A >= n || e.B >= n {
+			return nil, &ParseError{File: name, Line: i + 1, Err: ErrQubitRange, Detail: fmt.Sprintf("edge %d %d on %d qubits", e.A, e.B, n)}
+		}
+		if e.A == e.B {
+			return nil, &ParseError{File: name, Line: i + 1, Err: ErrSelfLoop, Detail: fmt.Sprintf("edge %d %d", e.A, e.B)}
+		}
+		k := key(e)
+		if j, dup := seen[k]; dup {
+			return nil, &ParseError{File: name, Line: i + 1, Err: ErrDuplicateEdge, Detail: fmt.Sprintf("edge %d %d repeats edge %d", e.A, e.B, j)}
+		}
+		seen[k] = i + 1
+		deg[e.A]++
+		deg[e.B]++
+	}
+	for q, d := range deg {
+		if d == 0 {
+			return nil, &ParseError{File: name, Err: ErrIsolatedQubit, Detail: fmt.Sprintf("qubit %d is on no edge (qubits are 0..%d); couple it or renumber the qubits", q, n-1)}
+		}
+	}
+	g := &Graph{Name: name, Qubits: n, Edges: append([]Edge(nil), edges...)}
+	if comps := g.components(); comps > 1 {
+		return nil, &ParseError{File: name, Err: ErrDisconnected, Detail: fmt.Sprintf("%d separate parts; random circuits on it never mix between them", comps)}
+	}
+	return g, nil
+}
+
+func key(e Edge) [2]int {
+	if e.A > e.B {
+		return [2]int{e.B, e.A}
+	}
+	return [2]int{e.A, e.B}
+}
+
+// components counts the connected components with a union-find.
+func (g *Graph) components() int {
+	parent := make([]int, g.Qubits)
+	for i := range parent {
+		parent[i] = i
+	}
+	var find func(int) int
+	find = func(x int) int {
+		for parent[x] != x {
+			parent[x] = parent[parent[x]]
+			x = parent[x]
+		}
+		return x
+	}
+	comps := g.Qubits
+	for _, e := range g.Edges {
+		ra, rb := find(e.A), find(e.B)
+		if ra != rb {
+			parent[ra] = rb
+			comps--
+		}
+	}
+	return comps
+}
+
+// Degrees returns the degree of every qubit.
+func (g *Graph) Degrees() []int {
+	deg := make([]int, g.Qubits)
+	for _, e := range g.Edges {
+		deg[e.A]++
+		deg[e.B]++
+	}
+	return deg
+}
+
+// MaxDegree returns Δ, the largest qubit degree.
+func (g *Graph) MaxDegree() int {
+	m := 0
+	for _, d := range g.Degrees() {
+		m = max(m, d)
+	}
+	return m
+}
+
+// MinDegree returns δ, the smallest qubit degree.
+func (g *Graph) MinDegree() int {
+	deg := g.Degrees()
+	m := deg[0]
+	for _, d := range deg {
+		m = min(m, d)
+	}
+	return m
+}
+
+// HasEdge reports whether a and b are coupled.
+func (g *Graph) HasEdge(a, b int) bool {
+	k := key(Edge{a, b})
+	for _, e := range g.Edges {
+		if key(e) == k {
+			return true
+		}
+	}
+	return false
+}
+
+// Digest returns a short hex digest of the qubit count and the edge list in
+// order, identifying the graph in table metadata.
+func (g *Graph) Digest() string {
+	h := sha256.New()
+	fmt.Fprintf(h, "qubits %d\n", g.Qubits)
+	for _, e := range g.Edges {
+		fmt.Fprintf(h, "%d %d\n", e.A, e.B)
+	}
+	return hex.EncodeToString(h.Sum(nil))[:16]
+}
+
+// Families lists the built-in graph families with their spec syntax.
+var Families = []string{"line:N", "ring:N", "grid:RxC", "complete:N", "star:N"}
+
+// ParseGraph returns the graph named by spec: a family ("line:8", "ring:6",
+// "grid:3x4", "complete:5", "star:7") or the path of an edge-list file.
+func ParseGraph(spec string) (*Graph, error) {
+	fam, arg, isFamily := strings.Cut(spec, ":")
+	if isFamily {
+		switch fam {
+		case "line", "ring", "complete", "star", "grid":
+			return Family(fam, arg)
+		}
+	}
+	f, err := os.Open(spec)
+	if err != nil {
+		if errors.Is(err, os.ErrNotExist) {
+			return nil, &ParseError{File: spec, Err: ErrUnknownFamily, Detail: fmt.Sprintf("no such file, and not one of %s", strings.Join(Families, ", "))}
+		}
+		return nil, fmt.Errorf("circuits: reading graph file: %w", err)
+	}
+	defer f.Close()
+	return ReadEdgeList(spec, f)
+}
+
+// Family builds the graph of a named family with its size argument.
+func Family(fam, arg string) (*Graph, error) {
+	spec := fam + ":" + arg
+	bad := func(detail string) error {
+		return &ParseError{File: spec, Err: ErrBadSize, Detail: detail}
+	}
+	if fam == "grid" {
+		rs, cs, ok := strings.Cut(arg, "x")
+		r, err1 := strconv.Atoi(rs)
+		c, err2 := strconv.Atoi(cs)
+		if !ok || err1 != nil || err2 != nil {
+			return nil, bad("write the grid size as RxC, for example grid:3x4")
+		}
+		if r < 1 || c < 1 || r*c < 2 {
+			return nil, bad("a grid needs R, C ≥ 1 and at least 2 qubits")
+		}
+		g, err := NewGraph(spec, r*c, gridEdges(r, c))
+		if err != nil {
+			return nil, err
+		}
+		g.Family, g.Rows, g.Cols = fam, r, c
+		return g, nil
+	}
+	n, err := strconv.Atoi(arg)
+	if err != nil {
+		return nil, bad(fmt.Sprintf("write the qubit count as a whole number, for example %s:8", fam))
+	}
+	min := 2
+	if fam == "ring" {
+		min = 3
+	}
+	if n < min {
+		return nil, bad(fmt.Sprintf("%s needs N ≥ %d", fam, min))
+	}
+	var edges []Edge
+	switch fam {
+	case "line":
+		for i := 0; i+1 < n; i++ {
+			edges = append(edges, Edge{i, i + 1})
+		}
+	case "ring":
+		for i := 0; i+1 < n; i++ {
+			edges = append(edges, Edge{i, i + 1})
+		}
+		edges = append(edges, Edge{n - 1, 0})
+	case "complete":
+		for i := 0; i < n; i++ {
+			for j := i + 1; j < n; j++ {
+				edges = append(edges, Edge{i, j})
+			}
+		}
+	case "star":
+		for i := 1; i < n; i++ {
+			edges = append(edges, Edge{0, i})
+		}
+	default:
+		return nil, &ParseError{File: spec, Err: ErrUnknownFamily, Detail: "use one of " + strings.Join(Families, ", ")}
+	}
+	g, err := NewGraph(spec, n, edges)
+	if err != nil {
+		return nil, err
+	}
+	g.Family = fam
+	return g, nil
+}
+
+// gridEdges lists the horizontal edges row by row, then the vertical ones.
+func gridEdges(r, c int) []Edge {
+	var edges []Edge
+	for i := 0; i < r; i++ {
+		for j := 0; j+1 < c; j++ {
+			edges = append(edges, Edge{i*c + j, i*c + j + 1})
+		}
+	}
+	for i := 0; i+1 < r; i++ {
+		for j := 0; j < c; j++ {
+			edges = append(edges, Edge{i*c + j, (i+1)*c + j})
+		}
+	}
+	return edges
+}
+
+// ReadEdgeList reads an edge-list file: one "a b" pair per line, '#' starts a
+// comment, blank lines are skipped. Qubits are 0..max id. name labels errors.
+func ReadEdgeList(name string, r io.Reader) (*Graph, error) {
+	sc := bufio.NewScanner(r)
+	var edges []Edge
+	var lines []int
+	maxID := -1
+	seen := map[[2]int]int{}
+	for ln := 1; sc.Scan(); ln++ {
+		text := sc.Text()
+		if i := strings.IndexByte(text, '#'); i >= 0 {
+			text = text[:i]
+		}
+		fields := strings.Fields(text)
+		if len(fields) == 0 {
+			continue
+		}
+		perr := func(err error, detail string) error {
+			return &ParseError{File: name, Line: ln, Err: err, Detail: detail}
+		}
+		if len(fields) != 2 {
+			return nil, perr(ErrFieldCount, fmt.Sprintf("got %d fields %q; write two qubit ids \"a b\" per line", len(fields), strings.TrimSpace(text)))
+		}
+		var ids [2]int
+		for k, f := range fields {
+			v, err := strconv.Atoi(f)
+			if err != nil {
+				return nil, perr(ErrNotNumber, fmt.Sprintf("%q", f))
+			}
+			if v < 0 {
+				return nil, perr(ErrNegativeID, fmt.Sprintf("%d; qubit ids start at 0", v))
+			}
+			ids[k] = v
+		}
+		e := Edge{ids[0], ids[1]}
+		if e.A == e.B {
+			return nil, perr(ErrSelfLoop, fmt.Sprintf("qubit %d coupled to itself", e.A))
+		}
+		if prev, dup := seen[key(e)]; dup {
+			return nil, perr(ErrDuplicateEdge, fmt.Sprintf("%d %d already on line %d", e.A, e.B, prev))
+		}
+		seen[key(e)] = ln
+		edges = append(edges, e)
+		lines = append(lines, ln)
+		maxID = max(maxID, e.A, e.B)
+	}
+	if err := sc.Err(); err != nil {
+		return nil, fmt.Errorf("circuits: reading %s: %w", name, err)
+	}
+	if len(edges) == 0 {
+		return nil, &ParseError{File: name, Err: ErrTooFewQubits, Detail: "the file lists no edges"}
+	}
+	g, err := NewGraph(name, maxID+1, edges)
+	if err != nil {
+		var pe *ParseError
+		if errors.As(err, &pe) && pe.Line > 0 {
+			pe.Line = lines[pe.Line-1]
+		}
+		return nil, err
+	}
+	return g, nil
+}

@@ -1,0 +1,144 @@
+package circuits
+
+import (
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+)
+
+// Layout is an explicit layered schedule read from a JSON file of the form
+//
+//	{"qubits": n, "layers": [[[a, b], …], …]}
+//
+// Depth d applies the layers cyclically, like the classes of Layered.
+type Layout struct {
+	Qubits int
+	Layers [][]Edge
+}
+
+type layoutFile struct {
+	Qubits *int      `json:"qubits"`
+	Layers [][][]int `json:"layers"`
+}
+
+// ReadLayoutFile reads and checks a layout file.
+func ReadLayoutFile(path string) (*Layout, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, fmt.Errorf("circuits: reading layout file: %w", err)
+	}
+	defer f.Close()
+	return ReadLayout(path, f)
+}
+
+// ReadLayout reads a layout from r; name labels errors. Every layer must be
+// non-empty, its gates on distinct qubits in 0..qubits−1, and the union of the
+// layers must form a valid Graph (no qubit left out, connected).
+func ReadLayout(name string, r io.Reader) (*Layout, error) {
+	dec := json.NewDecoder(r)
+	dec.DisallowUnknownFields()
+	var lf layoutFile
+	if err := dec.Decode(&lf); err != nil {
+		var se *json.SyntaxError
+		var te *json.UnmarshalTypeError
+		detail := err.Error()
+		switch {
+		case errors.As(err, &se):
+			detail = fmt.Sprintf("invalid JSON at byte %d: %v", se.Offset, se)
+		case errors.As(err, &te):
+			detail = fmt.Sprintf("field %q has the wrong type (want {\"qubits\": n, \"layers\": [[[a, b], …], …]})", te.Field)
+		}
+		return nil, &ParseError{File: name, Err: ErrLayoutMismatch, Detail: detail}
+	}
+	bad := func(err error, detail string, args ...any) error {
+		return &ParseError{File: name, Err: err, Detail: fmt.Sprintf(detail, args...)}
+	}
+	if lf.Qubits == nil {
+		return nil, bad(ErrLayoutMismatch, `missing "qubits"`)
+	}
+	n := *lf.Qubits
+	if n < 2 {
+		return nil, bad(ErrTooFewQubits, `"qubits" is %d`, n)
+	}
+	if len(lf.Layers) == 0 {
+		return nil, bad(ErrLayoutMismatch, `"layers" is empty; give at least one layer of gates`)
+	}
+	l := &Layout{Qubits: n}
+	seen := map[[2]int]bool{}
+	var union []Edge
+	for i, layer := range lf.Layers {
+		if len(layer) == 0 {
+			return nil, bad(ErrLayoutMismatch, "layer %d is empty", i)
+		}
+		used := map[int]bool{}
+		var edges []Edge
+		for j, p := range layer {
+			if len(p) != 2 {
+				return nil, bad(ErrFieldCount, "layer %d gate %d has %d qubits; write each gate as [a, b]", i, j, len(p))
+			}
+			e := Edge{p[0], p[1]}
+			switch {
+			case e.A < 0 || e.B < 0:
+				return nil, bad(ErrNegativeID, "layer %d gate %d is [%d, %d]", i, j, e.A, e.B)
+			case e.A >= n || e.B >= n:
+				return nil, bad(ErrQubitRange, "layer %d gate %d is [%d, %d] but qubits are 0..%d", i, j, e.A, e.B, n-1)
+			case e.A == e.B:
+				return nil, bad(ErrSelfLoop, "layer %d gate %d is [%d, %d]", i, j, e.A, e.B)
+			case used[e.A] || used[e.B]:
+				return nil, bad(ErrOverlap, "layer %d gate %d [%d, %d] reuses a qubit of the same layer", i, j, e.A, e.B)
+			}
+			used[e.A], used[e.B] = true, true
+			edges = append(edges, e)
+			if !seen[key(e)] {
+				seen[key(e)] = true
+				union = append(union, e)
+			}
+		}
+		l.Layers = append(l.Layers, edges)
+	}
+	if _, err := NewGraph(name, n, union); err != nil {
+		return nil, err
+	}
+	return l, nil
+}
+
+// Graph returns the coupling graph formed by the union of the layers, edges in
+// order of first appearance.
+func (l *Layout) Graph(name string) *Graph {
+	seen := map[[2]int]bool{}
+	var union []Edge
+	for _, layer := range l.Layers {
+		for _, e := range layer {
+			if !seen[key(e)] {
+				seen[key(e)] = true
+				union = append(union, e)
+			}
+		}
+	}
+	g, err := NewGraph(name, l.Qubits, union)
+	if err != nil {
+		panic("circuits: layout was not validated: " + err.Error())
+	}
+	return g
+}
+
+// Check returns an error unless every gate of l acts on an edge of g and the
+// qubit counts agree.
+func (l *Layout) Check(name string, g *Graph) error {
+	if l.Qubits != g.Qubits {
+		return &ParseError{File: name, Err: ErrLayoutMismatch, Detail: fmt.Sprintf("layout has %d qubits but graph %s has %d", l.Qubits, g.Name, g.Qubits)}
+	}
+	for i, layer := range l.Layers {
+		for _, e := range layer {
+			if !g.HasEdge(e.A, e.B) {
+				return &ParseError{File: name, Err: ErrNotInGraph, Detail: fmt.Sprintf("layer %d uses [%d, %d], which graph %s does not couple", i, e.A, e.B, g.Name)}
+			}
+		}
+	}
+	return nil
+}
+
+// Schedule returns the layered schedule that cycles through the layers.
+func (l *Layout) Schedule() *Layered { return &Layered{Classes: l.Layers} }

@@ -1,0 +1,19 @@
+// Command mixdepth tells how deep random circuits on a coupling graph must be
+// to anti-concentrate and approach a unitary 2-design, by exact simulation
+// and exact second moments, and scores cross-entropy benchmarks.
+//
+// Run "mixdepth help" for the subcommands.
+package main
+
+import (
+	"context"
+	"os"
+	"os/signal"
+	"syscall"
+)
+
+func main() {
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	defer stop()
+	os.Exit(exitCode(run(ctx, os.Args[1:], os.Stdout, os.Stderr), os.Stderr))
+}

@@ -1,0 +1,248 @@
+package scan
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"slices"
+	"sync"
+
+	"golang.org/x/sync/errgroup"
+
+	"mixdepth/circuits"
+	"mixdepth/sim"
+	"mixdepth/stats"
+)
+
+// Config describes one scan.
+type Config struct {
+	Graph    *circuits.Graph
+	Schedule circuits.Schedule
+	Ensemble circuits.Ensemble
+	// Depths are the depths to report, ascending and positive.
+	Depths []int
+	// Instances lists the instance ids to simulate (for a whole run,
+	// 0..N−1; a shard runs a subset with the same streams).
+	Instances []int
+	Seed      uint64
+	// Workers bounds the goroutines; 0 or less means 1.
+	Workers int
+	// Progress, when non-nil, is called once per finished instance, from one
+	// goroutine at a time.
+	Progress func()
+}
+
+// Record holds one instance's statistics at one depth.
+type Record struct {
+	Depth     int
+	GateCount int
+	Instance  int
+	// Collision is Z_U = Σ_x p_U(x)².
+	Collision float64
+	// Ratio is Z_U / Z_H.
+	Ratio float64
+	// KS is the Kolmogorov–Smirnov distance of the D output probabilities
+	// to the Haar law Beta(1, D−1).
+	KS float64
+	// XEBIdeal is D·Z_U − 1, the linear cross-entropy an ideal sampler of
+	// this instance scores in expectation.
+	XEBIdeal float64
+}
+
+// Validate reports a usage error in c.
+func (c *Config) Validate() error {
+	if c.Graph == nil || c.Schedule == nil || c.Ensemble == nil {
+		panic("scan: Config needs Graph, Schedule and Ensemble")
+	}
+	if len(c.Depths) == 0 {
+		return errors.New("scan: no depths requested")
+	}
+	for i, d := range c.Depths {
+		if d <= 0 {
+			return fmt.Errorf("scan: depth %d is not positive", d)
+		}
+		if i > 0 && d <= c.Depths[i-1] {
+			return fmt.Errorf("scan: depths must be strictly increasing (%d after %d)", d, c.Depths[i-1])
+		}
+	}
+	if len(c.Instances) == 0 {
+		return errors.New("scan: no instances to run")
+	}
+	return nil
+}
+
+// Run simulates the instances of c and returns their records, ordered by
+// depth and then by instance id. When ctx is cancelled it stops, returns the
+// records of the instances that finished (whole instances only) and
+// ctx.Err(); done lists the finished instance ids in ascending order.
+func Run(ctx context.Context, c *Config) (records []Record, done []int, err error) {
+	if err := c.Validate(); err != nil {
+		return nil, nil, err
+	}
+	n := c.Graph.Qubits
+	workers := max(c.Workers, 1)
+	// Small states: one instance per goroutine. Large ones: one instance at a
+	// time with each gate split across the workers.
+	concurrent := 1
+	gateWorkers := workers
+	if n < sim.ParallelQubits {
+		concurrent, gateWorkers = min(workers, len(c.Instances)), 1
+	}
+	dim := float64(uint64(1) << n)
+	perInstance := sim.StateBytes(n) + 16*dim // state + probabilities + sort scratch
+	if n <= sim.MaxQubits {
+		if err := sim.CheckMemory(float64(concurrent)*perInstance, fmt.Sprintf("simulating %d %d-qubit instance(s) at once (state, probabilities and scratch)", concurrent, n)); err != nil {
+			return nil, nil, err
+		}
+	}
+
+	byInstance := make(map[int][]Record, len(c.Instances))
+	var mu sync.Mutex
+	g, gctx := errgroup.WithContext(ctx)
+	jobs := make(chan int)
+	g.Go(func() error {
+		defer close(jobs)
+		for _, id := range c.Instances {
+			select {
+			case jobs <- id:
+			case <-gctx.Done():
+				return nil
+			}
+		}
+		return nil
+	})
+	for w := 0; w < concurrent; w++ {
+		g.Go(func() error {
+			st, err := sim.NewState(n, 0)
+			if err != nil {
+				return err
+			}
+			probs := make([]float64, len(st.Amp))
+			scratch := make([]float64, len(st.Amp))
+			for id := range jobs {
+				recs, ok := runInstance(gctx, c, id, st, probs, scratch, gateWorkers)
+				if !ok {
+					return nil
+				}
+				mu.Lock()
+				byInstance[id] = recs
+				if c.Progress != nil {
+					c.Progress()
+				}
+				mu.Unlock()
+			}
+			return nil
+		})
+	}
+	if err := g.Wait(); err != nil {
+		return nil, nil, err
+	}
+	for id := range byInstance {
+		done = append(done, id)
+	}
+	slices.Sort(done)
+	for k := range c.Depths {
+		for _, id := range done {
+			records = append(records, byInstance[id][k])
+		}
+	}
+	return records, done, ctx.Err()
+}
+
+// runInstance simulates instance id once, reading off the statistics at each
+// requested depth; ok is false when ctx was cancelled before it finished.
+func runInstance(ctx context.Context, c *Config, id int, st *sim.State, probs, scratch []float64, workers int) (recs []Record, ok bool) {
+	st.Reset()
+	b := circuits.NewBuilder(c.Schedule, c.Ensemble, c.Seed, id)
+	dim := float64(len(st.Amp))
+	zh := stats.HaarCollision(dim)
+	var gates []circuits.Gate
+	next := 0
+	for step := 1; next < len(c.Depths); step++ {
+		if ctx.Err() != nil {
+			return nil, false
+		}
+		gates = b.Next(gates[:0])
+		for i := range gates {
+			st.Apply2(gates[i].A, gates[i].B, &gates[i].M, workers)
+		}
+		if step != c.Depths[next] {
+			continue
+		}
+		probs = st.Probabilities(probs, workers)
+		z := stats.Collision(probs)
+		recs = append(recs, Record{
+			Depth:     step,
+			GateCount: c.Schedule.GateCount(step),
+			Instance:  id,
+			Collision: z,
+			Ratio:     z / zh,
+			KS:        stats.KSHaar(probs, scratch),
+			XEBIdeal:  dim*z - 1,
+		})
+		next++
+	}
+	return recs, true
+}
+
+// Row summarises the records of one depth.
+type Row struct {
+	Depth     int
+	GateCount int
+	Collision stats.Summary
+	// Ratio is mean(Z)/Z_H with its confidence interval [Lower, Upper].
+	Ratio, Lower, Upper float64
+	// KSMean is the mean Porter–Thomas (Kolmogorov–Smirnov) distance.
+	KSMean float64
+	// Ready is true when Upper ≤ 1 + eps.
+	Ready bool
+}
+
+// Summary is the per-depth result of a scan.
+type Summary struct {
+	Qubits        int
+	HaarCollision float64
+	Rows          []Row
+	// Depth is the anti-concentration depth: the smallest depth whose upper
+	// confidence bound of R is ≤ 1 + eps; Found is false when none is.
+	Depth int
+	Found bool
+}
+
+// Summarize groups records by depth and summarises each group, in
+// ascending depth order, at confidence level conf with threshold eps.
+func Summarize(qubits int, records []Record, conf, eps float64) *Summary {
+	dim := math.Ldexp(1, qubits)
+	s := &Summary{Qubits: qubits, HaarCollision: stats.HaarCollision(dim)}
+	byDepth := map[int][]Record{}
+	for _, r := range records {
+		byDepth[r.Depth] = append(byDepth[r.Depth], r)
+	}
+	order := make([]int, 0, len(byDepth))
+	for d := range byDepth {
+		order = append(order, d)
+	}
+	slices.Sort(order)
+	zs, ks := make([][]float64, len(order)), make([][]float64, len(order))
+	for k, d := range order {
+		group := byDepth[d]
+		s.Rows = append(s.Rows, Row{Depth: d, GateCount: group[0].GateCount})
+		for _, r := range group {
+			zs[k] = append(zs[k], r.Collision)
+			ks[k] = append(ks[k], r.KS)
+		}
+	}
+	depths := make([]int, len(s.Rows))
+	upper := make([]float64, len(s.Rows))
+	for k := range s.Rows {
+		row := &s.Rows[k]
+		row.Collision = stats.Summarize(zs[k])
+		row.Ratio, row.Lower, row.Upper = stats.RatioInterval(row.Collision, s.HaarCollision, conf)
+		row.KSMean = stats.Summarize(ks[k]).Mean
+		row.Ready = row.Upper <= 1+eps
+		depths[k], upper[k] = row.Depth, row.Upper
+	}
+	s.Depth, s.Found = stats.AnticoncentrationDepth(depths, upper, eps)
+	return s
+}

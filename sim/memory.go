@@ -1,0 +1,57 @@
+package sim
+
+import (
+	"bufio"
+	"errors"
+	"fmt"
+	"os"
+	"strconv"
+	"strings"
+	"syscall"
+)
+
+// ErrTooLarge is wrapped by errors for allocations the machine cannot hold.
+var ErrTooLarge = errors.New("too large for this machine's memory")
+
+// AvailableMemory returns the bytes of memory available for new allocations:
+// MemAvailable from /proc/meminfo, or the total RAM where that is missing.
+func AvailableMemory() uint64 {
+	if f, err := os.Open("/proc/meminfo"); err == nil {
+		defer f.Close()
+		sc := bufio.NewScanner(f)
+		for sc.Scan() {
+			fields := strings.Fields(sc.Text())
+			if len(fields) >= 2 && fields[0] == "MemAvailable:" {
+				if kb, err := strconv.ParseUint(fields[1], 10, 64); err == nil {
+					return kb * 1024
+				}
+			}
+		}
+	}
+	var info syscall.Sysinfo_t
+	if err := syscall.Sysinfo(&info); err == nil {
+		return uint64(info.Totalram) * uint64(info.Unit)
+	}
+	return 0
+}
+
+// GiB formats a byte count in GiB for messages.
+func GiB(bytes float64) string {
+	return strconv.FormatFloat(bytes/(1<<30), 'f', 1, 64) + " GiB"
+}
+
+// CheckMemory returns an error wrapping ErrTooLarge when need bytes exceed
+// the memory available now. what names the allocation for the message.
+func CheckMemory(need float64, what string) error {
+	avail := AvailableMemory()
+	if avail == 0 || need <= float64(avail) {
+		return nil
+	}
+	return fmt.Errorf("sim: %s needs %s but this machine has %s available: %w; use fewer qubits",
+		what, GiB(need), GiB(float64(avail)), ErrTooLarge)
+}
+
+// StateBytes returns the bytes of an n-qubit complex128 state vector.
+func StateBytes(n int) float64 {
+	return 16 * float64(uint64(1)<<min(n, 62)) * float64(uint64(1)<<max(n-62, 0))
+}

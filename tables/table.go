@@ -1,0 +1,365 @@
+package tables
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+
+	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/array"
+	"github.com/apache/arrow-go/v18/arrow/ipc"
+	"github.com/apache/arrow-go/v18/parquet"
+	"github.com/apache/arrow-go/v18/parquet/file"
+	"github.com/apache/arrow-go/v18/parquet/pqarrow"
+)
+
+// Errors returned by the typed column accessors of Table.
+var (
+	ErrNoColumn   = errors.New("tables: no such column")
+	ErrColumnType = errors.New("tables: wrong column type")
+)
+
+// Table is a whole table in memory. Columns[j] holds the values of Fields[j]
+// as a []int64, []float64 or []string; all columns have the same length.
+// Valid[j] is nil when column j has no nulls, and otherwise tells for each
+// row whether the value is present; a null holds the zero value in Columns.
+type Table struct {
+	Fields  []Field
+	Meta    Meta
+	Columns []any
+	Valid   [][]bool
+}
+
+// Len returns the number of rows.
+func (t *Table) Len() int {
+	if len(t.Columns) == 0 {
+		return 0
+	}
+	return columnLen(t.Columns[0])
+}
+
+// columnLen returns the length of a column, or -1 if it is not a column type.
+func columnLen(col any) int {
+	switch col := col.(type) {
+	case []int64:
+		return len(col)
+	case []float64:
+		return len(col)
+	case []string:
+		return len(col)
+	}
+	return -1
+}
+
+// Column returns the index of the column with the given name and whether
+// there is one.
+func (t *Table) Column(name string) (int, bool) {
+	for j, f := range t.Fields {
+		if f.Name == name {
+			return j, true
+		}
+	}
+	return -1, false
+}
+
+// Int64s returns the values of the named Int64 column. The error wraps
+// ErrNoColumn or ErrColumnType.
+func (t *Table) Int64s(name string) ([]int64, error) {
+	return column[[]int64](t, name, Int64)
+}
+
+// Float64s returns the values of the named Float64 column. The error wraps
+// ErrNoColumn or ErrColumnType.
+func (t *Table) Float64s(name string) ([]float64, error) {
+	return column[[]float64](t, name, Float64)
+}
+
+// Strings returns the values of the named String column. The error wraps
+// ErrNoColumn or ErrColumnType.
+func (t *Table) Strings(name string) ([]string, error) {
+	return column[[]string](t, name, String)
+}
+
+func column[S any](t *Table, name string, want Type) (S, error) {
+	var zero S
+	j, ok := t.Column(name)
+	if !ok {
+		return zero, fmt.Errorf("%w: %q", ErrNoColumn, name)
+	}
+	col, ok := t.Columns[j].(S)
+	if !ok || t.Fields[j].Type != want {
+		return zero, fmt.Errorf("%w: %q is %s, not %s", ErrColumnType, name, t.Fields[j].Type, want)
+	}
+	return col, nil
+}
+
+// check panics if t is inconsistent, and returns its length otherwise.
+func (t *Table) check() int {
+	checkFields(t.Fields)
+	if len(t.Columns) != len(t.Fields) {
+		panic(fmt.Sprintf("tables: table has %d columns for %d fields", len(t.Columns), len(t.Fields)))
+	}
+	if t.Valid != nil && len(t.Valid) != len(t.Fields) {
+		panic(fmt.Sprintf("tables: table has %d validity lists for %d fields", len(t.Valid), len(t.Fields)))
+	}
+	n := t.Len()
+	for j, f := range t.Fields {
+		col := t.Columns[j]
+		var ok bool
+		switch f.Type {
+		case Int64:
+			_, ok = col.([]int64)
+		case Float64:
+			_, ok = col.([]float64)
+		case String:
+			_, ok = col.([]string)
+		}
+		if !ok {
+			panic(fmt.Sprintf("tables: column %q is a %T, not %s values", f.Name, col, f.Type))
+		}
+		if columnLen(col) != n {
+			panic(fmt.Sprintf("tables: column %q has %d rows, column %q has %d", f.Name, columnLen(col), t.Fields[0].Name, n))
+		}
+		if t.Valid != nil && t.Valid[j] != nil && len(t.Valid[j]) != n {
+			panic(fmt.Sprintf("tables: validity of column %q has length %d for %d rows", f.Name, len(t.Valid[j]), n))
+		}
+	}
+	return n
+}
+
+// Read reads the whole table at path; the extension chooses the format as in
+// Create. Errors name the file.
+func Read(path string) (*Table, error) {
+	form, err := formatOf(path)
+	if err != nil {
+		return nil, err
+	}
+	var t *Table
+	switch form {
+	case arrowFormat:
+		t, err = readArrow(path)
+	case parquetFormat:
+		t, err = readParquet(path)
+	}
+	if err != nil {
+		return nil, fmt.Errorf("tables: read %q: %w", path, err)
+	}
+	return t, nil
+}
+
+// ReadMeta reads the run metadata and the fields of the table at path
+// without reading its rows.
+func ReadMeta(path string) (Meta, []Field, error) {
+	form, err := formatOf(path)
+	if err != nil {
+		return Meta{}, nil, err
+	}
+	var t *Table
+	switch form {
+	case arrowFormat:
+		err = withArrowReader(path, func(r *ipc.FileReader) error {
+			t, err = newTable(r.Schema())
+			return err
+		})
+	case parquetFormat:
+		err = withParquetReader(path, func(r *pqarrow.FileReader) error {
+			s, err := r.Schema()
+			if err == nil {
+				t, err = newTable(s)
+			}
+			return err
+		})
+	}
+	if err != nil {
+		return Meta{}, nil, fmt.Errorf("tables: read %q: %w", path, err)
+	}
+	return t.Meta, t.Fields, nil
+}
+
+// withArrowReader opens the Arrow IPC file at path and calls f with a reader.
+func withArrowReader(path string, f func(*ipc.FileReader) error) error {
+	fd, err := os.Open(path)
+	if err != nil {
+		return err
+	}
+	defer fd.Close()
+	r, err := ipc.NewFileReader(fd, ipc.WithAllocator(allocator()))
+	if err != nil {
+		return err
+	}
+	defer r.Close()
+	return f(r)
+}
+
+// withParquetReader opens the Parquet file at path and calls f with a reader.
+func withParquetReader(path string, f func(*pqarrow.FileReader) error) error {
+	mem := allocator()
+	pf, err := file.OpenParquetFile(path, false, file.WithReadProps(parquet.NewReaderProperties(mem)))
+	if err != nil {
+		return err
+	}
+	defer pf.Close()
+	r, err := pqarrow.NewFileReader(pf, pqarrow.ArrowReadProperties{BatchSize: DefaultBatchRows}, mem)
+	if err != nil {
+		return err
+	}
+	return f(r)
+}
+
+func readArrow(path string) (*Table, error) {
+	var t *Table
+	err := withArrowReader(path, func(r *ipc.FileReader) error {
+		var err error
+		if t, err = newTable(r.Schema()); err != nil {
+			return err
+		}
+		for i := range r.NumRecords() {
+			rec, err := r.RecordBatch(i) // valid until the next call; not ours to release
+			if err != nil {
+				return err
+			}
+			if err := t.appendBatch(rec); err != nil {
+				return err
+			}
+		}
+		return nil
+	})
+	return t, err
+}
+
+func readParquet(path string) (*Table, error) {
+	var t *Table
+	err := withParquetReader(path, func(r *pqarrow.FileReader) error {
+		s, err := r.Schema()
+		if err != nil {
+			return err
+		}
+		if t, err = newTable(s); err != nil {
+			return err
+		}
+		rr, err := r.GetRecordReader(context.Background(), nil, nil)
+		if err != nil {
+			return err
+		}
+		defer rr.Release()
+		for rr.Next() {
+			if err := t.appendBatch(rr.RecordBatch()); err != nil {
+				return err
+			}
+		}
+		if err := rr.Err(); err != nil && !errors.Is(err, io.EOF) {
+			return err
+		}
+		return nil
+	})
+	return t, err
+}
+
+// newTable returns an empty Table for an Arrow schema.
+func newTable(s *arrow.Schema) (*Table, error) {
+	t := &Table{
+		Meta:    metaFrom(s.Metadata()),
+		Fields:  make([]Field, s.NumFields()),
+		Columns: make([]any, s.NumFields()),
+		Valid:   make([][]bool, s.NumFields()),
+	}
+	for j, af := range s.Fields() {
+		f, err := fieldFrom(af)
+		if err != nil {
+			return nil, err
+		}
+		t.Fields[j] = f
+		switch f.Type {
+		case Int64:
+			t.Columns[j] = []int64{}
+		case Float64:
+			t.Columns[j] = []float64{}
+		case String:
+			t.Columns[j] = []string{}
+		}
+	}
+	return t, nil
+}
+
+// appendBatch appends the rows of rec, which must have the schema of t.
+func (t *Table) appendBatch(rec arrow.RecordBatch) error {
+	if int(rec.NumCols()) != len(t.Fields) {
+		return fmt.Errorf("record batch has %d columns for %d fields", rec.NumCols(), len(t.Fields))
+	}
+	n := t.Len() // rows before this batch
+	for j, arr := range rec.Columns() {
+		switch col := t.Columns[j].(type) {
+		case []int64:
+			a, ok := arr.(*array.Int64)
+			if !ok {
+				return fmt.Errorf("column %q holds %s, not int64", t.Fields[j].Name, arr.DataType())
+			}
+			start := len(col)
+			col = append(col, a.Int64Values()...)
+			for i := range a.Len() {
+				if a.IsNull(i) {
+					col[start+i] = 0 // the value under a null is unspecified
+				}
+			}
+			t.Columns[j] = col
+		case []float64:
+			a, ok := arr.(*array.Float64)
+			if !ok {
+				return fmt.Errorf("column %q holds %s, not float64", t.Fields[j].Name, arr.DataType())
+			}
+			start := len(col)
+			col = append(col, a.Float64Values()...)
+			for i := range a.Len() {
+				if a.IsNull(i) {
+					col[start+i] = 0
+				}
+			}
+			t.Columns[j] = col
+		case []string:
+			a, ok := arr.(*array.String)
+			if !ok {
+				return fmt.Errorf("column %q holds %s, not utf8", t.Fields[j].Name, arr.DataType())
+			}
+			t.Columns[j] = appendStrings(col, a)
+		}
+		t.Valid[j] = appendValid(t.Valid[j], n, arr)
+	}
+	return nil
+}
+
+// appendStrings appends the values of a to col. The values are copied into
+// one Go string per batch, because the Arrow buffers belong to the allocator
+// and are freed on Release.
+func appendStrings(col []string, a *array.String) []string {
+	data := string(a.ValueBytes())
+	offs := a.ValueOffsets()
+	base := offs[0]
+	for i := range a.Len() {
+		if a.IsNull(i) {
+			col = append(col, "")
+			continue
+		}
+		col = append(col, data[offs[i]-base:offs[i+1]-base])
+	}
+	return col
+}
+
+// appendValid extends the validity list of a column that had n rows before
+// arr was appended. It stays nil while the column has no nulls.
+func appendValid(valid []bool, n int, arr arrow.Array) []bool {
+	if valid == nil && arr.NullN() == 0 {
+		return nil
+	}
+	if valid == nil {
+		valid = make([]bool, n, n+arr.Len())
+		for i := range valid {
+			valid[i] = true
+		}
+	}
+	for i := range arr.Len() {
+		valid = append(valid, arr.IsValid(i))
+	}
+	return valid
+}

@@ -7,11 +7,13 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 
 	"github.com/schollz/progressbar/v3"
 
+	"mixdepth/circuits"
 	"mixdepth/scan"
 	"mixdepth/sim"
 	"mixdepth/tables"
@@ -73,6 +75,8 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	conf := fs.Float64("confidence", 0.95, "confidence level of the interval for R")
 	workers := fs.Int("workers", defaultWorkers(), "worker goroutines")
 	out := fs.String("out", "", "write the per-instance table to FILE.arrow or FILE.parquet")
+	shardFlag := fs.String("shard", "", "run only the instances i with i mod N = K (K/N), for job arrays; merge the shards with 'mixdepth merge'")
+	resume := fs.String("resume", "", "continue the partial table FILE left by an interrupted scan with the same flags (writes --out, default FILE)")
 	asJSON := fs.Bool("json", false, "print one JSON document instead of the text report")
 	if err := parseFlags(fs, args); err != nil {
 		return err
@@ -106,78 +110,217 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if *workers <= 0 {
 		return badInput("--workers %d: must be at least 1", *workers)
 	}
+	shard, err := parseShard(*shardFlag)
+	if err != nil {
+		return err
+	}
+	if *resume != "" && *out == "" {
+		*out = *resume
+	}
 
 	meta := runMeta(s, &cf)
 	meta.Set("command", "scan")
 	meta.Set("depths", joinInts(depths))
 	meta.Set("instances", strconv.Itoa(*instances))
-	var w *tables.Writer
+	meta.Set("eps", strconv.FormatFloat(*eps, 'g', -1, 64))
+	meta.Set("confidence", strconv.FormatFloat(*conf, 'g', -1, 64))
+	meta.Set("shard", shard.String())
 	if *out != "" {
-		w, err = tables.Create(*out, scanFields, meta)
-		if err != nil {
-			return usageError{fmt.Errorf("--out: %w", err)}
+		if err := checkWritable(*out, scanFields, meta); err != nil {
+			return err
 		}
-		defer w.Abort()
 	}
 
-	ids := make([]int, *instances)
-	for i := range ids {
-		ids[i] = i
+	runIDs := shard.instances(*instances)
+	ids := runIDs
+	var previous []scan.Record
+	if *resume != "" {
+		if previous, ids, err = resumeScan(*resume, meta, runIDs); err != nil {
+			return err
+		}
+		fmt.Fprintf(stderr, "resuming %s: %d instance(s) done, %d to run\n", *resume, len(runIDs)-len(ids), len(ids))
 	}
 	cfg := &scan.Config{
 		Graph: s.graph, Schedule: s.schedule, Ensemble: s.ensemble,
 		Depths: depths, Instances: ids, Seed: cf.seed, Workers: *workers,
 	}
-	if isTerminal(stderr) {
+	if isTerminal(stderr) && len(ids) > 0 {
 		bar := progressbar.NewOptions(len(ids), progressbar.OptionSetWriter(stderr),
 			progressbar.OptionSetDescription("simulating instances"), progressbar.OptionShowCount(),
 			progressbar.OptionClearOnFinish())
 		cfg.Progress = func() { _ = bar.Add(1) }
 		defer bar.Finish()
 	}
-	records, _, err := scan.Run(ctx, cfg)
-	if err != nil {
-		if errors.Is(err, context.Canceled) {
-			return errInterrupted
-		}
+	var records []scan.Record
+	if len(ids) > 0 {
+		records, _, err = scan.Run(ctx, cfg)
+	}
+	interrupted := errors.Is(err, context.Canceled)
+	if err != nil && !interrupted {
 		if errors.Is(err, sim.ErrTooLarge) {
 			return usageError{err}
 		}
 		return err
 	}
-	sum := scan.Summarize(s.graph.Qubits, records, *conf, *eps)
-
-	if w != nil {
-		for _, r := range records {
-			w.Append(r.Depth, r.GateCount, r.Instance, r.Collision, r.Ratio, r.KS, r.XEBIdeal)
-		}
-		if err := w.Close(); err != nil {
+	records = mergeRecords(previous, records)
+	doneAll := recordInstances(records)
+	partial := len(doneAll) < len(runIDs)
+	if *out != "" {
+		meta.Set("partial", strconv.FormatBool(partial))
+		meta.Set("instances_done", formatIDs(doneAll))
+		if err := writeScanTable(*out, meta, records); err != nil {
 			return err
 		}
 	}
-	if *asJSON {
-		doc := scanJSON{
-			Tool: "mixdepth", Version: version, Graph: s.graph.Name, GraphDigest: s.graph.Digest(),
-			Qubits: s.graph.Qubits, Edges: len(s.graph.Edges), Schedule: s.schedule.Kind(), Gates: s.ensemble.Name(),
-			HaarCollision: sum.HaarCollision, Seed: cf.seed, Instances: *instances, Eps: *eps, Confidence: *conf,
+	if interrupted {
+		msg := fmt.Sprintf("interrupted after %d of %d instance(s) of this run", len(doneAll), len(runIDs))
+		if *out != "" {
+			msg += fmt.Sprintf("; the finished ones are in %s (partial); continue with the same flags and --resume %s", *out, *out)
 		}
-		if sum.Found {
-			d := sum.Depth
-			doc.AnticoncentrationDepth = &d
-		}
-		for _, r := range sum.Rows {
-			doc.Rows = append(doc.Rows, scanJSONRow{
-				Depth: r.Depth, GateCount: r.GateCount, CollisionMean: r.Collision.Mean, CollisionStder: r.Collision.StdErr,
-				CollisionRatio: r.Ratio, RatioLower: finiteOrNull(r.Lower), RatioUpper: finiteOrNull(r.Upper), PTKSMean: r.KSMean,
-			})
-		}
-		return writeJSON(stdout, doc)
+		fmt.Fprintln(stderr, msg)
+		return errInterrupted
 	}
-	printScan(stdout, s, &cf, *instances, *eps, *conf, sum)
+	sum := scan.Summarize(s.graph.Qubits, records, *conf, *eps)
+	if *asJSON {
+		return writeJSON(stdout, scanDocument(s, cf.seed, len(doneAll), *eps, *conf, sum))
+	}
+	printScan(stdout, s, &cf, len(doneAll), *eps, *conf, sum)
 	if *out != "" {
 		fmt.Fprintf(stdout, "Per-instance table: %s (%d rows)\n", *out, len(records))
 	}
 	return nil
+}
+
+// scanDocument assembles the --json document of a scan summary.
+func scanDocument(s *setup, seed uint64, instances int, eps, conf float64, sum *scan.Summary) scanJSON {
+	doc := scanJSON{
+		Tool: "mixdepth", Version: version, Graph: s.graph.Name, GraphDigest: s.graph.Digest(),
+		Qubits: s.graph.Qubits, Edges: len(s.graph.Edges), Schedule: s.schedule.Kind(), Gates: s.ensemble.Name(),
+		HaarCollision: sum.HaarCollision, Seed: seed, Instances: instances, Eps: eps, Confidence: conf,
+	}
+	if sum.Found {
+		d := sum.Depth
+		doc.AnticoncentrationDepth = &d
+	}
+	for _, r := range sum.Rows {
+		doc.Rows = append(doc.Rows, scanJSONRow{
+			Depth: r.Depth, GateCount: r.GateCount, CollisionMean: r.Collision.Mean, CollisionStder: r.Collision.StdErr,
+			CollisionRatio: r.Ratio, RatioLower: finiteOrNull(r.Lower), RatioUpper: finiteOrNull(r.Upper), PTKSMean: r.KSMean,
+		})
+	}
+	return doc
+}
+
+// checkWritable fails early, before any computation, when path cannot take
+// a table: it creates the table's temporary file and removes it again.
+func checkWritable(path string, fields []tables.Field, meta tables.Meta) error {
+	w, err := tables.Create(path, fields, meta)
+	if err != nil {
+		return usageError{fmt.Errorf("--out: %w", err)}
+	}
+	w.Abort()
+	return nil
+}
+
+// writeScanTable writes the per-instance records atomically.
+func writeScanTable(path string, meta tables.Meta, records []scan.Record) error {
+	w, err := tables.Create(path, scanFields, meta)
+	if err != nil {
+		return fmt.Errorf("writing %s: %w", path, err)
+	}
+	defer w.Abort()
+	for _, r := range records {
+		w.Append(r.Depth, r.GateCount, r.Instance, r.Collision, r.Ratio, r.KS, r.XEBIdeal)
+	}
+	return w.Close()
+}
+
+// scanRecords reads the per-instance records of a scan table.
+func scanRecords(t *tables.Table) ([]scan.Record, error) {
+	depth, err1 := t.Int64s("depth")
+	gates, err2 := t.Int64s("gate_count")
+	inst, err3 := t.Int64s("instance")
+	z, err4 := t.Float64s("collision")
+	ratio, err5 := t.Float64s("collision_ratio")
+	ks, err6 := t.Float64s("pt_ks")
+	xeb, err7 := t.Float64s("xeb_ideal")
+	if err := errors.Join(err1, err2, err3, err4, err5, err6, err7); err != nil {
+		return nil, err
+	}
+	recs := make([]scan.Record, t.Len())
+	for i := range recs {
+		recs[i] = scan.Record{Depth: int(depth[i]), GateCount: int(gates[i]), Instance: int(inst[i]),
+			Collision: z[i], Ratio: ratio[i], KS: ks[i], XEBIdeal: xeb[i]}
+	}
+	return recs, nil
+}
+
+// resumeScan reads a partial scan table, checks that it comes from the run
+// described by meta, and returns its records and the ids still to run.
+func resumeScan(path string, meta tables.Meta, ids []int) ([]scan.Record, []int, error) {
+	t, err := tables.Read(path)
+	if err != nil {
+		return nil, nil, usageError{fmt.Errorf("--resume: %w", err)}
+	}
+	if err := sameRun(meta, t.Meta, path); err != nil {
+		return nil, nil, err
+	}
+	recs, err := scanRecords(t)
+	if err != nil {
+		return nil, nil, usageError{fmt.Errorf("--resume %s: not a scan table: %w", path, err)}
+	}
+	have := map[int]bool{}
+	for _, id := range recordInstances(recs) {
+		have[id] = true
+	}
+	var todo []int
+	for _, id := range ids {
+		if !have[id] {
+			todo = append(todo, id)
+		}
+	}
+	return recs, todo, nil
+}
+
+// runKeysIgnored are the metadata keys that may differ between the tables
+// of one run (shards, partial tables and their continuations).
+var runKeysIgnored = map[string]bool{"command_line": true, "partial": true, "instances_done": true}
+
+// sameRun returns a usage error naming the first run parameter in which the
+// table's metadata got differs from want.
+func sameRun(want, got tables.Meta, path string) error {
+	for i, k := range want.Keys {
+		if runKeysIgnored[k] {
+			continue
+		}
+		v, ok := got.Get(k)
+		if !ok || v != want.Values[i] {
+			return badInput("%s comes from another run: its %s is %q, this run's is %q; use the same flags as the run that wrote it", path, k, v, want.Values[i])
+		}
+	}
+	return nil
+}
+
+// mergeRecords combines two record sets ordered by (depth, instance).
+func mergeRecords(a, b []scan.Record) []scan.Record {
+	all := append(append([]scan.Record(nil), a...), b...)
+	slices.SortFunc(all, func(x, y scan.Record) int {
+		if x.Depth != y.Depth {
+			return x.Depth - y.Depth
+		}
+		return x.Instance - y.Instance
+	})
+	return all
+}
+
+// recordInstances returns the distinct instance ids of records, ascending.
+func recordInstances(records []scan.Record) []int {
+	var ids []int
+	for _, r := range records {
+		ids = append(ids, r.Instance)
+	}
+	slices.Sort(ids)
+	return slices.Compact(ids)
 }
 
 // printScan writes the human report of a scan.
@@ -227,7 +370,29 @@ func runMeta(s *setup, cf *circuitFlags) tables.Meta {
 	m.Set("schedule", s.schedule.Kind())
 	m.Set("layout", s.layout)
 	m.Set("gates", s.ensemble.Name())
+	m.Set("edges", formatEdges(s.graph.Edges))
+	if l, ok := s.schedule.(*circuits.Layered); ok {
+		m.Set("layers", formatLayers(l.Classes))
+	}
 	return m
+}
+
+// formatEdges writes edges as "a-b,c-d,…" so a table records its graph.
+func formatEdges(edges []circuits.Edge) string {
+	parts := make([]string, len(edges))
+	for i, e := range edges {
+		parts[i] = strconv.Itoa(e.A) + "-" + strconv.Itoa(e.B)
+	}
+	return strings.Join(parts, ",")
+}
+
+// formatLayers writes the layered schedule's classes as "a-b,c-d;e-f;…".
+func formatLayers(classes [][]circuits.Edge) string {
+	parts := make([]string, len(classes))
+	for i, c := range classes {
+		parts[i] = formatEdges(c)
+	}
+	return strings.Join(parts, ";")
 }
 
 func joinInts(v []int) string {

@@ -49,6 +49,7 @@ var (
 	ErrOverlap        = errors.New("gates in one layer share a qubit")
 	ErrNotInGraph     = errors.New("edge not in the graph")
 	ErrLayoutMismatch = errors.New("layout does not match the graph")
+	ErrLayoutSyntax   = errors.New("malformed layout")
 )
 
 // ParseError is an error in a graph or layout file, or in a graph spec.
@@ -91,7 +92,6 @@ func NewGraph(name string, n int, edges []Edge) (*Graph, error) {
 		return nil, &ParseError{File: name, Err: ErrTooFewQubits, Detail: fmt.Sprintf("%d qubit(s); a coupling graph needs at least one edge", n)}
 	}
 	seen := make(map[[2]int]int, len(edges))
-	deg := make([]int, n)
 	for i, e := range edges {
 		if e.A < 0 || e.B < 0 {
 			return nil, &ParseError{File: name, Line: i + 1, Err: ErrNegativeID, Detail: fmt.Sprintf("edge %d %d", e.A, e.B)}
@@ -107,19 +107,46 @@ func NewGraph(name string, n int, edges []Edge) (*Graph, error) {
 			return nil, &ParseError{File: name, Line: i + 1, Err: ErrDuplicateEdge, Detail: fmt.Sprintf("edge %d %d repeats edge %d", e.A, e.B, j)}
 		}
 		seen[k] = i + 1
-		deg[e.A]++
-		deg[e.B]++
 	}
-	for q, d := range deg {
-		if d == 0 {
-			return nil, &ParseError{File: name, Err: ErrIsolatedQubit, Detail: fmt.Sprintf("qubit %d is on no edge (qubits are 0..%d); couple it or renumber the qubits", q, n-1)}
-		}
+	// Each edge covers at most two qubits, so with n > 2·len(edges) some qubit
+	// is isolated; finding it without an n-sized table keeps a huge id in a
+	// file from allocating gigabytes.
+	if q := firstIsolated(n, edges); q >= 0 {
+		return nil, isolatedError(name, q, n-1)
 	}
 	g := &Graph{Name: name, Qubits: n, Edges: append([]Edge(nil), edges...)}
 	if comps := g.components(); comps > 1 {
 		return nil, &ParseError{File: name, Err: ErrDisconnected, Detail: fmt.Sprintf("%d separate parts; random circuits on it never mix between them", comps)}
 	}
 	return g, nil
+}
+
+// firstIsolated returns the smallest qubit in 0..n-1 on no edge of edges, or
+// -1 if every qubit is on an edge. The ids in edges must lie in 0..n-1 (n may
+// be math.MaxInt for "unbounded"); the work is O(len(edges)) whatever n is.
+func firstIsolated(n int, edges []Edge) int {
+	// The answer, if any, is at most 2·len(edges): only that many ids can be
+	// on an edge.
+	limit := min(n, 2*len(edges)+1)
+	on := make([]bool, limit)
+	for _, e := range edges {
+		if e.A < limit {
+			on[e.A] = true
+		}
+		if e.B < limit {
+			on[e.B] = true
+		}
+	}
+	for q, ok := range on {
+		if !ok {
+			return q
+		}
+	}
+	return -1
+}
+
+func isolatedError(name string, q, maxID int) error {
+	return &ParseError{File: name, Err: ErrIsolatedQubit, Detail: fmt.Sprintf("qubit %d is on no edge (qubits are 0..%d); couple it or renumber the qubits", q, maxID)}
 }
 
 func key(e Edge) [2]int {
@@ -232,6 +259,11 @@ func ParseGraph(spec string) (*Graph, error) {
 // Family builds the graph of a named family with its size argument.
 func Family(fam, arg string) (*Graph, error) {
 	spec := fam + ":" + arg
+	switch fam {
+	case "line", "ring", "grid", "complete", "star":
+	default:
+		return nil, &ParseError{File: spec, Err: ErrUnknownFamily, Detail: "use one of " + strings.Join(Families, ", ")}
+	}
 	bad := func(detail string) error {
 		return &ParseError{File: spec, Err: ErrBadSize, Detail: detail}
 	}
@@ -242,8 +274,8 @@ func Family(fam, arg string) (*Graph, error) {
 		if !ok || err1 != nil || err2 != nil {
 			return nil, bad("write the grid size as RxC, for example grid:3x4")
 		}
-		if r < 1 || c < 1 || r*c < 2 {
-			return nil, bad("a grid needs R, C ≥ 1 and at least 2 qubits")
+		if r < 1 || c < 1 || r > 1<<20 || c > 1<<20 || r*c < 2 || r*c > maxFamilyQubits("grid") {
+			return nil, bad("a grid needs R, C ≥ 1 and between 2 and 2^20 qubits")
 		}
 		g, err := NewGraph(spec, r*c, gridEdges(r, c))
 		if err != nil {
@@ -256,12 +288,15 @@ func Family(fam, arg string) (*Graph, error) {
 	if err != nil {
 		return nil, bad(fmt.Sprintf("write the qubit count as a whole number, for example %s:8", fam))
 	}
-	min := 2
+	least := 2
 	if fam == "ring" {
-		min = 3
+		least = 3
 	}
-	if n < min {
-		return nil, bad(fmt.Sprintf("%s needs N ≥ %d", fam, min))
+	if n < least {
+		return nil, bad(fmt.Sprintf("%s needs N ≥ %d", fam, least))
+	}
+	if most := maxFamilyQubits(fam); n > most {
+		return nil, bad(fmt.Sprintf("%s:%d is larger than the %d qubits a %s graph may have here", fam, n, most, fam))
 	}
 	var edges []Edge
 	switch fam {
@@ -284,8 +319,6 @@ func Family(fam, arg string) (*Graph, error) {
 		for i := 1; i < n; i++ {
 			edges = append(edges, Edge{0, i})
 		}
-	default:
-		return nil, &ParseError{File: spec, Err: ErrUnknownFamily, Detail: "use one of " + strings.Join(Families, ", ")}
 	}
 	g, err := NewGraph(spec, n, edges)
 	if err != nil {
@@ -293,6 +326,16 @@ func Family(fam, arg string) (*Graph, error) {
 	}
 	g.Family = fam
 	return g, nil
+}
+
+// maxFamilyQubits bounds family sizes so a typo cannot ask for billions of
+// edges: a complete graph is limited by its N(N−1)/2 edges, the others by
+// far more qubits than any simulation here can take.
+func maxFamilyQubits(fam string) int {
+	if fam == "complete" {
+		return 2048
+	}
+	return 1 << 20
 }
 
 // gridEdges lists the horizontal edges row by row, then the vertical ones.
@@ -362,6 +405,11 @@ func ReadEdgeList(name string, r io.Reader) (*Graph, error) {
 	}
 	if len(edges) == 0 {
 		return nil, &ParseError{File: name, Err: ErrTooFewQubits, Detail: "the file lists no edges"}
+	}
+	// Checked here as well as in NewGraph because maxID+1 overflows for an id
+	// of math.MaxInt.
+	if maxID >= 2*len(edges) {
+		return nil, isolatedError(name, firstIsolated(maxID, edges), maxID)
 	}
 	g, err := NewGraph(name, maxID+1, edges)
 	if err != nil {

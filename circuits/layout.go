@@ -50,27 +50,32 @@ func ReadLayout(name string, r io.Reader) (*Layout, error) {
 		case errors.As(err, &te):
 			detail = fmt.Sprintf("field %q has the wrong type (want {\"qubits\": n, \"layers\": [[[a, b], …], …]})", te.Field)
 		}
-		return nil, &ParseError{File: name, Err: ErrLayoutMismatch, Detail: detail}
+		return nil, &ParseError{File: name, Err: ErrLayoutSyntax, Detail: detail}
 	}
 	bad := func(err error, detail string, args ...any) error {
 		return &ParseError{File: name, Err: err, Detail: fmt.Sprintf(detail, args...)}
 	}
+	// Decode stops after the first JSON value; anything after it is an error
+	// rather than silently ignored.
+	if _, err := dec.Token(); err != io.EOF {
+		return nil, bad(ErrLayoutSyntax, "unexpected data after the layout object (at byte %d)", dec.InputOffset())
+	}
 	if lf.Qubits == nil {
-		return nil, bad(ErrLayoutMismatch, `missing "qubits"`)
+		return nil, bad(ErrLayoutSyntax, `missing "qubits"`)
 	}
 	n := *lf.Qubits
 	if n < 2 {
 		return nil, bad(ErrTooFewQubits, `"qubits" is %d`, n)
 	}
 	if len(lf.Layers) == 0 {
-		return nil, bad(ErrLayoutMismatch, `"layers" is empty; give at least one layer of gates`)
+		return nil, bad(ErrLayoutSyntax, `"layers" is empty; give at least one layer of gates`)
 	}
 	l := &Layout{Qubits: n}
 	seen := map[[2]int]bool{}
 	var union []Edge
 	for i, layer := range lf.Layers {
 		if len(layer) == 0 {
-			return nil, bad(ErrLayoutMismatch, "layer %d is empty", i)
+			return nil, bad(ErrLayoutSyntax, "layer %d is empty", i)
 		}
 		used := map[int]bool{}
 		var edges []Edge

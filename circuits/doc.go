@@ -14,6 +14,24 @@
 //     stream, derived only from (s, i) by Stream, so results do not depend on
 //     worker counts or shards.
 //
+// Gate sets (NewEnsemble specs): "haar" (Haar U(4)), "clifford" (uniform on
+// the two-qubit Clifford group modulo phases), "NAME+haar1" (Haar U(2) on
+// both qubits, then the entangler NAME) and gate-set files (a fixed
+// entangler after single-qubit gates that are Haar or drawn from a finite
+// set; see ReadGateSet). Convention: circuits of the "…+haar1" sets and of
+// gate-set files end with one layer of single-qubit gates on every qubit
+// before measurement (Haar, or drawn from the file's finite set), as
+// random-circuit experiments commonly do; with Haar single-qubit gates this
+// makes the whole ensemble invariant under single-qubit rotations. Such
+// ensembles implement Finisher, and the final layer of instance i at depth d
+// draws from FinalStream(s, i, d), so reading out more depths never changes
+// the gate layers. SecondMoments tells the exact second-moment engine
+// whether an ensemble's two-copy average stays in span{I, S} per qubit and
+// which transfer applies: Haar U(4)'s (Haar, Clifford) or that of an
+// entangler dressed by Haar U(2) gates.
+//
 // Errors in graph and layout files are *ParseError values that carry the file
 // and line and wrap one of the Err… sentinels; check them with errors.Is.
+// Gate-set specs and files fail with *ParseError values wrapping
+// ErrUnknownGateSet or ErrGateSet.
 package circuits

@@ -1,9 +1,6 @@
 package circuits
 
-import (
-	"fmt"
-	"math/rand/v2"
-)
+import "math/rand/v2"
 
 // Ensemble is a distribution of two-qubit gates.
 type Ensemble interface {
@@ -22,14 +19,18 @@ func (Haar) Name() string { return "haar" }
 // Gate draws a Haar-random U(4) gate (Mezzadri 2007).
 func (Haar) Gate(rng *rand.Rand, m *[16]complex128) { HaarUnitary(rng, 4, m[:]) }
 
-// Ensembles lists the gate-set specs accepted by NewEnsemble.
-var Ensembles = []string{"haar"}
+// Ensembles lists the built-in gate-set specs accepted by NewEnsemble.
+var Ensembles = []string{"haar", "clifford", "cz+haar1", "cnot+haar1", "iswap+haar1", "sqrt-iswap+haar1"}
 
-// NewEnsemble returns the gate ensemble named by spec.
+// NewEnsemble returns the gate ensemble named by spec: one of Ensembles
+// (Haar, Clifford, or a GateSet "NAME+haar1" for NAME in EntanglerNames) or
+// the path of a gate-set file (see ReadGateSet); built-in names win over
+// files. Errors are *ParseError values wrapping ErrUnknownGateSet or
+// ErrGateSet.
 func NewEnsemble(spec string) (Ensemble, error) {
 	switch spec {
 	case "haar":
 		return Haar{}, nil
 	}
-	return nil, fmt.Errorf("circuits: unknown gate set %q: use haar", spec)
+	return namedEnsemble(spec)
 }

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"math/cmplx"
 	"slices"
 	"sync"
 
@@ -158,6 +159,7 @@ func runInstance(ctx context.Context, c *Config, id int, st *sim.State, probs, s
 	dim := float64(len(st.Amp))
 	zh := stats.HaarCollision(dim)
 	var gates []circuits.Gate
+	var final [][4]complex128
 	next := 0
 	for step := 1; next < len(c.Depths); step++ {
 		if ctx.Err() != nil {
@@ -170,7 +172,19 @@ func runInstance(ctx context.Context, c *Config, id int, st *sim.State, probs, s
 		if step != c.Depths[next] {
 			continue
 		}
+		// Ensembles that end with a single-qubit layer: apply it for the
+		// readout, then undo it (single-qubit gates on distinct qubits
+		// commute), so the next layers continue from the unfinished circuit
+		// without a second copy of the state.
+		final, _ = circuits.FinalLayer(c.Ensemble, st.Qubits, c.Seed, id, step, final)
+		for q := range final {
+			st.Apply1(q, &final[q], workers)
+		}
 		probs = st.Probabilities(probs, workers)
+		for q := range final {
+			inv := adjoint2(&final[q])
+			st.Apply1(q, &inv, workers)
+		}
 		z := stats.Collision(probs)
 		recs = append(recs, Record{
 			Depth:     step,
@@ -184,6 +198,11 @@ func runInstance(ctx context.Context, c *Config, id int, st *sim.State, probs, s
 		next++
 	}
 	return recs, true
+}
+
+// adjoint2 returns the conjugate transpose of a row-major 2×2 matrix.
+func adjoint2(m *[4]complex128) [4]complex128 {
+	return [4]complex128{cmplx.Conj(m[0]), cmplx.Conj(m[2]), cmplx.Conj(m[1]), cmplx.Conj(m[3])}
 }
 
 // Row summarises the records of one depth.

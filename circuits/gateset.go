@@ -1,0 +1,373 @@
+package circuits
+
+import (
+	"bytes"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"math/cmplx"
+	"math/rand/v2"
+	"os"
+	"strings"
+)
+
+// Sentinel errors of gate-set specs and files, wrapped by *ParseError.
+var (
+	// ErrUnknownGateSet marks a --gates spec that is neither a built-in gate
+	// set nor an existing file.
+	ErrUnknownGateSet = errors.New("unknown gate set")
+	// ErrGateSet marks an invalid gate-set file: malformed JSON, a matrix of
+	// the wrong shape, a matrix that is not unitary, an empty or unknown
+	// single-qubit set.
+	ErrGateSet = errors.New("invalid gate set")
+)
+
+// UnitaryTolerance is the largest max-entry deviation ‖M†M − I‖ a gate-set
+// file's matrices may have: ample for entries written with 12 or more
+// significant digits, far below any physically different gate.
+const UnitaryTolerance = 1e-9
+
+// EntanglerNames lists the entanglers accepted in "NAME+haar1" specs.
+var EntanglerNames = []string{"cz", "cnot", "iswap", "sqrt-iswap"}
+
+// Entangler returns the named two-qubit entangler in the basis 2·b_a + b_b;
+// ok is false for an unknown name.
+//
+//	cz          diag(1, 1, 1, −1)
+//	cnot        control a, target b: |10⟩ ↔ |11⟩
+//	iswap       |01⟩ → i|10⟩, |10⟩ → i|01⟩
+//	sqrt-iswap  cos(π/4) on |01⟩, |10⟩ and i·sin(π/4) between them
+func Entangler(name string) (g [16]complex128, ok bool) {
+	switch name {
+	case "cz":
+		g = [16]complex128{0: 1, 5: 1, 10: 1, 15: -1}
+	case "cnot":
+		g = [16]complex128{0: 1, 5: 1, 11: 1, 14: 1}
+	case "iswap":
+		g = [16]complex128{0: 1, 6: 1i, 9: 1i, 15: 1}
+	case "sqrt-iswap":
+		c, s := complex(math.Cos(math.Pi/4), 0), complex(0, math.Sin(math.Pi/4))
+		g = [16]complex128{0: 1, 5: c, 6: s, 9: s, 10: c, 15: 1}
+	default:
+		return g, false
+	}
+	return g, true
+}
+
+// GateSet is a two-qubit ensemble built on a fixed entangler G: each gate is
+//
+//	G · (u_a ⊗ u_b)
+//
+// with u_a (qubit a) and u_b drawn independently, in that order, from Haar
+// U(2) when Single is nil, or uniformly from the finite set Single
+// otherwise. Circuits of a GateSet end with a final layer of single-qubit
+// gates on every qubit, drawn the same way (see Finisher). Build one with
+// NewGateSet or ReadGateSet, which validate it.
+type GateSet struct {
+	// Spec is the name that selects the set: "cz+haar1" or a file path.
+	Spec string
+	// G is the entangler, row-major in the basis 2·b_a + b_b.
+	G [16]complex128
+	// Single is the finite single-qubit set (row-major 2×2); nil means Haar
+	// U(2).
+	Single [][4]complex128
+}
+
+// NewGateSet validates g and single (every matrix unitary to
+// UnitaryTolerance; single nil for Haar U(2), otherwise non-empty) and
+// returns the gate set named spec. Errors are *ParseError values wrapping
+// ErrGateSet.
+func NewGateSet(spec string, g [16]complex128, single [][4]complex128) (*GateSet, error) {
+	bad := func(format string, args ...any) error {
+		return &ParseError{File: spec, Err: ErrGateSet, Detail: fmt.Sprintf(format, args...)}
+	}
+	if dev := unitaryDeviation(g[:], 4); !(dev <= UnitaryTolerance) {
+		return nil, bad("entangler is not unitary: ‖G†G − I‖ = %.3g (max entry; tolerance %g)", dev, UnitaryTolerance)
+	}
+	if single != nil && len(single) == 0 {
+		return nil, bad("the single-qubit set is empty: list at least one 2×2 unitary or write \"haar\"")
+	}
+	for k := range single {
+		if dev := unitaryDeviation(single[k][:], 2); !(dev <= UnitaryTolerance) {
+			return nil, bad("single_qubit matrix %d is not unitary: ‖u†u − I‖ = %.3g (max entry; tolerance %g)", k+1, dev, UnitaryTolerance)
+		}
+	}
+	return &GateSet{Spec: spec, G: g, Single: single}, nil
+}
+
+// Name returns the spec that selects the set.
+func (s *GateSet) Name() string { return s.Spec }
+
+// Gate draws u_a, then u_b, and writes G·(u_a ⊗ u_b) into m.
+func (s *GateSet) Gate(rng *rand.Rand, m *[16]complex128) {
+	var ua, ub [4]complex128
+	s.single(rng, &ua)
+	s.single(rng, &ub)
+	var k [16]complex128
+	kron2(&k, &ua, &ub)
+	mul4(m, &s.G, &k)
+}
+
+// Final draws one gate of the final single-qubit layer into m.
+func (s *GateSet) Final(rng *rand.Rand, m *[4]complex128) { s.single(rng, m) }
+
+// SecondMoments reports EntanglerMoments with G when the single-qubit gates
+// are Haar, and NoMoments for a finite single-qubit set (its average does not
+// project onto span{I, S}).
+func (s *GateSet) SecondMoments() (MomentKind, [16]complex128) {
+	if s.Single != nil {
+		return NoMoments, [16]complex128{}
+	}
+	return EntanglerMoments, s.G
+}
+
+func (s *GateSet) single(rng *rand.Rand, m *[4]complex128) {
+	if s.Single == nil {
+		HaarUnitary(rng, 2, m[:])
+		return
+	}
+	*m = s.Single[rng.IntN(len(s.Single))]
+}
+
+// MomentKind says how the exact second-moment engine treats an ensemble.
+type MomentKind int
+
+const (
+	// NoMoments: the ensemble is not invariant under single-qubit Haar
+	// rotations, so its two-copy average leaves span{I, S} and the exact
+	// engine does not apply (GateSets with a finite single-qubit set).
+	NoMoments MomentKind = iota
+	// HaarMoments: every gate has the two-copy average of Haar U(4), so its
+	// transfer is the Haar one (Haar, and Clifford, a 2-design). No final
+	// layer: a qubit no gate touched reads out as |0⟩⟨0|^⊗2 (contribution 1).
+	HaarMoments
+	// EntanglerMoments: every gate is a fixed entangler G after independent
+	// Haar U(2) gates on both qubits, and the circuit ends with a Haar
+	// single-qubit layer (the ensemble is a Finisher). The transfer is that of
+	// G; a qubit no gate touched reads out as (I+S)/6 after the final layer
+	// (contribution 2/3, the collision probability of a Haar qubit state).
+	EntanglerMoments
+)
+
+// String returns "none", "haar" or "entangler".
+func (k MomentKind) String() string {
+	switch k {
+	case HaarMoments:
+		return "haar"
+	case EntanglerMoments:
+		return "entangler"
+	}
+	return "none"
+}
+
+// SecondMomenter is implemented by ensembles that report how the exact
+// second-moment engine must treat them.
+type SecondMomenter interface {
+	// SecondMoments returns the kind and, for EntanglerMoments, the
+	// entangler G.
+	SecondMoments() (MomentKind, [16]complex128)
+}
+
+// SecondMoments returns how the exact engine treats e: HaarMoments for Haar
+// and Clifford, EntanglerMoments with the entangler g for Haar-dressed gate
+// sets, and ok false (kind NoMoments) for any other ensemble.
+func SecondMoments(e Ensemble) (kind MomentKind, g [16]complex128, ok bool) {
+	switch e := e.(type) {
+	case Haar, *Haar:
+		return HaarMoments, g, true
+	case SecondMomenter:
+		kind, g = e.SecondMoments()
+		return kind, g, kind != NoMoments
+	}
+	return NoMoments, g, false
+}
+
+// namedEnsemble resolves the specs NewEnsemble does not handle itself:
+// "clifford", "NAME+haar1" and gate-set files.
+func namedEnsemble(spec string) (Ensemble, error) {
+	if spec == "clifford" {
+		return Clifford{}, nil
+	}
+	if name, ok := strings.CutSuffix(spec, "+haar1"); ok {
+		if g, ok := Entangler(name); ok {
+			return &GateSet{Spec: spec, G: g}, nil
+		}
+	}
+	detail := "no such file, and not one of " + strings.Join(Ensembles, ", ")
+	if st, err := os.Stat(spec); err == nil {
+		if !st.IsDir() {
+			return ReadGateSetFile(spec)
+		}
+		detail = "a directory, not a gate-set file or one of " + strings.Join(Ensembles, ", ")
+	}
+	return nil, &ParseError{File: spec, Err: ErrUnknownGateSet, Detail: detail}
+}
+
+// gateSetFile is the JSON form of a gate-set file.
+type gateSetFile struct {
+	Entangler   json.RawMessage `json:"entangler"`
+	SingleQubit json.RawMessage `json:"single_qubit"`
+}
+
+// ReadGateSetFile reads the gate-set file at path (see ReadGateSet).
+func ReadGateSetFile(path string) (*GateSet, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, fmt.Errorf("circuits: reading gate-set file: %w", err)
+	}
+	return ReadGateSet(path, bytes.NewReader(data))
+}
+
+// ReadGateSet reads a gate-set file from r; name labels errors and becomes
+// the set's Spec. The format is one JSON object,
+//
+//	{"entangler": [[[re, im], …4 entries…], …4 rows…],
+//	 "single_qubit": "haar"}
+//
+// or with "single_qubit": [[[[re, im], [re, im]], [[re, im], [re, im]]], …],
+// a finite set of 2×2 unitaries drawn uniformly. Matrices are row-major, the
+// entangler in the basis 2·b_a + b_b; rows, entries and matrices are counted
+// from 1 in messages. Errors are *ParseError values wrapping ErrGateSet.
+func ReadGateSet(name string, r io.Reader) (*GateSet, error) {
+	bad := func(format string, args ...any) error {
+		return &ParseError{File: name, Err: ErrGateSet, Detail: fmt.Sprintf(format, args...)}
+	}
+	dec := json.NewDecoder(r)
+	dec.DisallowUnknownFields()
+	var f gateSetFile
+	if err := dec.Decode(&f); err != nil {
+		var se *json.SyntaxError
+		var te *json.UnmarshalTypeError
+		switch {
+		case errors.As(err, &se):
+			return nil, bad("invalid JSON at byte %d: %v", se.Offset, se)
+		case errors.As(err, &te):
+			return nil, bad("the file holds a JSON %s, want an object {\"entangler\": …, \"single_qubit\": …}", te.Value)
+		case strings.HasPrefix(err.Error(), "json: unknown field "):
+			// encoding/json has no typed error for DisallowUnknownFields.
+			return nil, bad("%s: a gate-set file has only \"entangler\" and \"single_qubit\"", strings.TrimPrefix(err.Error(), "json: "))
+		case errors.Is(err, io.ErrUnexpectedEOF):
+			return nil, bad("invalid JSON: the file ends inside a value")
+		case errors.Is(err, io.EOF):
+			return nil, bad("the file is empty: want {\"entangler\": …, \"single_qubit\": …}")
+		}
+		return nil, bad("%v (want {\"entangler\": [[[re, im], …], …], \"single_qubit\": \"haar\" or [2×2 matrices]})", err)
+	}
+	if _, err := dec.Token(); err != io.EOF {
+		return nil, bad("unexpected data after the JSON object")
+	}
+	if isNull(f.Entangler) {
+		return nil, bad("missing \"entangler\": a 4×4 matrix of [re, im] pairs")
+	}
+	if isNull(f.SingleQubit) {
+		return nil, bad("missing \"single_qubit\": \"haar\" or a list of 2×2 unitaries")
+	}
+	var g [16]complex128
+	if err := readMatrix(f.Entangler, 4, g[:], "entangler"); err != nil {
+		return nil, bad("%s", err)
+	}
+	var single [][4]complex128
+	var sname string
+	if json.Unmarshal(f.SingleQubit, &sname) == nil {
+		if sname != "haar" {
+			return nil, bad("unknown \"single_qubit\" set %q: write \"haar\" or a list of 2×2 unitaries", sname)
+		}
+	} else {
+		var list []json.RawMessage
+		if err := json.Unmarshal(f.SingleQubit, &list); err != nil {
+			return nil, bad("\"single_qubit\" must be \"haar\" or a list of 2×2 matrices of [re, im] pairs")
+		}
+		single = make([][4]complex128, len(list))
+		for k, raw := range list {
+			if err := readMatrix(raw, 2, single[k][:], fmt.Sprintf("single_qubit matrix %d", k+1)); err != nil {
+				return nil, bad("%s", err)
+			}
+		}
+	}
+	return NewGateSet(name, g, single)
+}
+
+// readMatrix decodes a d×d matrix of [re, im] pairs into dst (row-major);
+// what names the matrix in errors.
+func readMatrix(raw json.RawMessage, d int, dst []complex128, what string) error {
+	var rows []json.RawMessage
+	if err := json.Unmarshal(raw, &rows); err != nil {
+		return fmt.Errorf("%s must be a list of %d rows of [re, im] pairs", what, d)
+	}
+	if len(rows) != d {
+		return fmt.Errorf("%s has %d rows, want %d", what, len(rows), d)
+	}
+	for i, rraw := range rows {
+		var entries []json.RawMessage
+		if err := json.Unmarshal(rraw, &entries); err != nil {
+			return fmt.Errorf("%s row %d must be a list of %d [re, im] pairs", what, i+1, d)
+		}
+		if len(entries) != d {
+			return fmt.Errorf("%s row %d has %d entries, want %d", what, i+1, len(entries), d)
+		}
+		for j, eraw := range entries {
+			var p []float64
+			if err := json.Unmarshal(eraw, &p); err != nil || len(p) != 2 {
+				return fmt.Errorf("%s row %d entry %d is %s, want a [re, im] pair of numbers", what, i+1, j+1, eraw)
+			}
+			dst[i*d+j] = complex(p[0], p[1])
+		}
+	}
+	return nil
+}
+
+func isNull(raw json.RawMessage) bool {
+	return len(raw) == 0 || string(raw) == "null"
+}
+
+// unitaryDeviation returns max |(M†M − I)_ij| for the d×d row-major m, or
+// +Inf when an entry is not finite.
+func unitaryDeviation(m []complex128, d int) float64 {
+	var dev float64
+	for i := 0; i < d; i++ {
+		for j := 0; j < d; j++ {
+			var s complex128
+			for k := 0; k < d; k++ {
+				s += cmplx.Conj(m[k*d+i]) * m[k*d+j]
+			}
+			if i == j {
+				s--
+			}
+			a := cmplx.Abs(s)
+			if math.IsNaN(a) {
+				return math.Inf(1)
+			}
+			dev = max(dev, a)
+		}
+	}
+	return dev
+}
+
+// kron2 writes a ⊗ b into dst: (a ⊗ b)[2i+j][2k+l] = a[i][k]·b[j][l], so a
+// acts on the high bit (qubit a of an edge) in the basis 2·b_a + b_b.
+func kron2(dst *[16]complex128, a, b *[4]complex128) {
+	for i := 0; i < 2; i++ {
+		for j := 0; j < 2; j++ {
+			for k := 0; k < 2; k++ {
+				for l := 0; l < 2; l++ {
+					dst[(2*i+j)*4+2*k+l] = a[2*i+k] * b[2*j+l]
+				}
+			}
+		}
+	}
+}
+
+// mul4 writes the 4×4 product a·b into dst; dst must not alias a or b.
+func mul4(dst, a, b *[16]complex128) {
+	for i := 0; i < 4; i++ {
+		for j := 0; j < 4; j++ {
+			var s complex128
+			for k := 0; k < 4; k++ {
+				s += a[i*4+k] * b[k*4+j]
+			}
+			dst[i*4+j] = s
+		}
+	}
+}

@@ -32,7 +32,25 @@ type Config struct {
 	// Progress, when non-nil, is called once per finished instance, from one
 	// goroutine at a time.
 	Progress func()
+	// Precision is "double" (complex128 amplitudes; "" means double) or
+	// "single" (complex64: half the memory, so 31 qubits fit in 16 GiB, with
+	// relative errors of order 1e−6 in the collision probability; see
+	// TestSinglePrecision).
+	Precision string
 }
+
+// ExactKSQubits is the largest qubit count whose Porter–Thomas distance is
+// computed from the array of all probabilities with a sort (stats.KSHaar).
+// Above it the scan keeps no probability array: the collision probability
+// and a histogram come from one pass over the amplitudes, and
+// stats.KSHaarPasses finishes the same statistic (equal to rounding) in a
+// few more passes.
+const ExactKSQubits = 20
+
+// maxWindow bounds the gates collected between two readouts before they are
+// run, so that random-edge scans with far-apart depths stay in bounded
+// memory.
+const maxWindow = 4096
 
 // Record holds one instance's statistics at one depth.
 type Record struct {
@@ -70,7 +88,43 @@ func (c *Config) Validate() error {
 	if len(c.Instances) == 0 {
 		return errors.New("scan: no instances to run")
 	}
+	switch c.Precision {
+	case "", "double", "single":
+	default:
+		return fmt.Errorf("scan: precision %q: use double or single", c.Precision)
+	}
 	return nil
+}
+
+// vector is a state vector of either precision.
+type vector interface {
+	Reset()
+	Run(ctx context.Context, ops []sim.Op, workers int) error
+	Probabilities(dst []float64, workers int) []float64
+	ProbabilityBlocks(workers int, visit func(w, off int, p []float64))
+}
+
+// newVector allocates the n-qubit state of c's precision.
+func (c *Config) newVector(n int) (vector, error) {
+	if c.Precision == "single" {
+		return sim.NewState64(n, 0)
+	}
+	return sim.NewState(n, 0)
+}
+
+// instanceBytes returns the memory one instance needs: the state, plus the
+// probabilities and the sort scratch up to ExactKSQubits, or the streamed
+// statistic's buffers above.
+func (c *Config) instanceBytes(n int) float64 {
+	state := sim.StateBytes(n)
+	if c.Precision == "single" {
+		state = sim.State64Bytes(n)
+	}
+	dim := math.Ldexp(1, n)
+	if n <= ExactKSQubits {
+		return state + 16*dim
+	}
+	return state + 8*dim/sim.ProbabilityChunk + 8*stats.DefaultKSBudget + 64<<20
 }
 
 // Run simulates the instances of c and returns their records, ordered by
@@ -90,10 +144,8 @@ func Run(ctx context.Context, c *Config) (records []Record, done []int, err erro
 	if n < sim.ParallelQubits {
 		concurrent, gateWorkers = min(workers, len(c.Instances)), 1
 	}
-	dim := float64(uint64(1) << n)
-	perInstance := sim.StateBytes(n) + 16*dim // state + probabilities + sort scratch
 	if n <= sim.MaxQubits {
-		if err := sim.CheckMemory(float64(concurrent)*perInstance, fmt.Sprintf("simulating %d %d-qubit instance(s) at once (state, probabilities and scratch)", concurrent, n)); err != nil {
+		if err := sim.CheckMemory(float64(concurrent)*c.instanceBytes(n), fmt.Sprintf("simulating %d %d-qubit instance(s) at once (state and statistics buffers)", concurrent, n)); err != nil {
 			return nil, nil, err
 		}
 	}
@@ -115,14 +167,13 @@ func Run(ctx context.Context, c *Config) (records []Record, done []int, err erro
 	})
 	for w := 0; w < concurrent; w++ {
 		g.Go(func() error {
-			st, err := sim.NewState(n, 0)
+			st, err := c.newVector(n)
 			if err != nil {
 				return err
 			}
-			probs := make([]float64, len(st.Amp))
-			scratch := make([]float64, len(st.Amp))
+			ro := newReadout(n, gateWorkers)
 			for id := range jobs {
-				recs, ok := runInstance(gctx, c, id, st, probs, scratch, gateWorkers)
+				recs, ok := runInstance(gctx, c, id, n, st, ro)
 				if !ok {
 					return nil
 				}
@@ -153,13 +204,15 @@ func Run(ctx context.Context, c *Config) (records []Record, done []int, err erro
 
 // runInstance simulates instance id once, reading off the statistics at each
 // requested depth; ok is false when ctx was cancelled before it finished.
-func runInstance(ctx context.Context, c *Config, id int, st *sim.State, probs, scratch []float64, workers int) (recs []Record, ok bool) {
+// The gates between two readouts run as one fused sequence (sim.Run).
+func runInstance(ctx context.Context, c *Config, id, n int, st vector, ro *readout) (recs []Record, ok bool) {
 	st.Reset()
 	b := circuits.NewBuilder(c.Schedule, c.Ensemble, c.Seed, id)
-	dim := float64(len(st.Amp))
+	dim := math.Ldexp(1, n)
 	zh := stats.HaarCollision(dim)
 	var gates []circuits.Gate
 	var final [][4]complex128
+	var ops []sim.Op
 	next := 0
 	for step := 1; next < len(c.Depths); step++ {
 		if ctx.Err() != nil {
@@ -167,37 +220,102 @@ func runInstance(ctx context.Context, c *Config, id int, st *sim.State, probs, s
 		}
 		gates = b.Next(gates[:0])
 		for i := range gates {
-			st.Apply2(gates[i].A, gates[i].B, &gates[i].M, workers)
+			ops = append(ops, sim.Op{A: gates[i].A, B: gates[i].B, M: gates[i].M})
 		}
 		if step != c.Depths[next] {
+			if len(ops) >= maxWindow {
+				if st.Run(ctx, ops, ro.workers) != nil {
+					return nil, false
+				}
+				ops = ops[:0]
+			}
 			continue
 		}
 		// Ensembles that end with a single-qubit layer: apply it for the
 		// readout, then undo it (single-qubit gates on distinct qubits
 		// commute), so the next layers continue from the unfinished circuit
-		// without a second copy of the state.
-		final, _ = circuits.FinalLayer(c.Ensemble, st.Qubits, c.Seed, id, step, final)
+		// without a second copy of the state. Both layers fuse into the
+		// neighbouring two-qubit gates.
+		final, _ = circuits.FinalLayer(c.Ensemble, n, c.Seed, id, step, final)
 		for q := range final {
-			st.Apply1(q, &final[q], workers)
+			ops = append(ops, sim.Op{Single: true, A: q, U: final[q]})
 		}
-		probs = st.Probabilities(probs, workers)
+		if st.Run(ctx, ops, ro.workers) != nil {
+			return nil, false
+		}
+		ops = ops[:0]
 		for q := range final {
-			inv := adjoint2(&final[q])
-			st.Apply1(q, &inv, workers)
+			ops = append(ops, sim.Op{Single: true, A: q, U: adjoint2(&final[q])})
 		}
-		z := stats.Collision(probs)
+		z, ks := ro.read(st)
 		recs = append(recs, Record{
 			Depth:     step,
 			GateCount: c.Schedule.GateCount(step),
 			Instance:  id,
 			Collision: z,
 			Ratio:     z / zh,
-			KS:        stats.KSHaar(probs, scratch),
+			KS:        ks,
 			XEBIdeal:  dim*z - 1,
 		})
 		next++
 	}
 	return recs, true
+}
+
+// readout holds one worker's buffers for the statistics of a state.
+type readout struct {
+	n, workers     int
+	probs, scratch []float64 // n ≤ ExactKSQubits
+	partial        []float64 // n > ExactKSQubits: Σp² per chunk
+}
+
+func newReadout(n, workers int) *readout {
+	r := &readout{n: n, workers: workers}
+	if n <= ExactKSQubits {
+		r.probs = make([]float64, 1<<n)
+		r.scratch = make([]float64, 1<<n)
+	} else {
+		r.partial = make([]float64, (1<<n+sim.ProbabilityChunk-1)/sim.ProbabilityChunk)
+	}
+	return r
+}
+
+// read returns the collision probability and the Porter–Thomas distance of
+// st. Up to ExactKSQubits both come from the array of probabilities (the
+// sort of stats.KSHaar); above, the first pass over the amplitudes adds
+// Σp² per chunk of sim.ProbabilityChunk values (pairwise within a chunk,
+// then pairwise over the chunks, so the sum does not depend on the worker
+// count) and feeds the histogram of stats.KSHaarPasses.
+func (r *readout) read(st vector) (z, ks float64) {
+	if r.probs != nil {
+		r.probs = st.Probabilities(r.probs, r.workers)
+		return stats.Collision(r.probs), stats.KSHaar(r.probs, r.scratch)
+	}
+	first := true
+	pass := func(visit func(w int, p []float64)) {
+		st.ProbabilityBlocks(r.workers, func(w, off int, p []float64) {
+			if first {
+				r.partial[off/sim.ProbabilityChunk] = stats.Collision(p)
+			}
+			visit(w, p)
+		})
+		first = false
+	}
+	ks, _ = stats.KSHaarPasses(1<<r.n, r.workers, 0, pass)
+	return pairwiseSum(r.partial), ks
+}
+
+// pairwiseSum adds x pairwise: rounding error O(log len(x)·ε).
+func pairwiseSum(x []float64) float64 {
+	if len(x) <= 8 {
+		var s float64
+		for _, v := range x {
+			s += v
+		}
+		return s
+	}
+	m := len(x) / 2
+	return pairwiseSum(x[:m]) + pairwiseSum(x[m:])
 }
 
 // adjoint2 returns the conjugate transpose of a row-major 2×2 matrix.

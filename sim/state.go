@@ -34,6 +34,7 @@ func NewState(n int, extra float64) (*State, error) {
 		return nil, err
 	}
 	s := &State{Qubits: n, Amp: make([]complex128, 1<<n)}
+	adviseHugePages(s.Amp)
 	s.Amp[0] = 1
 	return s, nil
 }
@@ -57,36 +58,19 @@ func (s *State) Norm() float64 {
 // row-major in the basis |b_a b_b⟩ with index 2·b_a + b_b. With workers > 1
 // and at least ParallelQubits qubits the work is split across goroutines in
 // contiguous blocks. It panics if a == b or either is out of range.
+//
+// The kernel is chosen by the positions: both qubits above 0 stream pairs of
+// adjacent amplitudes, qubit 0 keeps its pair inside one vector register
+// (kernels.go; AVX2 assembly on amd64 processors that have it).
 func (s *State) Apply2(a, b int, m *[16]complex128, workers int) {
 	n := s.Qubits
 	if a == b || a < 0 || b < 0 || a >= n || b >= n {
 		panic(fmt.Sprintf("sim: Apply2 on qubits (%d, %d) of a %d-qubit state", a, b, n))
 	}
+	k := newKernel2(a, b, m)
 	parallelFor(1<<(n-2), workers, n >= ParallelQubits, func(lo, hi int) {
-		apply2Range(s.Amp, a, b, m, lo, hi)
+		apply2Kernel(s.Amp, &k, lo, hi)
 	})
-}
-
-// apply2Range applies m to the amplitude quadruples with base index k in
-// [from, to): k enumerates the indices whose bits a and b are zero.
-func apply2Range(amp []complex128, a, b int, m *[16]complex128, from, to int) {
-	lo, hi := min(a, b), max(a, b)
-	la, lb := 1<<a, 1<<b
-	loMask, hiMask := 1<<lo-1, 1<<hi-1
-	m00, m01, m02, m03 := m[0], m[1], m[2], m[3]
-	m10, m11, m12, m13 := m[4], m[5], m[6], m[7]
-	m20, m21, m22, m23 := m[8], m[9], m[10], m[11]
-	m30, m31, m32, m33 := m[12], m[13], m[14], m[15]
-	for k := from; k < to; k++ {
-		i := (k>>lo)<<(lo+1) | k&loMask
-		i = (i>>hi)<<(hi+1) | i&hiMask
-		i1, i2, i3 := i|lb, i|la, i|la|lb
-		v0, v1, v2, v3 := amp[i], amp[i1], amp[i2], amp[i3]
-		amp[i] = m00*v0 + m01*v1 + m02*v2 + m03*v3
-		amp[i1] = m10*v0 + m11*v1 + m12*v2 + m13*v3
-		amp[i2] = m20*v0 + m21*v1 + m22*v2 + m23*v3
-		amp[i3] = m30*v0 + m31*v1 + m32*v2 + m33*v3
-	}
 }
 
 // Probabilities writes |amp|² into dst (allocated when nil or short) and
@@ -106,17 +90,84 @@ func (s *State) Probabilities(dst []float64, workers int) []float64 {
 }
 
 // parallelFor runs body over [0, n) in contiguous blocks, on workers
-// goroutines when parallel is true.
+// goroutines when parallel is true. Block boundaries are multiples of
+// parallelAlign (or n), so vector kernels that take two items at a time
+// never see a split pair.
 func parallelFor(n, workers int, parallel bool, body func(lo, hi int)) {
-	if workers <= 1 || !parallel {
+	if workers <= 1 || !parallel || n <= parallelAlign {
 		body(0, n)
 		return
 	}
 	var g errgroup.Group
 	chunk := (n + workers - 1) / workers
+	chunk = (chunk + parallelAlign - 1) &^ (parallelAlign - 1)
 	for lo := 0; lo < n; lo += chunk {
 		hi := min(lo+chunk, n)
 		g.Go(func() error { body(lo, hi); return nil })
 	}
 	_ = g.Wait()
+}
+
+// parallelAlign is the granularity of parallelFor's blocks: 64 items, so
+// blocks also start on cache-line boundaries.
+const parallelAlign = 64
+
+// ProbabilityChunk is the length of the chunks ProbabilityBlocks visits
+// (the last one of a state smaller than a chunk is the whole state).
+const ProbabilityChunk = 1 << 12
+
+// ProbabilityBlocks computes the probabilities |amp|² chunk by chunk, in a
+// buffer of ProbabilityChunk values per worker, and calls visit(w, off, p)
+// with p[i] = |amp[off+i]|². Chunks start at multiples of ProbabilityChunk
+// whatever the worker count. Calls with distinct w in [0, workers) may run
+// concurrently; p is reused once visit returns. No array of 2^n
+// probabilities is needed.
+func (s *State) ProbabilityBlocks(workers int, visit func(w, off int, p []float64)) {
+	probabilityBlocks(s.Amp, s.Qubits, workers, visit)
+}
+
+func probabilityBlocks[T Amplitude](amp []T, n, workers int, visit func(w, off int, p []float64)) {
+	chunks := (len(amp) + ProbabilityChunk - 1) / ProbabilityChunk
+	if workers <= 1 || n < ParallelQubits || chunks < 2 {
+		workers = 1
+	}
+	workers = min(workers, chunks)
+	var g errgroup.Group
+	per := (chunks + workers - 1) / workers
+	for w := 0; w < workers; w++ {
+		from, to := w*per, min((w+1)*per, chunks)
+		body := func() error {
+			buf := make([]float64, min(ProbabilityChunk, len(amp)))
+			for c := from; c < to; c++ {
+				off := c * ProbabilityChunk
+				src := amp[off:min(off+ProbabilityChunk, len(amp))]
+				p := buf[:len(src)]
+				squares(src, p)
+				visit(w, off, p)
+			}
+			return nil
+		}
+		if workers == 1 {
+			_ = body()
+		} else {
+			g.Go(body)
+		}
+	}
+	_ = g.Wait()
+}
+
+// squares writes |src[i]|² (in float64) into p.
+func squares[T Amplitude](src []T, p []float64) {
+	p = p[:len(src)]
+	switch v := any(src).(type) {
+	case []complex128:
+		for i, a := range v {
+			p[i] = real(a)*real(a) + imag(a)*imag(a)
+		}
+	case []complex64:
+		for i, a := range v {
+			re, im := float64(real(a)), float64(imag(a))
+			p[i] = re*re + im*im
+		}
+	}
 }

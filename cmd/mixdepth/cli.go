@@ -108,8 +108,7 @@ func newFlags(name, usage, example string, stdout io.Writer) *pflag.FlagSet {
 func parseFlags(fs *pflag.FlagSet, args []string) error {
 	if err := fs.Parse(args); err != nil {
 		if errors.Is(err, pflag.ErrHelp) {
-			fs.Usage()
-			return err
+			return err // pflag has printed the usage
 		}
 		return badInput("%s: %v (see 'mixdepth help %s')", fs.Name(), err, fs.Name())
 	}

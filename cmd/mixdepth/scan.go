@@ -14,6 +14,7 @@ import (
 	"github.com/schollz/progressbar/v3"
 
 	"mixdepth/circuits"
+	"mixdepth/report"
 	"mixdepth/scan"
 	"mixdepth/sim"
 	"mixdepth/tables"
@@ -51,6 +52,10 @@ type scanJSONRow struct {
 	RatioLower     *float64 `json:"ratio_lower"`
 	RatioUpper     *float64 `json:"ratio_upper"`
 	PTKSMean       float64  `json:"pt_ks_mean"`
+	// CollisionExact and ExactDeviation are set with --exact: the exact
+	// E[Z] and (mean − exact)/stderr.
+	CollisionExact *float64 `json:"collision_exact,omitempty"`
+	ExactDeviation *float64 `json:"exact_deviation_sigmas,omitempty"`
 }
 
 // scanFields are the columns of the per-instance scan table.
@@ -77,6 +82,8 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	out := fs.String("out", "", "write the per-instance table to FILE.arrow or FILE.parquet")
 	shardFlag := fs.String("shard", "", "run only the instances i with i mod N = K (K/N), for job arrays; merge the shards with 'mixdepth merge'")
 	resume := fs.String("resume", "", "continue the partial table FILE left by an interrupted scan with the same flags (writes --out, default FILE)")
+	plot := fs.String("plot", "", "draw R − 1 against depth with its confidence band to FILE.png or FILE.svg")
+	withExact := fs.Bool("exact", false, "also compute the exact E[Z] at each depth (no sampling) and flag depths where the Monte Carlo mean is more than 4 standard errors from it")
 	asJSON := fs.Bool("json", false, "print one JSON document instead of the text report")
 	if err := parseFlags(fs, args); err != nil {
 		return err
@@ -125,8 +132,24 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	meta.Set("eps", strconv.FormatFloat(*eps, 'g', -1, 64))
 	meta.Set("confidence", strconv.FormatFloat(*conf, 'g', -1, 64))
 	meta.Set("shard", shard.String())
+	meta.Set("exact", strconv.FormatBool(*withExact))
+	fields := scanFields
+	if *withExact {
+		fields = append(append([]tables.Field(nil), scanFields...), scanExactField)
+	}
 	if *out != "" {
-		if err := checkWritable(*out, scanFields, meta); err != nil {
+		if err := checkWritable(*out, fields, meta); err != nil {
+			return err
+		}
+	}
+	if *plot != "" {
+		if err := report.CheckPath(*plot); err != nil {
+			return usageError{fmt.Errorf("--plot: %w", err)}
+		}
+	}
+	var exact *exactResult
+	if *withExact {
+		if exact, err = computeExact(ctx, s, depths, *workers, false); err != nil {
 			return err
 		}
 	}
@@ -168,7 +191,7 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if *out != "" {
 		meta.Set("partial", strconv.FormatBool(partial))
 		meta.Set("instances_done", formatIDs(doneAll))
-		if err := writeScanTable(*out, meta, records); err != nil {
+		if err := writeScanTable(*out, meta, records, exact); err != nil {
 			return err
 		}
 	}
@@ -181,14 +204,45 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		return errInterrupted
 	}
 	sum := scan.Summarize(s.graph.Qubits, records, *conf, *eps)
+	if *plot != "" {
+		var curve []float64
+		if exact != nil {
+			curve = exact.ratio
+		}
+		if err := report.DepthPlot(*plot, sum, curve, *eps, report.WithConfidence(*conf), report.WithDepthUnit(depthUnit(s)),
+			report.WithTitle(s.graph.Name+", "+s.ensemble.Name()+" gates")); err != nil {
+			return err
+		}
+	}
 	if *asJSON {
-		return writeJSON(stdout, scanDocument(s, cf.seed, len(doneAll), *eps, *conf, sum))
+		doc := scanDocument(s, cf.seed, len(doneAll), *eps, *conf, sum)
+		if exact != nil {
+			for k := range doc.Rows {
+				z, dev := exact.collision[k], (sum.Rows[k].Collision.Mean-exact.collision[k])/sum.Rows[k].Collision.StdErr
+				doc.Rows[k].CollisionExact, doc.Rows[k].ExactDeviation = &z, finiteOrNull(dev)
+			}
+		}
+		return writeJSON(stdout, doc)
 	}
 	printScan(stdout, s, &cf, len(doneAll), *eps, *conf, sum)
+	if exact != nil {
+		printExactCheck(stdout, sum, exact)
+	}
 	if *out != "" {
 		fmt.Fprintf(stdout, "Per-instance table: %s (%d rows)\n", *out, len(records))
 	}
+	if *plot != "" {
+		fmt.Fprintf(stdout, "Plot: %s\n", *plot)
+	}
 	return nil
+}
+
+// depthUnit names what a depth counts, for plot axes.
+func depthUnit(s *setup) string {
+	if s.schedule.Kind() == "random-edge" {
+		return "gates"
+	}
+	return "layers"
 }
 
 // scanDocument assembles the --json document of a scan summary.
@@ -222,17 +276,57 @@ func checkWritable(path string, fields []tables.Field, meta tables.Meta) error {
 	return nil
 }
 
-// writeScanTable writes the per-instance records atomically.
-func writeScanTable(path string, meta tables.Meta, records []scan.Record) error {
-	w, err := tables.Create(path, scanFields, meta)
+// scanExactField is the extra column of scan --exact.
+var scanExactField = tables.Field{Name: "collision_exact", Type: tables.Float64, Doc: "exact ensemble average E[Z] at this depth (scan --exact)"}
+
+// writeScanTable writes the per-instance records atomically, with the
+// exact E[Z] of each depth as an extra column when exact is not nil.
+func writeScanTable(path string, meta tables.Meta, records []scan.Record, exact *exactResult) error {
+	fields := scanFields
+	var exactAt map[int]float64
+	if exact != nil {
+		fields = append(append([]tables.Field(nil), scanFields...), scanExactField)
+		exactAt = map[int]float64{}
+		for k, d := range exact.depths {
+			exactAt[d] = exact.collision[k]
+		}
+	}
+	w, err := tables.Create(path, fields, meta)
 	if err != nil {
 		return fmt.Errorf("writing %s: %w", path, err)
 	}
 	defer w.Abort()
 	for _, r := range records {
+		if exact != nil {
+			w.Append(r.Depth, r.GateCount, r.Instance, r.Collision, r.Ratio, r.KS, r.XEBIdeal, exactAt[r.Depth])
+			continue
+		}
 		w.Append(r.Depth, r.GateCount, r.Instance, r.Collision, r.Ratio, r.KS, r.XEBIdeal)
 	}
 	return w.Close()
+}
+
+// printExactCheck compares the Monte Carlo means with the exact values and
+// reports every depth more than 4 standard errors away: with a correct
+// simulator that happens with probability about 6e-5 per depth, so a flag
+// is a defect to report, not noise to hide.
+func printExactCheck(w io.Writer, sum *scan.Summary, exact *exactResult) {
+	fmt.Fprintf(w, "\n%6s %12s %12s %10s\n", "depth", "R (MC)", "R (exact)", "MC−exact")
+	var bad []string
+	for k, r := range sum.Rows {
+		dev := (r.Collision.Mean - exact.collision[k]) / r.Collision.StdErr
+		mark := ""
+		if math.Abs(dev) > 4 {
+			mark = "  ← more than 4 s.e.: please report this"
+			bad = append(bad, strconv.Itoa(r.Depth))
+		}
+		fmt.Fprintf(w, "%6d %12.6f %12.6f %+9.2fσ%s\n", r.Depth, r.Ratio, exact.ratio[k], dev, mark)
+	}
+	if len(bad) > 0 {
+		fmt.Fprintf(w, "Monte Carlo and exact values disagree beyond 4 standard errors at depth(s) %s: this is a defect; please report it with the command line.\n", strings.Join(bad, ", "))
+	} else {
+		fmt.Fprintln(w, "Monte Carlo agrees with the exact values within 4 standard errors at every depth.")
+	}
 }
 
 // scanRecords reads the per-instance records of a scan table.

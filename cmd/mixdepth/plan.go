@@ -1,0 +1,190 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"math"
+
+	"mixdepth/circuits"
+	"mixdepth/sampling"
+	"mixdepth/stats"
+)
+
+func init() {
+	register(command{name: "plan", summary: "predict the fidelity of a sampling experiment and the shots it needs", run: runPlan})
+}
+
+// planJSON is the --json document of plan. Field names are an interface.
+type planJSON struct {
+	Tool                string     `json:"tool"`
+	Version             string     `json:"version"`
+	Graph               string     `json:"graph"`
+	Qubits              int        `json:"qubits"`
+	Schedule            string     `json:"schedule"`
+	Gates               string     `json:"gates"`
+	Depth               int        `json:"depth"`
+	TwoQubitGates       int        `json:"two_qubit_gates"`
+	SingleQubitGates    int        `json:"single_qubit_gates"`
+	GateError           float64    `json:"gate_error"`
+	SingleQubitError    float64    `json:"single_qubit_error"`
+	ReadoutError        [2]float64 `json:"readout_error"`
+	TwoQubitFidelity    float64    `json:"two_qubit_fidelity"`
+	SingleQubitFidelity float64    `json:"single_qubit_fidelity"`
+	ReadoutFidelity     float64    `json:"readout_fidelity"`
+	ErrorModelFidelity  *float64   `json:"error_model_fidelity"`
+	PredictedFidelity   float64    `json:"predicted_fidelity"`
+	FidelitySource      string     `json:"fidelity_source"`
+	Sigmas              *float64   `json:"sigmas"`
+	RelPrecision        *float64   `json:"rel_precision"`
+	SamplesSigmas       *int64     `json:"samples_sigmas"`
+	SamplesRelPrecision *int64     `json:"samples_rel_precision"`
+	Samples             int64      `json:"samples"`
+}
+
+func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+	fs := newFlags("plan", "Predicts the fidelity of a random-circuit sampling experiment with the digital error model\n"+
+		"(Arute et al. 2019: the product of the gate and readout fidelities)\n\n"+
+		"  F = (1 − e2)^g2 · (1 − e1)^g1 · (1 − (p01 + p10)/2)^n\n\n"+
+		"with g2 two-qubit and g1 single-qubit gates counted on the graph, schedule and depth, and the\n"+
+		"number of shots N the linear XEB needs: to tell F from 0 at z standard deviations,\n"+
+		"N = z²(1 + 2F − F²)/F², and for a standard error r·F, N = (1 + 2F − F²)/(r·F)² (per-shot\n"+
+		"variance 1 + 2F − F² for Porter–Thomas outputs). --fidelity gives F directly instead.\n"+
+		"Single-qubit gates counted by default: the final layer (n) of gate sets that have one, plus two\n"+
+		"per two-qubit gate for the NAME+haar1 and file gate sets G·(u_a ⊗ u_b); Haar and Clifford gates\n"+
+		"count as native two-qubit gates.",
+		"mixdepth plan --depth 16 --gate-error 0.005 --readout-error 0.01,0.03 --sigmas 5 --rel-precision 0.1", stdout)
+	var cf circuitFlags
+	cf.add(fs)
+	depth := fs.Int("depth", defaultSampleDepth, "circuit depth (layers, or gates for random-edge)")
+	fidelity := fs.Float64("fidelity", 0, "expected fidelity F in (0, 1] (default: the digital error model's prediction)")
+	sigmas := fs.Float64("sigmas", 5, "standard deviations z at which F must differ from 0")
+	rel := fs.Float64("rel-precision", 0, "relative precision r: the standard error of F_lin is r·F")
+	gateError := fs.Float64("gate-error", 0, "two-qubit gate error e2 in [0, 1)")
+	singleError := fs.Float64("single-qubit-error", 0, "single-qubit gate error e1 in [0, 1)")
+	readout := fs.String("readout-error", "0,0", "readout flip probabilities p01,p10 (0→1, 1→0), or one value for both")
+	singleGates := fs.Int("single-qubit-gates", -1, "single-qubit gates to count (default: from the gate set, see above)")
+	asJSON := fs.Bool("json", false, "print one JSON document instead of the text report")
+	if err := parseFlags(fs, args); err != nil {
+		return err
+	}
+	if fs.NArg() > 0 {
+		return badInput("plan takes no positional arguments (got %q)", fs.Arg(0))
+	}
+	s, err := cf.resolve()
+	if err != nil {
+		return err
+	}
+	if *depth < 1 {
+		return badInput("--depth %d: must be at least 1", *depth)
+	}
+	for _, e := range []struct {
+		name string
+		v    float64
+	}{{"gate-error", *gateError}, {"single-qubit-error", *singleError}} {
+		if !(e.v >= 0 && e.v < 1) {
+			return badInput("--%s %v: must lie in [0, 1)", e.name, e.v)
+		}
+	}
+	p01, p10, err := parseReadout(*readout)
+	if err != nil {
+		return err
+	}
+	given := fs.Changed("fidelity")
+	if given && !(*fidelity > 0 && *fidelity <= 1) {
+		return badInput("--fidelity %v: must lie in (0, 1]", *fidelity)
+	}
+	rates := fs.Changed("gate-error") || fs.Changed("single-qubit-error") || fs.Changed("readout-error")
+	if !given && !rates {
+		return badInput("plan needs the expected fidelity: give --fidelity F, or error rates (--gate-error, --single-qubit-error, --readout-error) for the digital error model")
+	}
+	useSigmas := fs.Changed("sigmas") || !fs.Changed("rel-precision")
+	if useSigmas && !(*sigmas > 0 && !math.IsInf(*sigmas, 1)) {
+		return badInput("--sigmas %v: must be positive", *sigmas)
+	}
+	useRel := fs.Changed("rel-precision")
+	if useRel && !(*rel > 0 && !math.IsInf(*rel, 1)) {
+		return badInput("--rel-precision %v: must be positive", *rel)
+	}
+	g2, g1 := gateCountsOf(s, *depth)
+	if fs.Changed("single-qubit-gates") {
+		if *singleGates < 0 {
+			return badInput("--single-qubit-gates %d: must be at least 0", *singleGates)
+		}
+		g1 = *singleGates
+	}
+
+	n := s.graph.Qubits
+	f2 := math.Pow(1-*gateError, float64(g2))
+	f1 := math.Pow(1-*singleError, float64(g1))
+	fr := sampling.Noise{Readout01: p01, Readout10: p10}.ReadoutFidelity(n)
+	model := f2 * f1 * fr
+	f, source := model, "error model"
+	if given {
+		f, source = *fidelity, "given"
+	}
+	if !(f > 0) {
+		return badInput("the digital error model predicts fidelity %g: no number of samples resolves it; lower the error rates or the depth", f)
+	}
+	doc := planJSON{
+		Tool: "mixdepth", Version: version, Graph: s.graph.Name, Qubits: n, Schedule: s.schedule.Kind(), Gates: s.ensemble.Name(),
+		Depth: *depth, TwoQubitGates: g2, SingleQubitGates: g1, GateError: *gateError, SingleQubitError: *singleError,
+		ReadoutError: [2]float64{p01, p10}, TwoQubitFidelity: f2, SingleQubitFidelity: f1, ReadoutFidelity: fr,
+		PredictedFidelity: f, FidelitySource: source,
+	}
+	if rates {
+		doc.ErrorModelFidelity = &model
+	}
+	if useSigmas {
+		z := *sigmas
+		v := int64(math.Ceil(stats.XEBSamples(f, z)))
+		doc.Sigmas, doc.SamplesSigmas = &z, &v
+		doc.Samples = v
+	}
+	if useRel {
+		r := *rel
+		v := int64(math.Ceil(stats.XEBSamplesRelative(f, r)))
+		doc.RelPrecision, doc.SamplesRelPrecision = &r, &v
+		doc.Samples = max(doc.Samples, v)
+	}
+	if *asJSON {
+		return writeJSON(stdout, doc)
+	}
+	fmt.Fprintln(stdout, s.describe())
+	fmt.Fprintf(stdout, "depth %d: %d two-qubit gates, %d single-qubit gates, %d qubits read out\n\n", *depth, g2, g1, n)
+	if rates {
+		fmt.Fprintln(stdout, "digital error model (Arute et al. 2019, Nature 574, 505):")
+		fmt.Fprintf(stdout, "  two-qubit gates   (1 − %g)^%d = %.4f\n", *gateError, g2, f2)
+		fmt.Fprintf(stdout, "  single-qubit      (1 − %g)^%d = %.4f\n", *singleError, g1, f1)
+		fmt.Fprintf(stdout, "  readout           (1 − (%g + %g)/2)^%d = %.4f\n", p01, p10, n, fr)
+		fmt.Fprintf(stdout, "  predicted fidelity F = %.4f\n", model)
+	}
+	if given {
+		fmt.Fprintf(stdout, "expected fidelity F = %g (given)\n", *fidelity)
+	}
+	fmt.Fprintln(stdout)
+	if useSigmas {
+		fmt.Fprintf(stdout, "shots to tell F from 0 at %gσ:        N = z²(1 + 2F − F²)/F² = %d\n", *sigmas, *doc.SamplesSigmas)
+	}
+	if useRel {
+		fmt.Fprintf(stdout, "shots for a standard error of %g·F:  N = (1 + 2F − F²)/(r·F)² = %d\n", *rel, *doc.SamplesRelPrecision)
+	}
+	fmt.Fprintf(stdout, "plan for N = %d shots in all (pooled over the instances)\n", doc.Samples)
+	return nil
+}
+
+// gateCountsOf returns the two-qubit gate count of depth steps and the
+// single-qubit gates the digital error model counts for the ensemble: the
+// final layer of n gates when the ensemble has one (circuits.Finisher), and
+// for a gate set G·(u_a ⊗ u_b) two more per two-qubit gate. Haar and
+// Clifford gates count as native two-qubit gates.
+func gateCountsOf(s *setup, depth int) (twoQubit, singleQubit int) {
+	twoQubit = s.schedule.GateCount(depth)
+	if _, ok := s.ensemble.(*circuits.GateSet); ok {
+		singleQubit += 2 * twoQubit
+	}
+	if _, ok := s.ensemble.(circuits.Finisher); ok {
+		singleQubit += s.graph.Qubits
+	}
+	return twoQubit, singleQubit
+}

@@ -1,0 +1,375 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"unicode/utf8"
+
+	"mixdepth/sampling"
+	"mixdepth/sim"
+	"mixdepth/tables"
+)
+
+func init() {
+	register(command{name: "score", summary: "score a sample table with the linear and logarithmic cross-entropy benchmarks", run: runScore})
+}
+
+// scoreJSON is the --json document of score. Field names are an interface.
+type scoreJSON struct {
+	Tool                string              `json:"tool"`
+	Version             string              `json:"version"`
+	Table               string              `json:"table"`
+	Circuits            string              `json:"circuits"`
+	Qubits              int                 `json:"qubits"`
+	Shots               int                 `json:"shots"`
+	LinearXEB           *float64            `json:"linear_xeb"`
+	LinearXEBStderr     *float64            `json:"linear_xeb_stderr"`
+	LogXEB              *float64            `json:"log_xeb"`
+	LogXEBStderr        *float64            `json:"log_xeb_stderr"`
+	IdealXEB            *float64            `json:"ideal_xeb"`
+	NormalizedXEB       *float64            `json:"normalized_xeb"`
+	NormalizedXEBStderr *float64            `json:"normalized_xeb_stderr"`
+	PorterThomasXEB     float64             `json:"porter_thomas_xeb"`
+	Anticoncentrated    bool                `json:"anticoncentrated"`
+	Warnings            []string            `json:"warnings"`
+	Instances           []scoreJSONInstance `json:"instances"`
+}
+
+type scoreJSONInstance struct {
+	Instance            int      `json:"instance"`
+	Shots               int      `json:"shots"`
+	LinearXEB           *float64 `json:"linear_xeb"`
+	LinearXEBStderr     *float64 `json:"linear_xeb_stderr"`
+	LogXEB              *float64 `json:"log_xeb"`
+	LogXEBStderr        *float64 `json:"log_xeb_stderr"`
+	IdealXEB            *float64 `json:"ideal_xeb"`
+	NormalizedXEB       *float64 `json:"normalized_xeb"`
+	NormalizedXEBStderr *float64 `json:"normalized_xeb_stderr"`
+}
+
+func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+	fs := newFlags("score", "mixdepth score FILE [flags]\n\n"+
+		"Scores the shots of a sample table (FILE.arrow or FILE.parquet from 'mixdepth sample', or a\n"+
+		"CSV of measured data with a header and at least the columns instance,bitstring; bitstrings list\n"+
+		"qubit 0 first; an optional p_ideal column is checked against the simulation). Reports per instance\n"+
+		"and over all shots: the linear XEB F_lin = D·mean p − 1 and the logarithmic XEB\n"+
+		"F_log = ln D + γ + mean ln p with their standard errors, the ideal-device value D·Z_U − 1 and the\n"+
+		"normalized estimate F_lin/(D·Z_U − 1). It warns when the circuits have not anti-concentrated\n"+
+		"(mean D·Z_U − 1 more than 10% from the Porter–Thomas value (D−1)/(D+1)), where the raw F_lin\n"+
+		"misstates the fidelity.\n\n"+
+		"The circuits come from --circuits FILE.json, or are rebuilt: for a table written by sample,\n"+
+		"from its recorded run parameters (any of --graph, --layout, --schedule, --gates, --seed and\n"+
+		"--depth given overrides them); for a CSV, from those flags and their defaults, as sample uses them.",
+		"mixdepth score samples.parquet --circuits circuits.json", stdout)
+	var cf circuitFlags
+	cf.add(fs)
+	depth := fs.Int("depth", defaultSampleDepth, "circuit depth when rebuilding the circuits (default: the table's depth)")
+	circuitsIn := fs.String("circuits", "", "read the circuits from FILE.json, as written by 'mixdepth sample --circuits'")
+	workers := fs.Int("workers", defaultWorkers(), "worker goroutines for states of 16 qubits or more")
+	asJSON := fs.Bool("json", false, "print one JSON document instead of the text report")
+	if err := parseFlags(fs, args); err != nil {
+		return err
+	}
+	if fs.NArg() != 1 {
+		return badInput("score takes one sample table: mixdepth score FILE [flags] (got %d arguments)", fs.NArg())
+	}
+	if *workers < 1 {
+		return badInput("--workers %d: must be at least 1", *workers)
+	}
+	path := fs.Arg(0)
+	recs, meta, err := readSamples(path)
+	if err != nil {
+		return err
+	}
+	sampled := false
+	if cmd, ok := meta.Get("command"); ok && cmd == "sample" {
+		sampled = true
+	}
+
+	var qubits int
+	var lookup func(int) *sampling.Circuit
+	var source string
+	if *circuitsIn != "" {
+		for _, name := range []string{"schedule", "gates", "seed", "depth"} {
+			if fs.Changed(name) {
+				return badInput("--%s: the circuits come from --circuits %s; drop --%s", name, *circuitsIn, name)
+			}
+		}
+		cfile, err := readCircuitFile(*circuitsIn)
+		if err != nil {
+			return err
+		}
+		if fs.Changed("graph") || fs.Changed("layout") {
+			s, err := cf.resolve()
+			if err != nil {
+				return err
+			}
+			if err := cfile.Check(s.graph); err != nil {
+				return usageError{fmt.Errorf("--circuits %s: %w", *circuitsIn, err)}
+			}
+		}
+		if d, ok := meta.Get("graph_digest"); ok && cfile.GraphDigest != "" && d != cfile.GraphDigest {
+			return badInput("--circuits %s is for graph %s (digest %s) but %s was sampled on graph digest %s: use the circuits of that run",
+				*circuitsIn, cfile.Graph, cfile.GraphDigest, path, d)
+		}
+		qubits, lookup = cfile.Qubits, cfile.Circuit
+		source = *circuitsIn
+	} else {
+		s, seed, d, total, err := scoreSetup(fs.Changed, &cf, *depth, meta, sampled, path)
+		if err != nil {
+			return err
+		}
+		if s.graph.Qubits > sampling.MaxQubits {
+			return badInput("graph %s has %d qubits: score takes at most %d", s.graph.Name, s.graph.Qubits, sampling.MaxQubits)
+		}
+		qubits = s.graph.Qubits
+		lookup = func(id int) *sampling.Circuit {
+			if id < 0 || total > 0 && id >= total {
+				return nil
+			}
+			return sampling.Build(s.schedule, s.ensemble, qubits, seed, id, d)
+		}
+		source = fmt.Sprintf("rebuilt: %s, %s schedule, %s gates, seed %d, depth %d", s.graph.Name, s.schedule.Kind(), s.ensemble.Name(), seed, d)
+	}
+	if p, _ := meta.Get("partial"); p == "true" {
+		done, _ := meta.Get("instances_done")
+		fmt.Fprintf(stderr, "mixdepth: note: %s is partial (an interrupted run); it holds instances %q\n", path, done)
+	}
+
+	groups, err := sampling.Collect(ctx, path, recs, qubits, lookup, *workers)
+	if err != nil {
+		switch {
+		case errors.Is(err, context.Canceled):
+			return errInterrupted
+		case errors.Is(err, sim.ErrTooLarge):
+			return usageError{err}
+		}
+		var re *sampling.RowError
+		if errors.As(err, &re) {
+			if errors.Is(err, sampling.ErrInstance) && *circuitsIn != "" {
+				return badInput("%v (%s has %s)", err, *circuitsIn, describeCircuitIDs(lookup, recs))
+			}
+			return usageError{err}
+		}
+		return err
+	}
+	rep := sampling.Score(qubits, groups)
+	warnings := []string{}
+	if !rep.Anticoncentrated {
+		w := fmt.Sprintf("the circuits have not anti-concentrated: the ideal value D·Z − 1 = %.4f is more than %.0f%% from the Porter–Thomas value %.4f, so the raw linear XEB misstates the fidelity; read normalized_xeb, or use deeper circuits",
+			rep.Ideal, 100*sampling.AnticoncentrationTolerance, rep.PorterThomas)
+		if rep.Ideal > rep.PorterThomas {
+			w = strings.Replace(w, "misstates", "overstates", 1)
+		}
+		warnings = append(warnings, w)
+	}
+	for _, w := range warnings {
+		fmt.Fprintln(stderr, "mixdepth: warning: "+w)
+	}
+	if *asJSON {
+		doc := scoreJSON{
+			Tool: "mixdepth", Version: version, Table: path, Circuits: source, Qubits: qubits, Shots: rep.Shots,
+			LinearXEB: finiteOrNull(rep.Linear), LinearXEBStderr: finiteOrNull(rep.LinearErr),
+			LogXEB: finiteOrNull(rep.Log), LogXEBStderr: finiteOrNull(rep.LogErr),
+			IdealXEB: finiteOrNull(rep.Ideal), NormalizedXEB: finiteOrNull(rep.Normalized), NormalizedXEBStderr: finiteOrNull(rep.NormalizedErr),
+			PorterThomasXEB: rep.PorterThomas, Anticoncentrated: rep.Anticoncentrated, Warnings: warnings,
+		}
+		for _, s := range rep.Instances {
+			doc.Instances = append(doc.Instances, scoreJSONInstance{
+				Instance: s.Instance, Shots: s.Shots,
+				LinearXEB: finiteOrNull(s.Linear), LinearXEBStderr: finiteOrNull(s.LinearErr),
+				LogXEB: finiteOrNull(s.Log), LogXEBStderr: finiteOrNull(s.LogErr),
+				IdealXEB: finiteOrNull(s.Ideal), NormalizedXEB: finiteOrNull(s.Normalized), NormalizedXEBStderr: finiteOrNull(s.NormalizedErr),
+			})
+		}
+		return writeJSON(stdout, doc)
+	}
+	fmt.Fprintf(stdout, "%s: %d shots of %d instance(s) on %d qubits\ncircuits: %s\n\n", path, rep.Shots, len(rep.Instances), qubits, source)
+	fmt.Fprintf(stdout, "%s %7s  %s  %s  %s  %s\n", pad("", 12), "shots", pad("linear XEB", 17), pad("log XEB", 17), padLeft("D·Z − 1", 8), "normalized")
+	row := func(label string, shots int, lin, linErr, lg, lgErr, ideal, norm, normErr float64) {
+		fmt.Fprintf(stdout, "%s %7d  %s  %s  %8.4f  %s\n", pad(label, 12), shots, pad(plusMinus(lin, linErr), 17), pad(logText(lg, lgErr), 17), ideal, plusMinus(norm, normErr))
+	}
+	row("all", rep.Shots, rep.Linear, rep.LinearErr, rep.Log, rep.LogErr, rep.Ideal, rep.Normalized, rep.NormalizedErr)
+	for _, s := range rep.Instances {
+		row(fmt.Sprintf("instance %d", s.Instance), s.Shots, s.Linear, s.LinearErr, s.Log, s.LogErr, s.Ideal, s.Normalized, s.NormalizedErr)
+	}
+	fmt.Fprintf(stdout, "\nPorter–Thomas value of D·Z − 1: (D−1)/(D+1) = %.4f", rep.PorterThomas)
+	if rep.Anticoncentrated {
+		fmt.Fprintln(stdout, "; the circuits anti-concentrate (mean within 10%).")
+	} else {
+		fmt.Fprintln(stdout, "; the circuits do NOT anti-concentrate: read the normalized column.")
+	}
+	fmt.Fprintf(stdout, "Fidelity estimate: %s (normalized linear XEB over all shots).\n", plusMinus(rep.Normalized, rep.NormalizedErr))
+	return nil
+}
+
+// pad pads s with spaces to width runes (a column of text output).
+func pad(s string, width int) string {
+	return s + strings.Repeat(" ", max(0, width-utf8.RuneCountInString(s)))
+}
+
+// padLeft right-aligns s in width runes.
+func padLeft(s string, width int) string {
+	return strings.Repeat(" ", max(0, width-utf8.RuneCountInString(s))) + s
+}
+
+// logText formats a log-XEB value, which is −Inf when a shot has ideal
+// probability zero.
+func logText(v, se float64) string {
+	if math.IsInf(v, -1) {
+		return "−inf (p = 0 shot)"
+	}
+	return plusMinus(v, se)
+}
+
+// describeCircuitIDs lists the instance ids lookup knows among 0..max id of
+// recs, for the message about an unknown instance.
+func describeCircuitIDs(lookup func(int) *sampling.Circuit, recs []sampling.Record) string {
+	hi := 0
+	for _, r := range recs {
+		hi = max(hi, r.Instance)
+	}
+	var ids []int
+	for id := 0; id <= hi; id++ {
+		if lookup(id) != nil {
+			ids = append(ids, id)
+		}
+	}
+	if len(ids) == 0 {
+		return "none of the table's instances"
+	}
+	return "instances " + formatIDs(ids)
+}
+
+// readSamples reads the records of a sample table: Arrow or Parquet through
+// package tables, with its run metadata, or CSV through sampling.ReadCSV
+// (no metadata). Every failure is bad input naming the file.
+func readSamples(path string) ([]sampling.Record, tables.Meta, error) {
+	if strings.EqualFold(filepath.Ext(path), ".csv") {
+		f, err := os.Open(path)
+		if err != nil {
+			return nil, tables.Meta{}, usageError{fmt.Errorf("reading %s: %w", path, err)}
+		}
+		defer f.Close()
+		recs, err := sampling.ReadCSV(path, f)
+		if err != nil {
+			return nil, tables.Meta{}, usageError{err}
+		}
+		return recs, tables.Meta{}, nil
+	}
+	t, err := tables.Read(path)
+	if err != nil {
+		var fe *tables.FormatError
+		if errors.As(err, &fe) {
+			return nil, tables.Meta{}, badInput("%s: unknown table format: use a name ending in .arrow, .parquet or .csv", path)
+		}
+		return nil, tables.Meta{}, usageError{err}
+	}
+	col := func(name string) (int, error) {
+		j, ok := t.Column(name)
+		if !ok {
+			return 0, badInput("%s: no %s column: a sample table needs instance (int64) and bitstring (string) columns", path, name)
+		}
+		return j, nil
+	}
+	ji, err := col("instance")
+	if err != nil {
+		return nil, t.Meta, err
+	}
+	jb, err := col("bitstring")
+	if err != nil {
+		return nil, t.Meta, err
+	}
+	inst, err := t.Int64s("instance")
+	if err != nil {
+		return nil, t.Meta, badInput("%s: column instance: %v", path, err)
+	}
+	bits, err := t.Strings("bitstring")
+	if err != nil {
+		return nil, t.Meta, badInput("%s: column bitstring: %v", path, err)
+	}
+	var p []float64
+	jp, hasP := t.Column("p_ideal")
+	if hasP {
+		if p, err = t.Float64s("p_ideal"); err != nil {
+			return nil, t.Meta, badInput("%s: column p_ideal: %v", path, err)
+		}
+	}
+	valid := func(j, i int) bool { return t.Valid == nil || t.Valid[j] == nil || t.Valid[j][i] }
+	recs := make([]sampling.Record, t.Len())
+	for i := range recs {
+		for _, j := range []int{ji, jb} {
+			if !valid(j, i) {
+				return nil, t.Meta, badInput("%s: row %d: column %s is null: every shot needs an instance and a bitstring", path, i+1, t.Fields[j].Name)
+			}
+		}
+		recs[i] = sampling.Record{Row: i + 1, Instance: int(inst[i]), Bitstring: bits[i]}
+		if hasP && valid(jp, i) {
+			recs[i].PIdeal, recs[i].HasP = p[i], true
+		}
+	}
+	return recs, t.Meta, nil
+}
+
+// readCircuitFile reads and checks a circuit file; every failure is bad input.
+func readCircuitFile(path string) (*sampling.CircuitFile, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, usageError{fmt.Errorf("--circuits: %w", err)}
+	}
+	defer f.Close()
+	cfile, err := sampling.ReadCircuits(path, f)
+	if err != nil {
+		return nil, usageError{fmt.Errorf("--circuits: %w", err)}
+	}
+	return cfile, nil
+}
+
+// scoreSetup resolves the circuits to rebuild for score: from the table's
+// run parameters when it was written by sample and no circuit flag was
+// given, else from the flags; --seed and --depth override the table's.
+// total is the full run's instance count when the table records it (ids at
+// or above it are unknown), else 0.
+func scoreSetup(changed func(string) bool, cf *circuitFlags, depth int, meta tables.Meta, sampled bool, path string) (s *setup, seed uint64, d, total int, err error) {
+	flagged := changed("graph") || changed("layout") || changed("schedule") || changed("gates")
+	if sampled && !flagged {
+		if s, err = setupFromMeta(meta); err != nil {
+			return nil, 0, 0, 0, badInput("%s: cannot rebuild its circuits: %v; give --circuits FILE.json or the circuit flags", path, err)
+		}
+	} else {
+		if s, err = cf.resolve(); err != nil {
+			return nil, 0, 0, 0, err
+		}
+		if digest, ok := meta.Get("graph_digest"); ok && sampled && digest != s.graph.Digest() {
+			g, _ := meta.Get("graph")
+			return nil, 0, 0, 0, badInput("%s was sampled on graph %s (digest %s) but the flags give %s (digest %s): drop --graph/--layout, or score the right table",
+				path, g, digest, s.graph.Name, s.graph.Digest())
+		}
+	}
+	seed, d = cf.seed, depth
+	if sampled {
+		if !changed("seed") {
+			if seed, err = metaUint(meta, "seed"); err != nil {
+				return nil, 0, 0, 0, badInput("%s: %v", path, err)
+			}
+		}
+		if !changed("depth") {
+			if d, err = metaInt(meta, "depth"); err != nil {
+				return nil, 0, 0, 0, badInput("%s: %v", path, err)
+			}
+		}
+		if total, err = metaInt(meta, "instances"); err != nil {
+			return nil, 0, 0, 0, badInput("%s: %v", path, err)
+		}
+	}
+	if d < 1 {
+		return nil, 0, 0, 0, badInput("--depth %d: must be at least 1", d)
+	}
+	return s, seed, d, total, nil
+}

@@ -1,0 +1,110 @@
+package sampling
+
+import (
+	"context"
+	"fmt"
+
+	"mixdepth/circuits"
+	"mixdepth/sim"
+)
+
+// Circuit is one random circuit instance as it is run: its two-qubit gates,
+// step by step, then an optional final layer of single-qubit gates, then a
+// computational-basis measurement of every qubit.
+type Circuit struct {
+	// Instance is the instance id whose streams drew the circuit.
+	Instance int
+	// Qubits is the number of qubits n.
+	Qubits int
+	// Steps[t] lists the gates of step t in the order they are applied: a
+	// layer of disjoint gates for a layered schedule, one gate for the
+	// random-edge schedule. len(Steps) is the depth.
+	Steps [][]circuits.Gate
+	// Final is the final single-qubit layer, Final[q] on qubit q (row-major
+	// 2×2), or nil when the gate set has none.
+	Final [][4]complex128
+}
+
+// Build draws instance id at depth depth of the run with seed seed: step t's
+// gates come from circuits.NewBuilder's stream circuits.Stream(seed, id),
+// and the final layer, when the ensemble is a circuits.Finisher, from
+// circuits.FinalStream(seed, id, depth). It panics if depth < 1 or qubits < 2.
+func Build(s circuits.Schedule, e circuits.Ensemble, qubits int, seed uint64, id, depth int) *Circuit {
+	if depth < 1 || qubits < 2 {
+		panic(fmt.Sprintf("sampling: Build with depth %d on %d qubits", depth, qubits))
+	}
+	b := circuits.NewBuilder(s, e, seed, id)
+	c := &Circuit{Instance: id, Qubits: qubits, Steps: make([][]circuits.Gate, depth)}
+	for t := range c.Steps {
+		c.Steps[t] = b.Next(nil)
+	}
+	if final, ok := circuits.FinalLayer(e, qubits, seed, id, depth, nil); ok {
+		c.Final = final
+	}
+	return c
+}
+
+// Depth returns the number of steps.
+func (c *Circuit) Depth() int { return len(c.Steps) }
+
+// GateCount returns the number of two-qubit gates.
+func (c *Circuit) GateCount() int {
+	g := 0
+	for _, step := range c.Steps {
+		g += len(step)
+	}
+	return g
+}
+
+// Apply runs the circuit on st in place (st is not reset first). It panics
+// if st has another number of qubits.
+func (c *Circuit) Apply(st *sim.State, workers int) {
+	c.ApplyWithErrors(st, nil, workers)
+}
+
+// ApplyWithErrors runs the circuit on st with a Pauli after each two-qubit
+// gate: paulis[k], for the k-th gate in order, is 0 for none or 1..15 for
+// the two-qubit Pauli 4·p_A + p_B (0 = I, 1 = X, 2 = Y, 3 = Z) on the gate's
+// qubits (A, B). A nil paulis means no errors. It panics if st has another
+// number of qubits or paulis has a length other than GateCount.
+func (c *Circuit) ApplyWithErrors(st *sim.State, paulis []uint8, workers int) {
+	c.run(context.Background(), st, paulis, workers)
+}
+
+// run is ApplyWithErrors that checks ctx before every step; it returns false,
+// leaving st part-way, when ctx is cancelled.
+func (c *Circuit) run(ctx context.Context, st *sim.State, paulis []uint8, workers int) bool {
+	if st.Qubits != c.Qubits {
+		panic(fmt.Sprintf("sampling: %d-qubit circuit on a %d-qubit state", c.Qubits, st.Qubits))
+	}
+	if paulis != nil && len(paulis) != c.GateCount() {
+		panic(fmt.Sprintf("sampling: %d Pauli errors for %d gates", len(paulis), c.GateCount()))
+	}
+	k := 0
+	for _, step := range c.Steps {
+		if ctx.Err() != nil {
+			return false
+		}
+		for i := range step {
+			g := &step[i]
+			st.Apply2(g.A, g.B, &g.M, workers)
+			if paulis != nil && paulis[k] != 0 {
+				st.Apply2(g.A, g.B, &pauliMatrices[paulis[k]], workers)
+			}
+			k++
+		}
+	}
+	for q := range c.Final {
+		st.Apply1(q, &c.Final[q], workers)
+	}
+	return true
+}
+
+// Probabilities resets st, runs the noiseless circuit and writes the 2^n
+// output probabilities into dst (allocated when nil or short); it returns
+// dst.
+func (c *Circuit) Probabilities(st *sim.State, dst []float64, workers int) []float64 {
+	st.Reset()
+	c.Apply(st, workers)
+	return st.Probabilities(dst, workers)
+}

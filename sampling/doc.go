@@ -1,0 +1,43 @@
+// Package sampling runs and scores the sampling benchmark: it simulates
+// seeded random circuits exactly, draws bitstrings from their output
+// distributions under a stated noise model, writes and reads the circuits as
+// JSON so that the same circuits can go to hardware, and scores sample
+// tables with the cross-entropy benchmarks.
+//
+// Sampling. Each shot is drawn in O(1) from a Walker alias table (Alias) of
+// the output distribution, built once per distribution in O(D), D = 2^n.
+// Noise (Noise) has three independent parts: Pauli errors after two-qubit
+// gates, simulated by quantum trajectories (each instance runs
+// T = min(shots, Config.Trajectories) trajectories, default 100, with the
+// shots split as evenly as possible by TrajectoryShots; a trajectory
+// without errors reuses the ideal distribution; the shots of a trajectory
+// share its errors, so they are independent draws of the noisy mixture only
+// when T = shots); global depolarizing with
+// fidelity f; and independent readout bit flips. The recorded p_ideal is
+// always the noiseless probability of the recorded outcome.
+//
+// Streams. Instance i of a run with seed s at depth d draws its gates from
+// circuits.Stream(s, i), its final single-qubit layer (gate sets that have
+// one) from circuits.FinalStream(s, i, d), its Pauli errors from
+// ErrorStream(s, i, d) and its shots from ShotStream(s, i, d): four ChaCha8
+// generators with distinct keys. Results depend on (s, i, d) alone, not on
+// workers or shards.
+//
+// Scoring (Boixo et al. 2018, Nature Physics 14, 595; Arute et al. 2019,
+// Nature 574, 505), per instance and pooled:
+//
+//	F_lin = D·mean_k p(x_k) − 1,          stderr D·sd p/√N
+//	F_log = ln D + γ + mean_k ln p(x_k),  stderr sd ln p/√N
+//
+// An ideal sampler gives E[F_lin] = D·Z_U − 1 with Z_U = Σ_x p_U(x)², which
+// tends to (D−1)/(D+1) once the circuits anti-concentrate; Score reports
+// F_lin/(D·Z_U − 1) as the fidelity estimate and flags tables whose circuits
+// have not anti-concentrated, where the raw F_lin overstates the fidelity.
+//
+// Files. The circuit file (WriteCircuits, ReadCircuits) is JSON of this
+// project's own design, described at CircuitFile. Sample tables are read by
+// the caller; ReadCSV reads measured data with at least the columns
+// instance,bitstring. Data errors are *RowError and *CircuitFileError
+// values that name the row or field and wrap a sentinel; programmer
+// mistakes panic with a "sampling: " message.
+package sampling

@@ -1,0 +1,148 @@
+package sampling
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"math/rand/v2"
+)
+
+// Noise is the noise model of a sampling run. Each option has one meaning:
+//
+//   - GateError e: after every two-qubit gate, with probability e a Pauli
+//     drawn uniformly from the 15 non-identity two-qubit Paulis acts on the
+//     gate's qubits (a Pauli error rate e). It is simulated by quantum
+//     trajectories: each trajectory re-simulates the circuit with fresh
+//     Pauli draws and gives its share of the shots (see Trajectories).
+//   - Fidelity f: global depolarizing. Each shot is drawn from the circuit's
+//     output distribution (with its gate errors) with probability f, and
+//     uniformly from all 2^n bitstrings otherwise, so that the sampled law is
+//     q = f·p + (1−f)/D (Boixo et al. 2018, Nature Physics 14, 595).
+//   - Readout01, Readout10: readout errors. At measurement every qubit's bit
+//     flips independently, 0 → 1 with probability Readout01 and 1 → 0 with
+//     probability Readout10.
+//
+// The zero Noise is a uniform sampler (Fidelity 0); Ideal is the noiseless
+// model.
+type Noise struct {
+	Fidelity             float64
+	GateError            float64
+	Readout01, Readout10 float64
+}
+
+// Ideal is the noiseless model: Fidelity 1 and no gate or readout errors.
+var Ideal = Noise{Fidelity: 1}
+
+// ErrNoiseRange is wrapped by the error of Noise.Validate.
+var ErrNoiseRange = errors.New("noise parameter outside [0, 1]")
+
+// Validate returns an error wrapping ErrNoiseRange, naming the parameter,
+// unless every parameter lies in [0, 1].
+func (n Noise) Validate() error {
+	for _, p := range []struct {
+		name string
+		v    float64
+	}{{"fidelity", n.Fidelity}, {"gate error", n.GateError}, {"readout error 0→1", n.Readout01}, {"readout error 1→0", n.Readout10}} {
+		if !(p.v >= 0 && p.v <= 1) {
+			return fmt.Errorf("sampling: %s is %v: %w", p.name, p.v, ErrNoiseRange)
+		}
+	}
+	return nil
+}
+
+// check panics if n is invalid.
+func (n Noise) check() {
+	if err := n.Validate(); err != nil {
+		panic(err.Error())
+	}
+}
+
+// ReadoutFidelity returns the digital-error-model factor of reading out
+// qubits qubits, (1 − (Readout01 + Readout10)/2)^qubits: each qubit counts
+// with its error averaged over the two outcomes (Arute et al. 2019, Nature
+// 574, 505, which multiplies the average readout fidelities of the qubits).
+func (n Noise) ReadoutFidelity(qubits int) float64 {
+	return math.Pow(1-(n.Readout01+n.Readout10)/2, float64(qubits))
+}
+
+// Readout returns the outcome x of qubits qubits after independent readout
+// flips: bit q = 0 becomes 1 with probability Readout01 and bit q = 1 becomes
+// 0 with probability Readout10. It draws from rng only for non-zero rates.
+func (n Noise) Readout(rng *rand.Rand, x uint64, qubits int) uint64 {
+	if n.Readout01 == 0 && n.Readout10 == 0 {
+		return x
+	}
+	for q := range qubits {
+		bit := uint64(1) << q
+		if x&bit == 0 {
+			if n.Readout01 > 0 && rng.Float64() < n.Readout01 {
+				x |= bit
+			}
+		} else if n.Readout10 > 0 && rng.Float64() < n.Readout10 {
+			x &^= bit
+		}
+	}
+	return x
+}
+
+// DrawShots appends shots outcomes of qubits qubits to dst and returns it.
+// Each shot is drawn from the alias table a (the circuit's output
+// distribution) with probability nz.Fidelity and uniformly from the 2^qubits
+// outcomes otherwise, then read out through nz's readout flips. Gate errors
+// are not DrawShots' business: a holds the distribution of one trajectory.
+// The cost is O(qubits) per shot with readout errors and O(1) without. It
+// panics if a does not have 2^qubits outcomes or nz is invalid.
+func DrawShots(dst []uint64, rng *rand.Rand, a *Alias, qubits, shots int, nz Noise) []uint64 {
+	nz.check()
+	if qubits < 1 || qubits > 32 || a.Len() != 1<<qubits {
+		panic(fmt.Sprintf("sampling: alias table of %d outcomes for %d qubits", a.Len(), qubits))
+	}
+	dim := uint64(1) << qubits
+	for range shots {
+		var x uint64
+		if nz.Fidelity == 1 || rng.Float64() < nz.Fidelity {
+			x = uint64(a.Draw(rng))
+		} else {
+			x = rng.Uint64N(dim)
+		}
+		dst = append(dst, nz.Readout(rng, x, qubits))
+	}
+	return dst
+}
+
+// Pauli indices: a two-qubit Pauli on gate qubits (A, B) is p = 4·pA + pB
+// with 0 = I, 1 = X, 2 = Y, 3 = Z; p = 0 is the identity.
+const pauliCount = 16
+
+// pauliMatrices[p] is the 4×4 matrix of Pauli p in the gate basis
+// |b_A b_B⟩, index 2·b_A + b_B: the Kronecker product P_A ⊗ P_B.
+var pauliMatrices = func() (m [pauliCount][16]complex128) {
+	one := [4][4]complex128{
+		{1, 0, 0, 1},    // I
+		{0, 1, 1, 0},    // X
+		{0, -1i, 1i, 0}, // Y
+		{1, 0, 0, -1},   // Z
+	} // row-major 2×2
+	for p := range pauliCount {
+		pa, pb := one[p/4], one[p%4]
+		for i := range 2 {
+			for j := range 2 {
+				for k := range 2 {
+					for l := range 2 {
+						m[p][(2*i+j)*4+2*k+l] = pa[2*i+k] * pb[2*j+l]
+					}
+				}
+			}
+		}
+	}
+	return m
+}()
+
+// drawPauli returns 0 (no error) with probability 1−e and otherwise one of
+// the 15 non-identity two-qubit Paulis 1..15, uniformly.
+func drawPauli(rng *rand.Rand, e float64) int {
+	if e == 0 || rng.Float64() >= e {
+		return 0
+	}
+	return 1 + rng.IntN(pauliCount-1)
+}

@@ -1,0 +1,342 @@
+package sampling
+
+import (
+	"context"
+	"encoding/binary"
+	"errors"
+	"fmt"
+	"math/rand/v2"
+	"slices"
+	"sync"
+
+	"golang.org/x/sync/errgroup"
+
+	"mixdepth/circuits"
+	"mixdepth/sim"
+	"mixdepth/stats"
+)
+
+// DefaultTrajectories is the number of quantum trajectories per instance when
+// Config.Trajectories is 0: an instance with gate errors simulates
+// T = min(shots, DefaultTrajectories) trajectories.
+const DefaultTrajectories = 100
+
+// MaxQubits is the largest qubit count Run samples: outcomes are uint64
+// indices and an Alias holds at most 2^32 outcomes.
+const MaxQubits = 32
+
+// Config describes one sampling run.
+type Config struct {
+	Schedule circuits.Schedule
+	Ensemble circuits.Ensemble
+	// Qubits is the number of qubits n of the schedule's graph.
+	Qubits int
+	// Depth is the number of schedule steps.
+	Depth int
+	Seed  uint64
+	// Instances lists the instance ids to run (0..N−1 for a whole run; a
+	// shard runs a subset with the same streams).
+	Instances []int
+	// Shots is the number of bitstrings drawn per instance.
+	Shots int
+	Noise Noise
+	// Trajectories bounds the quantum trajectories per instance when
+	// Noise.GateError > 0: T = min(Shots, Trajectories), and 0 means
+	// DefaultTrajectories. See TrajectoryShots for the split of the shots.
+	Trajectories int
+	// Workers bounds the goroutines; 0 or less means 1.
+	Workers int
+	// Progress, when non-nil, is called once per finished instance, from one
+	// goroutine at a time.
+	Progress func()
+}
+
+// Result is the outcome of one instance.
+type Result struct {
+	Circuit *Circuit
+	// Outcomes[k] is the basis index x = Σ b_q 2^q recorded by shot k, after
+	// all noise.
+	Outcomes []uint64
+	// PIdeal[k] is the noiseless probability p_U(Outcomes[k]).
+	PIdeal []float64
+	// Collision is Z_U = Σ_x p_U(x)² of the noiseless output, so that D·Z_U − 1
+	// is the linear cross-entropy an ideal sampler scores in expectation.
+	Collision float64
+	// Trajectories is the number of trajectories simulated: 0 without gate
+	// errors.
+	Trajectories int
+}
+
+// ErrConfig is wrapped by the errors of Config.Validate.
+var ErrConfig = errors.New("invalid sampling configuration")
+
+// Validate returns an error wrapping ErrConfig (or ErrNoiseRange) for a
+// configuration that cannot run. It panics if Schedule or Ensemble is nil.
+func (c *Config) Validate() error {
+	if c.Schedule == nil || c.Ensemble == nil {
+		panic("sampling: Config needs Schedule and Ensemble")
+	}
+	bad := func(format string, args ...any) error {
+		return fmt.Errorf("sampling: %s: %w", fmt.Sprintf(format, args...), ErrConfig)
+	}
+	switch {
+	case c.Qubits < 2 || c.Qubits > MaxQubits:
+		return bad("%d qubits: sampling takes 2 to %d", c.Qubits, MaxQubits)
+	case c.Depth < 1:
+		return bad("depth %d is not positive", c.Depth)
+	case c.Shots < 1:
+		return bad("%d shots: need at least 1", c.Shots)
+	case c.Trajectories < 0:
+		return bad("%d trajectories: need at least 1 (0 for the default %d)", c.Trajectories, DefaultTrajectories)
+	case len(c.Instances) == 0:
+		return bad("no instances to run")
+	}
+	seen := make(map[int]bool, len(c.Instances))
+	for _, id := range c.Instances {
+		if id < 0 {
+			return bad("instance id %d is negative", id)
+		}
+		if seen[id] {
+			return bad("instance id %d is listed twice", id)
+		}
+		seen[id] = true
+	}
+	return c.Noise.Validate()
+}
+
+// trajectories returns the number of trajectories an instance simulates.
+func (c *Config) trajectories() int {
+	if c.Noise.GateError == 0 {
+		return 0
+	}
+	t := c.Trajectories
+	if t == 0 {
+		t = DefaultTrajectories
+	}
+	return min(c.Shots, t)
+}
+
+// TrajectoryShots splits shots among t trajectories as evenly as possible:
+// the first shots mod t trajectories take ⌈shots/t⌉ shots, the others
+// ⌊shots/t⌋, in trajectory order, so shot k belongs to one trajectory
+// determined by k alone. It panics unless 1 ≤ t ≤ shots.
+func TrajectoryShots(shots, t int) []int {
+	if t < 1 || t > shots {
+		panic(fmt.Sprintf("sampling: %d shots over %d trajectories", shots, t))
+	}
+	out := make([]int, t)
+	for i := range out {
+		out[i] = shots / t
+		if i < shots%t {
+			out[i]++
+		}
+	}
+	return out
+}
+
+// ShotStream returns the random stream of the shot draws (depolarizing,
+// outcomes, readout flips) of instance i at depth d of a run with seed s. It
+// is a ChaCha8 generator keyed by "mixshots" and (s, i, d), apart from the
+// circuit's streams (circuits.Stream, circuits.FinalStream) and from
+// ErrorStream.
+func ShotStream(seed uint64, instance, depth int) *rand.Rand {
+	return keyedStream("mixshots", seed, instance, depth)
+}
+
+// ErrorStream returns the random stream of the Pauli errors of instance i at
+// depth d of a run with seed s: a ChaCha8 generator keyed by "mixpauli" and
+// (s, i, d). Trajectory after trajectory, it draws for each gate in order
+// whether an error occurs and which Pauli.
+func ErrorStream(seed uint64, instance, depth int) *rand.Rand {
+	return keyedStream("mixpauli", seed, instance, depth)
+}
+
+func keyedStream(tag string, seed uint64, instance, depth int) *rand.Rand {
+	var key [32]byte
+	copy(key[:8], tag)
+	binary.LittleEndian.PutUint64(key[8:], seed)
+	binary.LittleEndian.PutUint64(key[16:], uint64(instance))
+	binary.LittleEndian.PutUint64(key[24:], uint64(depth))
+	return rand.New(rand.NewChaCha8(key))
+}
+
+// bytesPerInstance is the memory one instance in flight needs: the state,
+// the ideal probabilities and their alias table, and with gate errors one
+// more probability vector and alias table for the trajectories, plus the
+// recorded shots.
+func (c *Config) bytesPerInstance() float64 {
+	dim := float64(uint64(1) << c.Qubits)
+	need := sim.StateBytes(c.Qubits) + 8*dim + 16*dim
+	if c.Noise.GateError > 0 {
+		need += 8*dim + 16*dim
+	}
+	return need + 16*float64(c.Shots)
+}
+
+// Run simulates and samples the instances of c. It calls emit with each
+// instance's Result in ascending instance order, from one goroutine at a
+// time; an error from emit stops the run and is returned. When ctx is
+// cancelled, Run stops, still emits the instances that had finished (whole
+// instances only, ascending) and returns ctx.Err(). done lists the emitted
+// instance ids in ascending order.
+//
+// Small states run one instance per goroutine; states of at least
+// sim.ParallelQubits qubits run one instance at a time with each gate split
+// across the workers. Every random choice of instance i comes from streams
+// keyed by (Seed, i) alone, so results do not depend on Workers or on the
+// other instances listed.
+func Run(ctx context.Context, c *Config, emit func(*Result) error) (done []int, err error) {
+	if err := c.Validate(); err != nil {
+		return nil, err
+	}
+	ids := slices.Clone(c.Instances)
+	slices.Sort(ids)
+	workers := max(c.Workers, 1)
+	concurrent, gateWorkers := 1, workers
+	if c.Qubits < sim.ParallelQubits {
+		concurrent, gateWorkers = min(workers, len(ids)), 1
+	}
+	if err := sim.CheckMemory(float64(concurrent)*c.bytesPerInstance(),
+		fmt.Sprintf("sampling %d %d-qubit instance(s) at once (state, probabilities, alias tables, shots)", concurrent, c.Qubits)); err != nil {
+		return nil, err
+	}
+
+	results := make([]*Result, len(ids))
+	next := 0 // results[:next] have been emitted
+	var mu sync.Mutex
+	var emitErr error
+	flush := func() { // with mu held
+		for next < len(results) && results[next] != nil && emitErr == nil {
+			if emitErr = emit(results[next]); emitErr == nil {
+				done = append(done, ids[next])
+			}
+			results[next] = nil
+			next++
+		}
+	}
+
+	g, gctx := errgroup.WithContext(ctx)
+	jobs := make(chan int)
+	g.Go(func() error {
+		defer close(jobs)
+		for j := range ids {
+			select {
+			case jobs <- j:
+			case <-gctx.Done():
+				return nil
+			}
+		}
+		return nil
+	})
+	for range concurrent {
+		g.Go(func() error {
+			w, err := newWorker(c, gateWorkers)
+			if err != nil {
+				return err
+			}
+			for j := range jobs {
+				r, ok := w.instance(gctx, ids[j])
+				if !ok {
+					return nil
+				}
+				mu.Lock()
+				results[j] = r
+				if c.Progress != nil {
+					c.Progress()
+				}
+				flush()
+				err := emitErr
+				mu.Unlock()
+				if err != nil {
+					return err
+				}
+			}
+			return nil
+		})
+	}
+	if err := g.Wait(); err != nil {
+		return done, err
+	}
+	// After a cancellation some later instances may have finished while an
+	// earlier one had not: emit them too, still in ascending order.
+	for j := next; j < len(results); j++ {
+		if results[j] == nil {
+			continue
+		}
+		if err := emit(results[j]); err != nil {
+			return done, err
+		}
+		done = append(done, ids[j])
+	}
+	return done, ctx.Err()
+}
+
+// worker holds the buffers of one goroutine.
+type worker struct {
+	c            *Config
+	workers      int
+	st           *sim.State
+	ideal, noisy []float64
+	idealTable   Alias
+	noisyTable   Alias
+}
+
+func newWorker(c *Config, workers int) (*worker, error) {
+	st, err := sim.NewState(c.Qubits, 0)
+	if err != nil {
+		return nil, err
+	}
+	w := &worker{c: c, workers: workers, st: st, ideal: make([]float64, len(st.Amp))}
+	if c.Noise.GateError > 0 {
+		w.noisy = make([]float64, len(st.Amp))
+	}
+	return w, nil
+}
+
+// instance runs instance id; ok is false when ctx was cancelled first.
+func (w *worker) instance(ctx context.Context, id int) (r *Result, ok bool) {
+	c := w.c
+	circ := Build(c.Schedule, c.Ensemble, c.Qubits, c.Seed, id, c.Depth)
+	w.st.Reset()
+	if !circ.run(ctx, w.st, nil, w.workers) {
+		return nil, false
+	}
+	w.ideal = w.st.Probabilities(w.ideal, w.workers)
+	r = &Result{Circuit: circ, Collision: stats.Collision(w.ideal), Trajectories: c.trajectories()}
+	shots := ShotStream(c.Seed, id, c.Depth)
+	out := make([]uint64, 0, c.Shots)
+	w.idealTable.Reset(w.ideal)
+	if r.Trajectories == 0 {
+		out = DrawShots(out, shots, &w.idealTable, c.Qubits, c.Shots, c.Noise)
+	} else {
+		errs := ErrorStream(c.Seed, id, c.Depth)
+		paulis := make([]uint8, circ.GateCount())
+		for _, k := range TrajectoryShots(c.Shots, r.Trajectories) {
+			if ctx.Err() != nil {
+				return nil, false
+			}
+			hit := false
+			for i := range paulis {
+				paulis[i] = uint8(drawPauli(errs, c.Noise.GateError))
+				hit = hit || paulis[i] != 0
+			}
+			table := &w.idealTable
+			if hit { // a trajectory without errors is the ideal circuit
+				w.st.Reset()
+				if !circ.run(ctx, w.st, paulis, w.workers) {
+					return nil, false
+				}
+				w.noisy = w.st.Probabilities(w.noisy, w.workers)
+				w.noisyTable.Reset(w.noisy)
+				table = &w.noisyTable
+			}
+			out = DrawShots(out, shots, table, c.Qubits, k, c.Noise)
+		}
+	}
+	r.Outcomes = out
+	r.PIdeal = make([]float64, len(out))
+	for k, x := range out {
+		r.PIdeal[k] = w.ideal[x]
+	}
+	return r, true
+}

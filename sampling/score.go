@@ -1,0 +1,86 @@
+package sampling
+
+import (
+	"math"
+
+	"mixdepth/stats"
+)
+
+// AnticoncentrationTolerance is the relative distance from the Porter–Thomas
+// value (D−1)/(D+1) beyond which Report.Anticoncentrated is false.
+const AnticoncentrationTolerance = 0.1
+
+// InstanceScore is the cross-entropy benchmark of one instance's shots.
+type InstanceScore struct {
+	Instance int
+	Shots    int
+	// Linear is F_lin = D·mean p(x_k) − 1 and LinearErr its standard error
+	// D·sd p(x_k)/√N (stats.LinearXEB).
+	Linear, LinearErr float64
+	// Log is F_log = ln D + γ + mean ln p(x_k) and LogErr its standard error
+	// (stats.LogXEB); −Inf when a shot has ideal probability 0.
+	Log, LogErr float64
+	// Ideal is D·Z_U − 1, the expected F_lin of an ideal sampler.
+	Ideal float64
+	// Normalized is Linear/Ideal, the fidelity estimate, and NormalizedErr
+	// its standard error LinearErr/Ideal.
+	Normalized, NormalizedErr float64
+}
+
+// Report is the cross-entropy benchmark of a sample table.
+type Report struct {
+	Qubits int
+	// Shots is the total number of shots.
+	Shots int
+	// Linear, LinearErr, Log and LogErr are the estimators over all shots
+	// pooled.
+	Linear, LinearErr, Log, LogErr float64
+	// Ideal is the shot-weighted mean of the instances' D·Z_U − 1: the
+	// expected pooled F_lin of an ideal sampler.
+	Ideal float64
+	// Normalized is Linear/Ideal and NormalizedErr its standard error.
+	Normalized, NormalizedErr float64
+	// PorterThomas is (D−1)/(D+1), the value of Ideal for Haar-random
+	// outputs (Boixo et al. 2018).
+	PorterThomas float64
+	// Anticoncentrated is true when Ideal lies within
+	// AnticoncentrationTolerance of PorterThomas (relative). Otherwise the
+	// raw F_lin misstates the fidelity (it overstates it when Ideal > 1):
+	// read Normalized instead, and prefer deeper circuits.
+	Anticoncentrated bool
+	Instances        []InstanceScore
+}
+
+// Score computes the linear and logarithmic cross-entropy benchmarks of the
+// shots of every instance and of all shots pooled, with the ideal-device
+// values D·Z_U − 1 and the normalised estimates F_lin/(D·Z_U − 1) (Boixo et
+// al. 2018, Nature Physics 14, 595; Arute et al. 2019, Nature 574, 505). It
+// panics if qubits < 1 or an instance has no shots.
+func Score(qubits int, groups []InstanceSamples) *Report {
+	if qubits < 1 {
+		panic("sampling: Score needs at least 1 qubit")
+	}
+	dim := math.Ldexp(1, qubits)
+	r := &Report{Qubits: qubits, PorterThomas: (dim - 1) / (dim + 1)}
+	var all []float64
+	var idealSum float64
+	for _, g := range groups {
+		if len(g.PIdeal) == 0 {
+			panic("sampling: Score of an instance without shots")
+		}
+		s := InstanceScore{Instance: g.Instance, Shots: len(g.PIdeal), Ideal: dim*g.Collision - 1}
+		s.Linear, s.LinearErr = stats.LinearXEB(g.PIdeal, dim)
+		s.Log, s.LogErr = stats.LogXEB(g.PIdeal, dim)
+		s.Normalized, s.NormalizedErr = s.Linear/s.Ideal, s.LinearErr/s.Ideal
+		r.Instances = append(r.Instances, s)
+		all = append(all, g.PIdeal...)
+		idealSum += float64(len(g.PIdeal)) * s.Ideal
+	}
+	r.Shots = len(all)
+	r.Linear, r.LinearErr = stats.LinearXEB(all, dim)
+	r.Log, r.LogErr = stats.LogXEB(all, dim)
+	r.Ideal = idealSum / float64(r.Shots)
+	r.Normalized, r.NormalizedErr = r.Linear/r.Ideal, r.LinearErr/r.Ideal
+	r.Anticoncentrated = math.Abs(r.Ideal/r.PorterThomas-1) <= AnticoncentrationTolerance
+	return r
+}

@@ -1,0 +1,436 @@
+package sim
+
+import (
+	"context"
+	"fmt"
+	"math/bits"
+	"slices"
+
+	"golang.org/x/sync/errgroup"
+)
+
+// Op is one gate of a circuit for Run: the two-qubit gate M on qubits
+// (A, B), row-major in the basis |b_A b_B⟩ with index 2·b_A + b_B, or, when
+// Single is true, the single-qubit gate U (row-major 2×2) on qubit A.
+type Op struct {
+	A, B   int
+	Single bool
+	M      [16]complex128
+	U      [4]complex128
+}
+
+// BlockQubits is the size of the blocks of a fused pass: 2^BlockQubits
+// amplitudes (256 KiB of complex128), small enough to stay in a core's
+// second-level cache while a pass applies all of its gates to them.
+const BlockQubits = 14
+
+// blockLow is the number of lowest qubits every block of a large state
+// contains, so that a block is gathered in runs of at least 2^blockLow
+// consecutive amplitudes (256 bytes of complex128).
+const blockLow = 4
+
+// fusedOp is a gate of a pass on global qubits, after merging.
+type fusedOp struct {
+	single bool
+	a, b   int
+	m      [16]complex128 // basis 2·b_a + b_b
+	u      [4]complex128
+	dead   bool
+}
+
+// pass is one sweep over the state: the block qubits (ascending; position i
+// of a block is qubit qubits[i]) and the gates applied to every block, on
+// block positions.
+type pass struct {
+	qubits []int
+	low    int // qubits[:low] are 0..low−1
+	ops    []fusedOp
+}
+
+// mask returns the bit mask of the qubits an op acts on.
+func (o *Op) mask() uint64 {
+	if o.Single {
+		return 1 << o.A
+	}
+	return 1<<o.A | 1<<o.B
+}
+
+// planPasses splits ops into passes over blocks of at most k qubits, in
+// order: greedily, each pass takes every remaining gate that fits its block
+// and is not preceded by a left-out gate on one of its qubits, so the
+// gates of a pass commute with the left-out gates they overtake. Within a
+// pass, single-qubit gates are folded into the neighbouring two-qubit gate
+// on the same qubit and consecutive gates on the same pair are multiplied.
+// When n ≤ k there is one pass over the whole state.
+func planPasses(n int, ops []Op, k int) []pass {
+	if n <= k {
+		return []pass{newPass(n, allMask(n), ops)}
+	}
+	var base uint64 = allMask(blockLow)
+	var passes []pass
+	remaining := ops
+	var in, out []Op
+	for len(remaining) > 0 {
+		sel := base
+		var blocked uint64
+		in, out = in[:0], out[:0]
+		for i := range remaining {
+			op := &remaining[i]
+			q := op.mask()
+			if q&blocked == 0 && bits.OnesCount64(sel|q) <= k {
+				sel |= q
+				in = append(in, *op)
+				continue
+			}
+			blocked |= q
+			out = append(out, *op)
+		}
+		// Pad the block with the lowest free qubits: longer contiguous runs
+		// cost nothing.
+		for q := 0; bits.OnesCount64(sel) < k; q++ {
+			sel |= 1 << q
+		}
+		passes = append(passes, newPass(n, sel, in))
+		remaining = append(remaining[:0:0], out...)
+	}
+	return passes
+}
+
+func allMask(n int) uint64 { return 1<<n - 1 }
+
+// newPass builds the pass of ops over the block qubits sel, merging gates.
+func newPass(n int, sel uint64, ops []Op) pass {
+	p := pass{}
+	for q := 0; q < n; q++ {
+		if sel>>q&1 == 1 {
+			p.qubits = append(p.qubits, q)
+		}
+	}
+	for p.low < len(p.qubits) && p.qubits[p.low] == p.low {
+		p.low++
+	}
+	for i := range ops {
+		p.add(&ops[i])
+	}
+	p.ops = slices.DeleteFunc(p.ops, func(o fusedOp) bool { return o.dead })
+	return p
+}
+
+// last returns the index of the last live op of p acting on qubit q, or −1.
+func (p *pass) last(q int) int {
+	for i := len(p.ops) - 1; i >= 0; i-- {
+		o := &p.ops[i]
+		if !o.dead && (o.a == q || (!o.single && o.b == q)) {
+			return i
+		}
+	}
+	return -1
+}
+
+// add appends op to p, folding it into earlier gates where possible. The
+// products are exact matrix products, so a fused circuit differs from the
+// gate-by-gate one only by rounding.
+func (p *pass) add(op *Op) {
+	if op.Single {
+		q := op.A
+		if i := p.last(q); i >= 0 {
+			o := &p.ops[i]
+			if o.single {
+				o.u = mul2(&op.U, &o.u)
+			} else {
+				leftMul(&o.m, &op.U, q == o.a)
+			}
+			return
+		}
+		p.ops = append(p.ops, fusedOp{single: true, a: q, u: op.U})
+		return
+	}
+	a, b := op.A, op.B
+	ia, ib := p.last(a), p.last(b)
+	if ia >= 0 && ia == ib {
+		// The previous gate on both qubits acts on the same pair.
+		o := &p.ops[ia]
+		g := op.M
+		if o.a != a {
+			g = swapPair(&g)
+		}
+		o.m = mul4(&g, &o.m)
+		return
+	}
+	m := op.M
+	for _, side := range [2]struct {
+		q   int
+		i   int
+		onA bool
+	}{{a, ia, true}, {b, ib, false}} {
+		if side.i >= 0 && p.ops[side.i].single {
+			rightMul(&m, &p.ops[side.i].u, side.onA)
+			p.ops[side.i].dead = true
+		}
+	}
+	p.ops = append(p.ops, fusedOp{a: a, b: b, m: m})
+}
+
+// mul2 returns x·y for 2×2 matrices.
+func mul2(x, y *[4]complex128) [4]complex128 {
+	return [4]complex128{
+		x[0]*y[0] + x[1]*y[2], x[0]*y[1] + x[1]*y[3],
+		x[2]*y[0] + x[3]*y[2], x[2]*y[1] + x[3]*y[3],
+	}
+}
+
+// mul4 returns x·y for 4×4 matrices.
+func mul4(x, y *[16]complex128) [16]complex128 {
+	var z [16]complex128
+	for r := range 4 {
+		for c := range 4 {
+			var s complex128
+			for l := range 4 {
+				s += x[4*r+l] * y[4*l+c]
+			}
+			z[4*r+c] = s
+		}
+	}
+	return z
+}
+
+// swapPair returns m on (a, b) rewritten for the qubit order (b, a).
+func swapPair(m *[16]complex128) [16]complex128 {
+	perm := [4]int{0, 2, 1, 3}
+	var c [16]complex128
+	for r := range 4 {
+		for l := range 4 {
+			c[4*r+l] = m[4*perm[r]+perm[l]]
+		}
+	}
+	return c
+}
+
+// kronU returns U⊗I (onA) or I⊗U as a 4×4 matrix in the basis 2·b_a + b_b.
+func kronU(u *[4]complex128, onA bool) [16]complex128 {
+	var k [16]complex128
+	for r := range 4 {
+		for c := range 4 {
+			ra, rb, ca, cb := r>>1, r&1, c>>1, c&1
+			if onA && rb == cb {
+				k[4*r+c] = u[2*ra+ca]
+			} else if !onA && ra == ca {
+				k[4*r+c] = u[2*rb+cb]
+			}
+		}
+	}
+	return k
+}
+
+// leftMul sets m to (U on a or b)·m.
+func leftMul(m *[16]complex128, u *[4]complex128, onA bool) {
+	k := kronU(u, onA)
+	*m = mul4(&k, m)
+}
+
+// rightMul sets m to m·(U on a or b).
+func rightMul(m *[16]complex128, u *[4]complex128, onA bool) {
+	k := kronU(u, onA)
+	*m = mul4(m, &k)
+}
+
+// Run applies ops in order to s, as the same Apply2 and Apply1 calls would
+// up to rounding, in few passes over memory: gates are grouped into passes
+// over blocks of 2^BlockQubits amplitudes that stay in cache while every
+// gate of the pass acts on them (planPasses). Blocks are split across
+// workers goroutines when s has at least ParallelQubits qubits. ctx is
+// checked between passes; when it is cancelled Run returns ctx.Err() and s
+// holds a partly applied circuit. It panics if an op's qubits are out of
+// range or equal.
+func (s *State) Run(ctx context.Context, ops []Op, workers int) error {
+	return runOps(ctx, s.Qubits, s.Amp, ops, workers)
+}
+
+// checkOps panics on ops whose qubits are invalid for n qubits.
+func checkOps(n int, ops []Op) {
+	for i := range ops {
+		o := &ops[i]
+		if o.A < 0 || o.A >= n || (!o.Single && (o.B < 0 || o.B >= n || o.A == o.B)) {
+			panic(fmt.Sprintf("sim: Run: op %d on qubits (%d, %d) of a %d-qubit state", i, o.A, o.B, n))
+		}
+	}
+}
+
+// localKernels converts a pass's ops to kernels on block positions.
+type localOp struct {
+	single bool
+	k2     kernel2
+	k1     kernel1
+	m64    [16]complex64
+}
+
+func (p *pass) kernels(single64 bool) []localOp {
+	pos := make(map[int]int, len(p.qubits))
+	for i, q := range p.qubits {
+		pos[q] = i
+	}
+	out := make([]localOp, len(p.ops))
+	for i := range p.ops {
+		o := &p.ops[i]
+		if o.single {
+			out[i] = localOp{single: true, k1: newKernel1(pos[o.a], &o.u)}
+			if single64 {
+				for j, v := range o.u {
+					out[i].m64[j] = complex64(v)
+				}
+			}
+			continue
+		}
+		out[i].k2 = newKernel2(pos[o.a], pos[o.b], &o.m)
+		if single64 {
+			for j, v := range out[i].k2.m {
+				out[i].m64[j] = complex64(v)
+			}
+		}
+	}
+	return out
+}
+
+// applyLocal applies the kernels to the block x of 2^k amplitudes.
+func applyLocal[T Amplitude](x []T, k int, ops []localOp) {
+	switch v := any(x).(type) {
+	case []complex128:
+		for i := range ops {
+			o := &ops[i]
+			if o.single {
+				apply1Kernel(v, &o.k1, 0, 1<<(k-1))
+			} else {
+				apply2Kernel(v, &o.k2, 0, 1<<(k-2))
+			}
+		}
+	case []complex64:
+		for i := range ops {
+			o := &ops[i]
+			if o.single {
+				m := (*[4]complex64)(o.m64[:4])
+				apply1Scalar(v, o.k1.q, m, 0, 1<<(k-1))
+			} else {
+				apply2Scalar(v, o.k2.lo, o.k2.hi, &o.m64, 0, 1<<(k-2))
+			}
+		}
+	}
+}
+
+// runOps plans and executes ops on the amplitudes amp of n qubits.
+func runOps[T Amplitude](ctx context.Context, n int, amp []T, ops []Op, workers int) error {
+	checkOps(n, ops)
+	var zero T
+	_, single64 := any(zero).(complex64)
+	var bufs [][]T // one block buffer per worker, kept across passes
+	for _, p := range planPasses(n, ops, BlockQubits) {
+		if err := ctx.Err(); err != nil {
+			return err
+		}
+		kops := p.kernels(single64)
+		if len(kops) == 0 {
+			continue
+		}
+		if len(p.qubits) == n {
+			applyWhole(n, amp, kops, workers)
+			continue
+		}
+		if bufs == nil {
+			bufs = make([][]T, max(workers, 1))
+		}
+		runPass(n, amp, &p, kops, bufs)
+	}
+	return nil
+}
+
+// applyWhole applies the kernels of a pass that spans all n qubits gate by
+// gate, each split across workers like Apply2.
+func applyWhole[T Amplitude](n int, amp []T, kops []localOp, workers int) {
+	if workers <= 1 || n < ParallelQubits {
+		applyLocal(amp, n, kops)
+		return
+	}
+	for i := range kops {
+		o := &kops[i]
+		count := 1 << (n - 2)
+		if o.single {
+			count = 1 << (n - 1)
+		}
+		parallelFor(count, workers, true, func(lo, hi int) {
+			switch v := any(amp).(type) {
+			case []complex128:
+				if o.single {
+					apply1Kernel(v, &o.k1, lo, hi)
+				} else {
+					apply2Kernel(v, &o.k2, lo, hi)
+				}
+			case []complex64:
+				if o.single {
+					apply1Scalar(v, o.k1.q, (*[4]complex64)(o.m64[:4]), lo, hi)
+				} else {
+					apply2Scalar(v, o.k2.lo, o.k2.hi, &o.m64, lo, hi)
+				}
+			}
+		})
+	}
+}
+
+// runPass executes one pass over the blocks of a state larger than a block:
+// each block (one setting of the qubits outside p.qubits) is gathered into
+// a buffer in 2^(k−low) runs of 2^low consecutive amplitudes, the kernels
+// act on the buffer, and it is scattered back. Workers take contiguous
+// ranges of blocks, so neighbouring blocks share pages.
+func runPass[T Amplitude](n int, amp []T, p *pass, kops []localOp, bufs [][]T) {
+	workers := len(bufs)
+	k := len(p.qubits)
+	low := p.low
+	high := p.qubits[low:]
+	offs := make([]int, 1<<len(high))
+	for r := range offs {
+		o := 0
+		for i, q := range high {
+			o |= (r >> i & 1) << q
+		}
+		offs[r] = o
+	}
+	var rest []int
+	in := 0
+	for q := 0; q < n; q++ {
+		if in < k && p.qubits[in] == q {
+			in++
+			continue
+		}
+		rest = append(rest, q)
+	}
+	blocks := 1 << len(rest)
+	run := 1 << low
+	body := func(w, from, to int) {
+		if len(bufs[w]) < 1<<k {
+			bufs[w] = make([]T, 1<<k)
+		}
+		buf := bufs[w][:1<<k]
+		for blk := from; blk < to; blk++ {
+			base := 0
+			for i, q := range rest {
+				base |= (blk >> i & 1) << q
+			}
+			for r, o := range offs {
+				copy(buf[r*run:(r+1)*run], amp[base+o:base+o+run])
+			}
+			applyLocal(buf, k, kops)
+			for r, o := range offs {
+				copy(amp[base+o:base+o+run], buf[r*run:(r+1)*run])
+			}
+		}
+	}
+	if workers <= 1 || n < ParallelQubits || blocks < 2 {
+		body(0, 0, blocks)
+		return
+	}
+	var g errgroup.Group
+	chunk := (blocks + workers - 1) / workers
+	for w := 0; w*chunk < blocks; w++ {
+		lo, hi := w*chunk, min((w+1)*chunk, blocks)
+		g.Go(func() error { body(w, lo, hi); return nil })
+	}
+	_ = g.Wait()
+}

@@ -1,0 +1,387 @@
+#include "textflag.h"
+
+// func cpuid(eaxIn, ecxIn uint32) (eax, ebx, ecx, edx uint32)
+TEXT ·cpuid(SB), NOSPLIT, $0-24
+	MOVL eaxIn+0(FP), AX
+	MOVL ecxIn+4(FP), CX
+	CPUID
+	MOVL AX, eax+8(FP)
+	MOVL BX, ebx+12(FP)
+	MOVL CX, ecx+16(FP)
+	MOVL DX, edx+20(FP)
+	RET
+
+// func xgetbv0() (eax uint32)
+TEXT ·xgetbv0(SB), NOSPLIT, $0-4
+	MOVL $0, CX
+	XGETBV
+	MOVL AX, eax+0(FP)
+	RET
+
+// func apply2RunsAVX(x *complex128, lo, hi uint, from, to int, c *coef2)
+//
+// Applies the canonical 4×4 matrix whose split coefficients are in c to the
+// amplitude groups k in [from, to), two groups (k, k+1) per iteration; from
+// and to are even and 1 ≤ lo < hi. Group k has base index
+// i = insert(insert(k, lo), hi) and members i, i+2^lo, i+2^hi, i+2^lo+2^hi;
+// groups k and k+1 are adjacent amplitudes because lo ≥ 1. c holds, for row r
+// and column l, the vector [re, re, re, re] at 32·(8r+2l) and
+// [−im, im, −im, im] at 32·(8r+2l+1).
+TEXT ·apply2RunsAVX(SB), NOSPLIT, $0-48
+	MOVQ x+0(FP), DI
+	MOVQ lo+8(FP), R8          // lo
+	MOVQ hi+16(FP), R9         // hi
+	MOVQ from+24(FP), R10      // k
+	MOVQ to+32(FP), R11        // end
+	MOVQ c+40(FP), SI
+	LEAQ 1(R8), R12            // lo+1
+	LEAQ 1(R9), R13            // hi+1
+	MOVQ $1, AX
+	SHLXQ R8, AX, R14          // 2^lo
+	MOVQ $1, AX
+	SHLXQ R9, AX, R15          // 2^hi
+	LEAQ -1(R14), BX           // loMask
+	LEAQ -1(R15), DX           // hiMask
+	SHLQ $4, R14               // byte offset of bit lo
+	SHLQ $4, R15               // byte offset of bit hi
+	CMPQ R10, R11
+	JGE  runsDone
+
+runsLoop:
+	// i = (k>>lo)<<(lo+1) | k&loMask
+	SHRXQ R8, R10, AX
+	SHLXQ R12, AX, AX
+	MOVQ  R10, CX
+	ANDQ  BX, CX
+	ORQ   CX, AX
+	// i = (i>>hi)<<(hi+1) | i&hiMask
+	SHRXQ R9, AX, CX
+	SHLXQ R13, CX, CX
+	ANDQ  DX, AX
+	ORQ   CX, AX
+	SHLQ  $4, AX
+	ADDQ  DI, AX               // &x[i]
+
+	VMOVUPD (AX), Y0
+	VMOVUPD (AX)(R14*1), Y1
+	VMOVUPD (AX)(R15*1), Y2
+	LEAQ    (AX)(R14*1), CX
+	VMOVUPD (CX)(R15*1), Y3
+	VPERMILPD $5, Y0, Y4
+	VPERMILPD $5, Y1, Y5
+	VPERMILPD $5, Y2, Y6
+	VPERMILPD $5, Y3, Y7
+
+	// row 0
+	VMULPD      0(SI), Y0, Y8
+	VFMADD231PD 32(SI), Y4, Y8
+	VFMADD231PD 64(SI), Y1, Y8
+	VFMADD231PD 96(SI), Y5, Y8
+	VFMADD231PD 128(SI), Y2, Y8
+	VFMADD231PD 160(SI), Y6, Y8
+	VFMADD231PD 192(SI), Y3, Y8
+	VFMADD231PD 224(SI), Y7, Y8
+	// row 1
+	VMULPD      256(SI), Y0, Y9
+	VFMADD231PD 288(SI), Y4, Y9
+	VFMADD231PD 320(SI), Y1, Y9
+	VFMADD231PD 352(SI), Y5, Y9
+	VFMADD231PD 384(SI), Y2, Y9
+	VFMADD231PD 416(SI), Y6, Y9
+	VFMADD231PD 448(SI), Y3, Y9
+	VFMADD231PD 480(SI), Y7, Y9
+	// row 2
+	VMULPD      512(SI), Y0, Y10
+	VFMADD231PD 544(SI), Y4, Y10
+	VFMADD231PD 576(SI), Y1, Y10
+	VFMADD231PD 608(SI), Y5, Y10
+	VFMADD231PD 640(SI), Y2, Y10
+	VFMADD231PD 672(SI), Y6, Y10
+	VFMADD231PD 704(SI), Y3, Y10
+	VFMADD231PD 736(SI), Y7, Y10
+	// row 3
+	VMULPD      768(SI), Y0, Y11
+	VFMADD231PD 800(SI), Y4, Y11
+	VFMADD231PD 832(SI), Y1, Y11
+	VFMADD231PD 864(SI), Y5, Y11
+	VFMADD231PD 896(SI), Y2, Y11
+	VFMADD231PD 928(SI), Y6, Y11
+	VFMADD231PD 960(SI), Y3, Y11
+	VFMADD231PD 992(SI), Y7, Y11
+
+	VMOVUPD Y8, (AX)
+	VMOVUPD Y9, (AX)(R14*1)
+	VMOVUPD Y10, (AX)(R15*1)
+	VMOVUPD Y11, (CX)(R15*1)
+
+	ADDQ $2, R10
+	CMPQ R10, R11
+	JLT  runsLoop
+
+runsDone:
+	VZEROUPPER
+	RET
+
+// func apply2RunsAVX512(x *complex128, lo, hi uint, from, to int, c *coef2z)
+//
+// The AVX-512 form of apply2RunsAVX: four groups (k…k+3) per iteration, from
+// and to multiples of 4 and 2 ≤ lo < hi; c holds 64-byte vectors at twice the
+// offsets. Group k has base index
+// i = insert(insert(k, lo), hi) and members i, i+2^lo, i+2^hi, i+2^lo+2^hi;
+// groups k and k+1 are adjacent amplitudes because lo ≥ 1. c holds, for row r
+// and column l, the vector [re, re, re, re] at 32·(8r+2l) and
+// [−im, im, −im, im] at 32·(8r+2l+1).
+TEXT ·apply2RunsAVX512(SB), NOSPLIT, $0-48
+	MOVQ x+0(FP), DI
+	MOVQ lo+8(FP), R8          // lo
+	MOVQ hi+16(FP), R9         // hi
+	MOVQ from+24(FP), R10      // k
+	MOVQ to+32(FP), R11        // end
+	MOVQ c+40(FP), SI
+	LEAQ 1(R8), R12            // lo+1
+	LEAQ 1(R9), R13            // hi+1
+	MOVQ $1, AX
+	SHLXQ R8, AX, R14          // 2^lo
+	MOVQ $1, AX
+	SHLXQ R9, AX, R15          // 2^hi
+	LEAQ -1(R14), BX           // loMask
+	LEAQ -1(R15), DX           // hiMask
+	SHLQ $4, R14               // byte offset of bit lo
+	SHLQ $4, R15               // byte offset of bit hi
+	CMPQ R10, R11
+	JGE  zrunsDone
+
+zrunsLoop:
+	// i = (k>>lo)<<(lo+1) | k&loMask
+	SHRXQ R8, R10, AX
+	SHLXQ R12, AX, AX
+	MOVQ  R10, CX
+	ANDQ  BX, CX
+	ORQ   CX, AX
+	// i = (i>>hi)<<(hi+1) | i&hiMask
+	SHRXQ R9, AX, CX
+	SHLXQ R13, CX, CX
+	ANDQ  DX, AX
+	ORQ   CX, AX
+	SHLQ  $4, AX
+	ADDQ  DI, AX               // &x[i]
+
+	VMOVUPD (AX), Z0
+	VMOVUPD (AX)(R14*1), Z1
+	VMOVUPD (AX)(R15*1), Z2
+	LEAQ    (AX)(R14*1), CX
+	VMOVUPD (CX)(R15*1), Z3
+	VPERMILPD $0x55, Z0, Z4
+	VPERMILPD $0x55, Z1, Z5
+	VPERMILPD $0x55, Z2, Z6
+	VPERMILPD $0x55, Z3, Z7
+
+	// row 0
+	VMULPD      0(SI), Z0, Z8
+	VFMADD231PD 64(SI), Z4, Z8
+	VFMADD231PD 128(SI), Z1, Z8
+	VFMADD231PD 192(SI), Z5, Z8
+	VFMADD231PD 256(SI), Z2, Z8
+	VFMADD231PD 320(SI), Z6, Z8
+	VFMADD231PD 384(SI), Z3, Z8
+	VFMADD231PD 448(SI), Z7, Z8
+	// row 1
+	VMULPD      512(SI), Z0, Z9
+	VFMADD231PD 576(SI), Z4, Z9
+	VFMADD231PD 640(SI), Z1, Z9
+	VFMADD231PD 704(SI), Z5, Z9
+	VFMADD231PD 768(SI), Z2, Z9
+	VFMADD231PD 832(SI), Z6, Z9
+	VFMADD231PD 896(SI), Z3, Z9
+	VFMADD231PD 960(SI), Z7, Z9
+	// row 2
+	VMULPD      1024(SI), Z0, Z10
+	VFMADD231PD 1088(SI), Z4, Z10
+	VFMADD231PD 1152(SI), Z1, Z10
+	VFMADD231PD 1216(SI), Z5, Z10
+	VFMADD231PD 1280(SI), Z2, Z10
+	VFMADD231PD 1344(SI), Z6, Z10
+	VFMADD231PD 1408(SI), Z3, Z10
+	VFMADD231PD 1472(SI), Z7, Z10
+	// row 3
+	VMULPD      1536(SI), Z0, Z11
+	VFMADD231PD 1600(SI), Z4, Z11
+	VFMADD231PD 1664(SI), Z1, Z11
+	VFMADD231PD 1728(SI), Z5, Z11
+	VFMADD231PD 1792(SI), Z2, Z11
+	VFMADD231PD 1856(SI), Z6, Z11
+	VFMADD231PD 1920(SI), Z3, Z11
+	VFMADD231PD 1984(SI), Z7, Z11
+
+	VMOVUPD Z8, (AX)
+	VMOVUPD Z9, (AX)(R14*1)
+	VMOVUPD Z10, (AX)(R15*1)
+	VMOVUPD Z11, (CX)(R15*1)
+
+	ADDQ $4, R10
+	CMPQ R10, R11
+	JLT  zrunsLoop
+
+zrunsDone:
+	VZEROUPPER
+	RET
+
+// func apply2Q0AVX(x *complex128, hi uint, from, to int, c *coef2)
+//
+// Applies the canonical 4×4 matrix to the groups k in [from, to) of the pair
+// (0, hi), hi ≥ 1: group k has base index i = insert(2k, hi) and the two
+// vectors P = [x[i], x[i+1]] and Q = [x[i+2^hi], x[i+2^hi+1]]. With Ps, Qs
+// the half-swapped vectors, P' = Σ C(P,V)⊙V and Q' = Σ C(Q,V)⊙V over
+// V ∈ {P, Ps, Q, Qs}; c holds the lane-wise split coefficients of output o
+// and input v at 32·(8o+2v) (real parts) and 32·(8o+2v+1) (signed
+// imaginary parts).
+TEXT ·apply2Q0AVX(SB), NOSPLIT, $0-40
+	MOVQ x+0(FP), DI
+	MOVQ hi+8(FP), R9
+	MOVQ from+16(FP), R10
+	MOVQ to+24(FP), R11
+	MOVQ c+32(FP), SI
+	LEAQ 1(R9), R13
+	MOVQ $1, AX
+	SHLXQ R9, AX, R15
+	LEAQ -1(R15), DX           // hiMask
+	SHLQ $4, R15               // byte offset of bit hi
+	CMPQ R10, R11
+	JGE  q0Done
+
+q0Loop:
+	LEAQ  (R10)(R10*1), AX     // 2k
+	SHRXQ R9, AX, CX
+	SHLXQ R13, CX, CX
+	ANDQ  DX, AX
+	ORQ   CX, AX
+	SHLQ  $4, AX
+	ADDQ  DI, AX
+
+	VMOVUPD (AX), Y0              // P
+	VMOVUPD (AX)(R15*1), Y2       // Q
+	VPERM2F128 $1, Y0, Y0, Y1     // Ps
+	VPERM2F128 $1, Y2, Y2, Y3     // Qs
+	VPERMILPD $5, Y0, Y4
+	VPERMILPD $5, Y1, Y5
+	VPERMILPD $5, Y2, Y6
+	VPERMILPD $5, Y3, Y7
+
+	VMULPD      0(SI), Y0, Y8
+	VFMADD231PD 32(SI), Y4, Y8
+	VFMADD231PD 64(SI), Y1, Y8
+	VFMADD231PD 96(SI), Y5, Y8
+	VFMADD231PD 128(SI), Y2, Y8
+	VFMADD231PD 160(SI), Y6, Y8
+	VFMADD231PD 192(SI), Y3, Y8
+	VFMADD231PD 224(SI), Y7, Y8
+
+	VMULPD      256(SI), Y0, Y9
+	VFMADD231PD 288(SI), Y4, Y9
+	VFMADD231PD 320(SI), Y1, Y9
+	VFMADD231PD 352(SI), Y5, Y9
+	VFMADD231PD 384(SI), Y2, Y9
+	VFMADD231PD 416(SI), Y6, Y9
+	VFMADD231PD 448(SI), Y3, Y9
+	VFMADD231PD 480(SI), Y7, Y9
+
+	VMOVUPD Y8, (AX)
+	VMOVUPD Y9, (AX)(R15*1)
+
+	INCQ R10
+	CMPQ R10, R11
+	JLT  q0Loop
+
+q0Done:
+	VZEROUPPER
+	RET
+
+// func apply1AVX(x *complex128, q uint, from, to int, c *coef1)
+//
+// Applies a 2×2 matrix to qubit q ≥ 1 for the pairs k in [from, to), two
+// pairs (k, k+1) per iteration (from and to even): pair k has members
+// i = insert(k, q) and i+2^q. c holds, for row r and column l, the vectors
+// [re…] at 32·(4r+2l) and [−im, im…] at 32·(4r+2l+1).
+TEXT ·apply1AVX(SB), NOSPLIT, $0-40
+	MOVQ x+0(FP), DI
+	MOVQ q+8(FP), R8
+	MOVQ from+16(FP), R10
+	MOVQ to+24(FP), R11
+	MOVQ c+32(FP), SI
+	LEAQ 1(R8), R12
+	MOVQ $1, AX
+	SHLXQ R8, AX, R14
+	LEAQ -1(R14), BX
+	SHLQ $4, R14
+	CMPQ R10, R11
+	JGE  one1Done
+
+one1Loop:
+	SHRXQ R8, R10, AX
+	SHLXQ R12, AX, AX
+	MOVQ  R10, CX
+	ANDQ  BX, CX
+	ORQ   CX, AX
+	SHLQ  $4, AX
+	ADDQ  DI, AX
+
+	VMOVUPD (AX), Y0
+	VMOVUPD (AX)(R14*1), Y1
+	VPERMILPD $5, Y0, Y4
+	VPERMILPD $5, Y1, Y5
+
+	VMULPD      0(SI), Y0, Y8
+	VFMADD231PD 32(SI), Y4, Y8
+	VFMADD231PD 64(SI), Y1, Y8
+	VFMADD231PD 96(SI), Y5, Y8
+	VMULPD      128(SI), Y0, Y9
+	VFMADD231PD 160(SI), Y4, Y9
+	VFMADD231PD 192(SI), Y1, Y9
+	VFMADD231PD 224(SI), Y5, Y9
+
+	VMOVUPD Y8, (AX)
+	VMOVUPD Y9, (AX)(R14*1)
+
+	ADDQ $2, R10
+	CMPQ R10, R11
+	JLT  one1Loop
+
+one1Done:
+	VZEROUPPER
+	RET
+
+// func apply1Q0AVX(x *complex128, from, to int, c *coef1)
+//
+// Applies a 2×2 matrix to qubit 0 for the pairs k in [from, to): pair k is
+// the vector P = [x[2k], x[2k+1]] and P' = C(P)⊙P + C(Ps)⊙Ps with Ps the
+// half-swapped P; c holds the lane-wise split coefficients of input v at
+// 32·2v (real parts) and 32·(2v+1) (signed imaginary parts).
+TEXT ·apply1Q0AVX(SB), NOSPLIT, $0-32
+	MOVQ x+0(FP), DI
+	MOVQ from+8(FP), R10
+	MOVQ to+16(FP), R11
+	MOVQ c+24(FP), SI
+	CMPQ R10, R11
+	JGE  one0Done
+	MOVQ R10, AX
+	SHLQ $5, AX
+	ADDQ DI, AX
+	SUBQ R10, R11
+
+one0Loop:
+	VMOVUPD (AX), Y0
+	VPERM2F128 $1, Y0, Y0, Y1
+	VPERMILPD $5, Y0, Y4
+	VPERMILPD $5, Y1, Y5
+	VMULPD      0(SI), Y0, Y8
+	VFMADD231PD 32(SI), Y4, Y8
+	VFMADD231PD 64(SI), Y1, Y8
+	VFMADD231PD 96(SI), Y5, Y8
+	VMOVUPD Y8, (AX)
+	ADDQ $32, AX
+	DECQ R11
+	JNZ  one0Loop
+
+one0Done:
+	VZEROUPPER
+	RET

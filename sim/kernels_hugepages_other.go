@@ -1,0 +1,6 @@
+//go:build !linux
+
+package sim
+
+// adviseHugePages does nothing outside Linux.
+func adviseHugePages[T Amplitude](amp []T) {}

@@ -1,0 +1,27 @@
+//go:build !amd64
+
+package sim
+
+// Without the amd64 assembly every gate takes the portable kernels.
+
+var useAVX, useAVX512 = false, false
+
+func apply2RunsAVX512(x *complex128, lo, hi uint, from, to int, c *coef2z) {
+	panic("sim: no AVX kernels on this architecture")
+}
+
+func apply2RunsAVX(x *complex128, lo, hi uint, from, to int, c *coef2) {
+	panic("sim: no AVX kernels on this architecture")
+}
+
+func apply2Q0AVX(x *complex128, hi uint, from, to int, c *coef2) {
+	panic("sim: no AVX kernels on this architecture")
+}
+
+func apply1AVX(x *complex128, q uint, from, to int, c *coef1) {
+	panic("sim: no AVX kernels on this architecture")
+}
+
+func apply1Q0AVX(x *complex128, from, to int, c *coef1) {
+	panic("sim: no AVX kernels on this architecture")
+}

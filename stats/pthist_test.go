@@ -1,0 +1,139 @@
+package stats
+
+import (
+	"math"
+	"math/rand/v2"
+	"sync"
+	"testing"
+)
+
+// blockPass returns a ProbabilityPass over p that hands out blocks of the
+// given size, split across workers goroutines in interleaved order (block b
+// to worker b mod workers), and counts its calls.
+func blockPass(p []float64, block, workers int, calls *int) ProbabilityPass {
+	return func(visit func(w int, p []float64)) {
+		*calls++
+		var wg sync.WaitGroup
+		for w := 0; w < workers; w++ {
+			wg.Add(1)
+			go func() {
+				defer wg.Done()
+				buf := make([]float64, block)
+				for off := w * block; off < len(p); off += workers * block {
+					b := buf[:copy(buf, p[off:min(off+block, len(p))])]
+					visit(w, b)
+				}
+			}()
+		}
+		wg.Wait()
+	}
+}
+
+// TestKSHaarPassesExact compares the streamed statistic with the sort-based
+// KSHaar (itself checked against the O(D²) definition in ks_test.go) on
+// Haar states (Porter & Thomas 1956: the law the bins are tuned for), on
+// the χ²_1 outputs of real Gaussian states (far from Beta(1, D−1), a large
+// supremum), on a uniform superposition over a subset (stabiliser-like
+// outputs: many exact ties and zeros), on |0…0⟩ and on values rounded to a
+// coarse grid. Both evaluate the same terms i/D − F(x_(i)) and
+// F(x_(i)) − (i−1)/D with F = HaarProb.CDF; the streamed one drops only
+// bins whose upper bound is below a proven lower bound, so the results agree
+// to rounding: 1e−15 allows a few ulps from the grouping of ties. Small
+// budgets force one, two or more refinement passes.
+func TestKSHaarPassesExact(t *testing.T) {
+	rng := rand.New(rand.NewPCG(41, 42))
+	type input struct {
+		name string
+		p    []float64
+	}
+	var inputs []input
+	for _, d := range []int{1, 2, 5, 1 << 10, 3000, 1 << 16} {
+		inputs = append(inputs, input{"haar", haarProbs(rng, d)})
+	}
+	inputs = append(inputs, input{"real", realGaussianProbs(rng, 1<<14)})
+	subset := make([]float64, 1<<14)
+	for i := 0; i < len(subset); i += 4 {
+		subset[i] = 1.0 / float64(len(subset)/4)
+	}
+	inputs = append(inputs, input{"subset", subset})
+	point := make([]float64, 1<<12)
+	point[0] = 1
+	inputs = append(inputs, input{"point", point})
+	grid := haarProbs(rng, 1<<13)
+	for i := range grid {
+		grid[i] = math.Round(grid[i]*float64(len(grid))*4) / (float64(len(grid)) * 4)
+	}
+	inputs = append(inputs, input{"grid", grid})
+	for _, in := range inputs {
+		want := KSHaar(in.p, nil)
+		for _, tc := range []struct{ budget, block, workers int }{
+			{0, 4096, 1}, {64, 1000, 3}, {4, 512, 2}, {1, 7, 2},
+		} {
+			calls := 0
+			got, passes := KSHaarPasses(len(in.p), tc.workers, tc.budget, blockPass(in.p, tc.block, tc.workers, &calls))
+			if math.Abs(got-want) > 1e-15 {
+				t.Errorf("%s D=%d budget=%d workers=%d: streamed %.17g, KSHaar %.17g", in.name, len(in.p), tc.budget, tc.workers, got, want)
+			}
+			if passes != calls {
+				t.Errorf("%s D=%d: reported %d passes, pass was called %d times", in.name, len(in.p), passes, calls)
+			}
+		}
+	}
+}
+
+// TestKSHaarPassesLarge checks a Haar state of 2^20 outputs with the default
+// budget against KSHaar, and that the bins leave few values to sort: the
+// statistic of a Haar state is of order 1/√D (Kolmogorov 1933), and only
+// bins within their width (≲ 2^−12 of the mass) of the supremum survive, so
+// two to four passes suffice. The expected size of the statistic gives an
+// independent sanity check: for D = 2^20 the Kolmogorov law puts
+// √D·KS between 0.3 and 2.5 with probability above 0.999 (Kolmogorov
+// distribution quantiles, from memory: P(K ≤ 0.3) ≈ 1e−5, P(K > 2.5) ≈ 1e−5).
+func TestKSHaarPassesLarge(t *testing.T) {
+	rng := rand.New(rand.NewPCG(43, 44))
+	p := haarProbs(rng, 1<<20)
+	want := KSHaar(p, nil)
+	calls := 0
+	got, passes := KSHaarPasses(len(p), 2, 0, blockPass(p, 4096, 2, &calls))
+	if math.Abs(got-want) > 1e-15 {
+		t.Errorf("streamed %.17g, KSHaar %.17g", got, want)
+	}
+	if passes < 2 || passes > 4 {
+		t.Errorf("%d passes, want 2 to 4 for a Haar state", passes)
+	}
+	if s := math.Sqrt(float64(len(p))) * got; s < 0.3 || s > 2.5 {
+		t.Errorf("√D·KS = %g outside the Kolmogorov law's bulk", s)
+	}
+}
+
+// TestKSHaarPassesNaN: a NaN probability makes the statistic NaN, as for
+// KSHaar.
+func TestKSHaarPassesNaN(t *testing.T) {
+	p := []float64{0.5, math.NaN(), 0.5}
+	calls := 0
+	if got, _ := KSHaarPasses(3, 1, 0, blockPass(p, 2, 1, &calls)); !math.IsNaN(got) {
+		t.Errorf("got %g, want NaN", got)
+	}
+	if !mustPanic(func() { KSHaarPasses(0, 1, 0, blockPass(nil, 1, 1, &calls)) }) {
+		t.Error("no panic for dim 0")
+	}
+}
+
+func TestKSKeyOrder(t *testing.T) {
+	// ksKey must be strictly increasing over the floats (IEEE 754 ordering,
+	// common practice) and ksValue its inverse.
+	vals := []float64{math.Inf(-1), -2, -1e-300, math.Copysign(0, -1), 0, 5e-324, 1e-300, 0.5, 1, math.Inf(1)}
+	for i := 1; i < len(vals); i++ {
+		if vals[i] == 0 && vals[i-1] == 0 {
+			continue
+		}
+		if ksKey(vals[i-1]) >= ksKey(vals[i]) {
+			t.Errorf("ksKey(%g) ≥ ksKey(%g)", vals[i-1], vals[i])
+		}
+	}
+	for _, v := range vals {
+		if got := ksValue(ksKey(v)); got != v || math.Signbit(got) != math.Signbit(v) {
+			t.Errorf("ksValue(ksKey(%g)) = %g", v, got)
+		}
+	}
+}

@@ -28,7 +28,7 @@ func (c *circuitFlags) add(fs *pflag.FlagSet) {
 	fs.StringVar(&c.graph, "graph", "", "coupling graph: line:N, ring:N, grid:RxC, complete:N, star:N, or an edge-list file (default: the demo chip)")
 	fs.StringVar(&c.layout, "layout", "", "layout file (JSON) with explicit gate layers; overrides the layered schedule's classes")
 	fs.StringVar(&c.schedule, "schedule", "layered", "gate schedule: layered or random-edge")
-	fs.StringVar(&c.gates, "gates", "haar", "two-qubit gate set: haar")
+	fs.StringVar(&c.gates, "gates", "haar", "two-qubit gate set: haar, clifford, cz+haar1, cnot+haar1, iswap+haar1, sqrt-iswap+haar1, or a gate-set JSON file")
 	fs.Uint64Var(&c.seed, "seed", defaultSeed, "seed of the per-instance random streams")
 }
 

@@ -110,7 +110,8 @@ func golden(t *testing.T, path string, doc exactJSON) {
 		g, w := doc.Rows[k], want.Rows[k]
 		if g.Depth != w.Depth || g.GateCount != w.GateCount || !near(g.Collision, w.Collision) ||
 			(g.FramePotential == nil) != (w.FramePotential == nil) || (g.FramePotential != nil && !near(*g.FramePotential, *w.FramePotential)) {
-			t.Errorf("%s row %d: got %+v, golden %+v", path, k, g, w)
+			t.Errorf("%s row %d: got depth %d, %d gates, E[Z] %.17g, F2 %v; golden depth %d, %d gates, E[Z] %.17g, F2 %v",
+				path, k, g.Depth, g.GateCount, g.Collision, deref(g.FramePotential), w.Depth, w.GateCount, w.Collision, deref(w.FramePotential))
 		}
 	}
 	if (doc.Gap == nil) != (want.Gap == nil) || (doc.Gap != nil && (!near(doc.Gap.SecondEigenvalue, want.Gap.SecondEigenvalue) || doc.Gap.DesignDepthBound != want.Gap.DesignDepthBound)) {
@@ -119,6 +120,13 @@ func golden(t *testing.T, path string, doc exactJSON) {
 	if !equalDepth(doc.AnticoncentrationDepth, want.AnticoncentrationDepth) {
 		t.Errorf("%s depth: got %v, golden %v", path, doc.AnticoncentrationDepth, want.AnticoncentrationDepth)
 	}
+}
+
+func deref(p *float64) any {
+	if p == nil {
+		return nil
+	}
+	return *p
 }
 
 func equalDepth(a, b *int) bool { return (a == nil) == (b == nil) && (a == nil || *a == *b) }

@@ -133,7 +133,12 @@ type denseEntry struct {
 type denseOp []denseEntry
 
 func (o denseOp) apply(x []float64) []float64 {
-	y := make([]float64, len(x))
+	return o.applyTo(make([]float64, len(x)), x)
+}
+
+// applyTo sets y = op·x and returns y.
+func (o denseOp) applyTo(y, x []float64) []float64 {
+	clear(y)
 	for _, e := range o {
 		y[e.row] += e.val * x[e.col]
 	}
@@ -233,24 +238,28 @@ func denseRandomCollision(n int, edges []circuits.Edge, depth int) float64 {
 	return denseCollision(n, x)
 }
 
-// denseLayeredFrame returns ‖Φ‖²_F for the product channel of depth layers,
-// column by column.
-func denseLayeredFrame(n int, l *circuits.Layered, depth int) float64 {
-	var ops []denseOp
+// denseLayeredFrame returns ‖Φ_d‖²_F for the product channels Φ_d of the
+// first d layers of l, d = 0..depth, column by column.
+func denseLayeredFrame(n int, l *circuits.Layered, depth int) []float64 {
+	layers := make([][]denseOp, depth)
 	for d := range depth {
 		for _, e := range l.Step(d, nil, nil) {
-			ops = append(ops, denseEdge(n, e.A, e.B, 1))
+			layers[d] = append(layers[d], denseEdge(n, e.A, e.B, 1))
 		}
 	}
-	var f float64
+	f := make([]float64, depth+1)
+	x, y := make([]float64, densePow16(n)), make([]float64, densePow16(n))
 	for j := range densePow16(n) {
-		x := make([]float64, densePow16(n))
+		clear(x)
 		x[j] = 1
-		for _, op := range ops {
-			x = op.apply(x)
-		}
-		for _, v := range x {
-			f += v * v
+		f[0]++
+		for d, ops := range layers {
+			for _, op := range ops {
+				x, y = op.applyTo(y, x), x
+			}
+			for _, v := range x {
+				f[d+1] += v * v
+			}
 		}
 	}
 	return f

@@ -19,7 +19,7 @@ import (
 // GapTolerance bounds the residual ‖Ku − θu‖ (‖u‖ = 1) at which SpectralGap
 // accepts a Ritz value θ. For a symmetric K some eigenvalue then lies within
 // GapTolerance of θ (Parlett, "The Symmetric Eigenvalue Problem", 1980,
-// Theorem 4.5.1, from memory; common practice).
+// chapter 4; from memory; common practice).
 const GapTolerance = 1e-10
 
 const (

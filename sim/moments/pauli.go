@@ -39,7 +39,7 @@ const (
 // is averaged exactly over the edge of every gate, untouched qubits
 // included (see pauliRandomEdge), which costs about 3^n·|E| operations per
 // gate with at most two 2^n vectors in memory. Depth 0 gives 1. Cancelling
-// ctx stops the work between steps. It panics if g or s is nil.
+// ctx stops the work. It panics if g or s is nil.
 //
 // Readout, with T the touched qubits (Harrow & Low 2009; design.md §5):
 //
@@ -240,6 +240,11 @@ func pauliRandomEdge(ctx context.Context, n int, edges []circuits.Edge, depths [
 			}
 			if d == steps {
 				break
+			}
+			if d%256 == 255 {
+				if err := ctx.Err(); err != nil {
+					return nil, fmt.Errorf("moments: Pauli-support chain stopped at Δ set %d of %d: %w", set, full+1, err)
+				}
 			}
 			clear(y)
 			for _, e := range sub {

@@ -172,7 +172,12 @@ func Run(ctx context.Context, c *Config) (records []Record, done []int, err erro
 				return err
 			}
 			ro := newReadout(n, gateWorkers)
+			fresh := true // a new state is |0…0⟩ already: skip one pass of writes
 			for id := range jobs {
+				if !fresh {
+					st.Reset()
+				}
+				fresh = false
 				recs, ok := runInstance(gctx, c, id, n, st, ro)
 				if !ok {
 					return nil
@@ -202,11 +207,11 @@ func Run(ctx context.Context, c *Config) (records []Record, done []int, err erro
 	return records, done, ctx.Err()
 }
 
-// runInstance simulates instance id once, reading off the statistics at each
-// requested depth; ok is false when ctx was cancelled before it finished.
-// The gates between two readouts run as one fused sequence (sim.Run).
+// runInstance simulates instance id once from st = |0…0⟩, reading off the
+// statistics at each requested depth; ok is false when ctx was cancelled
+// before it finished. The gates between two readouts run as one fused
+// sequence (sim.Run).
 func runInstance(ctx context.Context, c *Config, id, n int, st vector, ro *readout) (recs []Record, ok bool) {
-	st.Reset()
 	b := circuits.NewBuilder(c.Schedule, c.Ensemble, c.Seed, id)
 	dim := math.Ldexp(1, n)
 	zh := stats.HaarCollision(dim)

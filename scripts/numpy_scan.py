@@ -63,6 +63,20 @@ def ks_haar(p):
     return max(np.max(i - f), np.max(f - (i - 1.0 / d)))
 
 
+def blas_info():
+    """The BLAS numpy calls (tensordot multiplies through it), when
+    threadpoolctl is installed; None otherwise."""
+    try:
+        import threadpoolctl
+    except ImportError:
+        return None
+    return [
+        {k: lib.get(k) for k in ("internal_api", "version", "architecture", "num_threads")}
+        for lib in threadpoolctl.threadpool_info()
+        if lib.get("user_api") == "blas"
+    ]
+
+
 def main():
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--rows", type=int, default=4)
@@ -94,6 +108,7 @@ def main():
         "qubits": n, "graph": "grid:%dx%d" % (args.rows, args.cols),
         "depths": args.depth, "instances": args.instances,
         "seconds": elapsed,
+        "numpy": np.__version__, "blas": blas_info(),
         "collision_ratio": list(ratio / args.instances),
         "pt_ks_mean": list(ks / args.instances),
     }))

@@ -24,6 +24,13 @@ type Op struct {
 // second-level cache while a pass applies all of its gates to them.
 const BlockQubits = 14
 
+// fuseMinQubits is the smallest state that Run splits into block passes:
+// 2^21 amplitudes, 32 MiB. Smaller states stay in the last-level cache of
+// common processors, where gate-by-gate passes cost no memory traffic and
+// gathering blocks only adds copies (measured with BenchmarkRun). Tests lower
+// it to check block passes on small states.
+var fuseMinQubits = 21
+
 // blockLow is the number of lowest qubits every block of a large state
 // contains, so that a block is gathered in runs of at least 2^blockLow
 // consecutive amplitudes (256 bytes of complex128).
@@ -235,9 +242,10 @@ func rightMul(m *[16]complex128, u *[4]complex128, onA bool) {
 }
 
 // Run applies ops in order to s, as the same Apply2 and Apply1 calls would
-// up to rounding, in few passes over memory: gates are grouped into passes
-// over blocks of 2^BlockQubits amplitudes that stay in cache while every
-// gate of the pass acts on them (planPasses). Blocks are split across
+// up to rounding, in few passes over memory: single-qubit gates are folded
+// into neighbouring two-qubit gates and, for states of 21 qubits or more,
+// gates are grouped into passes over blocks of 2^BlockQubits amplitudes that
+// stay in cache while every gate of the pass acts on them (planPasses). Blocks are split across
 // workers goroutines when s has at least ParallelQubits qubits. ctx is
 // checked between passes; when it is cancelled Run returns ctx.Err() and s
 // holds a partly applied circuit. It panics if an op's qubits are out of
@@ -261,7 +269,8 @@ type localOp struct {
 	single bool
 	k2     kernel2
 	k1     kernel1
-	m64    [16]complex64
+	k2s    kernel2s      // complex64 states
+	m64    [16]complex64 // single-qubit gate, complex64 states
 }
 
 func (p *pass) kernels(single64 bool) []localOp {
@@ -281,18 +290,17 @@ func (p *pass) kernels(single64 bool) []localOp {
 			}
 			continue
 		}
-		out[i].k2 = newKernel2(pos[o.a], pos[o.b], &o.m)
 		if single64 {
-			for j, v := range out[i].k2.m {
-				out[i].m64[j] = complex64(v)
-			}
+			out[i].k2s = newKernel2s(pos[o.a], pos[o.b], &o.m)
+		} else {
+			out[i].k2 = newKernel2(pos[o.a], pos[o.b], &o.m)
 		}
 	}
 	return out
 }
 
 // applyLocal applies the kernels to the block x of 2^k amplitudes.
-func applyLocal[T Amplitude](x []T, k int, ops []localOp) {
+func applyLocal[T amplitude](x []T, k int, ops []localOp) {
 	switch v := any(x).(type) {
 	case []complex128:
 		for i := range ops {
@@ -308,21 +316,25 @@ func applyLocal[T Amplitude](x []T, k int, ops []localOp) {
 			o := &ops[i]
 			if o.single {
 				m := (*[4]complex64)(o.m64[:4])
-				apply1Scalar(v, o.k1.q, m, 0, 1<<(k-1))
+				apply1Single(v, o.k1.q, m, 0, 1<<(k-1))
 			} else {
-				apply2Scalar(v, o.k2.lo, o.k2.hi, &o.m64, 0, 1<<(k-2))
+				apply2Kernel64(v, &o.k2s, 0, 1<<(k-2))
 			}
 		}
 	}
 }
 
 // runOps plans and executes ops on the amplitudes amp of n qubits.
-func runOps[T Amplitude](ctx context.Context, n int, amp []T, ops []Op, workers int) error {
+func runOps[T amplitude](ctx context.Context, n int, amp []T, ops []Op, workers int) error {
 	checkOps(n, ops)
 	var zero T
 	_, single64 := any(zero).(complex64)
 	var bufs [][]T // one block buffer per worker, kept across passes
-	for _, p := range planPasses(n, ops, BlockQubits) {
+	k := BlockQubits
+	if n < fuseMinQubits {
+		k = n // one whole-state pass: gates one by one, single-qubit ones folded
+	}
+	for _, p := range planPasses(n, ops, k) {
 		if err := ctx.Err(); err != nil {
 			return err
 		}
@@ -344,7 +356,7 @@ func runOps[T Amplitude](ctx context.Context, n int, amp []T, ops []Op, workers 
 
 // applyWhole applies the kernels of a pass that spans all n qubits gate by
 // gate, each split across workers like Apply2.
-func applyWhole[T Amplitude](n int, amp []T, kops []localOp, workers int) {
+func applyWhole[T amplitude](n int, amp []T, kops []localOp, workers int) {
 	if workers <= 1 || n < ParallelQubits {
 		applyLocal(amp, n, kops)
 		return
@@ -365,9 +377,9 @@ func applyWhole[T Amplitude](n int, amp []T, kops []localOp, workers int) {
 				}
 			case []complex64:
 				if o.single {
-					apply1Scalar(v, o.k1.q, (*[4]complex64)(o.m64[:4]), lo, hi)
+					apply1Single(v, o.k1.q, (*[4]complex64)(o.m64[:4]), lo, hi)
 				} else {
-					apply2Scalar(v, o.k2.lo, o.k2.hi, &o.m64, lo, hi)
+					apply2Kernel64(v, &o.k2s, lo, hi)
 				}
 			}
 		})
@@ -379,7 +391,7 @@ func applyWhole[T Amplitude](n int, amp []T, kops []localOp, workers int) {
 // a buffer in 2^(k−low) runs of 2^low consecutive amplitudes, the kernels
 // act on the buffer, and it is scattered back. Workers take contiguous
 // ranges of blocks, so neighbouring blocks share pages.
-func runPass[T Amplitude](n int, amp []T, p *pass, kops []localOp, bufs [][]T) {
+func runPass[T amplitude](n int, amp []T, p *pass, kops []localOp, bufs [][]T) {
 	workers := len(bufs)
 	k := len(p.qubits)
 	low := p.low

@@ -56,6 +56,8 @@ func applyOneByOne(s *sim.State, ops []sim.Op, workers int) {
 // pass (n ≤ BlockQubits), block passes with one and two workers, and a
 // layered grid circuit with its final single-qubit layer and its undo.
 func TestRunMatchesOneByOne(t *testing.T) {
+	defer func(v int) { *sim.FuseMinQubits = v }(*sim.FuseMinQubits)
+	*sim.FuseMinQubits = sim.BlockQubits + 1 // block passes from 15 qubits on
 	rng := rand.New(rand.NewPCG(51, 52))
 	for _, tc := range []struct{ n, count, workers int }{
 		{2, 30, 1}, {3, 60, 1}, {7, 200, 1}, {sim.BlockQubits, 150, 1},
@@ -84,6 +86,8 @@ func TestRunMatchesOneByOne(t *testing.T) {
 // and undone between depths, as the scan does, against Apply2/Apply1.
 // Tolerance as in TestRunMatchesOneByOne.
 func TestRunLayeredWithFinalLayer(t *testing.T) {
+	defer func(v int) { *sim.FuseMinQubits = v }(*sim.FuseMinQubits)
+	*sim.FuseMinQubits = sim.BlockQubits + 1
 	g, err := circuits.ParseGraph("grid:4x5")
 	if err != nil {
 		t.Fatal(err)

@@ -2,9 +2,9 @@ package sim
 
 import "unsafe"
 
-// Amplitude is the element type of a state vector: complex128 (State) or
+// amplitude is the element type of a state vector: complex128 (State) or
 // complex64 (State64).
-type Amplitude interface {
+type amplitude interface {
 	complex64 | complex128
 }
 
@@ -27,6 +27,76 @@ type kernel2 struct {
 	m      [16]complex128
 	c      coef2
 	cz     coef2z
+}
+
+// coef2s and coef2sz hold the coefficients of coef2 in single precision,
+// each pair of float32 lanes repeated across a 256-bit or 512-bit vector.
+type (
+	coef2s  [32][8]float32
+	coef2sz [32][16]float32
+)
+
+// kernel2s is a two-qubit gate ready for the complex64 kernels: the
+// canonical matrix rounded to single precision and its vector coefficients.
+type kernel2s struct {
+	lo, hi int
+	m      [16]complex64
+	c      coef2s
+	cz     coef2sz
+}
+
+// newKernel2s prepares gate m on qubits (a, b) for complex64 amplitudes.
+func newKernel2s(a, b int, m *[16]complex128) kernel2s {
+	c := canonical2(a, b, m)
+	k := kernel2s{lo: min(a, b), hi: max(a, b)}
+	for i, v := range c {
+		k.m[i] = complex64(v)
+	}
+	if useAVX && (k.lo >= 2 || (k.lo == 0 && k.hi >= 2)) {
+		var d coef2
+		var m64 [16]complex128
+		for i, v := range k.m {
+			m64[i] = complex128(v) // the rounded matrix, as the portable kernel uses it
+		}
+		if k.lo == 0 {
+			splitQ0(&m64, &d)
+		} else {
+			splitRuns(&m64, &d)
+		}
+		// A 128-bit lane holds two complex64 values as a 256-bit lane holds
+		// two complex128 ones: repeat the four lane coefficients.
+		for i := range d {
+			for j := range 8 {
+				k.c[i][j] = float32(d[i][j%4])
+			}
+			for j := range 16 {
+				k.cz[i][j] = k.c[i][j%8]
+			}
+		}
+	}
+	return k
+}
+
+// apply2Kernel64 applies k to the groups [from, to) of complex64 amplitudes:
+// the vector kernels stream four (AVX2) or eight (AVX-512) groups at a time
+// when the runs are long enough, take qubit 0 with a qubit above 1 two
+// groups at a time, and the portable kernel takes the rest (qubit 1 as the
+// lower qubit, and (0, 1)).
+func apply2Kernel64(amp []complex64, k *kernel2s, from, to int) {
+	if from >= to {
+		return
+	}
+	x := unsafe.SliceData(amp)
+	switch {
+	case useAVX512 && k.lo >= 3 && from%8 == 0 && to%8 == 0:
+		apply2Runs64AVX512(x, uint(k.lo), uint(k.hi), from, to, &k.cz)
+	case useAVX && k.lo >= 2 && from%4 == 0 && to%4 == 0:
+		apply2Runs64AVX(x, uint(k.lo), uint(k.hi), from, to, &k.c)
+	case useAVX && k.lo == 0 && k.hi >= 2 && from%2 == 0 && to%2 == 0:
+		apply2Q064AVX(x, uint(k.hi), from, to, &k.c)
+	default:
+		apply2Single(amp, k.lo, k.hi, &k.m, from, to)
+	}
 }
 
 // kernel1 is a single-qubit gate ready for the kernels.
@@ -61,11 +131,13 @@ func newKernel2(a, b int, m *[16]complex128) kernel2 {
 			splitQ0(&k.m, &k.c)
 		} else {
 			splitRuns(&k.m, &k.c)
-			if useAVX512 {
-				for i := range k.c {
-					copy(k.cz[i][:4], k.c[i][:])
-					copy(k.cz[i][4:], k.c[i][:])
-				}
+		}
+		if useAVX512 {
+			// Both 256-bit halves of a 512-bit vector take the same
+			// coefficients: two runs' pairs, or two groups of qubit 0.
+			for i := range k.c {
+				copy(k.cz[i][:4], k.c[i][:])
+				copy(k.cz[i][4:], k.c[i][:])
 			}
 		}
 	}
@@ -147,6 +219,8 @@ func apply2Kernel(amp []complex128, k *kernel2, from, to int) {
 	if useAVX {
 		x := unsafe.SliceData(amp)
 		switch {
+		case k.lo == 0 && useAVX512 && k.hi >= 2 && from%2 == 0 && to%2 == 0:
+			apply2Q0AVX512(x, uint(k.hi), from, to, &k.cz)
 		case k.lo == 0:
 			apply2Q0AVX(x, uint(k.hi), from, to, &k.c)
 		case useAVX512 && k.lo >= 2 && from%4 == 0 && to%4 == 0:
@@ -181,7 +255,7 @@ func apply1Kernel(amp []complex128, k *kernel1, from, to int) {
 // and members i, i+2^lo, i+2^hi, i+2^lo+2^hi. When lo ≥ 2 the groups with the
 // same bits above lo form runs of consecutive base indices, streamed as four
 // slices so that the compiler drops the bounds checks in the inner loop.
-func apply2Scalar[T Amplitude](amp []T, lo, hi int, m *[16]T, from, to int) {
+func apply2Scalar[T amplitude](amp []T, lo, hi int, m *[16]T, from, to int) {
 	llo, lhi := 1<<lo, 1<<hi
 	loMask, hiMask := llo-1, lhi-1
 	m00, m01, m02, m03 := m[0], m[1], m[2], m[3]
@@ -226,7 +300,7 @@ func apply2Scalar[T Amplitude](amp []T, lo, hi int, m *[16]T, from, to int) {
 
 // apply1Scalar applies m to qubit q for the pairs k in [from, to): pair k
 // has members i (bit q zero) and i+2^q, streamed as two slices when q ≥ 2.
-func apply1Scalar[T Amplitude](amp []T, q int, m *[4]T, from, to int) {
+func apply1Scalar[T amplitude](amp []T, q int, m *[4]T, from, to int) {
 	bit, mask := 1<<q, 1<<q-1
 	m00, m01, m10, m11 := m[0], m[1], m[2], m[3]
 	if q < 2 {
@@ -252,5 +326,60 @@ func apply1Scalar[T Amplitude](amp []T, q int, m *[4]T, from, to int) {
 			x1[j] = m10*v0 + m11*v1
 		}
 		k = end
+	}
+}
+
+// apply2Single is apply2Scalar for complex64 written with float32 parts:
+// Go multiplies complex64 values through float64 conversions, several times
+// slower than this.
+func apply2Single(amp []complex64, lo, hi int, m *[16]complex64, from, to int) {
+	r0, i0 := real(m[0]), imag(m[0])
+	r1, i1 := real(m[1]), imag(m[1])
+	r2, i2 := real(m[2]), imag(m[2])
+	r3, i3 := real(m[3]), imag(m[3])
+	r4, i4 := real(m[4]), imag(m[4])
+	r5, i5 := real(m[5]), imag(m[5])
+	r6, i6 := real(m[6]), imag(m[6])
+	r7, i7 := real(m[7]), imag(m[7])
+	r8, i8 := real(m[8]), imag(m[8])
+	r9, i9 := real(m[9]), imag(m[9])
+	r10, i10 := real(m[10]), imag(m[10])
+	r11, i11 := real(m[11]), imag(m[11])
+	r12, i12 := real(m[12]), imag(m[12])
+	r13, i13 := real(m[13]), imag(m[13])
+	r14, i14 := real(m[14]), imag(m[14])
+	r15, i15 := real(m[15]), imag(m[15])
+	llo, lhi := 1<<lo, 1<<hi
+	loMask, hiMask := llo-1, lhi-1
+	for k := from; k < to; k++ {
+		i := (k>>lo)<<(lo+1) | k&loMask
+		i = (i>>hi)<<(hi+1) | i&hiMask
+		j1, j2, j3 := i|llo, i|lhi, i|llo|lhi
+		a0, b0 := real(amp[i]), imag(amp[i])
+		a1, b1 := real(amp[j1]), imag(amp[j1])
+		a2, b2 := real(amp[j2]), imag(amp[j2])
+		a3, b3 := real(amp[j3]), imag(amp[j3])
+		amp[i] = complex(r0*a0-i0*b0+r1*a1-i1*b1+r2*a2-i2*b2+r3*a3-i3*b3,
+			r0*b0+i0*a0+r1*b1+i1*a1+r2*b2+i2*a2+r3*b3+i3*a3)
+		amp[j1] = complex(r4*a0-i4*b0+r5*a1-i5*b1+r6*a2-i6*b2+r7*a3-i7*b3,
+			r4*b0+i4*a0+r5*b1+i5*a1+r6*b2+i6*a2+r7*b3+i7*a3)
+		amp[j2] = complex(r8*a0-i8*b0+r9*a1-i9*b1+r10*a2-i10*b2+r11*a3-i11*b3,
+			r8*b0+i8*a0+r9*b1+i9*a1+r10*b2+i10*a2+r11*b3+i11*a3)
+		amp[j3] = complex(r12*a0-i12*b0+r13*a1-i13*b1+r14*a2-i14*b2+r15*a3-i15*b3,
+			r12*b0+i12*a0+r13*b1+i13*a1+r14*b2+i14*a2+r15*b3+i15*a3)
+	}
+}
+
+// apply1Single is apply1Scalar for complex64 with float32 parts.
+func apply1Single(amp []complex64, q int, m *[4]complex64, from, to int) {
+	bit, mask := 1<<q, 1<<q-1
+	ar, ai, br, bi := real(m[0]), imag(m[0]), real(m[1]), imag(m[1])
+	cr, ci, dr, di := real(m[2]), imag(m[2]), real(m[3]), imag(m[3])
+	for k := from; k < to; k++ {
+		i := (k>>q)<<(q+1) | k&mask
+		j := i | bit
+		xr, xi, yr, yi := real(amp[i]), imag(amp[i]), real(amp[j]), imag(amp[j])
+		amp[i] = complex(ar*xr-ai*xi+br*yr-bi*yi, ar*xi+ai*xr+br*yi+bi*yr)
+		amp[j] = complex(cr*xr-ci*xi+dr*yr-di*yi, cr*xi+ci*xr+dr*yi+di*yr)
 	}
 }

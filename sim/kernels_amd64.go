@@ -20,6 +20,18 @@ func apply2RunsAVX512(x *complex128, lo, hi uint, from, to int, c *coef2z)
 func apply2Q0AVX(x *complex128, hi uint, from, to int, c *coef2)
 
 //go:noescape
+func apply2Q0AVX512(x *complex128, hi uint, from, to int, c *coef2z)
+
+//go:noescape
+func apply2Runs64AVX(x *complex64, lo, hi uint, from, to int, c *coef2s)
+
+//go:noescape
+func apply2Runs64AVX512(x *complex64, lo, hi uint, from, to int, c *coef2sz)
+
+//go:noescape
+func apply2Q064AVX(x *complex64, hi uint, from, to int, c *coef2s)
+
+//go:noescape
 func apply1AVX(x *complex128, q uint, from, to int, c *coef1)
 
 //go:noescape

@@ -296,6 +296,73 @@ q0Done:
 	VZEROUPPER
 	RET
 
+// func apply2Q0AVX512(x *complex128, hi uint, from, to int, c *coef2z)
+//
+// The AVX-512 form of apply2Q0AVX for hi ≥ 2: groups k and k+1 (from and
+// to even) fill one 512-bit vector each of P and Q, the halves of a 256-bit
+// lane being exchanged for Ps and Qs; c holds 64-byte vectors at twice the
+// offsets.
+TEXT ·apply2Q0AVX512(SB), NOSPLIT, $0-40
+	MOVQ x+0(FP), DI
+	MOVQ hi+8(FP), R9
+	MOVQ from+16(FP), R10
+	MOVQ to+24(FP), R11
+	MOVQ c+32(FP), SI
+	LEAQ 1(R9), R13
+	MOVQ $1, AX
+	SHLXQ R9, AX, R15
+	LEAQ -1(R15), DX           // hiMask
+	SHLQ $4, R15               // byte offset of bit hi
+	CMPQ R10, R11
+	JGE  zq0Done
+
+zq0Loop:
+	LEAQ  (R10)(R10*1), AX     // 2k
+	SHRXQ R9, AX, CX
+	SHLXQ R13, CX, CX
+	ANDQ  DX, AX
+	ORQ   CX, AX
+	SHLQ  $4, AX
+	ADDQ  DI, AX
+
+	VMOVUPD (AX), Z0              // P
+	VMOVUPD (AX)(R15*1), Z2       // Q
+	VPERMPD $0x4e, Z0, Z1        // Ps
+	VPERMPD $0x4e, Z2, Z3        // Qs
+	VPERMILPD $0x55, Z0, Z4
+	VPERMILPD $0x55, Z1, Z5
+	VPERMILPD $0x55, Z2, Z6
+	VPERMILPD $0x55, Z3, Z7
+
+	VMULPD      0(SI), Z0, Z8
+	VFMADD231PD 64(SI), Z4, Z8
+	VFMADD231PD 128(SI), Z1, Z8
+	VFMADD231PD 192(SI), Z5, Z8
+	VFMADD231PD 256(SI), Z2, Z8
+	VFMADD231PD 320(SI), Z6, Z8
+	VFMADD231PD 384(SI), Z3, Z8
+	VFMADD231PD 448(SI), Z7, Z8
+
+	VMULPD      512(SI), Z0, Z9
+	VFMADD231PD 576(SI), Z4, Z9
+	VFMADD231PD 640(SI), Z1, Z9
+	VFMADD231PD 704(SI), Z5, Z9
+	VFMADD231PD 768(SI), Z2, Z9
+	VFMADD231PD 832(SI), Z6, Z9
+	VFMADD231PD 896(SI), Z3, Z9
+	VFMADD231PD 960(SI), Z7, Z9
+
+	VMOVUPD Z8, (AX)
+	VMOVUPD Z9, (AX)(R15*1)
+
+	ADDQ $2, R10
+	CMPQ R10, R11
+	JLT  zq0Loop
+
+zq0Done:
+	VZEROUPPER
+	RET
+
 // func apply1AVX(x *complex128, q uint, from, to int, c *coef1)
 //
 // Applies a 2×2 matrix to qubit q ≥ 1 for the pairs k in [from, to), two
@@ -385,3 +452,273 @@ one0Loop:
 one0Done:
 	VZEROUPPER
 	RET
+
+// func apply2Runs64AVX(x *complex64, lo, hi uint, from, to int, c *coef2s)
+//
+// The complex64 form of apply2RunsAVX: four groups (k…k+3) per iteration in
+// 256-bit vectors of four amplitudes, from and to multiples of 4 and
+// 2 ≤ lo < hi; c holds, at the same byte offsets, vectors of eight float32
+// ([re…] and [−im, im…]).
+TEXT ·apply2Runs64AVX(SB), NOSPLIT, $0-48
+	MOVQ x+0(FP), DI
+	MOVQ lo+8(FP), R8          // lo
+	MOVQ hi+16(FP), R9         // hi
+	MOVQ from+24(FP), R10      // k
+	MOVQ to+32(FP), R11        // end
+	MOVQ c+40(FP), SI
+	LEAQ 1(R8), R12            // lo+1
+	LEAQ 1(R9), R13            // hi+1
+	MOVQ $1, AX
+	SHLXQ R8, AX, R14          // 2^lo
+	MOVQ $1, AX
+	SHLXQ R9, AX, R15          // 2^hi
+	LEAQ -1(R14), BX           // loMask
+	LEAQ -1(R15), DX           // hiMask
+	SHLQ $3, R14               // byte offset of bit lo
+	SHLQ $3, R15               // byte offset of bit hi
+	CMPQ R10, R11
+	JGE  s256Done
+
+s256Loop:
+	// i = (k>>lo)<<(lo+1) | k&loMask
+	SHRXQ R8, R10, AX
+	SHLXQ R12, AX, AX
+	MOVQ  R10, CX
+	ANDQ  BX, CX
+	ORQ   CX, AX
+	// i = (i>>hi)<<(hi+1) | i&hiMask
+	SHRXQ R9, AX, CX
+	SHLXQ R13, CX, CX
+	ANDQ  DX, AX
+	ORQ   CX, AX
+	SHLQ  $3, AX
+	ADDQ  DI, AX               // &x[i]
+
+	VMOVUPS (AX), Y0
+	VMOVUPS (AX)(R14*1), Y1
+	VMOVUPS (AX)(R15*1), Y2
+	LEAQ    (AX)(R14*1), CX
+	VMOVUPS (CX)(R15*1), Y3
+	VPERMILPS $0xb1, Y0, Y4
+	VPERMILPS $0xb1, Y1, Y5
+	VPERMILPS $0xb1, Y2, Y6
+	VPERMILPS $0xb1, Y3, Y7
+
+	// row 0
+	VMULPS      0(SI), Y0, Y8
+	VFMADD231PS 32(SI), Y4, Y8
+	VFMADD231PS 64(SI), Y1, Y8
+	VFMADD231PS 96(SI), Y5, Y8
+	VFMADD231PS 128(SI), Y2, Y8
+	VFMADD231PS 160(SI), Y6, Y8
+	VFMADD231PS 192(SI), Y3, Y8
+	VFMADD231PS 224(SI), Y7, Y8
+	// row 1
+	VMULPS      256(SI), Y0, Y9
+	VFMADD231PS 288(SI), Y4, Y9
+	VFMADD231PS 320(SI), Y1, Y9
+	VFMADD231PS 352(SI), Y5, Y9
+	VFMADD231PS 384(SI), Y2, Y9
+	VFMADD231PS 416(SI), Y6, Y9
+	VFMADD231PS 448(SI), Y3, Y9
+	VFMADD231PS 480(SI), Y7, Y9
+	// row 2
+	VMULPS      512(SI), Y0, Y10
+	VFMADD231PS 544(SI), Y4, Y10
+	VFMADD231PS 576(SI), Y1, Y10
+	VFMADD231PS 608(SI), Y5, Y10
+	VFMADD231PS 640(SI), Y2, Y10
+	VFMADD231PS 672(SI), Y6, Y10
+	VFMADD231PS 704(SI), Y3, Y10
+	VFMADD231PS 736(SI), Y7, Y10
+	// row 3
+	VMULPS      768(SI), Y0, Y11
+	VFMADD231PS 800(SI), Y4, Y11
+	VFMADD231PS 832(SI), Y1, Y11
+	VFMADD231PS 864(SI), Y5, Y11
+	VFMADD231PS 896(SI), Y2, Y11
+	VFMADD231PS 928(SI), Y6, Y11
+	VFMADD231PS 960(SI), Y3, Y11
+	VFMADD231PS 992(SI), Y7, Y11
+
+	VMOVUPS Y8, (AX)
+	VMOVUPS Y9, (AX)(R14*1)
+	VMOVUPS Y10, (AX)(R15*1)
+	VMOVUPS Y11, (CX)(R15*1)
+
+	ADDQ $4, R10
+	CMPQ R10, R11
+	JLT  s256Loop
+
+s256Done:
+	VZEROUPPER
+	RET
+
+// func apply2Runs64AVX512(x *complex64, lo, hi uint, from, to int, c *coef2sz)
+//
+// The complex64 form of apply2RunsAVX512: eight groups per iteration, from
+// and to multiples of 8 and 3 ≤ lo < hi; c holds 64-byte vectors of sixteen
+// float32.
+TEXT ·apply2Runs64AVX512(SB), NOSPLIT, $0-48
+	MOVQ x+0(FP), DI
+	MOVQ lo+8(FP), R8          // lo
+	MOVQ hi+16(FP), R9         // hi
+	MOVQ from+24(FP), R10      // k
+	MOVQ to+32(FP), R11        // end
+	MOVQ c+40(FP), SI
+	LEAQ 1(R8), R12            // lo+1
+	LEAQ 1(R9), R13            // hi+1
+	MOVQ $1, AX
+	SHLXQ R8, AX, R14          // 2^lo
+	MOVQ $1, AX
+	SHLXQ R9, AX, R15          // 2^hi
+	LEAQ -1(R14), BX           // loMask
+	LEAQ -1(R15), DX           // hiMask
+	SHLQ $3, R14               // byte offset of bit lo
+	SHLQ $3, R15               // byte offset of bit hi
+	CMPQ R10, R11
+	JGE  s512Done
+
+s512Loop:
+	// i = (k>>lo)<<(lo+1) | k&loMask
+	SHRXQ R8, R10, AX
+	SHLXQ R12, AX, AX
+	MOVQ  R10, CX
+	ANDQ  BX, CX
+	ORQ   CX, AX
+	// i = (i>>hi)<<(hi+1) | i&hiMask
+	SHRXQ R9, AX, CX
+	SHLXQ R13, CX, CX
+	ANDQ  DX, AX
+	ORQ   CX, AX
+	SHLQ  $3, AX
+	ADDQ  DI, AX               // &x[i]
+
+	VMOVUPS (AX), Z0
+	VMOVUPS (AX)(R14*1), Z1
+	VMOVUPS (AX)(R15*1), Z2
+	LEAQ    (AX)(R14*1), CX
+	VMOVUPS (CX)(R15*1), Z3
+	VPERMILPS $0xb1, Z0, Z4
+	VPERMILPS $0xb1, Z1, Z5
+	VPERMILPS $0xb1, Z2, Z6
+	VPERMILPS $0xb1, Z3, Z7
+
+	// row 0
+	VMULPS      0(SI), Z0, Z8
+	VFMADD231PS 64(SI), Z4, Z8
+	VFMADD231PS 128(SI), Z1, Z8
+	VFMADD231PS 192(SI), Z5, Z8
+	VFMADD231PS 256(SI), Z2, Z8
+	VFMADD231PS 320(SI), Z6, Z8
+	VFMADD231PS 384(SI), Z3, Z8
+	VFMADD231PS 448(SI), Z7, Z8
+	// row 1
+	VMULPS      512(SI), Z0, Z9
+	VFMADD231PS 576(SI), Z4, Z9
+	VFMADD231PS 640(SI), Z1, Z9
+	VFMADD231PS 704(SI), Z5, Z9
+	VFMADD231PS 768(SI), Z2, Z9
+	VFMADD231PS 832(SI), Z6, Z9
+	VFMADD231PS 896(SI), Z3, Z9
+	VFMADD231PS 960(SI), Z7, Z9
+	// row 2
+	VMULPS      1024(SI), Z0, Z10
+	VFMADD231PS 1088(SI), Z4, Z10
+	VFMADD231PS 1152(SI), Z1, Z10
+	VFMADD231PS 1216(SI), Z5, Z10
+	VFMADD231PS 1280(SI), Z2, Z10
+	VFMADD231PS 1344(SI), Z6, Z10
+	VFMADD231PS 1408(SI), Z3, Z10
+	VFMADD231PS 1472(SI), Z7, Z10
+	// row 3
+	VMULPS      1536(SI), Z0, Z11
+	VFMADD231PS 1600(SI), Z4, Z11
+	VFMADD231PS 1664(SI), Z1, Z11
+	VFMADD231PS 1728(SI), Z5, Z11
+	VFMADD231PS 1792(SI), Z2, Z11
+	VFMADD231PS 1856(SI), Z6, Z11
+	VFMADD231PS 1920(SI), Z3, Z11
+	VFMADD231PS 1984(SI), Z7, Z11
+
+	VMOVUPS Z8, (AX)
+	VMOVUPS Z9, (AX)(R14*1)
+	VMOVUPS Z10, (AX)(R15*1)
+	VMOVUPS Z11, (CX)(R15*1)
+
+	ADDQ $8, R10
+	CMPQ R10, R11
+	JLT  s512Loop
+
+s512Done:
+	VZEROUPPER
+	RET
+
+
+// func apply2Q064AVX(x *complex64, hi uint, from, to int, c *coef2s)
+//
+// The complex64 form of apply2Q0AVX for hi ≥ 2: groups k and k+1 (from and
+// to even) fill one 256-bit vector each of P and Q, the pairs of a 128-bit
+// lane being exchanged for Ps and Qs; c holds vectors of eight float32 at
+// the same byte offsets.
+TEXT ·apply2Q064AVX(SB), NOSPLIT, $0-40
+	MOVQ x+0(FP), DI
+	MOVQ hi+8(FP), R9
+	MOVQ from+16(FP), R10
+	MOVQ to+24(FP), R11
+	MOVQ c+32(FP), SI
+	LEAQ 1(R9), R13
+	MOVQ $1, AX
+	SHLXQ R9, AX, R15
+	LEAQ -1(R15), DX           // hiMask
+	SHLQ $3, R15               // byte offset of bit hi
+	CMPQ R10, R11
+	JGE  s0Done
+
+s0Loop:
+	LEAQ  (R10)(R10*1), AX     // 2k
+	SHRXQ R9, AX, CX
+	SHLXQ R13, CX, CX
+	ANDQ  DX, AX
+	ORQ   CX, AX
+	SHLQ  $3, AX
+	ADDQ  DI, AX
+
+	VMOVUPS (AX), Y0              // P
+	VMOVUPS (AX)(R15*1), Y2       // Q
+	VPERMILPS $0x4e, Y0, Y1      // Ps
+	VPERMILPS $0x4e, Y2, Y3      // Qs
+	VPERMILPS $0xb1, Y0, Y4
+	VPERMILPS $0xb1, Y1, Y5
+	VPERMILPS $0xb1, Y2, Y6
+	VPERMILPS $0xb1, Y3, Y7
+
+	VMULPS      0(SI), Y0, Y8
+	VFMADD231PS 32(SI), Y4, Y8
+	VFMADD231PS 64(SI), Y1, Y8
+	VFMADD231PS 96(SI), Y5, Y8
+	VFMADD231PS 128(SI), Y2, Y8
+	VFMADD231PS 160(SI), Y6, Y8
+	VFMADD231PS 192(SI), Y3, Y8
+	VFMADD231PS 224(SI), Y7, Y8
+
+	VMULPS      256(SI), Y0, Y9
+	VFMADD231PS 288(SI), Y4, Y9
+	VFMADD231PS 320(SI), Y1, Y9
+	VFMADD231PS 352(SI), Y5, Y9
+	VFMADD231PS 384(SI), Y2, Y9
+	VFMADD231PS 416(SI), Y6, Y9
+	VFMADD231PS 448(SI), Y3, Y9
+	VFMADD231PS 480(SI), Y7, Y9
+
+	VMOVUPS Y8, (AX)
+	VMOVUPS Y9, (AX)(R15*1)
+
+	ADDQ $2, R10
+	CMPQ R10, R11
+	JLT  s0Loop
+
+s0Done:
+	VZEROUPPER
+	RET
+

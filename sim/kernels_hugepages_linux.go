@@ -10,7 +10,7 @@ import (
 // admin-guide/mm/transhuge). Block passes gather short runs from all over
 // the vector, and with 2 MiB pages each run no longer costs its own TLB
 // miss. It is advice: errors (THP disabled, an old kernel) are ignored.
-func adviseHugePages[T Amplitude](amp []T) {
+func adviseHugePages[T amplitude](amp []T) {
 	if len(amp) == 0 {
 		return
 	}

@@ -3,4 +3,4 @@
 package sim
 
 // adviseHugePages does nothing outside Linux.
-func adviseHugePages[T Amplitude](amp []T) {}
+func adviseHugePages[T amplitude](amp []T) {}

@@ -18,6 +18,22 @@ func apply2Q0AVX(x *complex128, hi uint, from, to int, c *coef2) {
 	panic("sim: no AVX kernels on this architecture")
 }
 
+func apply2Q0AVX512(x *complex128, hi uint, from, to int, c *coef2z) {
+	panic("sim: no AVX kernels on this architecture")
+}
+
+func apply2Runs64AVX(x *complex64, lo, hi uint, from, to int, c *coef2s) {
+	panic("sim: no AVX kernels on this architecture")
+}
+
+func apply2Runs64AVX512(x *complex64, lo, hi uint, from, to int, c *coef2sz) {
+	panic("sim: no AVX kernels on this architecture")
+}
+
+func apply2Q064AVX(x *complex64, hi uint, from, to int, c *coef2s) {
+	panic("sim: no AVX kernels on this architecture")
+}
+
 func apply1AVX(x *complex128, q uint, from, to int, c *coef1) {
 	panic("sim: no AVX kernels on this architecture")
 }

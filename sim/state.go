@@ -126,7 +126,7 @@ func (s *State) ProbabilityBlocks(workers int, visit func(w, off int, p []float6
 	probabilityBlocks(s.Amp, s.Qubits, workers, visit)
 }
 
-func probabilityBlocks[T Amplitude](amp []T, n, workers int, visit func(w, off int, p []float64)) {
+func probabilityBlocks[T amplitude](amp []T, n, workers int, visit func(w, off int, p []float64)) {
 	chunks := (len(amp) + ProbabilityChunk - 1) / ProbabilityChunk
 	if workers <= 1 || n < ParallelQubits || chunks < 2 {
 		workers = 1
@@ -157,7 +157,7 @@ func probabilityBlocks[T Amplitude](amp []T, n, workers int, visit func(w, off i
 }
 
 // squares writes |src[i]|² (in float64) into p.
-func squares[T Amplitude](src []T, p []float64) {
+func squares[T amplitude](src []T, p []float64) {
 	p = p[:len(src)]
 	switch v := any(src).(type) {
 	case []complex128:

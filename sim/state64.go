@@ -62,14 +62,9 @@ func (s *State64) Apply2(a, b int, m *[16]complex128, workers int) {
 	if a == b || a < 0 || b < 0 || a >= n || b >= n {
 		panic(fmt.Sprintf("sim: Apply2 on qubits (%d, %d) of a %d-qubit state", a, b, n))
 	}
-	c := canonical2(a, b, m)
-	var m64 [16]complex64
-	for i, v := range c {
-		m64[i] = complex64(v)
-	}
-	lo, hi := min(a, b), max(a, b)
+	k := newKernel2s(a, b, m)
 	parallelFor(1<<(n-2), workers, n >= ParallelQubits, func(from, to int) {
-		apply2Scalar(s.Amp, lo, hi, &m64, from, to)
+		apply2Kernel64(s.Amp, &k, from, to)
 	})
 }
 
@@ -85,7 +80,7 @@ func (s *State64) Apply1(q int, m *[4]complex128, workers int) {
 		m64[i] = complex64(v)
 	}
 	parallelFor(1<<(n-1), workers, n >= ParallelQubits, func(from, to int) {
-		apply1Scalar(s.Amp, q, &m64, from, to)
+		apply1Single(s.Amp, q, &m64, from, to)
 	})
 }
 

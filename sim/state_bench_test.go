@@ -49,7 +49,7 @@ func brickwork(n, layers int) []sim.Op {
 // traffic of the gate-by-gate circuit.
 func BenchmarkRun(b *testing.B) {
 	workers := runtime.NumCPU()
-	for _, n := range []int{18, 22, 24} {
+	for _, n := range []int{18, 20, 22, 24} {
 		ops := brickwork(n, 20)
 		s := newState(b, n)
 		b.Run(fmt.Sprintf("fused/n=%d", n), func(b *testing.B) {

@@ -17,7 +17,12 @@
 // Per instance, Collision computes Z = Σ_x p(x)² with a pairwise sum, and
 // KSHaar the Kolmogorov–Smirnov distance of the D probabilities from
 // Beta(1, D−1). Neither modifies its input; KSHaar sorts into a caller-owned
-// scratch slice when one is given.
+// scratch slice when one is given. KSHaarPasses computes the same statistic
+// (equal to rounding, no approximation) from repeated passes over
+// probabilities that a simulator recomputes from its amplitudes: a
+// histogram, refinement of the few bins that can hold the supremum, and a
+// sort of their values, in O(D) time per pass and bounded memory, for states
+// too large for an array of probabilities.
 //
 // Ensemble summaries: Summarize gives the mean, the unbiased standard
 // deviation and the standard error. With fewer than two values the spread is

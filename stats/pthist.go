@@ -2,6 +2,7 @@ package stats
 
 import (
 	"math"
+	"math/bits"
 	"slices"
 )
 
@@ -21,6 +22,10 @@ const DefaultKSBudget = 1 << 22
 // each holds at most about e^−1·2^−12 ≈ 9e−5 of the Porter–Thomas mass.
 const ksBinBits = 12
 
+// ksMinCollect is the number of candidate values always small enough to
+// collect and sort at once.
+const ksMinCollect = 1 << 16
+
 // ksMaxLeaves bounds the bins counted in one refinement pass (2^18, 1 MiB
 // of counters per worker, which stays in a second-level cache).
 const ksMaxLeaves = 1 << 18
@@ -29,7 +34,7 @@ const ksMaxLeaves = 1 << 18
 // against the exact Haar law Beta(1, D−1), the value KSHaar returns for
 // them, without sorting all of them: a histogram pass, refinement passes
 // over the few bins that can hold the supremum, and a sort of the values of
-// those bins. It needs O(D) time per pass and O(budget + 2^20) memory
+// those bins. It needs O(D) time per pass and O(budget + 2^18) memory
 // instead of O(D log D) time and 2·8·D bytes. passes reports how many times
 // pass was called (2 to 4 for Porter–Thomas-like outputs).
 //
@@ -64,12 +69,16 @@ func KSHaarPasses(dim, workers, budget int, pass ProbabilityPass) (ks float64, p
 	if r.nan {
 		return math.NaN(), passes
 	}
+	// Sorting m values costs about m·log2(m) comparisons on one core, a pass
+	// about D cheap steps on every worker: collect once the candidates are
+	// few enough that their sort costs less than another pass.
+	limit := int64(min(budget, max(ksMinCollect, dim/256)))
 	for {
 		cands, total := r.select_()
 		switch {
 		case len(cands) == 0:
 			return r.best, passes
-		case total <= int64(budget):
+		case total <= limit:
 			r.collect(pass, cands)
 			return r.best, passes + 1
 		}
@@ -103,16 +112,15 @@ const (
 	ksCollect        // a leaf whose values the current pass collects
 )
 
-// ksNode is a bin of keys [lo, hi).
+// ksNode is a bin of keys [lo, hi). Its state is kept apart, in
+// ksRefiner.state, so that a pass reads one byte per value it routes.
 type ksNode struct {
 	lo, hi uint64
 	count  int64 // values in the bin
 	below  int64 // values in bins before it
-	state  uint8
-	slot   int32  // counter slot (ksCount) in the current pass
-	child  int32  // first child (ksSplit)
-	step   uint64 // key width of a child (ksSplit)
+	child  int32 // first child (ksSplit)
 	nchild int32
+	shift  uint8 // a child spans 2^shift keys (ksSplit)
 }
 
 type ksRefiner struct {
@@ -120,6 +128,7 @@ type ksRefiner struct {
 	workers int
 	cdf     func(float64) float64
 	nodes   []ksNode
+	state   []uint8
 	// Level-0 bins: node 0 negative values, 1 exact zeros, 2 positive values
 	// below lo0, 3…3+nb0−1 the uniform bins of width 2^shift from lo0, and
 	// the last one everything above.
@@ -129,6 +138,9 @@ type ksRefiner struct {
 	// lower is L, the running lower bound; best the largest exact term found.
 	lower, best float64
 	nan         bool
+	// active has bit b set when level-0 node b is not idle: a pass rejects
+	// most values with this 16 KiB table, before touching any node.
+	active []uint64
 }
 
 const ksSlack = 1e-12 // candidates keep U_j ≥ L − slack, so rounding in the bounds never drops the supremum's bin
@@ -153,6 +165,7 @@ func newKSRefiner(dim, workers int) *ksRefiner {
 		r.nodes = append(r.nodes, ksNode{lo: l, hi: l + 1<<r.shift})
 	}
 	r.nodes = append(r.nodes, ksNode{lo: top, hi: ksKey(math.Inf(1)) + 1})
+	r.state = make([]uint8, len(r.nodes))
 	return r
 }
 
@@ -199,7 +212,7 @@ func (r *ksRefiner) countLevel0(pass ProbabilityPass) {
 	for i := range r.nodes {
 		r.nodes[i].below = below
 		below += r.nodes[i].count
-		r.nodes[i].state = ksCount
+		r.state[i] = ksCount
 	}
 }
 
@@ -216,7 +229,7 @@ func (r *ksRefiner) bounds(nd *ksNode) (lower, upper float64) {
 func (r *ksRefiner) select_() (cands []int32, total int64) {
 	for i := range r.nodes {
 		nd := &r.nodes[i]
-		if nd.state != ksCount || nd.count == 0 {
+		if r.state[i] != ksCount || nd.count == 0 {
 			continue
 		}
 		l, _ := r.bounds(nd)
@@ -227,10 +240,10 @@ func (r *ksRefiner) select_() (cands []int32, total int64) {
 	}
 	for i := range r.nodes {
 		nd := &r.nodes[i]
-		if nd.state != ksCount {
+		if r.state[i] != ksCount {
 			continue
 		}
-		nd.state = ksIdle
+		r.state[i] = ksIdle
 		if nd.count == 0 || nd.hi-nd.lo == 1 {
 			continue
 		}
@@ -242,34 +255,59 @@ func (r *ksRefiner) select_() (cands []int32, total int64) {
 	return cands, total
 }
 
-// leaf walks from the level-0 bin of key k down to its leaf.
-func (r *ksRefiner) leaf(k uint64) *ksNode {
-	nd := &r.nodes[r.bin0(k)]
-	for nd.state == ksSplit {
-		nd = &r.nodes[int(nd.child)+int((k-nd.lo)/nd.step)]
+// markActive rebuilds the table of level-0 nodes that are not idle.
+func (r *ksRefiner) markActive() {
+	n0 := r.nb0 + 4
+	if r.active == nil {
+		r.active = make([]uint64, (n0+63)/64)
 	}
-	return nd
+	clear(r.active)
+	for i := 0; i < n0; i++ {
+		if r.state[i] != ksIdle {
+			r.active[i>>6] |= 1 << (i & 63)
+		}
+	}
 }
 
-// split divides each candidate into children and counts them in one pass.
+// leaf walks from the level-0 bin of key k down to its leaf and returns the
+// leaf's index, or −1 when the level-0 bin is idle.
+func (r *ksRefiner) leaf(k uint64) int {
+	i := r.bin0(k)
+	if r.active[i>>6]>>(i&63)&1 == 0 {
+		return -1
+	}
+	for r.state[i] == ksSplit {
+		nd := &r.nodes[i]
+		i = int(nd.child) + int((k-nd.lo)>>nd.shift)
+	}
+	return i
+}
+
+// split divides each candidate into at most per children of 2^shift keys
+// and counts them in one pass.
 func (r *ksRefiner) split(pass ProbabilityPass, cands []int32) {
 	per := uint64(max(2, ksMaxLeaves/len(cands)))
-	slots := 0
+	first := len(r.nodes)
 	for _, ci := range cands {
-		width := r.nodes[ci].hi - r.nodes[ci].lo
-		step := max(1, (width+per-1)/per)
-		first := int32(len(r.nodes))
-		for lo := r.nodes[ci].lo; lo < r.nodes[ci].hi; lo += step {
-			hi := min(lo+step, r.nodes[ci].hi)
-			r.nodes = append(r.nodes, ksNode{lo: lo, hi: hi, state: ksCount, slot: int32(slots)})
-			slots++
-			if hi == r.nodes[ci].hi {
-				break // lo+step would overflow at the top of the key range
+		lo, hi := r.nodes[ci].lo, r.nodes[ci].hi
+		width := hi - lo
+		shift := uint8(bits.Len64((width+per-1)/per - 1)) // 2^shift ≥ width/per
+		child := int32(len(r.nodes))
+		for l := lo; l < hi; {
+			h := hi
+			if hi-l > 1<<shift {
+				h = l + 1<<shift
 			}
+			r.nodes = append(r.nodes, ksNode{lo: l, hi: h})
+			r.state = append(r.state, ksCount)
+			l = h
 		}
 		nd := &r.nodes[ci]
-		nd.state, nd.child, nd.step, nd.nchild = ksSplit, first, step, int32(len(r.nodes))-first
+		r.state[ci] = ksSplit
+		nd.child, nd.shift, nd.nchild = child, shift, int32(len(r.nodes))-child
 	}
+	r.markActive()
+	slots := len(r.nodes) - first
 	counts := make([][]uint32, r.workers)
 	pass(func(w int, p []float64) {
 		c := counts[w]
@@ -278,9 +316,8 @@ func (r *ksRefiner) split(pass ProbabilityPass, cands []int32) {
 			counts[w] = c
 		}
 		for _, v := range p {
-			k := ksKey(v)
-			if nd := r.leaf(k); nd.state == ksCount {
-				c[nd.slot]++
+			if i := r.leaf(ksKey(v)); i >= first {
+				c[i-first]++ // the new leaves are the only ksCount nodes
 			}
 		}
 	})
@@ -291,7 +328,7 @@ func (r *ksRefiner) split(pass ProbabilityPass, cands []int32) {
 			ch := &r.nodes[j]
 			for w := range counts {
 				if counts[w] != nil {
-					ch.count += int64(counts[w][ch.slot])
+					ch.count += int64(counts[w][int(j)-first])
 				}
 			}
 			ch.below = below
@@ -304,13 +341,14 @@ func (r *ksRefiner) split(pass ProbabilityPass, cands []int32) {
 // the exact terms of the statistic from them.
 func (r *ksRefiner) collect(pass ProbabilityPass, cands []int32) {
 	for _, ci := range cands {
-		r.nodes[ci].state = ksCollect
+		r.state[ci] = ksCollect
 	}
+	r.markActive()
 	vals := make([][]float64, r.workers) // worker w alone touches vals[w]
 	pass(func(w int, p []float64) {
 		buf := vals[w]
 		for _, v := range p {
-			if r.leaf(ksKey(v)).state == ksCollect {
+			if i := r.leaf(ksKey(v)); i >= 0 && r.state[i] == ksCollect {
 				buf = append(buf, v)
 			}
 		}

@@ -20,6 +20,7 @@ import (
 	"os"
 	"os/exec"
 	"runtime"
+	"runtime/pprof"
 	"slices"
 	"strings"
 	"sync"
@@ -39,6 +40,7 @@ type report struct {
 	Cores     int         `json:"cores"`
 	GoVersion string      `json:"go_version"`
 	Bandwidth float64     `json:"bandwidth_gbs"`
+	Load      string      `json:"load_average"`
 	Gates     []gateRow   `json:"gates"`
 	Moments   []momentRow `json:"moments"`
 	Scan      *scanResult `json:"scan,omitempty"`
@@ -53,6 +55,9 @@ type gateRow struct {
 	MsPerGate float64 `json:"ms_per_gate"`
 	Effective float64 `json:"effective_gbs"`
 	Fraction  float64 `json:"bandwidth_fraction"`
+	// Triad is the triad bandwidth measured just before this row, the
+	// reference of Fraction: on a shared machine it sees the same load.
+	Triad float64 `json:"triad_gbs"`
 	// Kinds holds ms per gate for each position class.
 	Kinds map[string]float64 `json:"ms_per_gate_by_positions"`
 }
@@ -69,6 +74,9 @@ type singleRow struct {
 	MsPerGate float64 `json:"ms_per_gate"`
 	Effective float64 `json:"effective_gbs"`
 	Fraction  float64 `json:"bandwidth_fraction"`
+	Triad     float64 `json:"triad_gbs"`
+	// Kinds holds ms per gate for each position class.
+	Kinds map[string]float64 `json:"ms_per_gate_by_positions"`
 }
 
 type momentRow struct {
@@ -76,6 +84,9 @@ type momentRow struct {
 	MsPerUpdate float64 `json:"ms_per_update"`
 	Effective   float64 `json:"effective_gbs"`
 	Fraction    float64 `json:"bandwidth_fraction"`
+	Triad       float64 `json:"triad_gbs"`
+	// Pairs holds ms per update for each pair of the engine's benchmark.
+	Pairs map[string]float64 `json:"ms_per_update_by_pair"`
 }
 
 type scanResult struct {
@@ -85,6 +96,7 @@ type scanResult struct {
 	GoSeconds    float64  `json:"go_seconds"`
 	NumpySeconds *float64 `json:"numpy_seconds"`
 	Python       string   `json:"python,omitempty"`
+	NumpyBLAS    string   `json:"numpy_blas,omitempty"`
 	GoRatio      float64  `json:"go_collision_ratio_last"`
 	NumpyRatio   *float64 `json:"numpy_collision_ratio_last"`
 }
@@ -100,18 +112,53 @@ func main() {
 	numpy := fs.String("numpy", "auto", "auto: run the numpy baseline when python3 has numpy; off: skip it")
 	momentN := fs.String("moments", "24,26", "qubit counts for the moment engine")
 	workers := fs.Int("workers", runtime.NumCPU(), "goroutines for every measurement")
+	large := fs.String("large", "", "only run a one-instance scan of GRAPH (e.g. grid:5x6, line:31) at --large-depths and report its time")
+	largeDepths := fs.String("large-depths", "1", "depths of the --large scan: a list like 1,2,4")
+	precision := fs.String("precision", "double", "precision of the --large scan: double or single")
+	profile := fs.String("cpuprofile", "", "write a CPU profile (go tool pprof) of the whole run to FILE")
 	if err := fs.Parse(os.Args[1:]); err != nil {
 		os.Exit(2)
 	}
+	if *profile != "" {
+		f, err := os.Create(*profile)
+		if err != nil {
+			fmt.Fprintln(os.Stderr, "bench:", err)
+			os.Exit(1)
+		}
+		if err := pprof.StartCPUProfile(f); err != nil {
+			fmt.Fprintln(os.Stderr, "bench:", err)
+			os.Exit(1)
+		}
+		defer func() {
+			pprof.StopCPUProfile()
+			f.Close()
+		}()
+	}
 	log := func(format string, args ...any) { fmt.Fprintf(os.Stderr, format+"\n", args...) }
+	if *large != "" {
+		if err := largeScan(os.Stdout, *large, *largeDepths, *precision, *workers); err != nil {
+			log("bench: %v", err)
+		}
+		return
+	}
 
 	r := &report{Machine: cpuModel(), Cores: runtime.NumCPU(), GoVersion: runtime.Version()}
 	log("triad bandwidth on %d goroutines…", *workers)
-	r.Bandwidth = triad(*workers)
+	r.Load = loadAverage()
+	r.Bandwidth = triad(*workers, 10)
+	// Each row's fraction refers to a triad measured right before it, so
+	// that both see the same load from other users of the machine;
+	// bandwidth_gbs is the best triad of the run.
+	local := func() float64 {
+		bw := triad(*workers, 3)
+		r.Bandwidth = max(r.Bandwidth, bw)
+		return bw
+	}
 	for n := *from; n <= *to; n++ {
 		log("gates at n = %d…", n)
+		bw := local()
 		row := gates(n, *workers)
-		row.Fraction = row.Effective / r.Bandwidth
+		row.Triad, row.Fraction = bw, row.Effective/bw
 		r.Gates = append(r.Gates, row)
 		r.Fused = append(r.Fused, fused(n, *workers, row.MsPerGate))
 	}
@@ -120,8 +167,9 @@ func main() {
 			continue
 		}
 		log("single precision at n = %d…", n)
+		bw := local()
 		row := single(n, *workers)
-		row.Fraction = row.Effective / r.Bandwidth
+		row.Triad, row.Fraction = bw, row.Effective/bw
 		r.Single = append(r.Single, row)
 	}
 	for _, f := range strings.Split(*momentN, ",") {
@@ -130,8 +178,9 @@ func main() {
 			continue
 		}
 		log("moment engine at n = %d…", n)
+		bw := local()
 		row := momentEngine(n, *workers)
-		row.Fraction = row.Effective / r.Bandwidth
+		row.Triad, row.Fraction = bw, row.Effective/bw
 		r.Moments = append(r.Moments, row)
 	}
 	var rows, cols int
@@ -145,12 +194,12 @@ func main() {
 			if *numpy != "off" {
 				if py := findNumpy(); py != "" {
 					log("numpy baseline with %s…", py)
-					secs, last, err := numpyScan(py, rows, cols, *depth, *instances)
+					secs, last, blas, err := numpyScan(py, rows, cols, *depth, *instances)
 					if err != nil {
 						log("numpy: %v", err)
 						r.Notes = append(r.Notes, "numpy baseline failed: "+err.Error())
 					} else {
-						sr.NumpySeconds, sr.NumpyRatio, sr.Python = &secs, &last, py
+						sr.NumpySeconds, sr.NumpyRatio, sr.Python, sr.NumpyBLAS = &secs, &last, py, blas
 						ratio := secs / sr.GoSeconds
 						r.Ratio = &ratio
 					}
@@ -185,6 +234,17 @@ func cpuModel() string {
 	return runtime.GOARCH
 }
 
+// loadAverage returns the first three fields of /proc/loadavg: how busy the
+// shared machine was when the run started.
+func loadAverage() string {
+	b, err := os.ReadFile("/proc/loadavg")
+	if err != nil {
+		return ""
+	}
+	f := strings.Fields(string(b))
+	return strings.Join(f[:min(3, len(f))], " ")
+}
+
 // parallel runs body(w, lo, hi) over [0, n) in workers contiguous blocks.
 func parallel(n, workers int, body func(lo, hi int)) {
 	var wg sync.WaitGroup
@@ -196,11 +256,11 @@ func parallel(n, workers int, body func(lo, hi int)) {
 	wg.Wait()
 }
 
-// triad returns the best of 10 runs of a[i] = b[i] + s·c[i] over three
+// triad returns the best of reps runs of a[i] = b[i] + s·c[i] over three
 // arrays of 2^25 float64 (256 MiB each, far beyond the last-level cache),
 // counting 24 bytes per element as STREAM does (McCalpin 1995, IEEE TCCA
 // Newsletter, "Memory bandwidth and machine balance").
-func triad(workers int) float64 {
+func triad(workers, reps int) float64 {
 	const n = 1 << 25
 	a, b, c := make([]float64, n), make([]float64, n), make([]float64, n)
 	parallel(n, workers, func(lo, hi int) {
@@ -209,7 +269,7 @@ func triad(workers int) float64 {
 		}
 	})
 	best := 0.0
-	for range 10 {
+	for range reps {
 		start := time.Now()
 		parallel(n, workers, func(lo, hi int) {
 			x, y, z := a[lo:hi], b[lo:hi], c[lo:hi]
@@ -296,13 +356,18 @@ func single(n, workers int) singleRow {
 	}
 	var m [16]complex128
 	circuits.HaarUnitary(rand.New(rand.NewPCG(2, 3)), 4, m[:])
+	row := singleRow{Qubits: n, Kinds: map[string]float64{}}
 	var sum float64
 	pairs := gatePairs(n)
-	for _, p := range pairs {
-		sum += timeGate(5, func() { s.Apply2(p[0], p[1], &m, workers) })
+	for kind, p := range pairs {
+		s.Apply2(p[0], p[1], &m, workers) // warm up
+		t := timeGate(5, func() { s.Apply2(p[0], p[1], &m, workers) })
+		row.Kinds[kind] = t * 1e3
+		sum += t
 	}
 	t := sum / float64(len(pairs))
-	return singleRow{Qubits: n, MsPerGate: t * 1e3, Effective: 16 * math.Ldexp(1, n) / t / 1e9}
+	row.MsPerGate, row.Effective = t*1e3, 16*math.Ldexp(1, n)/t/1e9
+	return row
 }
 
 // fused measures a 20-layer brickwork on a line of n qubits run as one fused
@@ -338,13 +403,18 @@ func momentEngine(n, workers int) momentRow {
 	for q := range n {
 		e.Apply(q, (q+1)%n, &moments.HaarTransfer)
 	}
+	// The pairs of BenchmarkMomentEngine (sim/moments).
 	pairs := [][2]int{{0, 1}, {n / 2, n/2 + 1}, {n - 2, n - 1}, {1, n - 1}, {3, n / 2}}
+	row := momentRow{Qubits: n, Pairs: map[string]float64{}}
 	var sum float64
 	for _, p := range pairs {
-		sum += timeGate(5, func() { e.Apply(p[0], p[1], &moments.HaarTransfer) })
+		t := timeGate(5, func() { e.Apply(p[0], p[1], &moments.HaarTransfer) })
+		row.Pairs[fmt.Sprintf("%d-%d", p[0], p[1])] = t * 1e3
+		sum += t
 	}
 	t := sum / float64(len(pairs))
-	return momentRow{Qubits: n, MsPerUpdate: t * 1e3, Effective: 16 * math.Ldexp(1, n) / t / 1e9}
+	row.MsPerUpdate, row.Effective = t*1e3, 16*math.Ldexp(1, n)/t/1e9
+	return row
 }
 
 // scanBench runs the end-to-end scan in process, as `mixdepth scan` would.
@@ -380,6 +450,41 @@ func scanBench(rows, cols, depth, instances, workers int) (*scanResult, error) {
 		GoRatio: sum.Rows[len(sum.Rows)-1].Ratio}, nil
 }
 
+// largeScan runs one instance of a layered Haar scan of the graph spec at the
+// given depths and precision, and prints each record with the elapsed time.
+func largeScan(w io.Writer, spec, depths, precision string, workers int) error {
+	g, err := circuits.ParseGraph(spec)
+	if err != nil {
+		return err
+	}
+	sch, err := circuits.NewSchedule("layered", g)
+	if err != nil {
+		return err
+	}
+	ens, err := circuits.NewEnsemble("haar")
+	if err != nil {
+		return err
+	}
+	cfg := &scan.Config{Graph: g, Schedule: sch, Ensemble: ens, Seed: 1, Workers: workers, Instances: []int{0}, Precision: precision}
+	for _, f := range strings.Split(depths, ",") {
+		var d int
+		if _, err := fmt.Sscan(f, &d); err != nil {
+			return fmt.Errorf("--large-depths %q: %w", depths, err)
+		}
+		cfg.Depths = append(cfg.Depths, d)
+	}
+	start := time.Now()
+	recs, _, err := scan.Run(context.Background(), cfg)
+	if err != nil {
+		return err
+	}
+	fmt.Fprintf(w, "%s (%d qubits), %s precision, %d workers: %.1f s\n", spec, g.Qubits, precision, workers, time.Since(start).Seconds())
+	for _, r := range recs {
+		fmt.Fprintf(w, "depth %d: gates %d, Z/Z_H %.6f, PT KS %.6g\n", r.Depth, r.GateCount, r.Ratio, r.KS)
+	}
+	return nil
+}
+
 // findNumpy returns a python3 that imports numpy: Debian's /usr/bin/python3
 // first (python3-numpy), then python3 on PATH; "" when there is none.
 func findNumpy() string {
@@ -396,7 +501,7 @@ func findNumpy() string {
 // at the last depth. OPENBLAS_CORETYPE and OPENBLAS_L2_SIZE are removed from
 // its environment: they pin an old OpenBLAS kernel on this machine and would
 // slow numpy (see the environment notes); numpy's tensordot calls BLAS.
-func numpyScan(py string, rows, cols, depth, instances int) (secs, last float64, err error) {
+func numpyScan(py string, rows, cols, depth, instances int) (secs, last float64, blas string, err error) {
 	cmd := exec.Command(py, "scripts/numpy_scan.py", "--rows", fmt.Sprint(rows), "--cols", fmt.Sprint(cols),
 		"--depth", fmt.Sprint(depth), "--instances", fmt.Sprint(instances))
 	for _, kv := range os.Environ() {
@@ -407,46 +512,54 @@ func numpyScan(py string, rows, cols, depth, instances int) (secs, last float64,
 	cmd.Stderr = os.Stderr
 	out, err := cmd.Output()
 	if err != nil {
-		return 0, 0, err
+		return 0, 0, "", err
 	}
 	var res struct {
-		Seconds float64   `json:"seconds"`
-		Ratio   []float64 `json:"collision_ratio"`
+		Seconds float64           `json:"seconds"`
+		Ratio   []float64         `json:"collision_ratio"`
+		Numpy   string            `json:"numpy"`
+		BLAS    []json.RawMessage `json:"blas"`
 	}
 	if err := json.Unmarshal(out, &res); err != nil {
-		return 0, 0, fmt.Errorf("numpy_scan.py output: %w", err)
+		return 0, 0, "", fmt.Errorf("numpy_scan.py output: %w", err)
 	}
 	if len(res.Ratio) == 0 {
-		return 0, 0, fmt.Errorf("numpy_scan.py reported no depths")
+		return 0, 0, "", fmt.Errorf("numpy_scan.py reported no depths")
 	}
-	return res.Seconds, res.Ratio[len(res.Ratio)-1], nil
+	blas = "numpy " + res.Numpy
+	for _, b := range res.BLAS {
+		blas += " " + string(b)
+	}
+	return res.Seconds, res.Ratio[len(res.Ratio)-1], blas, nil
 }
 
 func printTable(w io.Writer, r *report) {
 	fmt.Fprintf(w, "machine: %s, %d cores, %s\n", r.Machine, r.Cores, r.GoVersion)
-	fmt.Fprintf(w, "triad bandwidth: %.1f GB/s (STREAM convention, 24 bytes per element)\n\n", r.Bandwidth)
+	fmt.Fprintf(w, "load average at start: %s\n", r.Load)
+	fmt.Fprintf(w, "triad bandwidth: %.1f GB/s (STREAM convention, 24 bytes per element; best of the run)\n", r.Bandwidth)
+	fmt.Fprintf(w, "fraction = effective GB/s / the triad measured just before the row (its own column)\n\n")
 	fmt.Fprintf(w, "two-qubit gates, complex128 (32·2^n bytes per gate), mean over position classes\n")
-	fmt.Fprintf(w, "%4s %12s %12s %10s %16s %10s\n", "n", "ms/gate", "GB/s", "fraction", "fused ms/gate", "speedup")
+	fmt.Fprintf(w, "%4s %10s %8s %8s %9s %14s %8s\n", "n", "ms/gate", "GB/s", "triad", "fraction", "fused ms/gate", "speedup")
 	for i, g := range r.Gates {
 		f := r.Fused[i]
-		fmt.Fprintf(w, "%4d %12.3f %12.1f %10.2f %16.3f %10.2f\n", g.Qubits, g.MsPerGate, g.Effective, g.Fraction, f.MsPerGate, f.Speedup)
+		fmt.Fprintf(w, "%4d %10.3f %8.1f %8.1f %9.2f %14.3f %8.2f\n", g.Qubits, g.MsPerGate, g.Effective, g.Triad, g.Fraction, f.MsPerGate, f.Speedup)
 	}
 	if len(r.Single) > 0 {
 		fmt.Fprintf(w, "\ntwo-qubit gates, complex64 (16·2^n bytes per gate)\n")
-		fmt.Fprintf(w, "%4s %12s %12s %10s\n", "n", "ms/gate", "GB/s", "fraction")
+		fmt.Fprintf(w, "%4s %10s %8s %8s %9s\n", "n", "ms/gate", "GB/s", "triad", "fraction")
 		for _, g := range r.Single {
-			fmt.Fprintf(w, "%4d %12.3f %12.1f %10.2f\n", g.Qubits, g.MsPerGate, g.Effective, g.Fraction)
+			fmt.Fprintf(w, "%4d %10.3f %8.1f %8.1f %9.2f\n", g.Qubits, g.MsPerGate, g.Effective, g.Triad, g.Fraction)
 		}
 	}
 	fmt.Fprintf(w, "\nmoment engine (16·2^n bytes per pair update)\n")
-	fmt.Fprintf(w, "%4s %12s %12s %10s\n", "n", "ms/update", "GB/s", "fraction")
+	fmt.Fprintf(w, "%4s %10s %8s %8s %9s\n", "n", "ms/update", "GB/s", "triad", "fraction")
 	for _, m := range r.Moments {
-		fmt.Fprintf(w, "%4d %12.3f %12.1f %10.2f\n", m.Qubits, m.MsPerUpdate, m.Effective, m.Fraction)
+		fmt.Fprintf(w, "%4d %10.3f %8.1f %8.1f %9.2f\n", m.Qubits, m.MsPerUpdate, m.Effective, m.Triad, m.Fraction)
 	}
 	if s := r.Scan; s != nil {
 		fmt.Fprintf(w, "\nscan %s, depths 1..%d, %d instances, haar: Go %.2f s (R at the last depth %.3f)\n", s.Graph, s.Depths, s.Instances, s.GoSeconds, s.GoRatio)
 		if s.NumpySeconds != nil {
-			fmt.Fprintf(w, "numpy (%s): %.2f s (R %.3f); ratio %.1f×\n", s.Python, *s.NumpySeconds, *s.NumpyRatio, *r.Ratio)
+			fmt.Fprintf(w, "numpy (%s; %s): %.2f s (R %.3f); ratio %.1f×\n", s.Python, s.NumpyBLAS, *s.NumpySeconds, *s.NumpyRatio, *r.Ratio)
 		}
 	}
 	for _, n := range r.Notes {

@@ -4,6 +4,7 @@ import (
 	"bufio"
 	"errors"
 	"fmt"
+	"math"
 	"os"
 	"strconv"
 	"strings"
@@ -53,5 +54,5 @@ func CheckMemory(need float64, what string) error {
 
 // StateBytes returns the bytes of an n-qubit complex128 state vector.
 func StateBytes(n int) float64 {
-	return 16 * float64(uint64(1)<<min(n, 62)) * float64(uint64(1)<<max(n-62, 0))
+	return math.Ldexp(16, n)
 }

@@ -96,7 +96,7 @@ func newFlags(name, usage, example string, stdout io.Writer) *pflag.FlagSet {
 	fs.SortFlags = false
 	fs.SetOutput(io.Discard)
 	fs.Usage = func() {
-		fmt.Fprintf(stdout, "Usage: mixdepth %s\n\n%s\n\nExample:\n  %s\n\nFlags:\n", name, usage, example)
+		fmt.Fprintf(stdout, "Usage: mixdepth %s [flags]\n\n%s\n\nExample:\n  %s\n\nFlags:\n", name, usage, example)
 		fs.SetOutput(stdout)
 		fs.PrintDefaults()
 		fs.SetOutput(io.Discard)

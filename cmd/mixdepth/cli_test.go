@@ -70,6 +70,14 @@ func TestBadInput(t *testing.T) {
 		{"unwritable out", []string{"scan", "--graph", "line:4", "--out", filepath.Join(dir, "no", "such", "dir", "t.arrow")}, "--out"},
 		{"bad out format", []string{"scan", "--graph", "line:4", "--out", filepath.Join(dir, "t.csv")}, ".arrow or .parquet"},
 		{"positional", []string{"scan", "extra"}, "positional"},
+		{"huge depth", []string{"scan", "--graph", "line:4", "--depths", "1:1000000000"}, "largest depth"},
+		{"huge instances", []string{"scan", "--graph", "line:4", "--instances", "100000000000"}, "--instances"},
+		{"empty shard", []string{"scan", "--graph", "line:4", "--instances", "3", "--shard", "5/9"}, "selects no instance"},
+		{"bad shard", []string{"scan", "--graph", "line:4", "--shard", "3/3"}, "--shard"},
+		{"exact too many qubits", []string{"exact", "--graph", "line:1030"}, "underflows"},
+		{"exact random-edge too big", []string{"exact", "--graph", "line:21", "--schedule", "random-edge"}, "at most 20 qubits"},
+		{"sample huge depth", []string{"sample", "--graph", "line:4", "--depth", "100000000"}, "--depth"},
+		{"plan beyond reach", []string{"plan", "--graph", "line:4", "--fidelity", "1e-10"}, "beyond any experiment"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -138,7 +146,7 @@ func equalRows(a, b []scanJSONRow) bool {
 	for i := range a {
 		x, y := a[i], b[i]
 		if x.Depth != y.Depth || x.GateCount != y.GateCount || x.CollisionMean != y.CollisionMean ||
-			x.CollisionStder != y.CollisionStder || x.PTKSMean != y.PTKSMean {
+			deref(x.CollisionStder) != deref(y.CollisionStder) || x.PTKSMean != y.PTKSMean {
 			return false
 		}
 	}
@@ -171,6 +179,17 @@ func TestScanJSONFields(t *testing.T) {
 	}
 	if doc["seed"].(float64) != defaultSeed {
 		t.Errorf("seed %v, want the default %d", doc["seed"], defaultSeed)
+	}
+}
+
+// TestScanSingleInstanceJSON: one instance has no error bar; the JSON says
+// null rather than failing on NaN.
+func TestScanSingleInstanceJSON(t *testing.T) {
+	doc := scanJSONOf(t, "--graph", "line:4", "--depths", "1,2", "--instances", "1")
+	for _, r := range doc.Rows {
+		if r.CollisionStder != nil || r.RatioLower != nil || r.RatioUpper != nil {
+			t.Errorf("row %+v: want null stderr and interval", r)
+		}
 	}
 }
 

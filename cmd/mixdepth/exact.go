@@ -9,6 +9,8 @@ import (
 	"math/cmplx"
 	"strconv"
 
+	"github.com/schollz/progressbar/v3"
+
 	"mixdepth/circuits"
 	"mixdepth/report"
 	"mixdepth/scan"
@@ -57,9 +59,9 @@ type exactJSONGap struct {
 }
 
 var exactFields = []tables.Field{
-	{Name: "depth", Type: tables.Int64, Doc: "circuit depth (layers, or gates for random-edge)"},
-	{Name: "gate_count", Type: tables.Int64, Doc: "two-qubit gates applied up to this depth"},
-	{Name: "collision", Type: tables.Float64, Doc: "exact ensemble average E[Z] of the collision probability"},
+	{Name: "depth", Type: tables.Int64, Unit: "layers (gates for random-edge)", Doc: "circuit depth (layers, or gates for random-edge)"},
+	{Name: "gate_count", Type: tables.Int64, Unit: "gates", Doc: "two-qubit gates applied up to this depth"},
+	{Name: "collision", Type: tables.Float64, Unit: "probability", Doc: "exact ensemble average E[Z] of the collision probability"},
 	{Name: "collision_ratio", Type: tables.Float64, Doc: "E[Z] / Z_H with Z_H = 2/(D+1)"},
 	{Name: "frame_potential", Type: tables.Float64, Nullable: true, Doc: "second frame potential F2 (Haar value 2); null above the size limit or for non-Haar gate sets"},
 }
@@ -69,8 +71,12 @@ var exactFields = []tables.Field{
 const frameRandomMaxQubits = 10
 
 // gapMaxQubits bounds the spectral-gap computation: Lanczos on the
-// 2^n-dimensional Pauli-support chain keeps about 30 such vectors.
-const gapMaxQubits = 22
+// 2^n-dimensional Pauli-support chain keeps about 30 such vectors. It
+// matches the largest random-edge graph the exact E[Z] accepts.
+const gapMaxQubits = moments.CollisionRandomEdgeMaxQubits
+
+// exactMaxQubits is where 2/(D+1) leaves the float64 range.
+const exactMaxQubits = 1000
 
 // exactResult is what exact computes; scan --exact reuses the curve.
 type exactResult struct {
@@ -103,7 +109,8 @@ func momentTransfer(e circuits.Ensemble) (moments.Transfer, bool, error) {
 }
 
 // computeExact runs the exact engines for the circuits of s at depths.
-func computeExact(ctx context.Context, s *setup, depths []int, workers int, withFrame bool) (*exactResult, error) {
+// progress, when not nil, is called as the engine goes (done of total).
+func computeExact(ctx context.Context, s *setup, depths []int, workers int, withFrame bool, progress func(done, total int)) (*exactResult, error) {
 	t, final, err := momentTransfer(s.ensemble)
 	if err != nil {
 		return nil, err
@@ -116,6 +123,9 @@ func computeExact(ctx context.Context, s *setup, depths []int, workers int, with
 	r := &exactResult{depths: depths, haar: stats.HaarCollision(dim)}
 	for _, d := range depths {
 		r.gateCounts = append(r.gateCounts, s.schedule.GateCount(d))
+	}
+	if progress != nil {
+		opts = append(opts, moments.CollisionProgress(progress))
 	}
 	r.collision, err = moments.CollisionCurve(ctx, s.graph, s.schedule, &t, depths, workers, opts...)
 	if err != nil {
@@ -182,6 +192,12 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if *explain {
 		return explainTransfer(stdout, s.ensemble)
 	}
+	if n := s.graph.Qubits; n > exactMaxQubits {
+		return badInput("--graph %s: %d qubits; the Haar collision probability 2/(2^n+1) underflows float64 beyond %d qubits", s.graph.Name, n, exactMaxQubits)
+	}
+	if re, ok := s.schedule.(*circuits.RandomEdge); ok && s.graph.Qubits > moments.CollisionRandomEdgeMaxQubits && len(re.Edges) != s.graph.Qubits*(s.graph.Qubits-1)/2 {
+		return badInput("--schedule random-edge on %d qubits: the exact average over edges handles at most %d qubits except on complete graphs; use --schedule layered, a complete graph, or 'mixdepth scan'", s.graph.Qubits, moments.CollisionRandomEdgeMaxQubits)
+	}
 	if *depthSpec == "" {
 		*depthSpec = "1:20"
 		if s.schedule.Kind() == "random-edge" {
@@ -215,7 +231,18 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 			return usageError{fmt.Errorf("--plot: %w", err)}
 		}
 	}
-	r, err := computeExact(ctx, s, depths, *workers, true)
+	var progress func(done, total int)
+	if isTerminal(stderr) {
+		var bar *progressbar.ProgressBar
+		progress = func(done, total int) {
+			if bar == nil {
+				bar = progressbar.NewOptions(total, progressbar.OptionSetWriter(stderr),
+					progressbar.OptionSetDescription("exact second moments"), progressbar.OptionClearOnFinish())
+			}
+			_ = bar.Set(done)
+		}
+	}
+	r, err := computeExact(ctx, s, depths, *workers, true, progress)
 	if err != nil {
 		return err
 	}
@@ -286,7 +313,7 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		if r.frame != nil {
 			f = strconv.FormatFloat(r.frame[i], 'f', 6, 64)
 		}
-		fmt.Fprintf(stdout, "%6d %7d %14.8f %12s\n", d, r.gateCounts[i], r.ratio[i], f)
+		fmt.Fprintf(stdout, "%6d %7d %14s %12s\n", d, r.gateCounts[i], formatRatio(r.ratio[i]), f)
 	}
 	fmt.Fprintln(stdout)
 	if r.frameNote != "" {
@@ -318,7 +345,19 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if *out != "" {
 		fmt.Fprintf(stdout, "Per-depth table: %s (%d rows)\n", *out, len(r.depths))
 	}
+	if *plot != "" {
+		fmt.Fprintf(stdout, "Plot: %s\n", *plot)
+	}
 	return nil
+}
+
+// formatRatio prints E[Z]/Z_H with 8 decimals, or in exponent form when it
+// is huge (shallow circuits on hundreds of qubits).
+func formatRatio(x float64) string {
+	if math.Abs(x) >= 1e6 {
+		return strconv.FormatFloat(x, 'e', 6, 64)
+	}
+	return strconv.FormatFloat(x, 'f', 8, 64)
 }
 
 // plotExact draws the exact curve alone: rows with no Monte Carlo estimate

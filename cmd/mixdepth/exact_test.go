@@ -159,14 +159,18 @@ func TestScanExactAcceptance(t *testing.T) {
 			t.Fatalf("row %+v lacks the exact fields", r)
 		}
 		if math.Abs(*r.ExactDeviation) > 4 {
-			t.Errorf("depth %d: MC %.6g ± %.2g vs exact %.6g", r.Depth, r.CollisionMean, r.CollisionStder, *r.CollisionExact)
+			t.Errorf("depth %d: MC %.6g ± %.2g vs exact %.6g", r.Depth, r.CollisionMean, *r.CollisionStder, *r.CollisionExact)
 		}
 	}
 }
 
 // TestExactGateSets: `exact --gates clifford` equals haar (the Clifford
-// group is a unitary 3-design: Webb 2016; Zhu 2017), a CZ gate file equals
-// cz+haar1 exactly, and a finite single-qubit set is refused with a hint.
+// group is a unitary 3-design: Webb 2016; Zhu 2017) — here this checks the
+// routing of the spec only; the evidence that the Clifford average really is
+// the Haar transfer is TestEntanglerTransferCliffordAverage in sim/moments
+// and the Monte Carlo Clifford scan in scan/scan_test.go — a CZ gate file
+// equals cz+haar1 exactly, and a finite single-qubit set is refused with a
+// hint.
 func TestExactGateSets(t *testing.T) {
 	base := []string{"--graph", "ring:5", "--depths", "1:10"}
 	haar := exactJSONOf(t, base...)

@@ -63,7 +63,7 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	gateError := fs.Float64("gate-error", 0, "two-qubit gate error e2 in [0, 1)")
 	singleError := fs.Float64("single-qubit-error", 0, "single-qubit gate error e1 in [0, 1)")
 	readout := fs.String("readout-error", "0,0", "readout flip probabilities p01,p10 (0→1, 1→0), or one value for both")
-	singleGates := fs.Int("single-qubit-gates", -1, "single-qubit gates to count (default: from the gate set, see above)")
+	singleGates := fs.Int("single-qubit-gates", -1, "single-qubit gates to count; −1 counts them from the gate set (see above)")
 	asJSON := fs.Bool("json", false, "print one JSON document instead of the text report")
 	if err := parseFlags(fs, args); err != nil {
 		return err
@@ -75,8 +75,8 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if err != nil {
 		return err
 	}
-	if *depth < 1 {
-		return badInput("--depth %d: must be at least 1", *depth)
+	if *depth < 1 || *depth > maxDepth {
+		return badInput("--depth %d: must be between 1 and %d", *depth, maxDepth)
 	}
 	for _, e := range []struct {
 		name string
@@ -135,15 +135,29 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if rates {
 		doc.ErrorModelFidelity = &model
 	}
+	// ceilShots rounds a sample count up; beyond 10^15 shots (years of any
+	// device's time) the plan is refused rather than overflowing int64.
+	ceilShots := func(x float64) (int64, error) {
+		if !(x <= 1e15) {
+			return 0, badInput("the plan needs %.3g shots at predicted fidelity %g: beyond any experiment; raise the fidelity (fewer gates, lower error rates) or relax --sigmas/--rel-precision", x, f)
+		}
+		return int64(math.Ceil(x)), nil
+	}
 	if useSigmas {
 		z := *sigmas
-		v := int64(math.Ceil(stats.XEBSamples(f, z)))
+		v, err := ceilShots(stats.XEBSamples(f, z))
+		if err != nil {
+			return err
+		}
 		doc.Sigmas, doc.SamplesSigmas = &z, &v
 		doc.Samples = v
 	}
 	if useRel {
 		r := *rel
-		v := int64(math.Ceil(stats.XEBSamplesRelative(f, r)))
+		v, err := ceilShots(stats.XEBSamplesRelative(f, r))
+		if err != nil {
+			return err
+		}
 		doc.RelPrecision, doc.SamplesRelPrecision = &r, &v
 		doc.Samples = max(doc.Samples, v)
 	}

@@ -86,6 +86,9 @@ func runPTPlot(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		}
 		d = defaultPTDepth(t.Meta, s.graph.Qubits, records)
 	}
+	if err := checkCircuitDepth(s, d); err != nil {
+		return err
+	}
 	ids, err := tableInstances(t)
 	if err != nil {
 		return usageError{fmt.Errorf("%s: %w", path, err)}

@@ -34,7 +34,7 @@ var sampleFields = []tables.Field{
 	{Name: "shot", Type: tables.Int64, Doc: "shot number within the instance, from 0"},
 	{Name: "bitstring", Type: tables.String, Doc: "measured bits after all noise, qubit 0 first"},
 	{Name: "outcome", Type: tables.Int64, Doc: "basis index x = Σ b_q 2^q of the bitstring"},
-	{Name: "p_ideal", Type: tables.Float64, Doc: "noiseless probability of the bitstring under the instance's circuit"},
+	{Name: "p_ideal", Type: tables.Float64, Unit: "probability", Doc: "noiseless probability of the bitstring under the instance's circuit"},
 }
 
 // testHookSampleProgress, when non-nil, is called after each finished
@@ -112,6 +112,9 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	}
 	s, err := cf.resolve()
 	if err != nil {
+		return err
+	}
+	if err := checkCircuitDepth(s, *depth); err != nil {
 		return err
 	}
 	switch {

@@ -313,7 +313,7 @@ func TestSampleDemoChip(t *testing.T) {
 	dir := t.TempDir()
 	out, circ := filepath.Join(dir, "demo.parquet"), filepath.Join(dir, "demo.json")
 	stdout, _ := sampleOK(t, "sample", "--depth", "4", "--instances", "2", "--shots", "50", "--readout-error", "0.02", "--out", out, "--circuits", circ)
-	if !strings.Contains(stdout, "kestrel16") {
+	if !strings.Contains(stdout, "tarn16") {
 		t.Errorf("sample did not use the demo chip: %s", stdout)
 	}
 	if g, _ := sampleTable(t, out).Meta.Get("qubits"); g != "16" {
@@ -323,7 +323,7 @@ func TestSampleDemoChip(t *testing.T) {
 	if *a.LinearXEB != *b.LinearXEB || a.Qubits != 16 {
 		t.Errorf("demo scores %v and %v", *a.LinearXEB, *b.LinearXEB)
 	}
-	if stdout, _ := sampleOK(t, "plan", "--gate-error", "0.005"); !strings.Contains(stdout, "kestrel16") || !strings.Contains(stdout, "92 two-qubit gates") {
+	if stdout, _ := sampleOK(t, "plan", "--gate-error", "0.005"); !strings.Contains(stdout, "tarn16") || !strings.Contains(stdout, "92 two-qubit gates") {
 		t.Errorf("plan: %s", stdout)
 	}
 }

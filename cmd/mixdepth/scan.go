@@ -47,7 +47,7 @@ type scanJSONRow struct {
 	Depth          int      `json:"depth"`
 	GateCount      int      `json:"gate_count"`
 	CollisionMean  float64  `json:"collision_mean"`
-	CollisionStder float64  `json:"collision_stderr"`
+	CollisionStder *float64 `json:"collision_stderr"`
 	CollisionRatio float64  `json:"collision_ratio"`
 	RatioLower     *float64 `json:"ratio_lower"`
 	RatioUpper     *float64 `json:"ratio_upper"`
@@ -60,10 +60,10 @@ type scanJSONRow struct {
 
 // scanFields are the columns of the per-instance scan table.
 var scanFields = []tables.Field{
-	{Name: "depth", Type: tables.Int64, Doc: "circuit depth (layers, or gates for random-edge)"},
-	{Name: "gate_count", Type: tables.Int64, Doc: "two-qubit gates applied up to this depth"},
+	{Name: "depth", Type: tables.Int64, Unit: "layers (gates for random-edge)", Doc: "circuit depth (layers, or gates for random-edge)"},
+	{Name: "gate_count", Type: tables.Int64, Unit: "gates", Doc: "two-qubit gates applied up to this depth"},
 	{Name: "instance", Type: tables.Int64, Doc: "instance id; its random stream depends only on (seed, instance)"},
-	{Name: "collision", Type: tables.Float64, Doc: "collision probability Z = Σ p(x)²"},
+	{Name: "collision", Type: tables.Float64, Unit: "probability", Doc: "collision probability Z = Σ p(x)²"},
 	{Name: "collision_ratio", Type: tables.Float64, Doc: "Z / Z_H with Z_H = 2/(D+1)"},
 	{Name: "pt_ks", Type: tables.Float64, Doc: "Kolmogorov–Smirnov distance of the output probabilities to Beta(1, D−1)"},
 	{Name: "xeb_ideal", Type: tables.Float64, Doc: "linear XEB of an ideal sampler, D·Z − 1"},
@@ -105,8 +105,11 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if err != nil {
 		return err
 	}
-	if *instances <= 0 {
-		return badInput("--instances %d: must be at least 1 (2 or more for error bars)", *instances)
+	if *instances <= 0 || *instances > maxInstances {
+		return badInput("--instances %d: must be between 1 (2 or more for error bars) and %d", *instances, maxInstances)
+	}
+	if *instances*len(depths) > 100_000_000 {
+		return badInput("--instances %d × %d depths: more than 10^8 per-instance records to hold; use fewer, or shards (--shard)", *instances, len(depths))
 	}
 	if err := checkUnit("eps", *eps); err != nil {
 		return err
@@ -149,12 +152,15 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	}
 	var exact *exactResult
 	if *withExact {
-		if exact, err = computeExact(ctx, s, depths, *workers, false); err != nil {
+		if exact, err = computeExact(ctx, s, depths, *workers, false, nil); err != nil {
 			return err
 		}
 	}
 
 	runIDs := shard.instances(*instances)
+	if len(runIDs) == 0 {
+		return badInput("--shard %s selects no instance of %d; use fewer shards than instances", shard, *instances)
+	}
 	ids := runIDs
 	var previous []scan.Record
 	if *resume != "" {
@@ -224,7 +230,7 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		}
 		return writeJSON(stdout, doc)
 	}
-	printScan(stdout, s, &cf, len(doneAll), *eps, *conf, sum)
+	printScan(stdout, s, &cf, instancesNote(len(doneAll), shard, *instances), *eps, *conf, sum)
 	if exact != nil {
 		printExactCheck(stdout, sum, exact)
 	}
@@ -258,7 +264,7 @@ func scanDocument(s *setup, seed uint64, instances int, eps, conf float64, sum *
 	}
 	for _, r := range sum.Rows {
 		doc.Rows = append(doc.Rows, scanJSONRow{
-			Depth: r.Depth, GateCount: r.GateCount, CollisionMean: r.Collision.Mean, CollisionStder: r.Collision.StdErr,
+			Depth: r.Depth, GateCount: r.GateCount, CollisionMean: r.Collision.Mean, CollisionStder: finiteOrNull(r.Collision.StdErr),
 			CollisionRatio: r.Ratio, RatioLower: finiteOrNull(r.Lower), RatioUpper: finiteOrNull(r.Upper), PTKSMean: r.KSMean,
 		})
 	}
@@ -277,7 +283,7 @@ func checkWritable(path string, fields []tables.Field, meta tables.Meta) error {
 }
 
 // scanExactField is the extra column of scan --exact.
-var scanExactField = tables.Field{Name: "collision_exact", Type: tables.Float64, Doc: "exact ensemble average E[Z] at this depth (scan --exact)"}
+var scanExactField = tables.Field{Name: "collision_exact", Type: tables.Float64, Unit: "probability", Doc: "exact ensemble average E[Z] at this depth (scan --exact)"}
 
 // writeScanTable writes the per-instance records atomically, with the
 // exact E[Z] of each depth as an extra column when exact is not nil.
@@ -418,9 +424,9 @@ func recordInstances(records []scan.Record) []int {
 }
 
 // printScan writes the human report of a scan.
-func printScan(w io.Writer, s *setup, cf *circuitFlags, instances int, eps, conf float64, sum *scan.Summary) {
+func printScan(w io.Writer, s *setup, cf *circuitFlags, instances string, eps, conf float64, sum *scan.Summary) {
 	fmt.Fprintln(w, s.describe())
-	fmt.Fprintf(w, "seed %d · %d instances · eps %g · confidence %g · Haar collision 2/(D+1) = %.6g\n\n",
+	fmt.Fprintf(w, "seed %d · %s · eps %g · confidence %g · Haar collision 2/(D+1) = %.6g\n\n",
 		cf.seed, instances, eps, conf, sum.HaarCollision)
 	pct := strconv.FormatFloat(100*conf, 'g', 4, 64) + "% interval"
 	fmt.Fprintf(w, "%6s %7s %10s  %-21s %9s  %s\n", "depth", "gates", "R=Z/Z_H", pct, "PT dist", "verdict")
@@ -435,17 +441,30 @@ func printScan(w io.Writer, s *setup, cf *circuitFlags, instances int, eps, conf
 	fmt.Fprintln(w, scanVerdict(sum, eps, conf))
 }
 
+// instancesNote says how many instances a summary holds, and of which
+// shard of how large a run.
+func instancesNote(n int, shard shardSpec, total int) string {
+	note := strconv.Itoa(n) + " instance"
+	if n != 1 {
+		note += "s"
+	}
+	if !shard.whole() {
+		note += fmt.Sprintf(" (shard %s of a %d-instance run)", shard, total)
+	}
+	return note
+}
+
 // scanVerdict is the one-sentence recommendation.
 func scanVerdict(sum *scan.Summary, eps, conf float64) string {
 	level := strconv.FormatFloat(100*conf, 'g', 4, 64) + "%"
 	if !sum.Found {
 		last := sum.Rows[len(sum.Rows)-1]
-		return fmt.Sprintf("No requested depth anti-concentrates: at depth %d the upper %s bound of R is %.4f > 1+eps = %.4f; scan deeper or run more instances.",
+		return fmt.Sprintf("No requested depth anti-concentrates: at depth %d the upper end of the %s interval of R is %.4f > 1+eps = %.4f; scan deeper or run more instances.",
 			last.Depth, level, last.Upper, 1+eps)
 	}
 	for _, r := range sum.Rows {
 		if r.Depth == sum.Depth {
-			return fmt.Sprintf("Recommended depth: %d (%d gates): R ≤ %.4f at %s confidence, a margin of %.4f under 1+eps = %.4f.",
+			return fmt.Sprintf("Recommended depth: %d (%d gates): R ≤ %.4f (upper end of the %s interval), a margin of %.4f under 1+eps = %.4f.",
 				r.Depth, r.GateCount, r.Upper, level, 1+eps-r.Upper, 1+eps)
 		}
 	}

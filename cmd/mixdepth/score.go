@@ -69,7 +69,7 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		"mixdepth score samples.parquet --circuits circuits.json", stdout)
 	var cf circuitFlags
 	cf.add(fs)
-	depth := fs.Int("depth", defaultSampleDepth, "circuit depth when rebuilding the circuits (default: the table's depth)")
+	depth := fs.Int("depth", defaultSampleDepth, "circuit depth when rebuilding the circuits; a table that records its depth overrides this fallback")
 	circuitsIn := fs.String("circuits", "", "read the circuits from FILE.json, as written by 'mixdepth sample --circuits'")
 	workers := fs.Int("workers", defaultWorkers(), "worker goroutines for states of 16 qubits or more")
 	asJSON := fs.Bool("json", false, "print one JSON document instead of the text report")
@@ -236,7 +236,9 @@ func describeCircuitIDs(lookup func(int) *sampling.Circuit, recs []sampling.Reco
 		hi = max(hi, r.Instance)
 	}
 	var ids []int
-	for id := 0; id <= hi; id++ {
+	// A circuit file holds at most maxInstances circuits; ids beyond cannot
+	// be in it, so the scan stops there whatever id a table row claims.
+	for id := 0; id <= min(hi, maxInstances); id++ {
 		if lookup(id) != nil {
 			ids = append(ids, id)
 		}
@@ -370,6 +372,9 @@ func scoreSetup(changed func(string) bool, cf *circuitFlags, depth int, meta tab
 	}
 	if d < 1 {
 		return nil, 0, 0, 0, badInput("--depth %d: must be at least 1", d)
+	}
+	if err := checkCircuitDepth(s, d); err != nil {
+		return nil, 0, 0, 0, err
 	}
 	return s, seed, d, total, nil
 }

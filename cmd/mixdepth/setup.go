@@ -113,6 +113,32 @@ func (s *setup) describe() string {
 	return fmt.Sprintf("%s: %d qubits, %d couplers; %s; %s gates", s.graph.Name, s.graph.Qubits, len(s.graph.Edges), sched, s.ensemble.Name())
 }
 
+// maxDepth and maxDepthCount bound --depths: deeper circuits than a
+// million steps, or more than ten thousand read-out depths, are typos.
+const (
+	maxDepth      = 1_000_000
+	maxDepthCount = 10_000
+)
+
+// maxInstances bounds --instances (ids and per-instance records are held in
+// memory).
+const maxInstances = 10_000_000
+
+// maxCircuitGates bounds the two-qubit gates of one stored circuit (sample,
+// score, pt-plot keep whole circuits: 256 bytes per gate).
+const maxCircuitGates = 1_000_000
+
+// checkCircuitDepth refuses a depth whose circuits are too long to store.
+func checkCircuitDepth(s *setup, depth int) error {
+	if depth > maxDepth {
+		return badInput("--depth %d: beyond the largest depth, %d", depth, maxDepth)
+	}
+	if g := s.schedule.GateCount(depth); g > maxCircuitGates {
+		return badInput("--depth %d: %d two-qubit gates per circuit, more than the %d this command keeps in memory; use a smaller depth", depth, g, maxCircuitGates)
+	}
+	return nil
+}
+
 // parseDepths reads a depth list such as "1:20", "2,4,8" or "1:40:2,50".
 func parseDepths(spec string) ([]int, error) {
 	var out []int
@@ -139,6 +165,12 @@ func parseDepths(spec string) ([]int, error) {
 		}
 		if step <= 0 || to < from {
 			return nil, badInput("--depths %q: a range FROM:TO:STEP needs FROM ≤ TO and STEP ≥ 1", spec)
+		}
+		if to > maxDepth {
+			return nil, badInput("--depths %q: depth %d is beyond the largest depth, %d; ask for fewer layers", spec, to, maxDepth)
+		}
+		if len(out)+(to-from)/step >= maxDepthCount {
+			return nil, badInput("--depths %q: more than %d depths; use a step (FROM:TO:STEP)", spec, maxDepthCount)
 		}
 		for d := from; d <= to; d += step {
 			if d <= 0 {

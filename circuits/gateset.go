@@ -83,14 +83,14 @@ func NewGateSet(spec string, g [16]complex128, single [][4]complex128) (*GateSet
 	bad := func(format string, args ...any) error {
 		return &ParseError{File: spec, Err: ErrGateSet, Detail: fmt.Sprintf(format, args...)}
 	}
-	if dev := unitaryDeviation(g[:], 4); !(dev <= UnitaryTolerance) {
+	if dev := UnitaryDeviation(g[:], 4); !(dev <= UnitaryTolerance) {
 		return nil, bad("entangler is not unitary: ‖G†G − I‖ = %.3g (max entry; tolerance %g)", dev, UnitaryTolerance)
 	}
 	if single != nil && len(single) == 0 {
 		return nil, bad("the single-qubit set is empty: list at least one 2×2 unitary or write \"haar\"")
 	}
 	for k := range single {
-		if dev := unitaryDeviation(single[k][:], 2); !(dev <= UnitaryTolerance) {
+		if dev := UnitaryDeviation(single[k][:], 2); !(dev <= UnitaryTolerance) {
 			return nil, bad("single_qubit matrix %d is not unitary: ‖u†u − I‖ = %.3g (max entry; tolerance %g)", k+1, dev, UnitaryTolerance)
 		}
 	}
@@ -324,7 +324,7 @@ func isNull(raw json.RawMessage) bool {
 
 // unitaryDeviation returns max |(M†M − I)_ij| for the d×d row-major m, or
 // +Inf when an entry is not finite.
-func unitaryDeviation(m []complex128, d int) float64 {
+func UnitaryDeviation(m []complex128, d int) float64 {
 	var dev float64
 	for i := 0; i < d; i++ {
 		for j := 0; j < d; j++ {

@@ -10,6 +10,8 @@ import (
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
+
+	"mixdepth/tables"
 )
 
 // The size of the data part of every plot, about 945×586 pixels in PNG at
@@ -152,30 +154,12 @@ func (f *figure) save(path string) error {
 	if err != nil {
 		return fmt.Errorf("report: drawing %q: %w", path, err)
 	}
-	dir, base := filepath.Dir(path), filepath.Base(path)
-	file, err := os.CreateTemp(dir, "."+base+".*.tmp")
+	err = tables.WriteFileAtomic(path, func(w io.Writer) error {
+		_, err := wt.WriteTo(w)
+		return err
+	})
 	if err != nil {
 		return fmt.Errorf("report: cannot write %q: %w", path, pathCause(err))
-	}
-	tmp := file.Name()
-	_, err = wt.WriteTo(file)
-	if err == nil {
-		err = file.Sync()
-	}
-	if e := file.Close(); err == nil {
-		err = e
-	}
-	if err == nil {
-		// CreateTemp makes the file private (0600); a plot is an ordinary
-		// document.
-		err = os.Chmod(tmp, 0o644)
-	}
-	if err == nil {
-		err = os.Rename(tmp, path)
-	}
-	if err != nil {
-		os.Remove(tmp)
-		return fmt.Errorf("report: writing %q: %w", path, err)
 	}
 	return nil
 }

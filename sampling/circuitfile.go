@@ -6,8 +6,6 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"math"
-	"math/cmplx"
 	"strconv"
 	"strings"
 
@@ -354,33 +352,10 @@ func readMatrix(rows [][][]float64, d int, dst []complex128) error {
 			dst[i*d+j] = complex(p[0], p[1])
 		}
 	}
-	if dev := unitaryDeviation(dst, d); !(dev <= circuits.UnitaryTolerance) {
+	if dev := circuits.UnitaryDeviation(dst, d); !(dev <= circuits.UnitaryTolerance) {
 		return fmt.Errorf("is not unitary: max |(M†M − I)_ij| = %.3g > %g", dev, circuits.UnitaryTolerance)
 	}
 	return nil
-}
-
-// unitaryDeviation returns max_ij |(M†M − I)_ij| of the d×d row-major m
-// (+Inf if an entry is not finite).
-func unitaryDeviation(m []complex128, d int) float64 {
-	var dev float64
-	for i := range d {
-		for j := range d {
-			var s complex128
-			for k := range d {
-				s += cmplx.Conj(m[k*d+i]) * m[k*d+j]
-			}
-			if i == j {
-				s--
-			}
-			a := cmplx.Abs(s)
-			if math.IsNaN(a) {
-				return math.Inf(1)
-			}
-			dev = max(dev, a)
-		}
-	}
-	return dev
 }
 
 // Check returns a *CircuitFileError wrapping ErrCircuitMismatch unless f

@@ -213,6 +213,9 @@ func tableInstances(t *tables.Table) ([]int, error) {
 			return nil, fmt.Errorf("rows of instance %d, which instances_done (%q) does not list", id, spec)
 		}
 	}
+	if len(inRows) != len(ids) {
+		return nil, fmt.Errorf("instances_done lists %d instances but the rows hold %d: the table is damaged; rewrite it from its shards", len(ids), len(inRows))
+	}
 	return ids, nil
 }
 

@@ -226,7 +226,7 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		for _, r := range results {
 			f.Circuits = append(f.Circuits, r.Circuit)
 		}
-		if err := writeFileAtomic(*circuitsOut, func(w io.Writer) error { return sampling.WriteCircuits(w, f) }); err != nil {
+		if err := tables.WriteFileAtomic(*circuitsOut, func(w io.Writer) error { return sampling.WriteCircuits(w, f) }); err != nil {
 			return err
 		}
 	}
@@ -381,35 +381,5 @@ func checkJSONWritable(path string) error {
 	}
 	f.Close()
 	os.Remove(f.Name())
-	return nil
-}
-
-// writeFileAtomic writes path through a temporary file in its directory,
-// renamed onto path once write has succeeded, so that a reader never sees a
-// partly written file.
-func writeFileAtomic(path string, write func(io.Writer) error) error {
-	f, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".*.tmp")
-	if err != nil {
-		return fmt.Errorf("writing %s: %w", path, err)
-	}
-	tmp := f.Name()
-	err = write(f)
-	if err == nil {
-		err = f.Sync()
-	}
-	if e := f.Close(); err == nil {
-		err = e
-	}
-	if err == nil {
-		// CreateTemp makes the file 0600; give it the mode of a new file.
-		err = os.Chmod(tmp, 0o644)
-	}
-	if err == nil {
-		err = os.Rename(tmp, path)
-	}
-	if err != nil {
-		os.Remove(tmp)
-		return fmt.Errorf("writing %s: %w", path, err)
-	}
 	return nil
 }

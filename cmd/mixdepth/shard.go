@@ -58,17 +58,20 @@ func formatIDs(ids []int) string {
 	return b.String()
 }
 
-// parseIDs reads the output of formatIDs.
+// parseIDs reads the output of formatIDs: ascending, non-overlapping ids
+// and ranges, at most maxInstances ids in all (the list comes from table
+// metadata, so it is checked before it is expanded).
 func parseIDs(s string) ([]int, error) {
 	var ids []int
 	if s == "" {
 		return nil, nil
 	}
+	next := 0 // the smallest id the next item may start at
 	for _, part := range strings.Split(s, ",") {
 		lo, hi, isRange := strings.Cut(part, "-")
 		a, err := strconv.Atoi(lo)
-		if err != nil {
-			return nil, badInput("instance list %q: %q is not a whole number", s, lo)
+		if err != nil || a < 0 {
+			return nil, badInput("instance list %q: %q is not an instance id", s, lo)
 		}
 		b := a
 		if isRange {
@@ -76,9 +79,16 @@ func parseIDs(s string) ([]int, error) {
 				return nil, badInput("instance list %q: bad range %q", s, part)
 			}
 		}
+		if a < next {
+			return nil, badInput("instance list %q: %q is out of order or overlaps the item before it", s, part)
+		}
+		if len(ids)+(b-a) >= maxInstances {
+			return nil, badInput("instance list %q: more than %d instances", s, maxInstances)
+		}
 		for i := a; i <= b; i++ {
 			ids = append(ids, i)
 		}
+		next = b + 1
 	}
 	return ids, nil
 }

@@ -70,6 +70,7 @@ func TestBadInput(t *testing.T) {
 		{"unwritable out", []string{"scan", "--graph", "line:4", "--out", filepath.Join(dir, "no", "such", "dir", "t.arrow")}, "--out"},
 		{"bad out format", []string{"scan", "--graph", "line:4", "--out", filepath.Join(dir, "t.csv")}, ".arrow or .parquet"},
 		{"positional", []string{"scan", "extra"}, "positional"},
+		{"precision", []string{"scan", "--graph", "line:4", "--precision", "half"}, "--precision"},
 		{"huge depth", []string{"scan", "--graph", "line:4", "--depths", "1:1000000000"}, "largest depth"},
 		{"huge instances", []string{"scan", "--graph", "line:4", "--instances", "100000000000"}, "--instances"},
 		{"empty shard", []string{"scan", "--graph", "line:4", "--instances", "3", "--shard", "5/9"}, "selects no instance"},

@@ -13,6 +13,7 @@ import (
 	"bufio"
 	"context"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -117,6 +118,9 @@ func main() {
 	precision := fs.String("precision", "double", "precision of the --large scan: double or single")
 	profile := fs.String("cpuprofile", "", "write a CPU profile (go tool pprof) of the whole run to FILE")
 	if err := fs.Parse(os.Args[1:]); err != nil {
+		if errors.Is(err, pflag.ErrHelp) {
+			return
+		}
 		os.Exit(2)
 	}
 	if *profile != "" {
@@ -146,30 +150,24 @@ func main() {
 	log("triad bandwidth on %d goroutines…", *workers)
 	r.Load = loadAverage()
 	r.Bandwidth = triad(*workers, 10)
-	// Each row's fraction refers to a triad measured right before it, so
-	// that both see the same load from other users of the machine;
-	// bandwidth_gbs is the best triad of the run.
-	local := func() float64 {
-		bw := triad(*workers, 3)
-		r.Bandwidth = max(r.Bandwidth, bw)
-		return bw
-	}
+	// Each row alternates rounds of the triad and of its own measurement and
+	// keeps the best of each, so that both see the same load from other
+	// users of the machine; bandwidth_gbs is the best triad of the run.
+	note := func(bw float64) { r.Bandwidth = max(r.Bandwidth, bw) }
 	for n := *from; n <= *to; n++ {
 		log("gates at n = %d…", n)
-		bw := local()
 		row := gates(n, *workers)
-		row.Triad, row.Fraction = bw, row.Effective/bw
+		note(row.Triad)
 		r.Gates = append(r.Gates, row)
-		r.Fused = append(r.Fused, fused(n, *workers, row.MsPerGate))
+		r.Fused = append(r.Fused, fused(n, *workers))
 	}
 	for _, n := range []int{24, 26} {
 		if n < *from || n > *to {
 			continue
 		}
 		log("single precision at n = %d…", n)
-		bw := local()
 		row := single(n, *workers)
-		row.Triad, row.Fraction = bw, row.Effective/bw
+		note(row.Triad)
 		r.Single = append(r.Single, row)
 	}
 	for _, f := range strings.Split(*momentN, ",") {
@@ -178,9 +176,8 @@ func main() {
 			continue
 		}
 		log("moment engine at n = %d…", n)
-		bw := local()
 		row := momentEngine(n, *workers)
-		row.Triad, row.Fraction = bw, row.Effective/bw
+		note(row.Triad)
 		r.Moments = append(r.Moments, row)
 	}
 	var rows, cols int
@@ -306,6 +303,42 @@ func timeGate(reps int, f func()) float64 {
 	return ts[reps/2]
 }
 
+// interleaved runs rounds of one triad and of each case's timing (the median
+// of reps runs), and returns the best triad and each case's best time: the
+// figures of the calmest moments, seen alike by both.
+func interleaved(workers, rounds, reps int, cases map[string]func()) (bw float64, best map[string]float64) {
+	best = map[string]float64{}
+	for range rounds {
+		bw = max(bw, triad(workers, 1))
+		for name, f := range cases {
+			f() // warm up
+			t := timeGate(reps, f)
+			if old, ok := best[name]; !ok || t < old {
+				best[name] = t
+			}
+		}
+	}
+	return bw, best
+}
+
+// meanOf returns the mean of the values of m.
+func meanOf(m map[string]float64) float64 {
+	var sum float64
+	for _, v := range m {
+		sum += v
+	}
+	return sum / float64(len(m))
+}
+
+// millis returns m with every value in milliseconds.
+func millis(m map[string]float64) map[string]float64 {
+	out := map[string]float64{}
+	for k, v := range m {
+		out[k] = v * 1e3
+	}
+	return out
+}
+
 // gatePairs are the position classes of the gate benchmark: both qubits low
 // (inside a cache line), one low and one high, both high.
 func gatePairs(n int) map[string][2]int {
@@ -329,19 +362,14 @@ func gates(n, workers int) gateRow {
 	randomFill(s.Amp, workers)
 	var m [16]complex128
 	circuits.HaarUnitary(rand.New(rand.NewPCG(2, 3)), 4, m[:])
-	reps := max(5, min(200, (1<<28)>>n))
-	row := gateRow{Qubits: n, Kinds: map[string]float64{}}
-	var sum float64
+	cases := map[string]func(){}
 	for kind, p := range gatePairs(n) {
-		s.Apply2(p[0], p[1], &m, workers) // warm up
-		t := timeGate(reps, func() { s.Apply2(p[0], p[1], &m, workers) })
-		row.Kinds[kind] = t * 1e3
-		sum += t
+		cases[kind] = func() { s.Apply2(p[0], p[1], &m, workers) }
 	}
-	t := sum / float64(len(row.Kinds))
-	row.MsPerGate = t * 1e3
-	row.Effective = 32 * math.Ldexp(1, n) / t / 1e9
-	return row
+	bw, best := interleaved(workers, 3, max(3, min(100, (1<<27)>>n)), cases)
+	t := meanOf(best)
+	eff := 32 * math.Ldexp(1, n) / t / 1e9
+	return gateRow{Qubits: n, MsPerGate: t * 1e3, Effective: eff, Triad: bw, Fraction: eff / bw, Kinds: millis(best)}
 }
 
 // single measures State64.Apply2 (8 bytes per amplitude read and written).
@@ -356,23 +384,20 @@ func single(n, workers int) singleRow {
 	}
 	var m [16]complex128
 	circuits.HaarUnitary(rand.New(rand.NewPCG(2, 3)), 4, m[:])
-	row := singleRow{Qubits: n, Kinds: map[string]float64{}}
-	var sum float64
-	pairs := gatePairs(n)
-	for kind, p := range pairs {
-		s.Apply2(p[0], p[1], &m, workers) // warm up
-		t := timeGate(5, func() { s.Apply2(p[0], p[1], &m, workers) })
-		row.Kinds[kind] = t * 1e3
-		sum += t
+	cases := map[string]func(){}
+	for kind, p := range gatePairs(n) {
+		cases[kind] = func() { s.Apply2(p[0], p[1], &m, workers) }
 	}
-	t := sum / float64(len(pairs))
-	row.MsPerGate, row.Effective = t*1e3, 16*math.Ldexp(1, n)/t/1e9
-	return row
+	bw, best := interleaved(workers, 3, 3, cases)
+	t := meanOf(best)
+	eff := 16 * math.Ldexp(1, n) / t / 1e9
+	return singleRow{Qubits: n, MsPerGate: t * 1e3, Effective: eff, Triad: bw, Fraction: eff / bw, Kinds: millis(best)}
 }
 
 // fused measures a 20-layer brickwork on a line of n qubits run as one fused
-// sequence (sim.State.Run), per gate, against the one-by-one time.
-func fused(n, workers int, oneByOne float64) fusedRow {
+// sequence (sim.State.Run) and gate by gate (Apply2), per gate, in
+// alternating rounds.
+func fused(n, workers int) fusedRow {
 	s, err := sim.NewState(n, 0)
 	if err != nil {
 		fmt.Fprintln(os.Stderr, err)
@@ -388,9 +413,16 @@ func fused(n, workers int, oneByOne float64) fusedRow {
 			ops = append(ops, op)
 		}
 	}
-	t := timeGate(3, func() { _ = s.Run(context.Background(), ops, workers) })
-	ms := t * 1e3 / float64(len(ops))
-	return fusedRow{Qubits: n, Gates: len(ops), MsPerGate: ms, Speedup: oneByOne / ms}
+	_, best := interleaved(workers, 2, 1, map[string]func(){
+		"fused": func() { _ = s.Run(context.Background(), ops, workers) },
+		"one-by-one": func() {
+			for i := range ops {
+				s.Apply2(ops[i].A, ops[i].B, &ops[i].M, workers)
+			}
+		},
+	})
+	ms := best["fused"] * 1e3 / float64(len(ops))
+	return fusedRow{Qubits: n, Gates: len(ops), MsPerGate: ms, Speedup: best["one-by-one"] / best["fused"]}
 }
 
 // momentEngine times pair updates of the exact engine: 16·2^n bytes each.
@@ -404,17 +436,14 @@ func momentEngine(n, workers int) momentRow {
 		e.Apply(q, (q+1)%n, &moments.HaarTransfer)
 	}
 	// The pairs of BenchmarkMomentEngine (sim/moments).
-	pairs := [][2]int{{0, 1}, {n / 2, n/2 + 1}, {n - 2, n - 1}, {1, n - 1}, {3, n / 2}}
-	row := momentRow{Qubits: n, Pairs: map[string]float64{}}
-	var sum float64
-	for _, p := range pairs {
-		t := timeGate(5, func() { e.Apply(p[0], p[1], &moments.HaarTransfer) })
-		row.Pairs[fmt.Sprintf("%d-%d", p[0], p[1])] = t * 1e3
-		sum += t
+	cases := map[string]func(){}
+	for _, p := range [][2]int{{0, 1}, {n / 2, n/2 + 1}, {n - 2, n - 1}, {1, n - 1}, {3, n / 2}} {
+		cases[fmt.Sprintf("%d-%d", p[0], p[1])] = func() { e.Apply(p[0], p[1], &moments.HaarTransfer) }
 	}
-	t := sum / float64(len(pairs))
-	row.MsPerUpdate, row.Effective = t*1e3, 16*math.Ldexp(1, n)/t/1e9
-	return row
+	bw, best := interleaved(workers, 3, 3, cases)
+	t := meanOf(best)
+	eff := 16 * math.Ldexp(1, n) / t / 1e9
+	return momentRow{Qubits: n, MsPerUpdate: t * 1e3, Effective: eff, Triad: bw, Fraction: eff / bw, Pairs: millis(best)}
 }
 
 // scanBench runs the end-to-end scan in process, as `mixdepth scan` would.
@@ -537,7 +566,7 @@ func printTable(w io.Writer, r *report) {
 	fmt.Fprintf(w, "machine: %s, %d cores, %s\n", r.Machine, r.Cores, r.GoVersion)
 	fmt.Fprintf(w, "load average at start: %s\n", r.Load)
 	fmt.Fprintf(w, "triad bandwidth: %.1f GB/s (STREAM convention, 24 bytes per element; best of the run)\n", r.Bandwidth)
-	fmt.Fprintf(w, "fraction = effective GB/s / the triad measured just before the row (its own column)\n\n")
+	fmt.Fprintf(w, "fraction = effective GB/s / the row's own triad (best of rounds alternating with the row's timings)\n\n")
 	fmt.Fprintf(w, "two-qubit gates, complex128 (32·2^n bytes per gate), mean over position classes\n")
 	fmt.Fprintf(w, "%4s %10s %8s %8s %9s %14s %8s\n", "n", "ms/gate", "GB/s", "triad", "fraction", "fused ms/gate", "speedup")
 	for i, g := range r.Gates {

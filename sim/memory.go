@@ -56,3 +56,14 @@ func CheckMemory(need float64, what string) error {
 func StateBytes(n int) float64 {
 	return math.Ldexp(16, n)
 }
+
+// FittingQubits returns the largest n whose 2^n-element vector of
+// bytesPerElement bytes fits in the memory available now (0 if none).
+func FittingQubits(bytesPerElement float64) int {
+	avail := float64(AvailableMemory())
+	n := 0
+	for math.Ldexp(bytesPerElement, n+1) <= avail && n < 62 {
+		n++
+	}
+	return n
+}

@@ -28,7 +28,7 @@ func NewState(n int, extra float64) (*State, error) {
 	}
 	need := StateBytes(n) + extra
 	if n > MaxQubits {
-		return nil, fmt.Errorf("sim: a %d-qubit state vector needs %s: %w; use at most %d qubits", n, GiB(need), ErrTooLarge, MaxQubits)
+		return nil, fmt.Errorf("sim: a %d-qubit state vector needs %s: %w; this machine holds at most %d qubits", n, GiB(need), ErrTooLarge, FittingQubits(16))
 	}
 	if err := CheckMemory(need, fmt.Sprintf("a %d-qubit state vector", n)); err != nil {
 		return nil, err

@@ -144,7 +144,7 @@ func Read(path string) (*Table, error) {
 		t, err = readParquet(path)
 	}
 	if err != nil {
-		return nil, fmt.Errorf("tables: read %q: %w", path, err)
+		return nil, fmt.Errorf("tables: read %q: %w (not a complete Arrow IPC or Parquet table: a damaged or unfinished file, or another format with this name)", path, err)
 	}
 	return t, nil
 }

@@ -222,7 +222,7 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	meta.Set("depths", joinInts(depths))
 	meta.Set("eps", strconv.FormatFloat(*eps, 'g', -1, 64))
 	if *out != "" {
-		if err := checkWritable(*out, exactFields, meta); err != nil {
+		if err := checkWritable(*out, exactFields, meta, "--out"); err != nil {
 			return err
 		}
 	}

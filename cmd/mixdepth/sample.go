@@ -172,7 +172,7 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	meta.Set("trajectories", strconv.Itoa(usedTrajectories))
 	meta.Set("shard", shard.String())
 	if *out != "" {
-		if err := checkWritable(*out, sampleFields, meta); err != nil {
+		if err := checkWritable(*out, sampleFields, meta, "--out"); err != nil {
 			return err
 		}
 	}

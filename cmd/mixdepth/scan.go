@@ -146,7 +146,11 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		fields = append(append([]tables.Field(nil), scanFields...), scanExactField)
 	}
 	if *out != "" {
-		if err := checkWritable(*out, fields, meta); err != nil {
+		flag := "--out"
+		if *resume == *out {
+			flag = "--resume"
+		}
+		if err := checkWritable(*out, fields, meta, flag); err != nil {
 			return err
 		}
 	}
@@ -215,6 +219,12 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		return errInterrupted
 	}
 	sum := scan.Summarize(s.graph.Qubits, records, *conf, *eps)
+	for _, r := range sum.Rows {
+		if r.Collision.N > 1 && r.Collision.StdDev == 0 {
+			fmt.Fprintf(stderr, "mixdepth: warning: all %d instances have the same collision probability at depth %d: the gate set draws too few distinct circuits to estimate an ensemble average; its interval is not meaningful\n", r.Collision.N, r.Depth)
+			break
+		}
+	}
 	if *plot != "" {
 		var curve []float64
 		if exact != nil {
@@ -276,12 +286,12 @@ func scanDocument(s *setup, seed uint64, instances int, eps, conf float64, sum *
 	return doc
 }
 
-// checkWritable fails early, before any computation, when path cannot take
+// checkWritable fails early (naming flag in the error), before any computation, when path cannot take
 // a table: it creates the table's temporary file and removes it again.
-func checkWritable(path string, fields []tables.Field, meta tables.Meta) error {
+func checkWritable(path string, fields []tables.Field, meta tables.Meta, flag string) error {
 	w, err := tables.Create(path, fields, meta)
 	if err != nil {
-		return usageError{fmt.Errorf("--out: %w", err)}
+		return usageError{fmt.Errorf("%s: %w", flag, err)}
 	}
 	w.Abort()
 	return nil

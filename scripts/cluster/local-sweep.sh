@@ -56,6 +56,13 @@ for arg in "$@"; do
 		;;
 	esac
 done
+case "$out" in
+*.parquet | *.arrow) ;;
+*)
+	echo "local-sweep.sh: -o $out: the merged table must end in .parquet or .arrow" >&2
+	exit 2
+	;;
+esac
 mixdepth=${MIXDEPTH:-mixdepth}
 jobs=${jobs:-$(nproc 2>/dev/null || echo 1)}
 ext=${out##*.}

@@ -39,6 +39,21 @@ if [[ -z "$shards" || -z "$out" ]] || ! [[ "$shards" =~ ^[1-9][0-9]*$ ]]; then
 	echo "submit.sh: -n SHARDS (a whole number ≥ 1) and -o OUT are required" >&2
 	exit 2
 fi
+case "$out" in
+*.parquet | *.arrow) ;;
+*)
+	echo "submit.sh: -o $out: the merged table must end in .parquet or .arrow" >&2
+	exit 2
+	;;
+esac
+for arg in "$@"; do
+	case "$arg" in
+	--shard | --shard=* | --out | --out=*)
+		echo "submit.sh: $arg: the job array sets --shard and --out of each shard itself (and --workers from --cpus-per-task)" >&2
+		exit 2
+		;;
+	esac
+done
 dir=${dir:-$out.shards}
 sbatch=${SBATCH:-sbatch}
 opts=(--parsable --cpus-per-task="$cpus")

@@ -21,6 +21,7 @@ import (
 
 	"mixdepth/circuits"
 	"mixdepth/scan"
+	"mixdepth/sim/moments"
 )
 
 // plotDir is where the tests write their plots: a temporary directory, or
@@ -131,11 +132,19 @@ func TestDepthPlotFiles(t *testing.T) {
 	if !sum.Found {
 		t.Fatalf("line:4 did not anti-concentrate by depth 12: %+v", sum.Rows)
 	}
-	// The exact curve of one Haar gate per pair is not known in closed form
-	// here; a decaying stand-in checks that the curve is drawn.
-	exact := make([]float64, len(sum.Rows))
+	// The exact curve of the same circuits, from the identity/swap engine.
+	g, _ := circuits.ParseGraph("line:4")
+	depths := make([]int, len(sum.Rows))
 	for i, r := range sum.Rows {
-		exact[i] = 1 + 2*math.Pow(0.45, float64(r.Depth))
+		depths[i] = r.Depth
+	}
+	z, err := moments.CollisionCurve(context.Background(), g, &circuits.Layered{Classes: circuits.LayeredClasses(g)}, &moments.HaarTransfer, depths, 1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	exact := make([]float64, len(z))
+	for i := range z {
+		exact[i] = z[i] / sum.HaarCollision
 	}
 	dir := plotDir(t)
 	pngPath := filepath.Join(dir, "depth.png")

@@ -8,7 +8,6 @@ import (
 	"os"
 	"strconv"
 	"strings"
-	"syscall"
 )
 
 // ErrTooLarge is wrapped by errors for allocations the machine cannot hold.
@@ -29,11 +28,7 @@ func AvailableMemory() uint64 {
 			}
 		}
 	}
-	var info syscall.Sysinfo_t
-	if err := syscall.Sysinfo(&info); err == nil {
-		return uint64(info.Totalram) * uint64(info.Unit)
-	}
-	return 0
+	return totalMemory()
 }
 
 // GiB formats a byte count in GiB for messages.

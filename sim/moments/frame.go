@@ -77,7 +77,7 @@ func FramePotential2(ctx context.Context, g *circuits.Graph, s circuits.Schedule
 	if n > FrameMaxQubits {
 		return nil, fmt.Errorf("moments: frame potential of %s (%d qubits): %w", g.Name, n, ErrFrameTooLarge)
 	}
-	if err := pauliCheckDepths(depths); err != nil {
+	if err := collisionCheckDepths(depths); err != nil {
 		return nil, err
 	}
 	what := fmt.Sprintf("the %d-qubit frame-potential transfer matrix", n)

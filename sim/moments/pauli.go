@@ -49,7 +49,7 @@ func PauliCollisionCurve(ctx context.Context, g *circuits.Graph, s circuits.Sche
 		panic("moments: PauliCollisionCurve with a nil graph or schedule")
 	}
 	n := g.Qubits
-	if err := pauliCheckDepths(depths); err != nil {
+	if err := collisionCheckDepths(depths); err != nil {
 		return nil, err
 	}
 	switch s := s.(type) {
@@ -74,31 +74,13 @@ func PauliCollisionCurve(ctx context.Context, g *circuits.Graph, s circuits.Sche
 	}
 }
 
-// pauliCheckDepths returns an error unless depths are ≥ 0 and ascending.
-func pauliCheckDepths(depths []int) error {
-	for i, d := range depths {
-		if d < 0 {
-			return fmt.Errorf("moments: depth %d is negative", d)
-		}
-		if i > 0 && d < depths[i-1] {
-			return fmt.Errorf("moments: depths must be in ascending order, but %d follows %d", d, depths[i-1])
-		}
-	}
-	return nil
-}
-
 // pauliCheckEdges returns an error unless edges is non-empty and every edge
 // joins two distinct qubits of 0..n−1.
 func pauliCheckEdges(n int, edges []circuits.Edge) error {
 	if len(edges) == 0 {
 		return fmt.Errorf("moments: the schedule has no edges")
 	}
-	for _, e := range edges {
-		if e.A == e.B || e.A < 0 || e.B < 0 || e.A >= n || e.B >= n {
-			return fmt.Errorf("moments: gate on (%d, %d) is not a pair of distinct qubits of 0..%d", e.A, e.B, n-1)
-		}
-	}
-	return nil
+	return collisionCheckEdges(n, edges)
 }
 
 // pauliCheckLayered returns an error unless l has at least one class and

@@ -7,7 +7,7 @@ import (
 	"testing"
 
 	"mixdepth/circuits"
-	"mixdepth/sim/moments"
+	"mixdepth/moments"
 )
 
 func config(t *testing.T, spec, schedule, gates string, depths []int, instances int) *Config {

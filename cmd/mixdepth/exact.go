@@ -12,10 +12,10 @@ import (
 	"github.com/schollz/progressbar/v3"
 
 	"mixdepth/circuits"
-	"mixdepth/report"
+	"mixdepth/plots"
 	"mixdepth/scan"
 	"mixdepth/sim"
-	"mixdepth/sim/moments"
+	"mixdepth/moments"
 	"mixdepth/stats"
 	"mixdepth/tables"
 )
@@ -227,7 +227,7 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		}
 	}
 	if *plot != "" {
-		if err := report.CheckPath(*plot); err != nil {
+		if err := plots.CheckPath(*plot); err != nil {
 			return usageError{fmt.Errorf("--plot: %w", err)}
 		}
 	}
@@ -369,8 +369,8 @@ func plotExact(path string, s *setup, r *exactResult, eps float64) error {
 		sum.Rows = append(sum.Rows, scan.Row{Depth: d, GateCount: r.gateCounts[i], Ratio: nan, Lower: nan, Upper: nan})
 	}
 	sum.Depth, sum.Found = exactDepth(r, eps)
-	return report.DepthPlot(path, sum, r.ratio, eps, report.WithDepthUnit(depthUnit(s)),
-		report.WithTitle(s.graph.Name+", "+s.ensemble.Name()+" gates, exact"))
+	return plots.DepthPlot(path, sum, r.ratio, eps, plots.WithDepthUnit(depthUnit(s)),
+		plots.WithTitle(s.graph.Name+", "+s.ensemble.Name()+" gates, exact"))
 }
 
 // exactDepth is the smallest depth whose exact ratio is ≤ 1+eps.

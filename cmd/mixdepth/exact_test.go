@@ -10,7 +10,7 @@ import (
 	"strings"
 	"testing"
 
-	"mixdepth/sim/moments"
+	"mixdepth/moments"
 )
 
 var update = flag.Bool("update", false, "rewrite the golden files in fixtures/exact")
@@ -167,7 +167,7 @@ func TestScanExactAcceptance(t *testing.T) {
 // TestExactGateSets: `exact --gates clifford` equals haar (the Clifford
 // group is a unitary 3-design: Webb 2016; Zhu 2017) — here this checks the
 // routing of the spec only; the evidence that the Clifford average really is
-// the Haar transfer is TestEntanglerTransferCliffordAverage in sim/moments
+// the Haar transfer is TestEntanglerTransferCliffordAverage in moments
 // and the Monte Carlo Clifford scan in scan/scan_test.go — a CZ gate file
 // equals cz+haar1 exactly, and a finite single-qubit set is refused with a
 // hint.

@@ -11,7 +11,7 @@ import (
 	"strings"
 
 	"mixdepth/circuits"
-	"mixdepth/report"
+	"mixdepth/plots"
 	"mixdepth/scan"
 	"mixdepth/sim"
 	"mixdepth/stats"
@@ -48,7 +48,7 @@ func runPTPlot(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	if *out == "" {
 		return badInput("pt-plot: --out PLOT.png or --out PLOT.svg is required")
 	}
-	if err := report.CheckPath(*out); err != nil {
+	if err := plots.CheckPath(*out); err != nil {
 		return usageError{fmt.Errorf("--out: %w", err)}
 	}
 	if *instances < 1 {
@@ -134,7 +134,7 @@ func runPTPlot(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		}
 	}
 	title := fmt.Sprintf("%s, %s schedule, %s gates: depth %d (D = %d)", s.graph.Name, s.schedule.Kind(), s.ensemble.Name(), d, dim)
-	if err := report.PorterThomasPlot(*out, probs, d, title); err != nil {
+	if err := plots.PorterThomasPlot(*out, probs, d, title); err != nil {
 		return err
 	}
 	fmt.Fprintf(stdout, "Porter–Thomas plot of %d instance(s) × %d outcomes at depth %d: mean KS distance to Beta(1, D−1) %.4f; %d instance(s) matched the table's collision probability → %s\n",

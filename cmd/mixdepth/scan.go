@@ -14,7 +14,7 @@ import (
 	"github.com/schollz/progressbar/v3"
 
 	"mixdepth/circuits"
-	"mixdepth/report"
+	"mixdepth/plots"
 	"mixdepth/scan"
 	"mixdepth/sim"
 	"mixdepth/tables"
@@ -155,7 +155,7 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		}
 	}
 	if *plot != "" {
-		if err := report.CheckPath(*plot); err != nil {
+		if err := plots.CheckPath(*plot); err != nil {
 			return usageError{fmt.Errorf("--plot: %w", err)}
 		}
 	}
@@ -230,8 +230,8 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		if exact != nil {
 			curve = exact.ratio
 		}
-		if err := report.DepthPlot(*plot, sum, curve, *eps, report.WithConfidence(*conf), report.WithDepthUnit(depthUnit(s)),
-			report.WithTitle(s.graph.Name+", "+s.ensemble.Name()+" gates")); err != nil {
+		if err := plots.DepthPlot(*plot, sum, curve, *eps, plots.WithConfidence(*conf), plots.WithDepthUnit(depthUnit(s)),
+			plots.WithTitle(s.graph.Name+", "+s.ensemble.Name()+" gates")); err != nil {
 			return err
 		}
 	}

@@ -32,7 +32,7 @@ import (
 	"mixdepth/circuits"
 	"mixdepth/scan"
 	"mixdepth/sim"
-	"mixdepth/sim/moments"
+	"mixdepth/moments"
 )
 
 // report is the --json document. Field names are an interface.
@@ -435,7 +435,7 @@ func momentEngine(n, workers int) momentRow {
 	for q := range n {
 		e.Apply(q, (q+1)%n, &moments.HaarTransfer)
 	}
-	// The pairs of BenchmarkMomentEngine (sim/moments).
+	// The pairs of BenchmarkMomentEngine (moments).
 	cases := map[string]func(){}
 	for _, p := range [][2]int{{0, 1}, {n / 2, n/2 + 1}, {n - 2, n - 1}, {1, n - 1}, {3, n / 2}} {
 		cases[fmt.Sprintf("%d-%d", p[0], p[1])] = func() { e.Apply(p[0], p[1], &moments.HaarTransfer) }

@@ -8,7 +8,7 @@ import (
 
 	"mixdepth/circuits"
 	"mixdepth/sim"
-	"mixdepth/sim/moments"
+	"mixdepth/moments"
 )
 
 func entMaxDiff(a, b *moments.Transfer) float64 {

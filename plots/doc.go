@@ -15,4 +15,4 @@
 // a reader never sees half a picture and an existing file survives a failed
 // write. CheckPath validates a destination before the caller starts a long
 // computation.
-package report
+package plots

@@ -1,4 +1,4 @@
-package report
+package plots
 
 import (
 	"bytes"
@@ -21,7 +21,7 @@ import (
 
 	"mixdepth/circuits"
 	"mixdepth/scan"
-	"mixdepth/sim/moments"
+	"mixdepth/moments"
 )
 
 // plotDir is where the tests write their plots: a temporary directory, or

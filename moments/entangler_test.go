@@ -7,8 +7,8 @@ import (
 	"testing"
 
 	"mixdepth/circuits"
-	"mixdepth/sim"
 	"mixdepth/moments"
+	"mixdepth/sim"
 )
 
 func entMaxDiff(a, b *moments.Transfer) float64 {

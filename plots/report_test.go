@@ -20,8 +20,8 @@ import (
 	"gonum.org/v1/gonum/stat/distuv"
 
 	"mixdepth/circuits"
-	"mixdepth/scan"
 	"mixdepth/moments"
+	"mixdepth/scan"
 )
 
 // plotDir is where the tests write their plots: a temporary directory, or

@@ -12,10 +12,10 @@ import (
 	"github.com/schollz/progressbar/v3"
 
 	"mixdepth/circuits"
+	"mixdepth/moments"
 	"mixdepth/plots"
 	"mixdepth/scan"
 	"mixdepth/sim"
-	"mixdepth/moments"
 	"mixdepth/stats"
 	"mixdepth/tables"
 )

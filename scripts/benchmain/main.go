@@ -30,9 +30,9 @@ import (
 	"github.com/spf13/pflag"
 
 	"mixdepth/circuits"
+	"mixdepth/moments"
 	"mixdepth/scan"
 	"mixdepth/sim"
-	"mixdepth/moments"
 )
 
 // report is the --json document. Field names are an interface.

@@ -9,8 +9,8 @@ import (
 // layered schedule is one layer of disjoint gates; a step of the random-edge
 // schedule is a single gate on a uniformly drawn edge.
 type Schedule interface {
-	// Kind is "layered" or "random-edge".
-	Kind() string
+	// Kind is KindLayered or KindRandomEdge.
+	Kind() ScheduleKind
 	// Step appends the edges of step t (0-based) to dst and returns it. A
 	// random schedule draws from rng; a deterministic one ignores it.
 	Step(t int, rng *rand.Rand, dst []Edge) []Edge
@@ -18,14 +18,24 @@ type Schedule interface {
 	GateCount(depth int) int
 }
 
+// ScheduleKind names a kind of schedule; its values are the spellings of
+// the --schedule flag and of the "schedule" metadata key.
+type ScheduleKind string
+
+// The schedule kinds.
+const (
+	KindLayered    ScheduleKind = "layered"
+	KindRandomEdge ScheduleKind = "random-edge"
+)
+
 // Layered cycles through classes of disjoint edges: depth d applies the
 // classes 0, 1, …, C−1, 0, 1, … for d layers.
 type Layered struct {
 	Classes [][]Edge
 }
 
-// Kind returns "layered".
-func (l *Layered) Kind() string { return "layered" }
+// Kind returns KindLayered.
+func (l *Layered) Kind() ScheduleKind { return KindLayered }
 
 // Step appends class t mod C.
 func (l *Layered) Step(t int, _ *rand.Rand, dst []Edge) []Edge {
@@ -51,8 +61,8 @@ type RandomEdge struct {
 	Edges []Edge
 }
 
-// Kind returns "random-edge".
-func (r *RandomEdge) Kind() string { return "random-edge" }
+// Kind returns KindRandomEdge.
+func (r *RandomEdge) Kind() ScheduleKind { return KindRandomEdge }
 
 // Step appends one uniformly drawn edge.
 func (r *RandomEdge) Step(_ int, rng *rand.Rand, dst []Edge) []Edge {
@@ -63,15 +73,15 @@ func (r *RandomEdge) Step(_ int, rng *rand.Rand, dst []Edge) []Edge {
 func (r *RandomEdge) GateCount(depth int) int { return depth }
 
 // Schedules lists the schedule names accepted by NewSchedule.
-var Schedules = []string{"layered", "random-edge"}
+var Schedules = []ScheduleKind{KindLayered, KindRandomEdge}
 
 // NewSchedule returns the named schedule for g: "layered" uses the class
 // conventions of LayeredClasses, "random-edge" draws edges of g uniformly.
-func NewSchedule(kind string, g *Graph) (Schedule, error) {
+func NewSchedule(kind ScheduleKind, g *Graph) (Schedule, error) {
 	switch kind {
-	case "layered":
+	case KindLayered:
 		return &Layered{Classes: LayeredClasses(g)}, nil
-	case "random-edge":
+	case KindRandomEdge:
 		return &RandomEdge{Edges: g.Edges}, nil
 	}
 	return nil, fmt.Errorf("circuits: unknown schedule %q: use layered or random-edge", kind)

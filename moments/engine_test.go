@@ -27,7 +27,7 @@ func engineGraph(t testing.TB, spec string) *circuits.Graph {
 	return g
 }
 
-func engineSchedule(t testing.TB, kind string, g *circuits.Graph) circuits.Schedule {
+func engineSchedule(t testing.TB, kind circuits.ScheduleKind, g *circuits.Graph) circuits.Schedule {
 	t.Helper()
 	s, err := circuits.NewSchedule(kind, g)
 	if err != nil {
@@ -234,8 +234,9 @@ func TestEngineKernelDefinition(t *testing.T) {
 func TestCollisionMonteCarlo(t *testing.T) {
 	const instances = 3000
 	for _, tc := range []struct {
-		spec, kind string
-		depth      int
+		spec  string
+		kind  circuits.ScheduleKind
+		depth int
 	}{
 		{"line:4", "layered", 2},
 		{"line:4", "random-edge", 3},
@@ -289,8 +290,9 @@ func TestCollisionMonteCarlo(t *testing.T) {
 // (below 1e-13 over these depths) far inside it.
 func TestCollisionDeep(t *testing.T) {
 	for _, tc := range []struct {
-		spec, kind string
-		depth      int
+		spec  string
+		kind  circuits.ScheduleKind
+		depth int
 	}{
 		{"line:6", "layered", 300},
 		{"ring:5", "layered", 300},

@@ -51,7 +51,7 @@ func TestFrameUntouchedByHand(t *testing.T) {
 	g := denseGraph(t, "line:3")
 	ss := pauliTestSchedules(t, g)
 	for _, c := range []struct {
-		kind string
+		kind circuits.ScheduleKind
 		want float64
 	}{{"layered", 32}, {"random-edge", 429.0 / 25}} {
 		got, err := FramePotential2(context.Background(), g, ss[c.kind], []int{1})

@@ -183,7 +183,7 @@ func BenchmarkFramePotential2(b *testing.B) {
 	depths := []int{10, 20, 40}
 	for _, kind := range circuits.Schedules {
 		s, _ := circuits.NewSchedule(kind, g)
-		b.Run(kind, func(b *testing.B) {
+		b.Run(string(kind), func(b *testing.B) {
 			for b.Loop() {
 				if _, err := FramePotential2(context.Background(), g, s, depths); err != nil {
 					b.Fatal(err)

@@ -11,9 +11,9 @@ import (
 	"mixdepth/circuits"
 )
 
-func pauliTestSchedules(t *testing.T, g *circuits.Graph) map[string]circuits.Schedule {
+func pauliTestSchedules(t *testing.T, g *circuits.Graph) map[circuits.ScheduleKind]circuits.Schedule {
 	t.Helper()
-	out := map[string]circuits.Schedule{}
+	out := map[circuits.ScheduleKind]circuits.Schedule{}
 	for _, kind := range circuits.Schedules {
 		s, err := circuits.NewSchedule(kind, g)
 		if err != nil {
@@ -61,7 +61,7 @@ func TestPauliUntouchedByHand(t *testing.T) {
 	g := denseGraph(t, "line:3")
 	ss := pauliTestSchedules(t, g)
 	cases := []struct {
-		kind  string
+		kind  circuits.ScheduleKind
 		depth int
 		want  float64
 	}{
@@ -96,7 +96,7 @@ func TestPauliVsDense(t *testing.T) {
 	for _, spec := range []string{"line:2", "line:3", "ring:3", "star:3"} {
 		g := denseGraph(t, spec)
 		for kind, s := range pauliTestSchedules(t, g) {
-			runs = append(runs, run{spec + " " + kind, g, s})
+			runs = append(runs, run{spec + " " + string(kind), g, s})
 		}
 	}
 	tri := denseGraph(t, "ring:3")

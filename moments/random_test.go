@@ -260,4 +260,4 @@ func TestCollisionCurveErrors(t *testing.T) {
 
 type otherSchedule struct{ *circuits.RandomEdge }
 
-func (otherSchedule) Kind() string { return "other" }
+func (otherSchedule) Kind() circuits.ScheduleKind { return "other" }

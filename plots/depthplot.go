@@ -54,7 +54,7 @@ func WithConfidence(level float64) Option {
 // The file is written atomically (see the package comment). DepthPlot
 // panics if sum has no rows, if exact is not nil and its length differs from
 // the number of rows, or if eps is not positive.
-func DepthPlot(path string, sum *scan.Summary, exact []float64, eps float64, opts ...Option) error {
+func DepthPlot(path string, sum *scan.Curve, exact []float64, eps float64, opts ...Option) error {
 	if sum == nil || len(sum.Rows) == 0 {
 		panic("report: DepthPlot needs a summary with at least one row")
 	}
@@ -97,7 +97,7 @@ type depthSeries struct {
 }
 
 // newDepthSeries computes the points of a DepthPlot.
-func newDepthSeries(sum *scan.Summary, exact []float64, eps float64) *depthSeries {
+func newDepthSeries(sum *scan.Curve, exact []float64, eps float64) *depthSeries {
 	var values []float64
 	for i, r := range sum.Rows {
 		values = append(values, r.Ratio-1, r.Lower-1, r.Upper-1)
@@ -169,7 +169,7 @@ func logFloor(values []float64, eps float64) float64 {
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
 
 // depthPlot lays out the plot of s.
-func depthPlot(s *depthSeries, sum *scan.Summary, eps float64, o depthOptions) (*figure, error) {
+func depthPlot(s *depthSeries, sum *scan.Curve, eps float64, o depthOptions) (*figure, error) {
 	fig := newFigure()
 	p := fig.plot
 	p.Title.Text = o.title

@@ -35,7 +35,7 @@ func plotDir(t *testing.T) string {
 }
 
 // lineScan runs a small real scan (line:4, Haar U(4) gates) and summarises it.
-func lineScan(t *testing.T, depths []int, instances int) *scan.Summary {
+func lineScan(t *testing.T, depths []int, instances int) *scan.Curve {
 	t.Helper()
 	g, err := circuits.ParseGraph("line:4")
 	if err != nil {
@@ -52,7 +52,7 @@ func lineScan(t *testing.T, depths []int, instances int) *scan.Summary {
 	if err != nil {
 		t.Fatal(err)
 	}
-	return scan.Summarize(4, recs, 0.95, 0.05)
+	return scan.Estimate(4, recs, 0.95, 0.05)
 }
 
 // decodePNG checks that path holds a PNG of the plot size and returns it.
@@ -234,7 +234,7 @@ func TestLogFloor(t *testing.T) {
 // TestDepthSeries checks the clipping and the band runs on hand-made rows.
 func TestDepthSeries(t *testing.T) {
 	inf := math.Inf(1)
-	sum := &scan.Summary{Qubits: 3, Rows: []scan.Row{
+	sum := &scan.Curve{Qubits: 3, Rows: []scan.Row{
 		{Depth: 1, Ratio: 3, Lower: 2.5, Upper: 3.5},
 		{Depth: 2, Ratio: 1.5, Lower: 1.2, Upper: 1.8},
 		{Depth: 3, Ratio: 1.2, Lower: -inf, Upper: inf}, // one instance: no band
@@ -378,7 +378,7 @@ func TestPorterThomasPlotFiles(t *testing.T) {
 // TestPlotPaths: a bad extension is a *FormatError and writes nothing; a
 // missing directory is an error; an existing file is replaced whole.
 func TestPlotPaths(t *testing.T) {
-	sum := &scan.Summary{Qubits: 2, Rows: []scan.Row{{Depth: 1, Ratio: 1.5, Lower: 1.2, Upper: 1.8}}}
+	sum := &scan.Curve{Qubits: 2, Rows: []scan.Row{{Depth: 1, Ratio: 1.5, Lower: 1.2, Upper: 1.8}}}
 	dir := t.TempDir()
 	bad := filepath.Join(dir, "plot.jpg")
 	err := DepthPlot(bad, sum, nil, 0.05)
@@ -409,10 +409,10 @@ func TestPlotPaths(t *testing.T) {
 }
 
 func TestPanics(t *testing.T) {
-	sum := &scan.Summary{Qubits: 2, Rows: []scan.Row{{Depth: 1, Ratio: 1.5}}}
+	sum := &scan.Curve{Qubits: 2, Rows: []scan.Row{{Depth: 1, Ratio: 1.5}}}
 	p := filepath.Join(t.TempDir(), "p.png")
 	for name, f := range map[string]func(){
-		"no rows":      func() { DepthPlot(p, &scan.Summary{}, nil, 0.05) },
+		"no rows":      func() { DepthPlot(p, &scan.Curve{}, nil, 0.05) },
 		"exact length": func() { DepthPlot(p, sum, []float64{1, 2}, 0.05) },
 		"eps zero":     func() { DepthPlot(p, sum, nil, 0) },
 		"no instances": func() { PorterThomasPlot(p, nil, 1, "") },
@@ -480,7 +480,7 @@ func TestLog10Ticks(t *testing.T) {
 // exact command) draw the exact curve alone: no band, no estimate.
 func TestDepthPlotExactOnly(t *testing.T) {
 	nan := math.NaN()
-	sum := &scan.Summary{Qubits: 6, Depth: 5, Found: true}
+	sum := &scan.Curve{Qubits: 6, Depth: 5, Found: true}
 	var exact []float64
 	for d := 1; d <= 8; d++ {
 		sum.Rows = append(sum.Rows, scan.Row{Depth: d, Ratio: nan, Lower: nan, Upper: nan})

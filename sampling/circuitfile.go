@@ -48,7 +48,7 @@ type CircuitFile struct {
 	Graph       string
 	GraphDigest string
 	Edges       []circuits.Edge
-	Schedule    string
+	Schedule    circuits.ScheduleKind
 	Gates       string
 	Seed        uint64
 	Depth       int
@@ -126,7 +126,7 @@ func WriteCircuits(w io.Writer, f *CircuitFile) error {
 		fmt.Fprintf(bw, "[%d, %d]", e.A, e.B)
 	}
 	fmt.Fprintf(bw, "],\n  \"schedule\": %s,\n  \"gates\": %s,\n  \"seed\": %d,\n  \"depth\": %d,\n  \"shard\": %s,\n  \"partial\": %t,\n  \"circuits\": [",
-		str(f.Schedule), str(f.Gates), f.Seed, f.Depth, str(f.Shard), f.Partial)
+		str(string(f.Schedule)), str(f.Gates), f.Seed, f.Depth, str(f.Shard), f.Partial)
 	for ci, c := range f.Circuits {
 		if ci > 0 {
 			bw.WriteString(",")
@@ -188,20 +188,20 @@ func writeMatrix(w *bufio.Writer, m []complex128, d int) {
 // The JSON form of a circuit file, decoded loosely and checked by hand so
 // that errors name the field.
 type circuitFileJSON struct {
-	Format      *string       `json:"format"`
-	Version     *int          `json:"version"`
-	Conventions string        `json:"conventions"`
-	Qubits      *int          `json:"qubits"`
-	Graph       string        `json:"graph"`
-	GraphDigest string        `json:"graph_digest"`
-	Edges       [][]int       `json:"edges"`
-	Schedule    string        `json:"schedule"`
-	Gates       string        `json:"gates"`
-	Seed        uint64        `json:"seed"`
-	Depth       *int          `json:"depth"`
-	Shard       string        `json:"shard"`
-	Partial     bool          `json:"partial"`
-	Circuits    []circuitJSON `json:"circuits"`
+	Format      *string               `json:"format"`
+	Version     *int                  `json:"version"`
+	Conventions string                `json:"conventions"`
+	Qubits      *int                  `json:"qubits"`
+	Graph       string                `json:"graph"`
+	GraphDigest string                `json:"graph_digest"`
+	Edges       [][]int               `json:"edges"`
+	Schedule    circuits.ScheduleKind `json:"schedule"`
+	Gates       string                `json:"gates"`
+	Seed        uint64                `json:"seed"`
+	Depth       *int                  `json:"depth"`
+	Shard       string                `json:"shard"`
+	Partial     bool                  `json:"partial"`
+	Circuits    []circuitJSON         `json:"circuits"`
 }
 
 type circuitJSON struct {

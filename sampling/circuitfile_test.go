@@ -15,7 +15,7 @@ func sampleFile(t *testing.T, gates, schedule string) (*CircuitFile, *circuits.G
 	if err != nil {
 		t.Fatal(err)
 	}
-	s, err := circuits.NewSchedule(schedule, g)
+	s, err := circuits.NewSchedule(circuits.ScheduleKind(schedule), g)
 	if err != nil {
 		t.Fatal(err)
 	}

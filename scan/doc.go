@@ -10,6 +10,6 @@
 // gates. Up to ExactKSQubits qubits the readout uses the array of
 // probabilities; above, it keeps none: the collision probability and the
 // Porter–Thomas histogram come from one pass over the amplitudes and
-// stats.KSHaarPasses finishes the same statistic. Config.Precision "single"
+// stats.KSHaarPasses finishes the same statistic. Config.Precision PrecisionSingle
 // keeps complex64 amplitudes (31 qubits in 16 GiB).
 package scan

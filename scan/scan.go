@@ -32,11 +32,11 @@ type Config struct {
 	// Progress, when non-nil, is called once per finished instance, from one
 	// goroutine at a time.
 	Progress func()
-	// Precision is "double" (complex128 amplitudes; "" means double) or
-	// "single" (complex64: half the memory, so 31 qubits fit in 16 GiB, with
+	// Precision is PrecisionDouble (complex128 amplitudes; "" means double)
+	// or PrecisionSingle (complex64: half the memory, so 31 qubits fit in 16 GiB, with
 	// relative errors of order 1e−6 in the collision probability; see
 	// TestSinglePrecision).
-	Precision string
+	Precision Precision
 }
 
 // ExactKSQubits is the largest qubit count whose Porter–Thomas distance is
@@ -51,6 +51,16 @@ const ExactKSQubits = 20
 // run, so that random-edge scans with far-apart depths stay in bounded
 // memory.
 const maxWindow = 4096
+
+// Precision is the amplitude precision of a scan; its values are the
+// spellings of the --precision flag and of the "precision" metadata key.
+type Precision string
+
+// The precisions.
+const (
+	PrecisionDouble Precision = "double"
+	PrecisionSingle Precision = "single"
+)
 
 // Record holds one instance's statistics at one depth.
 type Record struct {
@@ -89,7 +99,7 @@ func (c *Config) Validate() error {
 		return errors.New("scan: no instances to run")
 	}
 	switch c.Precision {
-	case "", "double", "single":
+	case "", PrecisionDouble, PrecisionSingle:
 	default:
 		return fmt.Errorf("scan: precision %q: use double or single", c.Precision)
 	}
@@ -106,7 +116,7 @@ type vector interface {
 
 // newVector allocates the n-qubit state of c's precision.
 func (c *Config) newVector(n int) (vector, error) {
-	if c.Precision == "single" {
+	if c.Precision == PrecisionSingle {
 		return sim.NewState64(n, 0)
 	}
 	return sim.NewState(n, 0)
@@ -117,7 +127,7 @@ func (c *Config) newVector(n int) (vector, error) {
 // statistic's buffers above.
 func (c *Config) instanceBytes(n int) float64 {
 	state := sim.StateBytes(n)
-	if c.Precision == "single" {
+	if c.Precision == PrecisionSingle {
 		state = sim.State64Bytes(n)
 	}
 	dim := math.Ldexp(1, n)
@@ -337,12 +347,14 @@ type Row struct {
 	Ratio, Lower, Upper float64
 	// KSMean is the mean Porter–Thomas (Kolmogorov–Smirnov) distance.
 	KSMean float64
-	// Ready is true when Upper ≤ 1 + eps.
-	Ready bool
+	// Spread is true when Upper ≤ 1 + eps: the depth meets the
+	// anti-concentration threshold ("spread" everywhere: code, JSON, tables
+	// and the human report).
+	Spread bool
 }
 
-// Summary is the per-depth result of a scan.
-type Summary struct {
+// Curve is the per-depth result of a scan: one Row per depth.
+type Curve struct {
 	Qubits        int
 	HaarCollision float64
 	Rows          []Row
@@ -352,11 +364,11 @@ type Summary struct {
 	Found bool
 }
 
-// Summarize groups records by depth and summarises each group, in
+// Estimate groups records by depth and summarises each group, in
 // ascending depth order, at confidence level conf with threshold eps.
-func Summarize(qubits int, records []Record, conf, eps float64) *Summary {
+func Estimate(qubits int, records []Record, conf, eps float64) *Curve {
 	dim := math.Ldexp(1, qubits)
-	s := &Summary{Qubits: qubits, HaarCollision: stats.HaarCollision(dim)}
+	s := &Curve{Qubits: qubits, HaarCollision: stats.HaarCollision(dim)}
 	byDepth := map[int][]Record{}
 	for _, r := range records {
 		byDepth[r.Depth] = append(byDepth[r.Depth], r)
@@ -382,7 +394,7 @@ func Summarize(qubits int, records []Record, conf, eps float64) *Summary {
 		row.Collision = stats.Summarize(zs[k])
 		row.Ratio, row.Lower, row.Upper = stats.RatioInterval(row.Collision, s.HaarCollision, conf)
 		row.KSMean = stats.Summarize(ks[k]).Mean
-		row.Ready = row.Upper <= 1+eps
+		row.Spread = row.Upper <= 1+eps
 		depths[k], upper[k] = row.Depth, row.Upper
 	}
 	s.Depth, s.Found = stats.AnticoncentrationDepth(depths, upper, eps)

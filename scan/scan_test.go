@@ -16,7 +16,7 @@ func config(t *testing.T, spec, schedule, gates string, depths []int, instances 
 	if err != nil {
 		t.Fatal(err)
 	}
-	s, err := circuits.NewSchedule(schedule, g)
+	s, err := circuits.NewSchedule(circuits.ScheduleKind(schedule), g)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -60,7 +60,7 @@ func TestRunMatchesExact(t *testing.T) {
 			if err != nil || len(done) != 3000 {
 				t.Fatalf("Run: %v (%d done)", err, len(done))
 			}
-			sum := Summarize(cfg.Graph.Qubits, recs, 0.95, 0.05)
+			sum := Estimate(cfg.Graph.Qubits, recs, 0.95, 0.05)
 			tr, final := transferOf(t, cfg.Ensemble)
 			var opts []moments.CollisionOption
 			if final {
@@ -151,8 +151,8 @@ func TestRunCancelled(t *testing.T) {
 	}
 }
 
-// TestSummarize checks the per-depth summary on hand-made records.
-func TestSummarize(t *testing.T) {
+// TestEstimate checks the per-depth summary on hand-made records.
+func TestEstimate(t *testing.T) {
 	// Two qubits: Z_H = 2/5. Depth 3 listed before depth 1 must come out sorted.
 	recs := []Record{
 		{Depth: 3, GateCount: 3, Collision: 0.40, KS: 0.1},
@@ -160,15 +160,15 @@ func TestSummarize(t *testing.T) {
 		{Depth: 1, GateCount: 1, Collision: 0.5, KS: 0.2},
 		{Depth: 1, GateCount: 1, Collision: 0.7, KS: 0.4},
 	}
-	s := Summarize(2, recs, 0.95, 0.05)
+	s := Estimate(2, recs, 0.95, 0.05)
 	if s.HaarCollision != 0.4 || len(s.Rows) != 2 || s.Rows[0].Depth != 1 || s.Rows[1].Depth != 3 {
 		t.Fatalf("summary %+v", s)
 	}
-	if r := s.Rows[0]; math.Abs(r.Ratio-1.5) > 1e-15 || math.Abs(r.KSMean-0.3) > 1e-15 || r.Ready {
+	if r := s.Rows[0]; math.Abs(r.Ratio-1.5) > 1e-15 || math.Abs(r.KSMean-0.3) > 1e-15 || r.Spread {
 		t.Errorf("depth 1 row %+v", r)
 	}
 	// Depth 3: zero spread, so the interval collapses onto R = 1 ≤ 1+eps.
-	if r := s.Rows[1]; r.Upper != 1 || !r.Ready || !s.Found || s.Depth != 3 {
+	if r := s.Rows[1]; r.Upper != 1 || !r.Spread || !s.Found || s.Depth != 3 {
 		t.Errorf("depth 3 row %+v, found %v depth %d", r, s.Found, s.Depth)
 	}
 }

@@ -104,7 +104,7 @@ func TestRunLargeWorkers(t *testing.T) {
 func TestSinglePrecision(t *testing.T) {
 	d := config(t, "grid:3x4", "layered", "haar", []int{2, 12}, 4)
 	s := config(t, "grid:3x4", "layered", "haar", []int{2, 12}, 4)
-	s.Precision = "single"
+	s.Precision = PrecisionSingle
 	rd, _, err := Run(context.Background(), d)
 	if err != nil {
 		t.Fatal(err)

@@ -25,21 +25,21 @@ func init() {
 }
 
 type exactJSON struct {
-	Tool                   string         `json:"tool"`
-	Version                string         `json:"version"`
-	Graph                  string         `json:"graph"`
-	GraphDigest            string         `json:"graph_digest"`
-	Qubits                 int            `json:"qubits"`
-	Edges                  int            `json:"edges"`
-	Schedule               string         `json:"schedule"`
-	Gates                  string         `json:"gates"`
-	HaarCollision          float64        `json:"haar_collision"`
-	Eps                    float64        `json:"eps"`
-	AnticoncentrationDepth *int           `json:"anticoncentration_depth"`
-	FrameNote              string         `json:"frame_potential_note,omitempty"`
-	GapNote                string         `json:"gap_note,omitempty"`
-	Rows                   []exactJSONRow `json:"rows"`
-	Gap                    *exactJSONGap  `json:"gap,omitempty"`
+	Tool                   string                `json:"tool"`
+	Version                string                `json:"version"`
+	Graph                  string                `json:"graph"`
+	GraphDigest            string                `json:"graph_digest"`
+	Qubits                 int                   `json:"qubits"`
+	Edges                  int                   `json:"edges"`
+	Schedule               circuits.ScheduleKind `json:"schedule"`
+	Gates                  string                `json:"gates"`
+	HaarCollision          float64               `json:"haar_collision"`
+	Eps                    float64               `json:"eps"`
+	AnticoncentrationDepth *int                  `json:"anticoncentration_depth"`
+	FrameNote              string                `json:"frame_potential_note,omitempty"`
+	GapNote                string                `json:"gap_note,omitempty"`
+	Rows                   []exactJSONRow        `json:"rows"`
+	Gap                    *exactJSONGap         `json:"gap,omitempty"`
 }
 
 type exactJSONRow struct {
@@ -141,7 +141,7 @@ func computeExact(ctx context.Context, s *setup, depths []int, workers int, with
 	switch {
 	case kind != circuits.HaarMoments:
 		r.frameNote = "the frame potential is computed for Haar-equivalent gate sets (haar, clifford) only"
-	case s.schedule.Kind() == "random-edge" && s.graph.Qubits > frameRandomMaxQubits:
+	case s.schedule.Kind() == circuits.KindRandomEdge && s.graph.Qubits > frameRandomMaxQubits:
 		r.frameNote = fmt.Sprintf("for the random-edge schedule the exact frame potential sums the spectra of every connected induced subgraph, which takes minutes beyond %d qubits; this graph has %d", frameRandomMaxQubits, s.graph.Qubits)
 	case s.graph.Qubits > moments.FrameMaxQubits:
 		r.frameNote = fmt.Sprintf("the frame potential is computed exactly up to %d qubits (its transfer matrix has 4^n entries); this graph has %d", moments.FrameMaxQubits, s.graph.Qubits)
@@ -200,7 +200,7 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	}
 	if *depthSpec == "" {
 		*depthSpec = "1:20"
-		if s.schedule.Kind() == "random-edge" {
+		if s.schedule.Kind() == circuits.KindRandomEdge {
 			*depthSpec = "10:400:10"
 		}
 	}
@@ -253,7 +253,7 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	}
 	var gap *exactJSONGap
 	var gapNote string
-	if s.schedule.Kind() == "random-edge" {
+	if s.schedule.Kind() == circuits.KindRandomEdge {
 		kind, _, _ := circuits.SecondMoments(s.ensemble)
 		switch {
 		case kind != circuits.HaarMoments:
@@ -363,7 +363,7 @@ func formatRatio(x float64) string {
 // plotExact draws the exact curve alone: rows with no Monte Carlo estimate
 // (NaN ratio and band) and the exact ratios.
 func plotExact(path string, s *setup, r *exactResult, eps float64) error {
-	sum := &scan.Summary{Qubits: s.graph.Qubits, HaarCollision: r.haar}
+	sum := &scan.Curve{Qubits: s.graph.Qubits, HaarCollision: r.haar}
 	nan := math.NaN()
 	for i, d := range r.depths {
 		sum.Rows = append(sum.Rows, scan.Row{Depth: d, GateCount: r.gateCounts[i], Ratio: nan, Lower: nan, Upper: nan})

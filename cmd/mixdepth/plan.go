@@ -17,29 +17,29 @@ func init() {
 
 // planJSON is the --json document of plan. Field names are an interface.
 type planJSON struct {
-	Tool                string     `json:"tool"`
-	Version             string     `json:"version"`
-	Graph               string     `json:"graph"`
-	Qubits              int        `json:"qubits"`
-	Schedule            string     `json:"schedule"`
-	Gates               string     `json:"gates"`
-	Depth               int        `json:"depth"`
-	TwoQubitGates       int        `json:"two_qubit_gates"`
-	SingleQubitGates    int        `json:"single_qubit_gates"`
-	GateError           float64    `json:"gate_error"`
-	SingleQubitError    float64    `json:"single_qubit_error"`
-	ReadoutError        [2]float64 `json:"readout_error"`
-	TwoQubitFidelity    float64    `json:"two_qubit_fidelity"`
-	SingleQubitFidelity float64    `json:"single_qubit_fidelity"`
-	ReadoutFidelity     float64    `json:"readout_fidelity"`
-	ErrorModelFidelity  *float64   `json:"error_model_fidelity"`
-	PredictedFidelity   float64    `json:"predicted_fidelity"`
-	FidelitySource      string     `json:"fidelity_source"`
-	Sigmas              *float64   `json:"sigmas"`
-	RelPrecision        *float64   `json:"rel_precision"`
-	SamplesSigmas       *int64     `json:"samples_sigmas"`
-	SamplesRelPrecision *int64     `json:"samples_rel_precision"`
-	Samples             int64      `json:"samples"`
+	Tool                string                `json:"tool"`
+	Version             string                `json:"version"`
+	Graph               string                `json:"graph"`
+	Qubits              int                   `json:"qubits"`
+	Schedule            circuits.ScheduleKind `json:"schedule"`
+	Gates               string                `json:"gates"`
+	Depth               int                   `json:"depth"`
+	TwoQubitGates       int                   `json:"two_qubit_gates"`
+	SingleQubitGates    int                   `json:"single_qubit_gates"`
+	GateError           float64               `json:"gate_error"`
+	SingleQubitError    float64               `json:"single_qubit_error"`
+	ReadoutError        [2]float64            `json:"readout_error"`
+	TwoQubitFidelity    float64               `json:"two_qubit_fidelity"`
+	SingleQubitFidelity float64               `json:"single_qubit_fidelity"`
+	ReadoutFidelity     float64               `json:"readout_fidelity"`
+	ErrorModelFidelity  *float64              `json:"error_model_fidelity"`
+	PredictedFidelity   float64               `json:"predicted_fidelity"`
+	FidelitySource      string                `json:"fidelity_source"`
+	Sigmas              *float64              `json:"sigmas"`
+	RelPrecision        *float64              `json:"rel_precision"`
+	SamplesSigmas       *int64                `json:"samples_sigmas"`
+	SamplesRelPrecision *int64                `json:"samples_rel_precision"`
+	Samples             int64                 `json:"samples"`
 }
 
 func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error {

@@ -146,7 +146,7 @@ func runPTPlot(ctx context.Context, args []string, stdout, stderr io.Writer) err
 // its own eps and confidence, or its deepest depth when none qualifies.
 func defaultPTDepth(meta tables.Meta, qubits int, records []scan.Record) int {
 	eps, conf := metaFloatOr(meta, "eps", fallbackEps), metaFloatOr(meta, "confidence", fallbackConfidence)
-	sum := scan.Summarize(qubits, records, conf, eps)
+	sum := scan.Estimate(qubits, records, conf, eps)
 	if sum.Found {
 		return sum.Depth
 	}

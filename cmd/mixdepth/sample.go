@@ -14,6 +14,7 @@ import (
 
 	"github.com/schollz/progressbar/v3"
 
+	"mixdepth/circuits"
 	"mixdepth/sampling"
 	"mixdepth/sim"
 	"mixdepth/tables"
@@ -43,31 +44,31 @@ var testHookSampleProgress func()
 
 // sampleJSON is the --json document of sample. Field names are an interface.
 type sampleJSON struct {
-	Tool              string     `json:"tool"`
-	Version           string     `json:"version"`
-	Graph             string     `json:"graph"`
-	GraphDigest       string     `json:"graph_digest"`
-	Qubits            int        `json:"qubits"`
-	Schedule          string     `json:"schedule"`
-	Gates             string     `json:"gates"`
-	Seed              uint64     `json:"seed"`
-	Depth             int        `json:"depth"`
-	GateCount         int        `json:"gate_count"`
-	Instances         int        `json:"instances"`
-	Shard             string     `json:"shard"`
-	InstancesDone     string     `json:"instances_done"`
-	Shots             int        `json:"shots"`
-	Fidelity          float64    `json:"fidelity"`
-	GateError         float64    `json:"gate_error"`
-	ReadoutError      [2]float64 `json:"readout_error"`
-	Trajectories      int        `json:"trajectories"`
-	PredictedFidelity float64    `json:"predicted_fidelity"`
-	LinearXEB         *float64   `json:"linear_xeb"`
-	LinearXEBStderr   *float64   `json:"linear_xeb_stderr"`
-	IdealXEB          *float64   `json:"ideal_xeb"`
-	NormalizedXEB     *float64   `json:"normalized_xeb"`
-	Out               string     `json:"out,omitempty"`
-	Circuits          string     `json:"circuits,omitempty"`
+	Tool              string                `json:"tool"`
+	Version           string                `json:"version"`
+	Graph             string                `json:"graph"`
+	GraphDigest       string                `json:"graph_digest"`
+	Qubits            int                   `json:"qubits"`
+	Schedule          circuits.ScheduleKind `json:"schedule"`
+	Gates             string                `json:"gates"`
+	Seed              uint64                `json:"seed"`
+	Depth             int                   `json:"depth"`
+	GateCount         int                   `json:"gate_count"`
+	Instances         int                   `json:"instances"`
+	Shard             string                `json:"shard"`
+	InstancesDone     string                `json:"instances_done"`
+	Shots             int                   `json:"shots"`
+	Fidelity          float64               `json:"fidelity"`
+	GateError         float64               `json:"gate_error"`
+	ReadoutError      [2]float64            `json:"readout_error"`
+	Trajectories      int                   `json:"trajectories"`
+	PredictedFidelity float64               `json:"predicted_fidelity"`
+	LinearXEB         *float64              `json:"linear_xeb"`
+	LinearXEBStderr   *float64              `json:"linear_xeb_stderr"`
+	IdealXEB          *float64              `json:"ideal_xeb"`
+	NormalizedXEB     *float64              `json:"normalized_xeb"`
+	Out               string                `json:"out,omitempty"`
+	Circuits          string                `json:"circuits,omitempty"`
 }
 
 func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) error {

@@ -26,21 +26,21 @@ func init() {
 
 // scanJSON is the --json document of scan. Field names are an interface.
 type scanJSON struct {
-	Tool                   string        `json:"tool"`
-	Version                string        `json:"version"`
-	Graph                  string        `json:"graph"`
-	GraphDigest            string        `json:"graph_digest"`
-	Qubits                 int           `json:"qubits"`
-	Edges                  int           `json:"edges"`
-	Schedule               string        `json:"schedule"`
-	Gates                  string        `json:"gates"`
-	HaarCollision          float64       `json:"haar_collision"`
-	Seed                   uint64        `json:"seed"`
-	Instances              int           `json:"instances"`
-	Eps                    float64       `json:"eps"`
-	Confidence             float64       `json:"confidence"`
-	AnticoncentrationDepth *int          `json:"anticoncentration_depth"`
-	Rows                   []scanJSONRow `json:"rows"`
+	Tool                   string                `json:"tool"`
+	Version                string                `json:"version"`
+	Graph                  string                `json:"graph"`
+	GraphDigest            string                `json:"graph_digest"`
+	Qubits                 int                   `json:"qubits"`
+	Edges                  int                   `json:"edges"`
+	Schedule               circuits.ScheduleKind `json:"schedule"`
+	Gates                  string                `json:"gates"`
+	HaarCollision          float64               `json:"haar_collision"`
+	Seed                   uint64                `json:"seed"`
+	Instances              int                   `json:"instances"`
+	Eps                    float64               `json:"eps"`
+	Confidence             float64               `json:"confidence"`
+	AnticoncentrationDepth *int                  `json:"anticoncentration_depth"`
+	Rows                   []scanJSONRow         `json:"rows"`
 }
 
 type scanJSONRow struct {
@@ -125,7 +125,7 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if err != nil {
 		return err
 	}
-	if *precision != "double" && *precision != "single" {
+	if p := scan.Precision(*precision); p != scan.PrecisionDouble && p != scan.PrecisionSingle {
 		return badInput("--precision %q: use double or single", *precision)
 	}
 	if *resume != "" && *out == "" {
@@ -180,7 +180,7 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	}
 	cfg := &scan.Config{
 		Graph: s.graph, Schedule: s.schedule, Ensemble: s.ensemble,
-		Depths: depths, Instances: ids, Seed: cf.seed, Workers: *workers, Precision: *precision,
+		Depths: depths, Instances: ids, Seed: cf.seed, Workers: *workers, Precision: scan.Precision(*precision),
 	}
 	if isTerminal(stderr) && len(ids) > 0 {
 		bar := progressbar.NewOptions(len(ids), progressbar.OptionSetWriter(stderr),
@@ -218,7 +218,7 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		fmt.Fprintln(stderr, msg)
 		return errInterrupted
 	}
-	sum := scan.Summarize(s.graph.Qubits, records, *conf, *eps)
+	sum := scan.Estimate(s.graph.Qubits, records, *conf, *eps)
 	for _, r := range sum.Rows {
 		if r.Collision.N > 1 && r.Collision.StdDev == 0 {
 			fmt.Fprintf(stderr, "mixdepth: warning: all %d instances have the same collision probability at depth %d: the gate set draws too few distinct circuits to estimate an ensemble average; its interval is not meaningful\n", r.Collision.N, r.Depth)
@@ -260,14 +260,14 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 
 // depthUnit names what a depth counts, for plot axes.
 func depthUnit(s *setup) string {
-	if s.schedule.Kind() == "random-edge" {
+	if s.schedule.Kind() == circuits.KindRandomEdge {
 		return "gates"
 	}
 	return "layers"
 }
 
 // scanDocument assembles the --json document of a scan summary.
-func scanDocument(s *setup, seed uint64, instances int, eps, conf float64, sum *scan.Summary) scanJSON {
+func scanDocument(s *setup, seed uint64, instances int, eps, conf float64, sum *scan.Curve) scanJSON {
 	doc := scanJSON{
 		Tool: "mixdepth", Version: version, Graph: s.graph.Name, GraphDigest: s.graph.Digest(),
 		Qubits: s.graph.Qubits, Edges: len(s.graph.Edges), Schedule: s.schedule.Kind(), Gates: s.ensemble.Name(),
@@ -331,7 +331,7 @@ func writeScanTable(path string, meta tables.Meta, records []scan.Record, exact 
 // reports every depth more than 4 standard errors away: with a correct
 // simulator that happens with probability about 6e-5 per depth, so a flag
 // is a defect to report, not noise to hide.
-func printExactCheck(w io.Writer, sum *scan.Summary, exact *exactResult) {
+func printExactCheck(w io.Writer, sum *scan.Curve, exact *exactResult) {
 	fmt.Fprintf(w, "\n%6s %12s %12s %10s\n", "depth", "R (MC)", "R (exact)", "MC−exact")
 	var bad []string
 	for k, r := range sum.Rows {
@@ -439,7 +439,7 @@ func recordInstances(records []scan.Record) []int {
 }
 
 // printScan writes the human report of a scan.
-func printScan(w io.Writer, s *setup, cf *circuitFlags, instances string, eps, conf float64, sum *scan.Summary) {
+func printScan(w io.Writer, s *setup, cf *circuitFlags, instances string, eps, conf float64, sum *scan.Curve) {
 	fmt.Fprintln(w, s.describe())
 	fmt.Fprintf(w, "seed %d · %s · eps %g · confidence %g · Haar collision 2/(D+1) = %.6g\n\n",
 		cf.seed, instances, eps, conf, sum.HaarCollision)
@@ -447,7 +447,7 @@ func printScan(w io.Writer, s *setup, cf *circuitFlags, instances string, eps, c
 	fmt.Fprintf(w, "%6s %7s %10s  %-21s %9s  %s\n", "depth", "gates", "R=Z/Z_H", pct, "PT dist", "verdict")
 	for _, r := range sum.Rows {
 		verdict := "too shallow"
-		if r.Ready {
+		if r.Spread {
 			verdict = "spread"
 		}
 		fmt.Fprintf(w, "%6d %7d %10.4f  [%8.4f, %8.4f]  %9.4f  %s\n", r.Depth, r.GateCount, r.Ratio, r.Lower, r.Upper, r.KSMean, verdict)
@@ -470,7 +470,7 @@ func instancesNote(n int, shard shardSpec, total int) string {
 }
 
 // scanVerdict is the one-sentence recommendation.
-func scanVerdict(sum *scan.Summary, eps, conf float64) string {
+func scanVerdict(sum *scan.Curve, eps, conf float64) string {
 	level := strconv.FormatFloat(100*conf, 'g', 4, 64) + "%"
 	if !sum.Found {
 		last := sum.Rows[len(sum.Rows)-1]
@@ -495,7 +495,7 @@ func runMeta(s *setup, cf *circuitFlags) tables.Meta {
 	m.Set("graph", s.graph.Name)
 	m.Set("graph_digest", s.graph.Digest())
 	m.Set("qubits", strconv.Itoa(s.graph.Qubits))
-	m.Set("schedule", s.schedule.Kind())
+	m.Set("schedule", string(s.schedule.Kind()))
 	m.Set("layout", s.layout)
 	m.Set("gates", s.ensemble.Name())
 	m.Set("edges", formatEdges(s.graph.Edges))

@@ -79,7 +79,7 @@ func runSummarize(ctx context.Context, args []string, stdout, stderr io.Writer) 
 	if missing := run.missing(); len(missing) > 0 {
 		fmt.Fprintf(stderr, "mixdepth: note: summarizing %d of the run's %d instances (missing %s)\n", len(run.done), run.instances, briefIDs(missing))
 	}
-	sum := scan.Summarize(s.graph.Qubits, records, *conf, *eps)
+	sum := scan.Estimate(s.graph.Qubits, records, *conf, *eps)
 	if *asJSON {
 		return writeJSON(stdout, scanDocument(s, seed, len(run.done), *eps, *conf, sum))
 	}

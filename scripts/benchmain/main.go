@@ -474,7 +474,7 @@ func scanBench(rows, cols, depth, instances, workers int) (*scanResult, error) {
 		return nil, err
 	}
 	secs := time.Since(start).Seconds()
-	sum := scan.Summarize(g.Qubits, recs, 0.95, 0.05)
+	sum := scan.Estimate(g.Qubits, recs, 0.95, 0.05)
 	return &scanResult{Graph: spec, Depths: depth, Instances: instances, GoSeconds: secs,
 		GoRatio: sum.Rows[len(sum.Rows)-1].Ratio}, nil
 }
@@ -494,7 +494,7 @@ func largeScan(w io.Writer, spec, depths, precision string, workers int) error {
 	if err != nil {
 		return err
 	}
-	cfg := &scan.Config{Graph: g, Schedule: sch, Ensemble: ens, Seed: 1, Workers: workers, Instances: []int{0}, Precision: precision}
+	cfg := &scan.Config{Graph: g, Schedule: sch, Ensemble: ens, Seed: 1, Workers: workers, Instances: []int{0}, Precision: scan.Precision(precision)}
 	for _, f := range strings.Split(depths, ",") {
 		var d int
 		if _, err := fmt.Sscan(f, &d); err != nil {

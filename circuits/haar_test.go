@@ -133,7 +133,7 @@ func TestHaarMoments(t *testing.T) {
 	check("Im E[Tr U²]", imTrSq, 0)
 	// A column of a Haar unitary is a Haar-random unit vector in C^d, so
 	// |U_ij|² ~ Beta(1, d−1) with E[p] = 1/d (common practice) and
-	// E[p²] = 2/(d(d+1)) = 1/10 (moments k!/(d(d+1)…(d+k−1)), design.md §3).
+	// E[p²] = 2/(d(d+1)) = 1/10 (moments k!/(d(d+1)…(d+k−1)) of Beta(1, d−1), common practice).
 	for k := range ent2 {
 		check("E|U_ij|²", ent2[k], 1.0/d)
 		check("E|U_ij|⁴", ent4[k], 2.0/(d*(d+1)))

@@ -15,7 +15,7 @@ func draws(seed uint64, instance int) []uint64 {
 }
 
 // TestStreamDeterminism: the stream of instance i depends on (seed, i) alone
-// (design.md §2, Seeds): the same pair repeats exactly, a different instance
+// (so results do not depend on workers or parts): the same pair repeats exactly, a different instance
 // or seed gives different draws.
 func TestStreamDeterminism(t *testing.T) {
 	base := draws(7, 3)

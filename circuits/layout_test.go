@@ -114,7 +114,8 @@ func TestReadLayoutFile(t *testing.T) {
 }
 
 // TestLayoutMatchesFamilySchedule: a layout file that spells out the layered
-// classes of grid:3x3 (written by hand from design.md §2) drives the Builder
+// classes of grid:3x3 (written by hand from the grid rule: horizontal c even, horizontal c odd,
+// vertical r even, vertical r odd) drives the Builder
 // to exactly the gates of the family's own layered schedule, same seed.
 func TestLayoutMatchesFamilySchedule(t *testing.T) {
 	in := `{"qubits": 9, "layers": [

@@ -17,7 +17,9 @@ func mustGraph(t *testing.T, spec string) *Graph {
 }
 
 // TestLayeredClassesConventions checks LayeredClasses against the class
-// conventions of design.md §2, with every expected class written out by hand
+// conventions documented in the README (line: i even then odd; ring: the
+// closing edge in class B, or its own class C for odd N; grid: horizontal c
+// even, horizontal c odd, vertical r even, vertical r odd), with every expected class written out by hand
 // (qubit (r, c) of grid:RxC has id r·C + c).
 func TestLayeredClassesConventions(t *testing.T) {
 	for _, tc := range []struct {
@@ -88,7 +90,7 @@ func TestLayeredClassesConventions(t *testing.T) {
 }
 
 // checkClasses fails unless classes is a partition of g's edges into classes
-// of disjoint edges (the definition of a layered schedule, design.md §2).
+// of disjoint edges (the definition of a layered schedule).
 func checkClasses(t *testing.T, g *Graph, classes [][]Edge) {
 	t.Helper()
 	count := map[[2]int]int{}

@@ -116,7 +116,7 @@ func TestNormPreserved(t *testing.T) {
 
 // denseOperator builds the 2^n × 2^n matrix of gate m on qubits (a, b) as
 // a sum of Kronecker products, independently of the simulator's index
-// arithmetic: with the basis convention x = Σ b_q 2^q (design.md §2) the
+// arithmetic: with the basis convention x = Σ b_q 2^q (qubit q is bit q) the
 // leftmost Kronecker factor is qubit n−1, and
 //
 //	O = Σ_{r,s,t,u} m[2r+s][2t+u] · ⊗_{q=n−1..0} F_q,
@@ -209,7 +209,7 @@ func TestApply2AgainstDense(t *testing.T) {
 
 // TestApply2Convention pins the basis convention with a gate whose action is
 // known by hand: CNOT with control a and target b, in the basis |b_a b_b⟩
-// (design.md §2), maps |x⟩ to |x ⊕ 2^b⟩ when bit a of x is 1.
+// (index 2·b_a + b_b), maps |x⟩ to |x ⊕ 2^b⟩ when bit a of x is 1.
 func TestApply2Convention(t *testing.T) {
 	cnot := [16]complex128{
 		1, 0, 0, 0,

@@ -6,7 +6,7 @@ package stats
 const pairwiseBlock = 128
 
 // Collision returns the collision probability Z = Σ_i p_i² of the
-// distribution p (design.md section 4).
+// distribution p; for the output distribution of a circuit, Z_U = Σ_x p_U(x)².
 //
 // The squares are added pairwise, so the rounding error grows like
 // log2(len(p))·ε rather than len(p)·ε; 2^24 terms keep about 15 significant

@@ -71,7 +71,7 @@ func TestCollisionAccurateLarge(t *testing.T) {
 
 // TestCollisionHaarMonteCarlo draws Haar-random states (fixed seed) and checks
 // that the mean collision probability matches Z_H = 2/(D+1) (Dalzell,
-// Hunter-Jones, Brandão 2022; design.md section 3) within 4 standard errors
+// Hunter-Jones, Brandão 2022, PRX Quantum 3, 010333) within 4 standard errors
 // of the sample mean (a two-sided 4σ band: a false alarm has probability
 // about 6e-5 per seed, and with the seed fixed the outcome is deterministic).
 func TestCollisionHaarMonteCarlo(t *testing.T) {

@@ -3,7 +3,8 @@ package stats
 import "math"
 
 // AnticoncentrationDepth returns the smallest depth whose upper confidence
-// bound of R = E[Z]/Z_H is at most 1+eps (design.md section 4). depths must be
+// bound of R = E[Z]/Z_H is at most 1+eps, the anti-concentration rule of
+// this project (Z_H = 2/(D+1) the Haar collision probability). depths must be
 // strictly ascending and upper[i] is the bound at depths[i]; a NaN bound never
 // qualifies. It does not ask later depths to stay below the threshold. If no
 // depth qualifies it returns 0, false. It panics if the lengths differ, the

@@ -5,8 +5,7 @@ import (
 	"testing"
 )
 
-// TestAnticoncentrationDepth checks the depth rule of design.md section 4:
-// the smallest depth whose upper confidence bound of R is ≤ 1+ε.
+// TestAnticoncentrationDepth checks the project's depth rule: the smallest depth whose upper confidence bound of R is ≤ 1+ε.
 func TestAnticoncentrationDepth(t *testing.T) {
 	inf := math.Inf(1)
 	for _, c := range []struct {
@@ -44,7 +43,7 @@ func TestAnticoncentrationDepth(t *testing.T) {
 }
 
 // TestPaleyZygmund checks the bound Pr[p ≥ β/D] ≥ α(1−β)² with
-// α = 1/(D·E[Z]) (Dalzell, Hunter-Jones, Brandão 2022; design.md section 3).
+// α = 1/(D·E[Z]) (Dalzell, Hunter-Jones, Brandão 2022, PRX Quantum 3, 010333).
 func TestPaleyZygmund(t *testing.T) {
 	for _, d := range []float64{2, 4, 1024, 1 << 20} {
 		zh := HaarCollision(d)

@@ -21,7 +21,7 @@ func ExampleKSHaar() {
 }
 
 // Samples needed to see fidelity 0.002 at five standard deviations
-// (design.md section 6).
+// (N = z²(1+2f−f²)/f² for the linear XEB under global depolarization).
 func ExampleXEBSamples() {
 	fmt.Printf("%.0f\n", stats.XEBSamples(0.002, 5))
 	// Output: 6274975

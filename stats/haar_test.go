@@ -73,8 +73,8 @@ func TestHaarProbMatchesGonumBeta(t *testing.T) {
 }
 
 // TestHaarProbEdges checks the clamping outside [0, 1] and the endpoint
-// values of 1 − (1−t)^(D−1) and its density (the formula of design.md
-// section 3 evaluated by hand at t = 0 and t = 1).
+// values of 1 − (1−t)^(D−1) and its density (the Beta(1, D−1) law of Haar
+// output probabilities, evaluated by hand at t = 0 and t = 1).
 func TestHaarProbEdges(t *testing.T) {
 	for _, d := range []float64{1, 2, 3, 1024} {
 		h := HaarProb{Dim: d}
@@ -151,7 +151,7 @@ func TestPorterThomasMatchesGonumExponential(t *testing.T) {
 	if pt.Mean() != e.Mean() || pt.Variance() != e.Variance() {
 		t.Error("PorterThomas mean/variance differ from gonum Exp(1)")
 	}
-	// Large-D limit (design.md section 3): the Beta(1, D−1) law of D·p tends
+	// Large-D limit (Porter & Thomas 1956): the Beta(1, D−1) law of D·p tends
 	// to Exp(1). |(D−1)·ln(1−x/D) + x| ≤ x/D + x²/D for x ≤ D/2 (Taylor
 	// bound, by hand), so the survival functions agree to that relative order.
 	d := float64(1 << 20)
@@ -164,7 +164,8 @@ func TestPorterThomasMatchesGonumExponential(t *testing.T) {
 	}
 }
 
-// TestHaarMoment checks E[p^k] = k!/(D(D+1)…(D+k−1)) (design.md section 3).
+// TestHaarMoment checks E[p^k] = k!/(D(D+1)…(D+k−1)), the moments of
+// Beta(1, D−1) (common practice).
 func TestHaarMoment(t *testing.T) {
 	for _, d := range []float64{1, 2, 3, 4, 16, 1024, 1 << 30} {
 		// k = 0, 1, 2 written out by hand from the formula.
@@ -177,7 +178,7 @@ func TestHaarMoment(t *testing.T) {
 		if got, want := HaarMoment(2, d), 2/(d*(d+1)); relDiff(got, want) > 1e-15 {
 			t.Errorf("D=%g: E[p²] = %g, want 2/(D(D+1)) = %g", d, got, want)
 		}
-		// D·E[p²] = Z_H = 2/(D+1) (design.md section 3).
+		// D·E[p²] = Z_H = 2/(D+1) (the k = 2 moment above).
 		if got, want := d*HaarMoment(2, d), HaarCollision(d); relDiff(got, want) > 2e-16*4 {
 			t.Errorf("D=%g: D·E[p²] = %g, Z_H = %g", d, got, want)
 		}
@@ -238,8 +239,8 @@ func TestHaarMoment(t *testing.T) {
 }
 
 // TestHaarCollision checks Z_H = 2/(D+1) at hand-computed values
-// (Dalzell, Hunter-Jones, Brandão 2022; design.md section 3: one Haar gate on
-// two qubits gives 2/5).
+// (Dalzell, Hunter-Jones, Brandão 2022, PRX Quantum 3, 010333: one Haar gate
+// on two qubits gives 2/5).
 func TestHaarCollision(t *testing.T) {
 	for _, c := range []struct{ d, want float64 }{
 		{1, 1}, {2, 2.0 / 3}, {4, 0.4}, {1024, 2.0 / 1025},

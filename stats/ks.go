@@ -26,8 +26,8 @@ func KS(x, scratch []float64, cdf func(float64) float64) float64 {
 }
 
 // KSHaar returns the Kolmogorov–Smirnov statistic of the probabilities p
-// against the exact Haar law HaarProb{Dim: len(p)}, the Porter–Thomas distance
-// of design.md section 4. scratch and panics are as for KS; p is not modified.
+// against the exact Haar law HaarProb{Dim: len(p)}: the Porter–Thomas distance
+// reported per instance. scratch and panics are as for KS; p is not modified.
 // The sort makes it O(D log D).
 func KSHaar(p, scratch []float64) float64 {
 	h := HaarProb{Dim: float64(len(p))}

@@ -76,7 +76,7 @@ func TestKSHaarBruteForce(t *testing.T) {
 // TestKSHaarUniform checks the statistic of the uniform vector p = 1/D, all
 // values tied at 1/D. F_emp jumps from 0 to 1 at t = 1/D, so the supremum is
 // max(F(1/D), 1 − F(1/D)) with F(1/D) = 1 − (1 − 1/D)^(D−1) (by hand from the
-// Beta(1, D−1) CDF of design.md section 3):
+// Beta(1, D−1) CDF of the Haar output law, F(t) = 1 − (1−t)^(D−1)):
 //
 //	D = 2:    1 − 1/2 = 1/2
 //	D = 4:    1 − (3/4)³ = 1 − 27/64 = 37/64 = 0.578125
@@ -137,8 +137,8 @@ func TestKSHaarMonteCarlo(t *testing.T) {
 		if mean := sumKS / n; mean >= crit || float64(over) > maxOver {
 			t.Errorf("D=%d: mean KSHaar %.4g (critical %.4g), %d of %d over (max %.1f)", d, mean, crit, over, n, maxOver)
 		}
-		// Against Exp(1) the finite-D law differs by O(1/D) (design.md
-		// section 3), small next to 1/√D, so the same bound holds.
+		// Against Exp(1) the finite-D law differs by O(1/D) (the Beta(1, D−1)
+		// law of D·p tends to Exp(1)), small next to 1/√D, so the same bound holds.
 		if mean := sumPT / n; mean >= crit {
 			t.Errorf("D=%d: mean KSPorterThomas %.4g (critical %.4g)", d, mean, crit)
 		}

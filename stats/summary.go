@@ -57,8 +57,8 @@ func MeanInterval(s Summary, conf float64) (lower, upper float64) {
 }
 
 // RatioInterval returns R = Mean/zh and the two-sided confidence interval at
-// level conf of R, the MeanInterval of s divided by zh (design.md section 4,
-// with zh = Z_H). When N < 2 the interval is (−Inf, +Inf) while the ratio is
+// level conf of R, the MeanInterval of s divided by zh (zh = Z_H = 2/(D+1)
+// for the collision ratio). When N < 2 the interval is (−Inf, +Inf) while the ratio is
 // still returned. It panics unless zh > 0 and 0 < conf < 1.
 func RatioInterval(s Summary, zh, conf float64) (ratio, lower, upper float64) {
 	if !(zh > 0) || math.IsInf(zh, 1) {

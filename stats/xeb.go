@@ -49,8 +49,10 @@ func LogXEB(pIdeal []float64, dim float64) (f, stderr float64) {
 
 // XEBSampleVariance returns the per-sample variance 1 + 2f − f² of D·p(x)
 // for Porter–Thomas outputs sampled with fidelity f under the global
-// depolarizing model q = f·p + (1−f)/D (design.md section 6). It panics
-// unless 0 ≤ f ≤ 1.
+// depolarizing model q = f·p + (1−f)/D. With D·p ~ Exp(1) over outcomes,
+// x = D·p(x) is Gamma(2, 1) for an ideal sample (mean 2, E[x²] = 6) and
+// Exp(1) for a uniform one (mean 1, E[x²] = 2), so the mixture has variance
+// 2 + 4f − (1 + f)² = 1 + 2f − f². It panics unless 0 ≤ f ≤ 1.
 func XEBSampleVariance(f float64) float64 {
 	if !(f >= 0 && f <= 1) {
 		panic("stats: fidelity must lie in [0, 1]")
@@ -63,8 +65,8 @@ func XEBSampleVariance(f float64) float64 {
 //
 //	N = z²(1 + 2f − f²)/f²
 //
-// (design.md section 6). The result is real; round it up with math.Ceil. It
-// is +Inf for f = 0 and panics unless 0 ≤ f ≤ 1 and z > 0.
+// (the mean of N samples has standard error sqrt((1+2f−f²)/N), set to
+// f/z). The result is real; round it up with math.Ceil. It is +Inf for f = 0 and panics unless 0 ≤ f ≤ 1 and z > 0.
 func XEBSamples(f, z float64) float64 {
 	v := XEBSampleVariance(f)
 	if !(z > 0) || math.IsInf(z, 1) {
@@ -78,8 +80,8 @@ func XEBSamples(f, z float64) float64 {
 //
 //	N = (1 + 2f − f²)/(r·f)²
 //
-// (design.md section 6). The result is real; round it up with math.Ceil. It
-// is +Inf for f = 0 and panics unless 0 ≤ f ≤ 1 and r > 0.
+// (standard error sqrt((1+2f−f²)/N) set to r·f). The result is real;
+// round it up with math.Ceil. It is +Inf for f = 0 and panics unless 0 ≤ f ≤ 1 and r > 0.
 func XEBSamplesRelative(f, r float64) float64 {
 	v := XEBSampleVariance(f)
 	if !(r > 0) || math.IsInf(r, 1) {

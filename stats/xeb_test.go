@@ -29,7 +29,7 @@ func TestLinearXEBUniform(t *testing.T) {
 // Conditional on the state the expectations are exact: an ideal sampler has
 // E[F_lin] = D·Z − 1 and E[F_log] = ln D + γ + Σ_x p ln p; the global
 // depolarizing model q = f·p + (1−f)/D has E[F_lin] = f(D·Z − 1) (Boixo et
-// al. 2018; Arute et al. 2019, Nature 574, 505; design.md section 6); a
+// al. 2018; Arute et al. 2019, Nature 574, 505); a
 // uniform sampler has E[F_log] = ln D + γ + mean_x ln p.
 //
 // Over Haar states these tend to the Porter–Thomas values: F_lin → 1 and
@@ -135,8 +135,8 @@ func TestLogXEBEdges(t *testing.T) {
 	}
 }
 
-// TestXEBSamples checks the sample-count formulas of design.md section 6,
-// N = z²(1+2f−f²)/f² and N = (1+2f−f²)/(r f)², against values worked by hand:
+// TestXEBSamples checks the sample-count formulas for the linear XEB under
+// global depolarization (per-sample variance 1+2f−f²), N = z²(1+2f−f²)/f² and N = (1+2f−f²)/(r f)², against values worked by hand:
 //
 //	f = 0.002, z = 5:  1 + 0.004 − 0.000004 = 1.003996; /4e-6 = 250999;
 //	                   ×25 = 6274975.
@@ -180,7 +180,7 @@ func TestXEBSamples(t *testing.T) {
 }
 
 // TestXEBSampleVariance checks the per-sample variance 1 + 2f − f² of D·p(x)
-// for Porter–Thomas outputs under global depolarization (design.md section 6)
+// for Porter–Thomas outputs under global depolarization q = f·p + (1−f)/D
 // by Monte Carlo: x = D·p is drawn as Exp(1) size-biased with probability f
 // (that is Gamma(2, 1), the law of D·p(x) for an ideal sample) and as Exp(1)
 // otherwise. With 200000 fixed-seed draws the sample variance has a relative

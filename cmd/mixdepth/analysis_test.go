@@ -703,3 +703,51 @@ func TestMergeSampleParts(t *testing.T) {
 		t.Errorf("metadata\n%v\nwant\n%v", g, w)
 	}
 }
+
+// gateFileJSON is a gate-set file: CZ with Haar single-qubit gates, or with
+// the entangler's sign flipped on |11⟩ (another file, another ensemble).
+func gateFileJSON(flip bool) string {
+	last := "[-1, 0]"
+	if flip {
+		last = "[1, 0]"
+	}
+	return `{"entangler": [[[1, 0], [0, 0], [0, 0], [0, 0]], [[0, 0], [1, 0], [0, 0], [0, 0]],
+		[[0, 0], [0, 0], [1, 0], [0, 0]], [[0, 0], [0, 0], [0, 0], ` + last + `]], "single_qubit": "haar"}`
+}
+
+// TestGateFileTables: a table made with a gate-set file records the set's
+// content, so that pt-plot and summarize rebuild its circuits after the file
+// was edited or moved away (pt-plot re-simulates and checks every
+// instance's collision probability), and parts made with different gate
+// files refuse to merge, naming the gate_set key.
+func TestGateFileTables(t *testing.T) {
+	dir := t.TempDir()
+	gates := writeFile(t, dir, "gates.json", gateFileJSON(false))
+	args := []string{"scan", "--graph", "line:4", "--gates", gates, "--depths", "2,5", "--instances", "6", "--workers", "1"}
+	table := filepath.Join(dir, "scan.parquet")
+	mustRun(t, append(args, "--out", table)...)
+	summary := mustRun(t, "summarize", table)
+	writeFile(t, dir, "gates.json", gateFileJSON(true)) // edited afterwards
+	if stdout := mustRun(t, "pt-plot", table, "--depth", "5", "--out", filepath.Join(dir, "a.png")); !strings.Contains(stdout, "6 instance(s) matched") {
+		t.Errorf("pt-plot after an edit: %q", stdout)
+	}
+	if err := os.Remove(gates); err != nil { // moved away
+		t.Fatal(err)
+	}
+	if stdout := mustRun(t, "pt-plot", table, "--depth", "2", "--out", filepath.Join(dir, "b.png")); !strings.Contains(stdout, "6 instance(s) matched") {
+		t.Errorf("pt-plot without the file: %q", stdout)
+	}
+	if got := mustRun(t, "summarize", table); got != summary {
+		t.Errorf("summarize without the file\n%s\nwant\n%s", got, summary)
+	}
+
+	a := writeFile(t, dir, "a.json", gateFileJSON(false))
+	b := writeFile(t, dir, "b.json", gateFileJSON(true))
+	var parts []string
+	for k, g := range []string{a, b} {
+		p := filepath.Join(dir, "part-"+strconv.Itoa(k)+".parquet")
+		mustRun(t, "scan", "--graph", "line:4", "--gates", g, "--depths", "2,5", "--instances", "6", "--workers", "1", "--part", strconv.Itoa(k)+"/2", "--out", p)
+		parts = append(parts, p)
+	}
+	wantExit2(t, []string{"merge", "--out", filepath.Join(dir, "m.parquet"), parts[0], parts[1]}, "different runs", "gate_set")
+}

@@ -21,8 +21,8 @@ const (
 )
 
 func runSummarize(ctx context.Context, args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("summarize", "mixdepth summarize FILE...: each FILE is a per-instance scan table.\n\nReads one or more per-instance scan tables of one run (a whole run, or its shards) and prints\nthe per-depth summary that scan prints: R = mean(Z)/Z_H with its confidence interval, the\nPorter–Thomas distance and the anti-concentration depth. --json prints the scan --json document.",
-		"mixdepth summarize shard-0.parquet shard-1.parquet --eps 0.02", stdout)
+	fs := newFlags("summarize", "mixdepth summarize FILE...: each FILE is a per-instance scan table.\n\nReads one or more per-instance scan tables of one run (a whole run, or its parts) and prints\nthe per-depth summary that scan prints: R = mean(Z)/Z_H with its confidence interval, the\nPorter–Thomas distance and the anti-concentration depth. --json prints the scan --json document.",
+		"mixdepth summarize part-0.parquet part-1.parquet --eps 0.02", stdout)
 	eps := fs.Float64("eps", fallbackEps, "anti-concentration threshold; the fallback when the table records none")
 	conf := fs.Float64("confidence", fallbackConfidence, "confidence level of the interval for R; the fallback when the table records none")
 	asJSON := fs.Bool("json", false, "print one JSON document instead of the text report")

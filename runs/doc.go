@@ -11,5 +11,6 @@
 // otherwise the functions here return a *DifferentRunError naming the key.
 //
 // Errors caused by the data (a table, its metadata, an option string) are
-// returned with the prefix "runs: "; programmer mistakes panic.
+// returned with the prefix "runs: " (a file that cannot be read keeps the
+// error of package tables); programmer mistakes panic.
 package runs

@@ -23,6 +23,7 @@ type DifferentRunError struct {
 	PathA, PathB string
 }
 
+// Error names the parameter, both values and both tables.
 func (e *DifferentRunError) Error() string {
 	quote := func(v string, absent bool) string {
 		if absent {
@@ -49,6 +50,7 @@ type DuplicateError struct {
 	PathA, PathB string
 }
 
+// Error names the repeated row or instance and, when known, its tables.
 func (e *DuplicateError) Error() string {
 	parts := make([]string, len(e.Keys))
 	for k, name := range e.Keys {

@@ -22,6 +22,7 @@ type ListError struct {
 	What, List, Detail string
 }
 
+// Error names the list, its text and the reason.
 func (e *ListError) Error() string {
 	return fmt.Sprintf("runs: %s %q: %s", e.What, e.List, e.Detail)
 }

@@ -48,6 +48,7 @@ type OptionError struct {
 	Err           error
 }
 
+// Error names the option and the reason.
 func (e *OptionError) Error() string {
 	if e.Value != "" {
 		return fmt.Sprintf("runs: %s %q: %v", e.Option, e.Value, e.Err)
@@ -55,6 +56,7 @@ func (e *OptionError) Error() string {
 	return fmt.Sprintf("runs: %s: %v", e.Option, e.Err)
 }
 
+// Unwrap returns the reason, so that errors.Is sees the circuits sentinels.
 func (e *OptionError) Unwrap() error { return e.Err }
 
 // NewSpec builds the graph, schedule and ensemble that o selects: the demo

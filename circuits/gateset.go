@@ -2,6 +2,8 @@ package circuits
 
 import (
 	"bytes"
+	"crypto/sha256"
+	"encoding/hex"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -10,6 +12,7 @@ import (
 	"math/cmplx"
 	"math/rand/v2"
 	"os"
+	"strconv"
 	"strings"
 )
 
@@ -370,4 +373,77 @@ func mul4(dst, a, b *[16]complex128) {
 			dst[i*4+j] = s
 		}
 	}
+}
+
+// IsBuiltin reports whether the set is one of the built-in "NAME+haar1"
+// sets, which a name alone rebuilds; a set read from a file is not.
+func (s *GateSet) IsBuiltin() bool {
+	if name, ok := strings.CutSuffix(s.Spec, "+haar1"); ok && s.Single == nil {
+		g, known := Entangler(name)
+		return known && g == s.G
+	}
+	return false
+}
+
+// Encode returns the canonical encoding of the set's matrices: a gate-set
+// file (see ReadGateSet) on one line, without spaces, with every number in
+// the shortest form that reads back to the same float64. Equal sets encode
+// to equal strings, and DecodeGateSet rebuilds the set exactly to the bit.
+func (s *GateSet) Encode() string {
+	var b strings.Builder
+	b.WriteString(`{"entangler":`)
+	writeMatrix(&b, s.G[:], 4)
+	b.WriteString(`,"single_qubit":`)
+	if s.Single == nil {
+		b.WriteString(`"haar"`)
+	} else {
+		b.WriteByte('[')
+		for k := range s.Single {
+			if k > 0 {
+				b.WriteByte(',')
+			}
+			writeMatrix(&b, s.Single[k][:], 2)
+		}
+		b.WriteByte(']')
+	}
+	b.WriteByte('}')
+	return b.String()
+}
+
+// Digest returns the first 16 hex digits of the SHA-256 of Encode, a short
+// name for the set's content (as Graph.Digest is for a graph).
+func (s *GateSet) Digest() string {
+	sum := sha256.Sum256([]byte(s.Encode()))
+	return hex.EncodeToString(sum[:])[:16]
+}
+
+// DecodeGateSet rebuilds a gate set from its Encode form; spec becomes the
+// set's Spec (the name it was recorded under, such as the original file
+// path). Errors are *ParseError values wrapping ErrGateSet, labelled spec.
+func DecodeGateSet(spec, enc string) (*GateSet, error) {
+	return ReadGateSet(spec, strings.NewReader(enc))
+}
+
+// writeMatrix writes the d×d row-major m as rows of [re, im] pairs.
+func writeMatrix(b *strings.Builder, m []complex128, d int) {
+	num := func(x float64) { b.WriteString(strconv.FormatFloat(x, 'g', -1, 64)) }
+	b.WriteByte('[')
+	for i := 0; i < d; i++ {
+		if i > 0 {
+			b.WriteByte(',')
+		}
+		b.WriteByte('[')
+		for j := 0; j < d; j++ {
+			if j > 0 {
+				b.WriteByte(',')
+			}
+			b.WriteByte('[')
+			num(real(m[i*d+j]))
+			b.WriteByte(',')
+			num(imag(m[i*d+j]))
+			b.WriteByte(']')
+		}
+		b.WriteByte(']')
+	}
+	b.WriteByte(']')
 }

@@ -35,7 +35,7 @@ const circuitConventions = "Start in |0...0> and apply, for each circuit, the st
 //	{"format": "mixdepth-circuits", "version": 1, "conventions": "…",
 //	 "qubits": n, "graph": "…", "graph_digest": "…", "edges": [[a, b], …],
 //	 "schedule": "layered", "gates": "haar", "seed": s, "depth": d,
-//	 "shard": "K/N", "partial": false,
+//	 "part": "K/N", "partial": false,
 //	 "circuits": [{"instance": i,
 //	               "steps": [[{"qubits": [a, b], "matrix": [[[re, im], …4], …4 rows]}, …], …],
 //	               "final": [[[[re, im], [re, im]], [[re, im], [re, im]]], …]}, …]}
@@ -52,7 +52,7 @@ type CircuitFile struct {
 	Gates       string
 	Seed        uint64
 	Depth       int
-	Shard       string
+	Part        string
 	Partial     bool
 	Circuits    []*Circuit
 }
@@ -125,8 +125,8 @@ func WriteCircuits(w io.Writer, f *CircuitFile) error {
 		}
 		fmt.Fprintf(bw, "[%d, %d]", e.A, e.B)
 	}
-	fmt.Fprintf(bw, "],\n  \"schedule\": %s,\n  \"gates\": %s,\n  \"seed\": %d,\n  \"depth\": %d,\n  \"shard\": %s,\n  \"partial\": %t,\n  \"circuits\": [",
-		str(string(f.Schedule)), str(f.Gates), f.Seed, f.Depth, str(f.Shard), f.Partial)
+	fmt.Fprintf(bw, "],\n  \"schedule\": %s,\n  \"gates\": %s,\n  \"seed\": %d,\n  \"depth\": %d,\n  \"part\": %s,\n  \"partial\": %t,\n  \"circuits\": [",
+		str(string(f.Schedule)), str(f.Gates), f.Seed, f.Depth, str(f.Part), f.Partial)
 	for ci, c := range f.Circuits {
 		if ci > 0 {
 			bw.WriteString(",")
@@ -199,7 +199,7 @@ type circuitFileJSON struct {
 	Gates       string                `json:"gates"`
 	Seed        uint64                `json:"seed"`
 	Depth       *int                  `json:"depth"`
-	Shard       string                `json:"shard"`
+	Part        string                `json:"part"`
 	Partial     bool                  `json:"partial"`
 	Circuits    []circuitJSON         `json:"circuits"`
 }
@@ -262,7 +262,7 @@ func ReadCircuits(name string, r io.Reader) (*CircuitFile, error) {
 	n := *fj.Qubits
 	f := &CircuitFile{
 		Qubits: n, Graph: fj.Graph, GraphDigest: fj.GraphDigest, Schedule: fj.Schedule, Gates: fj.Gates,
-		Seed: fj.Seed, Depth: *fj.Depth, Shard: fj.Shard, Partial: fj.Partial,
+		Seed: fj.Seed, Depth: *fj.Depth, Part: fj.Part, Partial: fj.Partial,
 	}
 	for i, e := range fj.Edges {
 		if len(e) != 2 {

@@ -24,7 +24,7 @@ func sampleFile(t *testing.T, gates, schedule string) (*CircuitFile, *circuits.G
 		t.Fatal(err)
 	}
 	f := &CircuitFile{Qubits: g.Qubits, Graph: g.Name, GraphDigest: g.Digest(), Edges: g.Edges,
-		Schedule: s.Kind(), Gates: e.Name(), Seed: 11, Depth: 4, Shard: "1/2"}
+		Schedule: s.Kind(), Gates: e.Name(), Seed: 11, Depth: 4, Part: "1/2"}
 	for _, id := range []int{1, 3, 5} {
 		f.Circuits = append(f.Circuits, Build(s, e, g.Qubits, f.Seed, id, f.Depth))
 	}
@@ -46,7 +46,7 @@ func TestCircuitFileRoundTrip(t *testing.T) {
 			t.Fatalf("%s: %v\n%s", tc.gates, err, buf.String())
 		}
 		if back.Qubits != f.Qubits || back.Seed != f.Seed || back.Depth != f.Depth || back.Gates != f.Gates ||
-			back.Schedule != f.Schedule || back.Shard != f.Shard || back.GraphDigest != g.Digest() || len(back.Circuits) != 3 {
+			back.Schedule != f.Schedule || back.Part != f.Part || back.GraphDigest != g.Digest() || len(back.Circuits) != 3 {
 			t.Fatalf("%s: header %+v", tc.gates, back)
 		}
 		if err := back.Check(g); err != nil {

@@ -10,10 +10,12 @@ import (
 	"strings"
 
 	"github.com/spf13/pflag"
+
+	"mixdepth/runs"
 )
 
 // version is the tool version recorded in every table.
-const version = "0.1.0"
+const version = runs.Version
 
 // command is one subcommand.
 type command struct {

@@ -6,12 +6,10 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"slices"
-	"strconv"
-	"strings"
 
 	"mixdepth/circuits"
 	"mixdepth/plots"
+	"mixdepth/runs"
 	"mixdepth/scan"
 	"mixdepth/sim"
 	"mixdepth/stats"
@@ -75,7 +73,7 @@ func runPTPlot(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	}
 	var records []scan.Record
 	if cmd, _ := t.Meta.Get("command"); cmd == "scan" {
-		if records, err = scanRecords(t); err != nil {
+		if records, err = runs.ScanRecords(t); err != nil {
 			return badInput("%s: a scan table without the scan columns: %v", path, err)
 		}
 	}
@@ -182,177 +180,24 @@ func instanceProbabilities(st *sim.State, s *setup, seed uint64, id, depth, work
 	return st.Probabilities(dst, gw)
 }
 
-// tableInstances returns the finished instance ids of a table: its
-// instances_done key, or the distinct ids of its instance column when the
-// key is absent. It checks that every row belongs to a listed instance.
-func tableInstances(t *tables.Table) ([]int, error) {
-	col, err := t.Int64s("instance")
-	if err != nil {
-		return nil, fmt.Errorf("not a per-instance table: %w", err)
-	}
-	var inRows []int
-	for _, v := range col {
-		inRows = append(inRows, int(v))
-	}
-	slices.Sort(inRows)
-	inRows = slices.Compact(inRows)
-	spec, ok := t.Meta.Get("instances_done")
-	if !ok {
-		return inRows, nil
-	}
-	ids, err := parseIDs(spec)
-	if err != nil {
-		return nil, fmt.Errorf("metadata instances_done: %w", err)
-	}
-	listed := map[int]bool{}
-	for _, id := range ids {
-		listed[id] = true
-	}
-	for _, id := range inRows {
-		if !listed[id] {
-			return nil, fmt.Errorf("rows of instance %d, which instances_done (%q) does not list", id, spec)
-		}
-	}
-	if len(inRows) != len(ids) {
-		return nil, fmt.Errorf("instances_done lists %d instances but the rows hold %d: the table is damaged; rewrite it from its shards", len(ids), len(inRows))
-	}
-	return ids, nil
-}
+// tableInstances returns the finished instance ids of a table
+// (runs.TableInstances).
+func tableInstances(t *tables.Table) ([]int, error) { return runs.TableInstances(t) }
 
 // setupFromMeta rebuilds the circuits of a run from the metadata of a table
-// it wrote (see runMeta): the graph from qubits, graph and edges, checked
-// against graph_digest; the layered schedule from layers, or the random-edge
-// schedule; the gate ensemble from gates. Errors name the key at fault.
+// it wrote (runs.FromMeta). Errors name the key at fault.
 func setupFromMeta(meta tables.Meta) (*setup, error) {
-	get := func(key string) (string, error) {
-		v, ok := meta.Get(key)
-		if !ok {
-			return "", fmt.Errorf("metadata has no %q key: not a table written by a mixdepth command that builds circuits", key)
-		}
-		return v, nil
-	}
-	name, err := get("graph")
+	sp, err := runs.FromMeta(meta)
 	if err != nil {
 		return nil, err
 	}
-	qubits, err := metaInt(meta, "qubits")
-	if err != nil {
-		return nil, err
-	}
-	edgeSpec, err := get("edges")
-	if err != nil {
-		return nil, err
-	}
-	edges, err := parseEdges(edgeSpec)
-	if err != nil {
-		return nil, fmt.Errorf("metadata edges: %w", err)
-	}
-	g, err := circuits.NewGraph(name, qubits, edges)
-	if err != nil {
-		return nil, fmt.Errorf("metadata edges: %w", err)
-	}
-	digest, err := get("graph_digest")
-	if err != nil {
-		return nil, err
-	}
-	if digest != g.Digest() {
-		return nil, fmt.Errorf("metadata edges give graph digest %s but graph_digest is %s: the metadata was altered", g.Digest(), digest)
-	}
-	s := &setup{graph: g}
-	s.layout, _ = meta.Get("layout")
-	kind, err := get("schedule")
-	if err != nil {
-		return nil, err
-	}
-	switch kind {
-	case "layered":
-		spec, err := get("layers")
-		if err != nil {
-			return nil, err
-		}
-		var classes [][]circuits.Edge
-		for i, part := range strings.Split(spec, ";") {
-			class, err := parseEdges(part)
-			if err != nil || len(class) == 0 {
-				return nil, fmt.Errorf("metadata layers: layer %d (%q) is not a list a-b,c-d,…", i, part)
-			}
-			for _, e := range class {
-				if !g.HasEdge(e.A, e.B) {
-					return nil, fmt.Errorf("metadata layers: layer %d uses %d-%d, which is not an edge of the graph", i, e.A, e.B)
-				}
-			}
-			classes = append(classes, class)
-		}
-		s.schedule = &circuits.Layered{Classes: classes}
-	case "random-edge":
-		s.schedule = &circuits.RandomEdge{Edges: g.Edges}
-	default:
-		return nil, fmt.Errorf("metadata schedule %q: expected layered or random-edge", kind)
-	}
-	gates, err := get("gates")
-	if err != nil {
-		return nil, err
-	}
-	if s.ensemble, err = circuits.NewEnsemble(gates); err != nil {
-		return nil, fmt.Errorf("metadata gates: %w", err)
-	}
-	return s, nil
+	return newSetup(sp), nil
 }
 
-// parseEdges reads the "a-b,c-d,…" form written by formatEdges.
-func parseEdges(spec string) ([]circuits.Edge, error) {
-	if spec == "" {
-		return nil, nil
-	}
-	var edges []circuits.Edge
-	for _, item := range strings.Split(spec, ",") {
-		as, bs, ok := strings.Cut(item, "-")
-		a, err1 := strconv.Atoi(as)
-		b, err2 := strconv.Atoi(bs)
-		if !ok || err1 != nil || err2 != nil {
-			return nil, fmt.Errorf("%q is not an edge a-b", item)
-		}
-		edges = append(edges, circuits.Edge{A: a, B: b})
-	}
-	return edges, nil
-}
-
-// metaInt reads an integer metadata value.
-func metaInt(meta tables.Meta, key string) (int, error) {
-	v, ok := meta.Get(key)
-	if !ok {
-		return 0, fmt.Errorf("metadata has no %q key", key)
-	}
-	n, err := strconv.Atoi(v)
-	if err != nil {
-		return 0, fmt.Errorf("metadata %s %q is not a whole number", key, v)
-	}
-	return n, nil
-}
-
-// metaUint reads an unsigned integer metadata value, such as the seed.
-func metaUint(meta tables.Meta, key string) (uint64, error) {
-	v, ok := meta.Get(key)
-	if !ok {
-		return 0, fmt.Errorf("metadata has no %q key", key)
-	}
-	n, err := strconv.ParseUint(v, 10, 64)
-	if err != nil {
-		return 0, fmt.Errorf("metadata %s %q is not a whole number", key, v)
-	}
-	return n, nil
-}
-
-// metaFloatOr reads a float metadata value, or returns def when the key is
-// absent or unreadable (tables written before the key existed).
+// metaInt, metaUint and metaFloatOr read metadata values (runs.MetaInt,
+// runs.MetaUint, runs.MetaFloatOr).
+func metaInt(meta tables.Meta, key string) (int, error)     { return runs.MetaInt(meta, key) }
+func metaUint(meta tables.Meta, key string) (uint64, error) { return runs.MetaUint(meta, key) }
 func metaFloatOr(meta tables.Meta, key string, def float64) float64 {
-	v, ok := meta.Get(key)
-	if !ok {
-		return def
-	}
-	x, err := strconv.ParseFloat(v, 64)
-	if err != nil {
-		return def
-	}
-	return x
+	return runs.MetaFloatOr(meta, key, def)
 }

@@ -5,6 +5,9 @@ import (
 	"context"
 	"math"
 	"path/filepath"
+	"reflect"
+	"slices"
+	"strings"
 	"testing"
 	"time"
 
@@ -91,4 +94,38 @@ func TestInterruptAndResume(t *testing.T) {
 			t.Errorf("resumed table still partial=%q", p)
 		}
 	}
+}
+
+// TestResumeExtends: a finished table continued with --resume and a larger
+// --instances gains the new instances with their own streams, so its rows
+// are those of a fresh run of the larger count, bit for bit; for a part too.
+// Any other changed parameter, or a smaller count, is bad input naming it.
+func TestResumeExtends(t *testing.T) {
+	dir := t.TempDir()
+	base := []string{"scan", "--graph", "grid:2x3", "--depths", "1,3,6", "--seed", "4", "--workers", "1"}
+	with := func(extra ...string) []string { return append(slices.Clone(base), extra...) }
+	for _, part := range []string{"0/1", "1/3"} {
+		fresh := filepath.Join(dir, "fresh.parquet")
+		mustRun(t, with("--instances", "15", "--part", part, "--out", fresh)...)
+		table := filepath.Join(dir, "table.parquet")
+		mustRun(t, with("--instances", "6", "--part", part, "--out", table)...)
+		_, stderr, code := runCLI(t, with("--instances", "15", "--part", part, "--resume", table)...)
+		if code != 0 {
+			t.Fatalf("part %s: extend: exit %d: %s", part, code, stderr)
+		}
+		if !strings.Contains(stderr, "to run") {
+			t.Errorf("part %s: no resume note: %q", part, stderr)
+		}
+		got, want := readTable(t, table), readTable(t, fresh)
+		equalRowsExactly(t, got, want)
+		if !reflect.DeepEqual(metaWithout(got.Meta, "command_line"), metaWithout(want.Meta, "command_line")) {
+			t.Errorf("part %s: metadata of the extended table\n%v\nof the fresh run\n%v", part, got.Meta, want.Meta)
+		}
+	}
+	table := filepath.Join(dir, "table.parquet")
+	mustRun(t, with("--instances", "6", "--out", table)...)
+	wantExit2(t, with("--instances", "4", "--resume", table), "another run", "instances", `"6"`, `"4"`)
+	wantExit2(t, with("--instances", "9", "--eps", "0.1", "--resume", table), "another run", "eps")
+	wantExit2(t, append(with("--instances", "9", "--resume", table), "--seed", "5"), "another run", "seed")
+	wantExit2(t, with("--instances", "9", "--part", "1/2", "--resume", table), "another run", "part")
 }

@@ -55,7 +55,7 @@ type sampleJSON struct {
 	Depth             int                   `json:"depth"`
 	GateCount         int                   `json:"gate_count"`
 	Instances         int                   `json:"instances"`
-	Shard             string                `json:"shard"`
+	Part              string                `json:"part"`
 	InstancesDone     string                `json:"instances_done"`
 	Shots             int                   `json:"shots"`
 	Fidelity          float64               `json:"fidelity"`
@@ -100,7 +100,7 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	gateError := fs.Float64("gate-error", 0, "Pauli error rate e in [0, 1] after every two-qubit gate (quantum trajectories)")
 	readout := fs.String("readout-error", "0,0", "readout flip probabilities p01,p10 (0→1, 1→0), or one value for both")
 	trajectories := fs.Int("trajectories", sampling.DefaultTrajectories, "trajectories per instance with --gate-error: T = min(shots, this)")
-	shardFlag := fs.String("shard", "", "run only the instances i with i mod N = K (K/N), for job arrays; merge the tables with 'mixdepth merge'")
+	partFlag := fs.String("part", "", partFlagHelp)
 	workers := fs.Int("workers", defaultWorkers(), "worker goroutines")
 	out := fs.String("out", "", "write the shots to FILE.arrow or FILE.parquet")
 	circuitsOut := fs.String("circuits", "", "write every instance's gates to FILE.json (qubit pairs and 4×4 matrices) for hardware or another simulator")
@@ -140,7 +140,7 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	if err != nil {
 		return err
 	}
-	shard, err := parseShard(*shardFlag)
+	part, err := parsePart(*partFlag)
 	if err != nil {
 		return err
 	}
@@ -150,10 +150,10 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	noise := sampling.Noise{Fidelity: *fidelity, GateError: *gateError, Readout01: p01, Readout10: p10}
 	cfg := &sampling.Config{
 		Schedule: s.schedule, Ensemble: s.ensemble, Qubits: s.graph.Qubits, Depth: *depth, Seed: cf.seed,
-		Instances: shard.instances(*instances), Shots: *shots, Noise: noise, Trajectories: *trajectories, Workers: *workers,
+		Instances: part.Instances(*instances), Shots: *shots, Noise: noise, Trajectories: *trajectories, Workers: *workers,
 	}
 	if len(cfg.Instances) == 0 {
-		return badInput("--shard %s selects no instance of %d: use fewer shards or more instances", shard, *instances)
+		return badInput("--part %s selects no instance of %d: use fewer parts or more instances", part, *instances)
 	}
 	gateCount := s.schedule.GateCount(*depth)
 	usedTrajectories := 0
@@ -171,7 +171,7 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	meta.Set("gate_error", formatFloat(noise.GateError))
 	meta.Set("readout_error", formatFloat(p01)+","+formatFloat(p10))
 	meta.Set("trajectories", strconv.Itoa(usedTrajectories))
-	meta.Set("shard", shard.String())
+	meta.Set("part", part.String())
 	if *out != "" {
 		if err := checkWritable(*out, sampleFields, meta, "--out"); err != nil {
 			return err
@@ -222,7 +222,7 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		f := &sampling.CircuitFile{
 			Qubits: s.graph.Qubits, Graph: s.graph.Name, GraphDigest: s.graph.Digest(), Edges: s.graph.Edges,
 			Schedule: s.schedule.Kind(), Gates: s.ensemble.Name(), Seed: cf.seed, Depth: *depth,
-			Shard: shard.String(), Partial: partial,
+			Part: part.String(), Partial: partial,
 		}
 		for _, r := range results {
 			f.Circuits = append(f.Circuits, r.Circuit)
@@ -259,7 +259,7 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		return writeJSON(stdout, sampleJSON{
 			Tool: "mixdepth", Version: version, Graph: s.graph.Name, GraphDigest: s.graph.Digest(), Qubits: s.graph.Qubits,
 			Schedule: s.schedule.Kind(), Gates: s.ensemble.Name(), Seed: cf.seed, Depth: *depth, GateCount: gateCount,
-			Instances: *instances, Shard: shard.String(), InstancesDone: formatIDs(done), Shots: *shots,
+			Instances: *instances, Part: part.String(), InstancesDone: formatIDs(done), Shots: *shots,
 			Fidelity: noise.Fidelity, GateError: noise.GateError, ReadoutError: [2]float64{p01, p10},
 			Trajectories: usedTrajectories, PredictedFidelity: predicted,
 			LinearXEB: finiteOrNull(rep.Linear), LinearXEBStderr: finiteOrNull(rep.LinearErr),
@@ -269,8 +269,8 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	}
 	fmt.Fprintln(stdout, s.describe())
 	fmt.Fprintf(stdout, "seed %d · depth %d (%d two-qubit gates) · %d instance(s) × %d shots", cf.seed, *depth, gateCount, len(done), *shots)
-	if !shard.whole() {
-		fmt.Fprintf(stdout, " · shard %s of %d instances", shard, *instances)
+	if !part.IsWhole() {
+		fmt.Fprintf(stdout, " · part %s of %d instances", part, *instances)
 	}
 	fmt.Fprintln(stdout)
 	fmt.Fprintf(stdout, "noise: %s\n\n", describeNoise(noise, usedTrajectories))

@@ -97,7 +97,7 @@ func TestSampleTable(t *testing.T) {
 	for k, v := range map[string]string{
 		"command": "sample", "seed": "3", "graph": "line:5", "qubits": "5", "schedule": "layered", "gates": "haar",
 		"depth": "8", "gate_count": "16", "instances": "4", "shots": "300", "fidelity": "0.9", "gate_error": "0.02",
-		"readout_error": "0.01,0.02", "trajectories": "100", "shard": "0/1", "partial": "false", "instances_done": "0-3",
+		"readout_error": "0.01,0.02", "trajectories": "100", "part": "0/1", "partial": "false", "instances_done": "0-3",
 		"edges": "0-1,1-2,2-3,3-4", "layers": "0-1,2-3;1-2,3-4",
 	} {
 		if got, ok := tab.Meta.Get(k); !ok || got != v {
@@ -235,7 +235,7 @@ func TestSampleShards(t *testing.T) {
 	for k := range 2 {
 		p := filepath.Join(dir, "s"+strconv.Itoa(k)+".arrow")
 		cp := filepath.Join(dir, "c"+strconv.Itoa(k)+".json")
-		sampleOK(t, append(smallSample, "--shard", strconv.Itoa(k)+"/2", "--workers", "2", "--out", p, "--circuits", cp)...)
+		sampleOK(t, append(smallSample, "--part", strconv.Itoa(k)+"/2", "--workers", "2", "--out", p, "--circuits", cp)...)
 		tab := sampleTable(t, p)
 		inst, _ := tab.Int64s("instance")
 		shot, _ := tab.Int64s("shot")
@@ -251,7 +251,7 @@ func TestSampleShards(t *testing.T) {
 			}
 		}
 		wantDone := map[int]string{0: "0,2", 1: "1,3"}[k]
-		for key, v := range map[string]string{"shard": strconv.Itoa(k) + "/2", "instances": "4", "instances_done": wantDone, "partial": "false"} {
+		for key, v := range map[string]string{"part": strconv.Itoa(k) + "/2", "instances": "4", "instances_done": wantDone, "partial": "false"} {
 			if got, _ := tab.Meta.Get(key); got != v {
 				t.Errorf("shard %d/2: metadata %s = %q, want %q", k, key, got, v)
 			}
@@ -407,8 +407,8 @@ func TestSampleScorePlanBadInput(t *testing.T) {
 		{"readout word", []string{"sample", "--graph", "line:4", "--readout-error", "0.1,x"}, []string{"--readout-error", `"x"`}},
 		{"readout range", []string{"sample", "--graph", "line:4", "--readout-error", "2"}, []string{"--readout-error", "[0, 1]"}},
 		{"trajectories", []string{"sample", "--graph", "line:4", "--trajectories", "0"}, []string{"--trajectories 0"}},
-		{"shard", []string{"sample", "--graph", "line:4", "--shard", "2/2"}, []string{"--shard"}},
-		{"empty shard", []string{"sample", "--graph", "line:4", "--instances", "2", "--shard", "3/4"}, []string{"selects no instance"}},
+		{"part", []string{"sample", "--graph", "line:4", "--part", "2/2"}, []string{"--part"}},
+		{"empty shard", []string{"sample", "--graph", "line:4", "--instances", "2", "--part", "3/4"}, []string{"selects no instance"}},
 		{"circuits name", []string{"sample", "--graph", "line:4", "--circuits", filepath.Join(dir, "c.txt")}, []string{"--circuits", ".json"}},
 		{"circuits dir", []string{"sample", "--graph", "line:4", "--circuits", filepath.Join(dir, "no", "c.json")}, []string{"--circuits"}},
 		{"out format", []string{"sample", "--graph", "line:4", "--out", filepath.Join(dir, "t.csv")}, []string{".arrow or .parquet"}},

@@ -7,7 +7,6 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"slices"
 	"strconv"
 	"strings"
 
@@ -15,6 +14,7 @@ import (
 
 	"mixdepth/circuits"
 	"mixdepth/plots"
+	"mixdepth/runs"
 	"mixdepth/scan"
 	"mixdepth/sim"
 	"mixdepth/tables"
@@ -26,21 +26,14 @@ func init() {
 
 // scanJSON is the --json document of scan. Field names are an interface.
 type scanJSON struct {
-	Tool                   string                `json:"tool"`
-	Version                string                `json:"version"`
-	Graph                  string                `json:"graph"`
-	GraphDigest            string                `json:"graph_digest"`
-	Qubits                 int                   `json:"qubits"`
-	Edges                  int                   `json:"edges"`
-	Schedule               circuits.ScheduleKind `json:"schedule"`
-	Gates                  string                `json:"gates"`
-	HaarCollision          float64               `json:"haar_collision"`
-	Seed                   uint64                `json:"seed"`
-	Instances              int                   `json:"instances"`
-	Eps                    float64               `json:"eps"`
-	Confidence             float64               `json:"confidence"`
-	AnticoncentrationDepth *int                  `json:"anticoncentration_depth"`
-	Rows                   []scanJSONRow         `json:"rows"`
+	runs.Header
+	HaarCollision          float64       `json:"haar_collision"`
+	Seed                   uint64        `json:"seed"`
+	Instances              int           `json:"instances"`
+	Eps                    float64       `json:"eps"`
+	Confidence             float64       `json:"confidence"`
+	AnticoncentrationDepth *int          `json:"anticoncentration_depth"`
+	Rows                   []scanJSONRow `json:"rows"`
 }
 
 type scanJSONRow struct {
@@ -58,17 +51,6 @@ type scanJSONRow struct {
 	ExactDeviation *float64 `json:"exact_deviation_sigmas,omitempty"`
 }
 
-// scanFields are the columns of the per-instance scan table.
-var scanFields = []tables.Field{
-	{Name: "depth", Type: tables.Int64, Unit: "layers (gates for random-edge)", Doc: "circuit depth (layers, or gates for random-edge)"},
-	{Name: "gate_count", Type: tables.Int64, Unit: "gates", Doc: "two-qubit gates applied up to this depth"},
-	{Name: "instance", Type: tables.Int64, Doc: "instance id; its random stream depends only on (seed, instance)"},
-	{Name: "collision", Type: tables.Float64, Unit: "probability", Doc: "collision probability Z = Σ p(x)²"},
-	{Name: "collision_ratio", Type: tables.Float64, Doc: "Z / Z_H with Z_H = 2/(D+1)"},
-	{Name: "pt_ks", Type: tables.Float64, Doc: "Kolmogorov–Smirnov distance of the output probabilities to Beta(1, D−1)"},
-	{Name: "xeb_ideal", Type: tables.Float64, Doc: "linear XEB of an ideal sampler, D·Z − 1"},
-}
-
 func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	fs := newFlags("scan", "Simulates random circuit instances exactly and reports, per depth, the collision probability\nagainst the Haar value 2/(D+1) with a confidence interval, the Porter–Thomas distance, and the\nsmallest depth that anti-concentrates. With no flags it runs the demo chip.",
 		"mixdepth scan --graph grid:3x4 --depths 1:16 --instances 400 --out scan.parquet", stdout)
@@ -80,8 +62,8 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	conf := fs.Float64("confidence", 0.95, "confidence level of the interval for R")
 	workers := fs.Int("workers", defaultWorkers(), "worker goroutines")
 	out := fs.String("out", "", "write the per-instance table to FILE.arrow or FILE.parquet")
-	shardFlag := fs.String("shard", "", "run only the instances i with i mod N = K (K/N), for job arrays; merge the shards with 'mixdepth merge'")
-	resume := fs.String("resume", "", "continue the partial table FILE left by an interrupted scan with the same flags (writes --out, default FILE)")
+	partFlag := fs.String("part", "", partFlagHelp)
+	resume := fs.String("resume", "", "continue the table FILE left by an interrupted scan with the same flags, or extend a finished one with a larger --instances (writes --out, default FILE)")
 	precision := fs.String("precision", "double", "amplitude precision: double (complex128) or single (complex64: half the memory, 31 qubits in 16 GiB; collision probability to about 1e-6 relative)")
 	plot := fs.String("plot", "", "draw R − 1 against depth with its confidence band to FILE.png or FILE.svg")
 	withExact := fs.Bool("exact", false, "also compute the exact E[Z] at each depth (no sampling) and flag depths where the Monte Carlo mean is more than 4 standard errors from it")
@@ -110,7 +92,7 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		return badInput("--instances %d: must be between 1 (2 or more for error bars) and %d", *instances, maxInstances)
 	}
 	if *instances*len(depths) > 100_000_000 {
-		return badInput("--instances %d × %d depths: more than 10^8 per-instance records to hold; use fewer, or shards (--shard)", *instances, len(depths))
+		return badInput("--instances %d × %d depths: more than 10^8 per-instance records to hold; use fewer, or parts (--part)", *instances, len(depths))
 	}
 	if err := checkUnit("eps", *eps); err != nil {
 		return err
@@ -121,7 +103,7 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if *workers <= 0 {
 		return badInput("--workers %d: must be at least 1", *workers)
 	}
-	shard, err := parseShard(*shardFlag)
+	part, err := parsePart(*partFlag)
 	if err != nil {
 		return err
 	}
@@ -132,19 +114,10 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		*out = *resume
 	}
 
-	meta := runMeta(s, &cf)
-	meta.Set("command", "scan")
-	meta.Set("depths", joinInts(depths))
-	meta.Set("instances", strconv.Itoa(*instances))
-	meta.Set("eps", strconv.FormatFloat(*eps, 'g', -1, 64))
-	meta.Set("confidence", strconv.FormatFloat(*conf, 'g', -1, 64))
-	meta.Set("shard", shard.String())
-	meta.Set("precision", *precision)
-	meta.Set("exact", strconv.FormatBool(*withExact))
-	fields := scanFields
-	if *withExact {
-		fields = append(append([]tables.Field(nil), scanFields...), scanExactField)
-	}
+	sr := &runs.ScanRun{Spec: s.spec, Depths: depths, Instances: *instances, Eps: *eps, Confidence: *conf,
+		Part: part, Precision: scan.Precision(*precision), Exact: *withExact}
+	meta := sr.Meta(commandLine())
+	fields := runs.ScanFields(*withExact)
 	if *out != "" {
 		flag := "--out"
 		if *resume == *out {
@@ -166,15 +139,15 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		}
 	}
 
-	runIDs := shard.instances(*instances)
+	runIDs := part.Instances(*instances)
 	if len(runIDs) == 0 {
-		return badInput("--shard %s selects no instance of %d; use fewer shards than instances", shard, *instances)
+		return badInput("--part %s selects no instance of %d; use fewer parts than instances", part, *instances)
 	}
 	ids := runIDs
 	var previous []scan.Record
 	if *resume != "" {
-		if previous, ids, err = resumeScan(*resume, meta, runIDs); err != nil {
-			return err
+		if previous, ids, err = runs.Resume(*resume, meta, runIDs); err != nil {
+			return resumeInput(err)
 		}
 		fmt.Fprintf(stderr, "resuming %s: %d instance(s) done, %d to run\n", *resume, len(runIDs)-len(ids), len(ids))
 	}
@@ -200,13 +173,12 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		}
 		return err
 	}
-	records = mergeRecords(previous, records)
-	doneAll := recordInstances(records)
-	partial := len(doneAll) < len(runIDs)
+	records = append(previous, records...)
+	runs.SortRecords(records)
+	doneAll := runs.RecordInstances(records)
 	if *out != "" {
-		meta.Set("partial", strconv.FormatBool(partial))
-		meta.Set("instances_done", formatIDs(doneAll))
-		if err := writeScanTable(*out, meta, records, exact); err != nil {
+		runs.SetDone(&meta, doneAll, len(doneAll) < len(runIDs))
+		if err := runs.WriteScanTable(*out, meta, records, exact.at()); err != nil {
 			return err
 		}
 	}
@@ -245,7 +217,7 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		}
 		return writeJSON(stdout, doc)
 	}
-	printScan(stdout, s, &cf, instancesNote(len(doneAll), shard, *instances), *eps, *conf, sum)
+	printScan(stdout, s, &cf, instancesNote(len(doneAll), part, *instances), *eps, *conf, sum)
 	if exact != nil {
 		printExactCheck(stdout, sum, exact)
 	}
@@ -269,9 +241,7 @@ func depthUnit(s *setup) string {
 // scanDocument assembles the --json document of a scan summary.
 func scanDocument(s *setup, seed uint64, instances int, eps, conf float64, sum *scan.Curve) scanJSON {
 	doc := scanJSON{
-		Tool: "mixdepth", Version: version, Graph: s.graph.Name, GraphDigest: s.graph.Digest(),
-		Qubits: s.graph.Qubits, Edges: len(s.graph.Edges), Schedule: s.schedule.Kind(), Gates: s.ensemble.Name(),
-		HaarCollision: sum.HaarCollision, Seed: seed, Instances: instances, Eps: eps, Confidence: conf,
+		Header: s.spec.Header(), HaarCollision: sum.HaarCollision, Seed: seed, Instances: instances, Eps: eps, Confidence: conf,
 	}
 	if sum.Found {
 		d := sum.Depth
@@ -297,34 +267,26 @@ func checkWritable(path string, fields []tables.Field, meta tables.Meta, flag st
 	return nil
 }
 
-// scanExactField is the extra column of scan --exact.
-var scanExactField = tables.Field{Name: "collision_exact", Type: tables.Float64, Unit: "probability", Doc: "exact ensemble average E[Z] at this depth (scan --exact)"}
+// at returns the exact E[Z] by depth, or nil when r is nil (no --exact).
+func (r *exactResult) at() map[int]float64 {
+	if r == nil {
+		return nil
+	}
+	m := map[int]float64{}
+	for k, d := range r.depths {
+		m[d] = r.collision[k]
+	}
+	return m
+}
 
-// writeScanTable writes the per-instance records atomically, with the
-// exact E[Z] of each depth as an extra column when exact is not nil.
-func writeScanTable(path string, meta tables.Meta, records []scan.Record, exact *exactResult) error {
-	fields := scanFields
-	var exactAt map[int]float64
-	if exact != nil {
-		fields = append(append([]tables.Field(nil), scanFields...), scanExactField)
-		exactAt = map[int]float64{}
-		for k, d := range exact.depths {
-			exactAt[d] = exact.collision[k]
-		}
+// resumeInput turns a failure of runs.Resume into bad input, with the hint
+// for a table of another run.
+func resumeInput(err error) error {
+	var dr *runs.DifferentRunError
+	if errors.As(err, &dr) {
+		return usageError{fmt.Errorf("%w; use the same flags as the run that wrote it (only --instances may grow)", err)}
 	}
-	w, err := tables.Create(path, fields, meta)
-	if err != nil {
-		return fmt.Errorf("writing %s: %w", path, err)
-	}
-	defer w.Abort()
-	for _, r := range records {
-		if exact != nil {
-			w.Append(r.Depth, r.GateCount, r.Instance, r.Collision, r.Ratio, r.KS, r.XEBIdeal, exactAt[r.Depth])
-			continue
-		}
-		w.Append(r.Depth, r.GateCount, r.Instance, r.Collision, r.Ratio, r.KS, r.XEBIdeal)
-	}
-	return w.Close()
+	return usageError{fmt.Errorf("--resume: %w", err)}
 }
 
 // printExactCheck compares the Monte Carlo means with the exact values and
@@ -350,94 +312,6 @@ func printExactCheck(w io.Writer, sum *scan.Curve, exact *exactResult) {
 	}
 }
 
-// scanRecords reads the per-instance records of a scan table.
-func scanRecords(t *tables.Table) ([]scan.Record, error) {
-	depth, err1 := t.Int64s("depth")
-	gates, err2 := t.Int64s("gate_count")
-	inst, err3 := t.Int64s("instance")
-	z, err4 := t.Float64s("collision")
-	ratio, err5 := t.Float64s("collision_ratio")
-	ks, err6 := t.Float64s("pt_ks")
-	xeb, err7 := t.Float64s("xeb_ideal")
-	if err := errors.Join(err1, err2, err3, err4, err5, err6, err7); err != nil {
-		return nil, err
-	}
-	recs := make([]scan.Record, t.Len())
-	for i := range recs {
-		recs[i] = scan.Record{Depth: int(depth[i]), GateCount: int(gates[i]), Instance: int(inst[i]),
-			Collision: z[i], Ratio: ratio[i], KS: ks[i], XEBIdeal: xeb[i]}
-	}
-	return recs, nil
-}
-
-// resumeScan reads a partial scan table, checks that it comes from the run
-// described by meta, and returns its records and the ids still to run.
-func resumeScan(path string, meta tables.Meta, ids []int) ([]scan.Record, []int, error) {
-	t, err := tables.Read(path)
-	if err != nil {
-		return nil, nil, usageError{fmt.Errorf("--resume: %w", err)}
-	}
-	if err := sameRun(meta, t.Meta, path); err != nil {
-		return nil, nil, err
-	}
-	recs, err := scanRecords(t)
-	if err != nil {
-		return nil, nil, usageError{fmt.Errorf("--resume %s: not a scan table: %w", path, err)}
-	}
-	have := map[int]bool{}
-	for _, id := range recordInstances(recs) {
-		have[id] = true
-	}
-	var todo []int
-	for _, id := range ids {
-		if !have[id] {
-			todo = append(todo, id)
-		}
-	}
-	return recs, todo, nil
-}
-
-// runKeysIgnored are the metadata keys that may differ between the tables
-// of one run (shards, partial tables and their continuations).
-var runKeysIgnored = map[string]bool{"command_line": true, "partial": true, "instances_done": true}
-
-// sameRun returns a usage error naming the first run parameter in which the
-// table's metadata got differs from want.
-func sameRun(want, got tables.Meta, path string) error {
-	for i, k := range want.Keys {
-		if runKeysIgnored[k] {
-			continue
-		}
-		v, ok := got.Get(k)
-		if !ok || v != want.Values[i] {
-			return badInput("%s comes from another run: its %s is %q, this run's is %q; use the same flags as the run that wrote it", path, k, v, want.Values[i])
-		}
-	}
-	return nil
-}
-
-// mergeRecords combines two record sets ordered by (depth, instance).
-func mergeRecords(a, b []scan.Record) []scan.Record {
-	all := append(append([]scan.Record(nil), a...), b...)
-	slices.SortFunc(all, func(x, y scan.Record) int {
-		if x.Depth != y.Depth {
-			return x.Depth - y.Depth
-		}
-		return x.Instance - y.Instance
-	})
-	return all
-}
-
-// recordInstances returns the distinct instance ids of records, ascending.
-func recordInstances(records []scan.Record) []int {
-	var ids []int
-	for _, r := range records {
-		ids = append(ids, r.Instance)
-	}
-	slices.Sort(ids)
-	return slices.Compact(ids)
-}
-
 // printScan writes the human report of a scan.
 func printScan(w io.Writer, s *setup, cf *circuitFlags, instances string, eps, conf float64, sum *scan.Curve) {
 	fmt.Fprintln(w, s.describe())
@@ -457,14 +331,14 @@ func printScan(w io.Writer, s *setup, cf *circuitFlags, instances string, eps, c
 }
 
 // instancesNote says how many instances a summary holds, and of which
-// shard of how large a run.
-func instancesNote(n int, shard shardSpec, total int) string {
+// part of how large a run.
+func instancesNote(n int, part runs.Part, total int) string {
 	note := strconv.Itoa(n) + " instance"
 	if n != 1 {
 		note += "s"
 	}
-	if !shard.whole() {
-		note += fmt.Sprintf(" (shard %s of a %d-instance run)", shard, total)
+	if !part.IsWhole() {
+		note += fmt.Sprintf(" (part %s of a %d-instance run)", part, total)
 	}
 	return note
 }
@@ -486,50 +360,16 @@ func scanVerdict(sum *scan.Curve, eps, conf float64) string {
 	return ""
 }
 
-// runMeta is the table metadata shared by every command that builds circuits.
+// runMeta is the table metadata shared by every command that builds
+// circuits (runs.Spec.Meta), with the seed of cf.
 func runMeta(s *setup, cf *circuitFlags) tables.Meta {
-	var m tables.Meta
-	m.Set("tool_version", "mixdepth "+version)
-	m.Set("command_line", commandLine())
-	m.Set("seed", strconv.FormatUint(cf.seed, 10))
-	m.Set("graph", s.graph.Name)
-	m.Set("graph_digest", s.graph.Digest())
-	m.Set("qubits", strconv.Itoa(s.graph.Qubits))
-	m.Set("schedule", string(s.schedule.Kind()))
-	m.Set("layout", s.layout)
-	m.Set("gates", s.ensemble.Name())
-	m.Set("edges", formatEdges(s.graph.Edges))
-	if l, ok := s.schedule.(*circuits.Layered); ok {
-		m.Set("layers", formatLayers(l.Classes))
-	}
-	return m
+	sp := *s.spec
+	sp.Seed = cf.seed
+	return sp.Meta(commandLine())
 }
 
-// formatEdges writes edges as "a-b,c-d,…" so a table records its graph.
-func formatEdges(edges []circuits.Edge) string {
-	parts := make([]string, len(edges))
-	for i, e := range edges {
-		parts[i] = strconv.Itoa(e.A) + "-" + strconv.Itoa(e.B)
-	}
-	return strings.Join(parts, ",")
-}
-
-// formatLayers writes the layered schedule's classes as "a-b,c-d;e-f;…".
-func formatLayers(classes [][]circuits.Edge) string {
-	parts := make([]string, len(classes))
-	for i, c := range classes {
-		parts[i] = formatEdges(c)
-	}
-	return strings.Join(parts, ";")
-}
-
-func joinInts(v []int) string {
-	s := make([]string, len(v))
-	for i, x := range v {
-		s[i] = strconv.Itoa(x)
-	}
-	return strings.Join(s, ",")
-}
+// joinInts writes a depth list as "2,4,8" (runs.FormatDepths).
+func joinInts(v []int) string { return runs.FormatDepths(v) }
 
 // finiteOrNull returns nil (JSON null) for ±Inf and NaN, as for the
 // interval of a single instance, which has no error bar.

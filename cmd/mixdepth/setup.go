@@ -1,18 +1,16 @@
 package main
 
 import (
+	"errors"
 	"fmt"
 	"os"
 	"runtime"
-	"slices"
-	"strconv"
-	"strings"
 
 	"github.com/spf13/pflag"
 	"golang.org/x/term"
 
 	"mixdepth/circuits"
-	"mixdepth/fixtures"
+	"mixdepth/runs"
 )
 
 // defaultSeed is the seed used when --seed is not given; it is always printed.
@@ -32,8 +30,10 @@ func (c *circuitFlags) add(fs *pflag.FlagSet) {
 	fs.Uint64Var(&c.seed, "seed", defaultSeed, "seed of the per-instance random streams")
 }
 
-// setup is what the circuit flags resolve to.
+// setup is what the circuit flags resolve to: a view of a runs.Spec with
+// the names the command files use.
 type setup struct {
+	spec     *runs.Spec
 	graph    *circuits.Graph
 	schedule circuits.Schedule
 	ensemble circuits.Ensemble
@@ -42,60 +42,25 @@ type setup struct {
 	demo   bool
 }
 
+// newSetup returns the view of sp.
+func newSetup(sp *runs.Spec) *setup {
+	return &setup{spec: sp, graph: sp.Graph, schedule: sp.Schedule, ensemble: sp.Ensemble, layout: sp.Layout, demo: sp.Demo}
+}
+
 // resolve builds the graph, schedule and ensemble; every failure is bad input.
 func (c *circuitFlags) resolve() (*setup, error) {
-	s := &setup{layout: c.layout}
-	var layout *circuits.Layout
-	switch {
-	case c.graph == "" && c.layout == "":
-		s.demo = true
-		s.graph, layout = fixtures.DemoChip()
-	case c.layout != "":
-		l, err := circuits.ReadLayoutFile(c.layout)
-		if err != nil {
-			return nil, usageError{fmt.Errorf("--layout: %w", err)}
+	sp, err := runs.NewSpec(runs.Options{Graph: c.graph, Layout: c.layout, Schedule: c.schedule, Gates: c.gates, Seed: c.seed})
+	var oe *runs.OptionError
+	if errors.As(err, &oe) {
+		if oe.Value != "" {
+			return nil, badInput("--%s %q: %v", oe.Option, oe.Value, oe.Err)
 		}
-		layout = l
-		if c.graph == "" {
-			s.graph = l.Graph(c.layout)
-		} else {
-			g, err := circuits.ParseGraph(c.graph)
-			if err != nil {
-				return nil, usageError{fmt.Errorf("--graph: %w", err)}
-			}
-			if err := l.Check(c.layout, g); err != nil {
-				return nil, usageError{fmt.Errorf("--layout: %w", err)}
-			}
-			s.graph = g
-		}
-	default:
-		g, err := circuits.ParseGraph(c.graph)
-		if err != nil {
-			return nil, usageError{fmt.Errorf("--graph: %w", err)}
-		}
-		s.graph = g
+		return nil, usageError{fmt.Errorf("--%s: %w", oe.Option, oe.Err)}
 	}
-	switch c.schedule {
-	case "layered":
-		if layout != nil {
-			s.schedule = layout.Schedule()
-		} else {
-			s.schedule = &circuits.Layered{Classes: circuits.LayeredClasses(s.graph)}
-		}
-	case "random-edge":
-		if c.layout != "" {
-			return nil, badInput("--layout sets explicit layers, which the random-edge schedule does not use: drop one of them")
-		}
-		s.schedule = &circuits.RandomEdge{Edges: s.graph.Edges}
-	default:
-		return nil, badInput("--schedule %q: use layered or random-edge", c.schedule)
-	}
-	e, err := circuits.NewEnsemble(c.gates)
 	if err != nil {
-		return nil, usageError{fmt.Errorf("--gates: %w", err)}
+		return nil, err
 	}
-	s.ensemble = e
-	return s, nil
+	return newSetup(sp), nil
 }
 
 // describe is the one-line description of the circuits for human output.
@@ -113,16 +78,12 @@ func (s *setup) describe() string {
 	return fmt.Sprintf("%s: %d qubits, %d couplers; %s; %s gates", s.graph.Name, s.graph.Qubits, len(s.graph.Edges), sched, s.ensemble.Name())
 }
 
-// maxDepth and maxDepthCount bound --depths: deeper circuits than a
-// million steps, or more than ten thousand read-out depths, are typos.
+// The bounds of --depths and --instances.
 const (
-	maxDepth      = 1_000_000
-	maxDepthCount = 10_000
+	maxDepth      = runs.MaxDepth
+	maxDepthCount = runs.MaxDepthCount
+	maxInstances  = runs.MaxInstances
 )
-
-// maxInstances bounds --instances (ids and per-instance records are held in
-// memory).
-const maxInstances = 10_000_000
 
 // maxCircuitGates bounds the two-qubit gates of one stored circuit (sample,
 // score, pt-plot keep whole circuits: 256 bytes per gate).
@@ -139,48 +100,23 @@ func checkCircuitDepth(s *setup, depth int) error {
 	return nil
 }
 
-// parseDepths reads a depth list such as "1:20", "2,4,8" or "1:40:2,50".
+// parseDepths reads a depth list such as "1:20", "2,4,8" or "1:40:2,50"
+// (runs.ParseDepths); an error is bad input naming --depths.
 func parseDepths(spec string) ([]int, error) {
-	var out []int
-	for _, item := range strings.Split(spec, ",") {
-		item = strings.TrimSpace(item)
-		parts := strings.Split(item, ":")
-		if len(parts) > 3 || item == "" {
-			return nil, badInput("--depths %q: write depths as a list like 2,4,8 or ranges FROM:TO or FROM:TO:STEP", spec)
-		}
-		nums := make([]int, len(parts))
-		for i, p := range parts {
-			v, err := strconv.Atoi(p)
-			if err != nil {
-				return nil, badInput("--depths %q: %q is not a whole number", spec, p)
-			}
-			nums[i] = v
-		}
-		from, to, step := nums[0], nums[0], 1
-		if len(nums) >= 2 {
-			to = nums[1]
-		}
-		if len(nums) == 3 {
-			step = nums[2]
-		}
-		if step <= 0 || to < from {
-			return nil, badInput("--depths %q: a range FROM:TO:STEP needs FROM ≤ TO and STEP ≥ 1", spec)
-		}
-		if to > maxDepth {
-			return nil, badInput("--depths %q: depth %d is beyond the largest depth, %d; ask for fewer layers", spec, to, maxDepth)
-		}
-		if len(out)+(to-from)/step >= maxDepthCount {
-			return nil, badInput("--depths %q: more than %d depths; use a step (FROM:TO:STEP)", spec, maxDepthCount)
-		}
-		for d := from; d <= to; d += step {
-			if d <= 0 {
-				return nil, badInput("--depths %q: depth %d is not positive; depths start at 1", spec, d)
-			}
-			out = append(out, d)
-		}
+	d, err := runs.ParseDepths(spec)
+	if err != nil {
+		return nil, listInput("--depths", err)
 	}
-	slices.Sort(out)
-	return slices.Compact(out), nil
+	return d, nil
+}
+
+// listInput turns a runs.ListError into bad input naming flag.
+func listInput(flag string, err error) error {
+	var le *runs.ListError
+	if errors.As(err, &le) {
+		return badInput("%s %q: %s", flag, le.List, le.Detail)
+	}
+	return usageError{err}
 }
 
 // checkUnit checks that v lies in the open interval (0, 1).

@@ -39,17 +39,17 @@ type Writer struct {
 	// time, and values below 1 mean DefaultBatchRows.
 	BatchRows int
 
-	path      string
-	fields    []Field
-	file      *atomicfile.File
-	buf       *bufio.Writer
-	out       batchWriter
-	builder   *array.RecordBuilder
-	columns   []array.Builder
-	pending   int   // rows in the builders
-	rows      int   // rows appended
-	err       error // first error while writing a batch
-	done      bool  // Close or Abort was called
+	path    string
+	fields  []Field
+	file    *atomicfile.File
+	buf     *bufio.Writer
+	out     batchWriter
+	builder *array.RecordBuilder
+	columns []array.Builder
+	pending int   // rows in the builders
+	rows    int   // rows appended
+	err     error // first error while writing a batch
+	done    bool  // Close or Abort was called
 }
 
 // Create starts a table at path with the given columns and run metadata. The

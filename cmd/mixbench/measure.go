@@ -35,6 +35,15 @@ type benchConfig struct {
 // between measurements when ctx is cancelled and returns ctx.Err().
 func measure(ctx context.Context, log io.Writer, cfg benchConfig) (*report, error) {
 	logf := func(format string, args ...any) { fmt.Fprintf(log, format+"\n", args...) }
+	// begin logs the start of a measurement, or returns ctx.Err() when the
+	// run has been cancelled.
+	begin := func(format string, args ...any) error {
+		if err := ctx.Err(); err != nil {
+			return err
+		}
+		logf(format, args...)
+		return nil
+	}
 	workers := cfg.workers
 	r := &report{Machine: cpuModel(), Cores: runtime.NumCPU(), GoVersion: runtime.Version()}
 	logf("triad bandwidth on %d goroutines…", workers)
@@ -45,30 +54,27 @@ func measure(ctx context.Context, log io.Writer, cfg benchConfig) (*report, erro
 	// users of the machine; bandwidth_gbs is the best triad of the run.
 	note := func(bw float64) { r.Bandwidth = max(r.Bandwidth, bw) }
 	for n := cfg.from; n <= cfg.to; n++ {
-		if err := ctx.Err(); err != nil {
+		if err := begin("gates at n = %d…", n); err != nil {
 			return nil, err
 		}
-		logf("gates at n = %d…", n)
 		row, err := gates(n, workers, false)
 		if err != nil {
 			return nil, err
 		}
-		note(row.Triad)
-		r.Gates = append(r.Gates, row)
 		f, err := fused(ctx, n, workers)
 		if err != nil {
 			return nil, err
 		}
-		r.Fused = append(r.Fused, f)
+		note(row.Triad)
+		r.Gates, r.Fused = append(r.Gates, row), append(r.Fused, f)
 	}
 	for _, n := range []int{24, 26} {
 		if n < cfg.from || n > cfg.to {
 			continue
 		}
-		if err := ctx.Err(); err != nil {
+		if err := begin("single precision at n = %d…", n); err != nil {
 			return nil, err
 		}
-		logf("single precision at n = %d…", n)
 		row, err := gates(n, workers, true)
 		if err != nil {
 			return nil, err
@@ -81,10 +87,9 @@ func measure(ctx context.Context, log io.Writer, cfg benchConfig) (*report, erro
 		if _, err := fmt.Sscan(f, &n); err != nil || n < 2 {
 			continue
 		}
-		if err := ctx.Err(); err != nil {
+		if err := begin("moment engine at n = %d…", n); err != nil {
 			return nil, err
 		}
-		logf("moment engine at n = %d…", n)
 		row, err := momentEngine(n, workers)
 		if err != nil {
 			return nil, err

@@ -359,8 +359,8 @@ func formatRatio(x float64) string {
 	return strconv.FormatFloat(x, 'f', 8, 64)
 }
 
-// plotExact draws the exact curve alone: rows with no Monte Carlo estimate
-// (NaN ratio and band) and the exact ratios.
+// plotExact draws the exact curve alone: the exact ratios per depth, with
+// no Monte Carlo estimate or band.
 func plotExact(path string, s *setup, r *exactResult, eps float64) error {
 	series := &plots.DepthSeries{Qubits: s.graph.Qubits, Depths: r.depths, Exact: r.ratio}
 	series.Depth, series.Found = exactDepth(r, eps)

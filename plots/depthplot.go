@@ -2,6 +2,7 @@ package plots
 
 import (
 	"fmt"
+	"io"
 	"math"
 	"strconv"
 
@@ -10,8 +11,6 @@ import (
 	"gonum.org/v1/plot/text"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
-
-	"mixdepth/scan"
 )
 
 // Option adjusts a DepthPlot.
@@ -37,53 +36,103 @@ func WithConfidence(level float64) Option {
 	return func(o *depthOptions) { o.confidence = level }
 }
 
-// DepthPlot writes to path (.png or .svg) a plot of R − 1 against depth on a
-// logarithmic axis, where R = mean(Z)/Z_H is the ratio of each row of sum
-// (design.md section 4): the estimate with its confidence band [Lower − 1,
-// Upper − 1], a horizontal line at eps (a depth is anti-concentrated when
-// Upper ≤ 1 + eps), a vertical line at the recommended depth sum.Depth when
-// sum.Found, and the exact curve exact[i] − 1 when exact is not nil. exact[i]
-// is E[Z]/Z_H at the depth of sum.Rows[i]; a NaN entry (or a NaN ratio in a
-// row) is left out. A logarithmic axis has no room for values ≤ 0, which the
-// estimate and the lower bound reach near the Haar value: such values are
-// drawn at a floor below eps (a power of ten at most eps/10), and the legend
-// says so. Rows whose interval is infinite (a single instance) have no band;
-// rows whose Ratio is NaN have no estimate, so a summary of such rows with
-// exact values plots the exact curve alone.
+// DepthSeries is what a depth plot shows: per depth, the Monte Carlo
+// estimate of R = mean(Z)/Z_H with its confidence interval, and the exact
+// ratio E[Z]/Z_H, either of which may be absent. It holds plain slices, so
+// that any source (a scan, an exact computation, a table read back) can
+// fill it.
+type DepthSeries struct {
+	// Qubits is the number of qubits, for the default title.
+	Qubits int
+	// Depths are the depths in ascending order, one per point.
+	Depths []int
+	// Ratio is the estimate of R at each depth and [Lower, Upper] its
+	// confidence interval. Ratio nil means no estimate; Lower and Upper nil
+	// mean no band. A NaN ratio leaves the point out; an infinite or NaN
+	// bound (a single instance) leaves the band out at that depth.
+	Ratio, Lower, Upper []float64
+	// Exact is E[Z]/Z_H at each depth, or nil. A NaN entry is left out.
+	Exact []float64
+	// Depth is the recommended (anti-concentration) depth, drawn as a
+	// vertical line when Found is true.
+	Depth int
+	Found bool
+}
+
+// check panics unless s has depths and every slice that is not nil has one
+// entry per depth.
+func (s *DepthSeries) check() {
+	if s == nil || len(s.Depths) == 0 {
+		panic("plots: DepthPlot needs a series with at least one depth")
+	}
+	for _, c := range []struct {
+		name   string
+		values []float64
+	}{{"Ratio", s.Ratio}, {"Lower", s.Lower}, {"Upper", s.Upper}, {"Exact", s.Exact}} {
+		if c.values != nil && len(c.values) != len(s.Depths) {
+			panic(fmt.Sprintf("plots: DepthPlot got %d %s values for %d depths", len(c.values), c.name, len(s.Depths)))
+		}
+	}
+	if (s.Lower == nil) != (s.Upper == nil) {
+		panic("plots: DepthPlot needs both Lower and Upper, or neither")
+	}
+}
+
+// DepthPlot draws s to w in the given format: R − 1 against depth on a
+// logarithmic axis, where R = mean(Z)/Z_H is the collision probability in
+// units of its Haar value Z_H = 2/(D+1): the estimate with its confidence
+// band [Lower − 1, Upper − 1], a horizontal line at eps (a depth is
+// anti-concentrated when Upper ≤ 1 + eps), a vertical line at the
+// recommended depth s.Depth when s.Found, and the exact curve Exact − 1
+// when there is one. A logarithmic axis has no room for values ≤ 0, which
+// the estimate and the lower bound reach near the Haar value: such values
+// are drawn at a floor below eps (a power of ten at most eps/10), and the
+// legend says so. A series with an exact curve and no estimate plots the
+// exact curve alone.
 //
-// The file is written atomically (see the package comment). DepthPlot
-// panics if sum has no rows, if exact is not nil and its length differs from
-// the number of rows, or if eps is not positive.
-func DepthPlot(path string, sum *scan.Curve, exact []float64, eps float64, opts ...Option) error {
-	if sum == nil || len(sum.Rows) == 0 {
-		panic("report: DepthPlot needs a summary with at least one row")
+// DepthPlot panics if s has no depths, if a slice of s that is not nil
+// differs in length from s.Depths, if only one of Lower and Upper is set,
+// if eps is not positive and finite, or if format is not PNG or SVG.
+func DepthPlot(w io.Writer, format Format, s *DepthSeries, eps float64, opts ...Option) error {
+	s.check()
+	checkEps(eps)
+	fig, err := depthFigure(s, eps, opts)
+	if err != nil {
+		return fmt.Errorf("plots: plotting: %w", err)
 	}
-	if exact != nil && len(exact) != len(sum.Rows) {
-		panic(fmt.Sprintf("report: DepthPlot got %d exact values for %d rows", len(exact), len(sum.Rows)))
-	}
+	return fig.write(w, format)
+}
+
+// SaveDepthPlot writes the DepthPlot of s to path, in the format its
+// extension names (.png or .svg; any other gives a *FormatError), atomically
+// (see the package comment). It panics as DepthPlot does.
+func SaveDepthPlot(path string, s *DepthSeries, eps float64, opts ...Option) error {
+	s.check()
+	checkEps(eps)
+	return save(path, func() (*figure, error) { return depthFigure(s, eps, opts) })
+}
+
+func checkEps(eps float64) {
 	if !(eps > 0) || math.IsInf(eps, 1) {
-		panic("report: DepthPlot needs a positive, finite eps")
+		panic("plots: DepthPlot needs a positive, finite eps")
 	}
-	if err := CheckPath(path); err != nil {
-		return err
-	}
+}
+
+// depthFigure applies the options and lays out the plot of s.
+func depthFigure(s *DepthSeries, eps float64, opts []Option) (*figure, error) {
 	o := depthOptions{depthUnit: "layers"}
 	for _, opt := range opts {
 		opt(&o)
 	}
 	if o.title == "" {
-		o.title = fmt.Sprintf("Distance from the Haar collision probability, n = %d qubits", sum.Qubits)
+		o.title = fmt.Sprintf("Distance from the Haar collision probability, n = %d qubits", s.Qubits)
 	}
-	fig, err := depthPlot(newDepthSeries(sum, exact, eps), sum, eps, o)
-	if err != nil {
-		return fmt.Errorf("report: plotting %q: %w", path, err)
-	}
-	return fig.save(path)
+	return depthPlot(newDepthPoints(s, eps), s, eps, o)
 }
 
-// depthSeries is what a DepthPlot draws, in data coordinates, every y value
+// depthPoints is what a DepthPlot draws, in data coordinates, every y value
 // already raised to the floor.
-type depthSeries struct {
+type depthPoints struct {
 	floor   float64
 	mean    plotter.XYs   // R − 1 above the floor
 	line    plotter.XYs   // every finite R − 1, joined by the estimate's line
@@ -96,16 +145,19 @@ type depthSeries struct {
 	ymax       float64
 }
 
-// newDepthSeries computes the points of a DepthPlot.
-func newDepthSeries(sum *scan.Curve, exact []float64, eps float64) *depthSeries {
-	var values []float64
-	for i, r := range sum.Rows {
-		values = append(values, r.Ratio-1, r.Lower-1, r.Upper-1)
-		if exact != nil {
-			values = append(values, exact[i]-1)
+// newDepthPoints computes the points of a DepthPlot.
+func newDepthPoints(ds *DepthSeries, eps float64) *depthPoints {
+	at := func(v []float64, i int) float64 {
+		if v == nil {
+			return math.NaN()
 		}
+		return v[i]
 	}
-	s := &depthSeries{floor: logFloor(values, eps), ymax: eps}
+	var values []float64
+	for i := range ds.Depths {
+		values = append(values, at(ds.Ratio, i)-1, at(ds.Lower, i)-1, at(ds.Upper, i)-1, at(ds.Exact, i)-1)
+	}
+	s := &depthPoints{floor: logFloor(values, eps), ymax: eps}
 	clip := func(v float64) float64 {
 		if v <= s.floor {
 			s.anyClipped = true
@@ -125,10 +177,11 @@ func newDepthSeries(sum *scan.Curve, exact []float64, eps float64) *depthSeries 
 		}
 		upper, lower = nil, nil
 	}
-	for i, r := range sum.Rows {
-		x := float64(r.Depth)
-		if finite(r.Ratio) {
-			y := r.Ratio - 1
+	for i, d := range ds.Depths {
+		x := float64(d)
+		ratio, lo, hi, exact := at(ds.Ratio, i), at(ds.Lower, i), at(ds.Upper, i), at(ds.Exact, i)
+		if finite(ratio) {
+			y := ratio - 1
 			pt := plotter.XY{X: x, Y: clip(y)}
 			s.line = append(s.line, pt)
 			if y <= s.floor {
@@ -137,14 +190,14 @@ func newDepthSeries(sum *scan.Curve, exact []float64, eps float64) *depthSeries 
 				s.mean = append(s.mean, pt)
 			}
 		}
-		if finite(r.Lower) && finite(r.Upper) {
-			upper = append(upper, plotter.XY{X: x, Y: clip(r.Upper - 1)})
-			lower = append(lower, plotter.XY{X: x, Y: clip(r.Lower - 1)})
+		if finite(lo) && finite(hi) {
+			upper = append(upper, plotter.XY{X: x, Y: clip(hi - 1)})
+			lower = append(lower, plotter.XY{X: x, Y: clip(lo - 1)})
 		} else {
 			closeBand()
 		}
-		if exact != nil && finite(exact[i]) {
-			s.exact = append(s.exact, plotter.XY{X: x, Y: clip(exact[i] - 1)})
+		if finite(exact) {
+			s.exact = append(s.exact, plotter.XY{X: x, Y: clip(exact - 1)})
 		}
 	}
 	closeBand()
@@ -169,7 +222,7 @@ func logFloor(values []float64, eps float64) float64 {
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
 
 // depthPlot lays out the plot of s.
-func depthPlot(s *depthSeries, sum *scan.Curve, eps float64, o depthOptions) (*figure, error) {
+func depthPlot(s *depthPoints, ds *DepthSeries, eps float64, o depthOptions) (*figure, error) {
 	fig := newFigure()
 	p := fig.plot
 	p.Title.Text = o.title
@@ -179,7 +232,7 @@ func depthPlot(s *depthSeries, sum *scan.Curve, eps float64, o depthOptions) (*f
 	p.X.Tick.Marker = integerTicks{}
 	p.Add(plotter.NewGrid())
 
-	xmin, xmax := float64(sum.Rows[0].Depth), float64(sum.Rows[len(sum.Rows)-1].Depth)
+	xmin, xmax := float64(ds.Depths[0]), float64(ds.Depths[len(ds.Depths)-1])
 	if xmax == xmin {
 		xmin, xmax = xmin-1, xmax+1
 	}
@@ -253,8 +306,8 @@ func depthPlot(s *depthSeries, sum *scan.Curve, eps float64, o depthOptions) (*f
 	}
 	fig.key("ε = "+strconv.FormatFloat(eps, 'g', 4, 64)+": a depth is ready when "+rule, epsLine)
 
-	if sum.Found {
-		d := float64(sum.Depth)
+	if ds.Found {
+		d := float64(ds.Depth)
 		v, err := plotter.NewLine(log10XYs(plotter.XYs{{X: d, Y: ymin}, {X: d, Y: ymax}}))
 		if err != nil {
 			return nil, err
@@ -262,10 +315,10 @@ func depthPlot(s *depthSeries, sum *scan.Curve, eps float64, o depthOptions) (*f
 		v.Color, v.Width = colourDepth, vg.Points(1.6)
 		v.Dashes = []vg.Length{vg.Points(5), vg.Points(2)}
 		p.Add(v)
-		fig.key("recommended depth "+strconv.Itoa(sum.Depth), v)
+		fig.key("recommended depth "+strconv.Itoa(ds.Depth), v)
 		lab, err := plotter.NewLabels(plotter.XYLabels{
 			XYs:    plotter.XYs{{X: d, Y: math.Log10(ymax)}},
-			Labels: []string{"depth " + strconv.Itoa(sum.Depth)},
+			Labels: []string{"depth " + strconv.Itoa(ds.Depth)},
 		})
 		if err != nil {
 			return nil, err

@@ -3,6 +3,7 @@ package plots
 import (
 	"fmt"
 	"image/color"
+	"io"
 	"math"
 	"strconv"
 
@@ -15,7 +16,7 @@ import (
 // curvePoints is the number of points on each density curve.
 const curvePoints = 400
 
-// PorterThomasPlot writes to path (.png or .svg) the histogram of the
+// PorterThomasPlot draws to w, in the given format, the histogram of the
 // rescaled output probabilities x = D·p at the given depth, pooled over the
 // instances (probs[i] holds the D output probabilities of instance i),
 // normalised as a probability density, on a logarithmic density axis with
@@ -27,34 +28,52 @@ const curvePoints = 400
 // 1956; Dalzell, Hunter-Jones, Brandão 2022, PRX Quantum 3, 010333). On this
 // axis e^(−x) is a straight line, so a deficit of large probabilities (a
 // circuit too shallow or too structured) shows as a bend. An empty title
-// means "Output probabilities at depth d (D = …)". The file is written
-// atomically. PorterThomasPlot panics if probs is empty, if the slices
-// differ in length, or if D < 2.
-func PorterThomasPlot(path string, probs [][]float64, depth int, title string) error {
+// means "Output probabilities at depth d (D = …)". PorterThomasPlot panics
+// if probs is empty, if the slices differ in length, if D < 2, or if format
+// is not PNG or SVG.
+func PorterThomasPlot(w io.Writer, format Format, probs [][]float64, depth int, title string) error {
+	checkProbs(probs)
+	fig, err := ptFigure(probs, depth, title)
+	if err != nil {
+		return fmt.Errorf("plots: plotting: %w", err)
+	}
+	return fig.write(w, format)
+}
+
+// SavePorterThomasPlot writes the PorterThomasPlot of probs to path, in the
+// format its extension names (.png or .svg; any other gives a
+// *FormatError), atomically (see the package comment). It panics as
+// PorterThomasPlot does.
+func SavePorterThomasPlot(path string, probs [][]float64, depth int, title string) error {
+	checkProbs(probs)
+	return save(path, func() (*figure, error) { return ptFigure(probs, depth, title) })
+}
+
+// checkProbs panics unless probs holds at least one instance of D ≥ 2
+// probabilities and every instance has D.
+func checkProbs(probs [][]float64) {
 	if len(probs) == 0 {
-		panic("report: PorterThomasPlot needs at least one instance")
+		panic("plots: PorterThomasPlot needs at least one instance")
 	}
 	dim := len(probs[0])
 	if dim < 2 {
-		panic(fmt.Sprintf("report: PorterThomasPlot needs D ≥ 2 probabilities per instance, got %d", dim))
+		panic(fmt.Sprintf("plots: PorterThomasPlot needs D ≥ 2 probabilities per instance, got %d", dim))
 	}
 	for i, p := range probs {
 		if len(p) != dim {
-			panic(fmt.Sprintf("report: PorterThomasPlot: instance %d has %d probabilities, instance 0 has %d", i, len(p), dim))
+			panic(fmt.Sprintf("plots: PorterThomasPlot: instance %d has %d probabilities, instance 0 has %d", i, len(p), dim))
 		}
 	}
-	if err := CheckPath(path); err != nil {
-		return err
-	}
+}
+
+// ptFigure bins probs and lays out the plot.
+func ptFigure(probs [][]float64, depth int, title string) (*figure, error) {
+	dim := len(probs[0])
 	if title == "" {
 		title = fmt.Sprintf("Output probabilities at depth %d (D = %d)", depth, dim)
 	}
 	bins := densityBins(probs, binCount(len(probs)*dim))
-	fig, err := ptPlot(bins, len(probs), dim, title)
-	if err != nil {
-		return fmt.Errorf("report: plotting %q: %w", path, err)
-	}
-	return fig.save(path)
+	return ptPlot(bins, len(probs), dim, title)
 }
 
 // binCount is the number of histogram bins for n values: the Rice rule
@@ -72,7 +91,7 @@ func binCount(n int) int {
 // the maximum goes into the last bin. It panics if k < 1.
 func densityBins(probs [][]float64, k int) []plotter.HistogramBin {
 	if k < 1 {
-		panic("report: need at least one histogram bin")
+		panic("plots: need at least one histogram bin")
 	}
 	dim := float64(len(probs[0]))
 	hi := 0.0

@@ -3,7 +3,6 @@ package plots
 import (
 	"fmt"
 	"io"
-	"os"
 	"path/filepath"
 	"strings"
 
@@ -11,7 +10,7 @@ import (
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 
-	"mixdepth/tables"
+	"mixdepth/internal/atomicfile"
 )
 
 // The size of the data part of every plot, about 945×586 pixels in PNG at
@@ -95,20 +94,30 @@ func (f *figure) draw(format string) (io.WriterTo, error) {
 	return c, nil
 }
 
+// Format is a picture format of the plots.
+type Format string
+
+// The formats of the plots.
+const (
+	PNG Format = "png" // raster, 96 dpi
+	SVG Format = "svg" // vector
+)
+
 // FormatError reports a plot file name whose extension names no plot format.
 type FormatError struct {
 	Path string
 }
 
 func (e *FormatError) Error() string {
-	return fmt.Sprintf("report: unknown plot format %q: use a name ending in .png or .svg", e.Path)
+	return fmt.Sprintf("plots: unknown plot format %q: use a name ending in .png or .svg", e.Path)
 }
 
-// formatOf returns "png" or "svg" for the extension of path, ignoring case.
-func formatOf(path string) (string, error) {
+// FormatOf returns the Format named by the extension of path (".png" or
+// ".svg", in any case), or a *FormatError.
+func FormatOf(path string) (Format, error) {
 	switch ext := strings.ToLower(filepath.Ext(path)); ext {
 	case ".png", ".svg":
-		return ext[1:], nil
+		return Format(ext[1:]), nil
 	}
 	return "", &FormatError{Path: path}
 }
@@ -118,48 +127,56 @@ func formatOf(path string) (string, error) {
 // before computing what to plot. The error is a *FormatError for a bad
 // extension.
 func CheckPath(path string) error {
-	if _, err := formatOf(path); err != nil {
+	if _, err := FormatOf(path); err != nil {
 		return err
 	}
-	dir := filepath.Dir(path)
-	info, err := os.Stat(dir)
-	switch {
-	case err != nil:
-		return fmt.Errorf("report: cannot write %q: directory %q: %w", path, dir, pathCause(err))
-	case !info.IsDir():
-		return fmt.Errorf("report: cannot write %q: %q is not a directory", path, dir)
-	}
-	if info, err := os.Stat(path); err == nil && info.IsDir() {
-		return fmt.Errorf("report: cannot write %q: it is a directory", path)
+	if err := atomicfile.CheckDir(path); err != nil {
+		return fmt.Errorf("plots: cannot write %q: %w", path, err)
 	}
 	return nil
 }
 
-// pathCause returns the cause inside a *os.PathError, or err itself.
-func pathCause(err error) error {
-	if pe, ok := err.(*os.PathError); ok {
-		return pe.Err
+// write draws f in format to w. It panics if format is not PNG or SVG.
+func (f *figure) write(w io.Writer, format Format) error {
+	if format != PNG && format != SVG {
+		panic(fmt.Sprintf("plots: unknown Format %q, want PNG or SVG", format))
 	}
-	return err
+	wt, err := f.draw(string(format))
+	if err != nil {
+		return fmt.Errorf("plots: drawing: %w", err)
+	}
+	if _, err := wt.WriteTo(w); err != nil {
+		return fmt.Errorf("plots: writing: %w", err)
+	}
+	return nil
 }
 
-// save draws f and writes it to path atomically: into a temporary file in
-// the same directory, synced, then renamed onto path.
-func (f *figure) save(path string) error {
+// save writes a figure to path atomically, in the format its extension
+// names: into a temporary file in the same directory, synced, then renamed
+// onto path. build is called only once path has been checked; it returns
+// the figure.
+func save(path string, build func() (*figure, error)) error {
+	format, err := FormatOf(path)
+	if err != nil {
+		return err
+	}
 	if err := CheckPath(path); err != nil {
 		return err
 	}
-	format, _ := formatOf(path)
-	wt, err := f.draw(format)
+	fig, err := build()
 	if err != nil {
-		return fmt.Errorf("report: drawing %q: %w", path, err)
+		return fmt.Errorf("plots: plotting %q: %w", path, err)
 	}
-	err = tables.WriteFileAtomic(path, func(w io.Writer) error {
+	wt, err := fig.draw(string(format))
+	if err != nil {
+		return fmt.Errorf("plots: drawing %q: %w", path, err)
+	}
+	err = atomicfile.Write(path, func(w io.Writer) error {
 		_, err := wt.WriteTo(w)
 		return err
 	})
 	if err != nil {
-		return fmt.Errorf("report: cannot write %q: %w", path, pathCause(err))
+		return fmt.Errorf("plots: cannot write %q: %w", path, err)
 	}
 	return nil
 }

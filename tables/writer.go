@@ -2,13 +2,8 @@ package tables
 
 import (
 	"bufio"
-	"errors"
 	"fmt"
 	"io/fs"
-	"math/rand/v2"
-	"os"
-	"path/filepath"
-	"strconv"
 
 	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/arrow/array"
@@ -16,6 +11,8 @@ import (
 	"github.com/apache/arrow-go/v18/parquet"
 	"github.com/apache/arrow-go/v18/parquet/compress"
 	"github.com/apache/arrow-go/v18/parquet/pqarrow"
+
+	"mixdepth/internal/atomicfile"
 )
 
 // DefaultBatchRows is the number of rows in a record batch (a Parquet row
@@ -42,17 +39,17 @@ type Writer struct {
 	// time, and values below 1 mean DefaultBatchRows.
 	BatchRows int
 
-	path, tmp string
-	fields    []Field
-	file      *os.File
-	buf       *bufio.Writer
-	out       batchWriter
-	builder   *array.RecordBuilder
-	columns   []array.Builder
-	pending   int   // rows in the builders
-	rows      int   // rows appended
-	err       error // first error while writing a batch
-	done      bool  // Close or Abort was called
+	path    string
+	fields  []Field
+	file    *atomicfile.File
+	buf     *bufio.Writer
+	out     batchWriter
+	builder *array.RecordBuilder
+	columns []array.Builder
+	pending int   // rows in the builders
+	rows    int   // rows appended
+	err     error // first error while writing a batch
+	done    bool  // Close or Abort was called
 }
 
 // Create starts a table at path with the given columns and run metadata. The
@@ -76,7 +73,6 @@ func Create(path string, fields []Field, meta Meta) (*Writer, error) {
 	w := &Writer{
 		BatchRows: DefaultBatchRows,
 		path:      path,
-		tmp:       file.Name(),
 		fields:    append([]Field(nil), fields...),
 		file:      file,
 		buf:       bufio.NewWriterSize(file, bufferSize),
@@ -111,8 +107,7 @@ func Create(path string, fields []Field, meta Meta) (*Writer, error) {
 			pqarrow.NewArrowWriterProperties(pqarrow.WithStoreSchema(), pqarrow.WithAllocator(mem)))
 	}
 	if err != nil {
-		file.Close()
-		os.Remove(w.tmp)
+		file.Abort()
 		return nil, fmt.Errorf("tables: create %q: %w", path, err)
 	}
 	w.builder = array.NewRecordBuilder(mem, schema)
@@ -120,45 +115,14 @@ func Create(path string, fields []Field, meta Meta) (*Writer, error) {
 	return w, nil
 }
 
-// createTemp creates an empty temporary file in the directory of path. Like
-// os.Create, it asks for mode 0666 before the umask, so that the renamed
-// file gets the permissions of an ordinary new file.
-func createTemp(path string) (*os.File, error) {
-	dir, base := filepath.Dir(path), filepath.Base(path)
-	info, err := os.Stat(dir)
-	switch {
-	case err != nil:
-		// The cause alone (e.g. "no such file or directory"), since the
-		// message names the directory already.
-		return nil, fmt.Errorf("tables: cannot create %q: directory %q: %w", path, dir, pathCause(err))
-	case !info.IsDir():
-		return nil, fmt.Errorf("tables: cannot create %q: %q is not a directory", path, dir)
+// createTemp creates an empty temporary file beside path (see
+// atomicfile.Create for its mode and name).
+func createTemp(path string) (*atomicfile.File, error) {
+	f, err := atomicfile.Create(path)
+	if err != nil {
+		return nil, fmt.Errorf("tables: cannot create %q: %w", path, err)
 	}
-	if info, err := os.Stat(path); err == nil && info.IsDir() {
-		return nil, fmt.Errorf("tables: cannot create %q: it is a directory", path)
-	}
-	for range 100 {
-		name := filepath.Join(dir, "."+base+"."+strconv.FormatUint(rand.Uint64(), 36)+".tmp")
-		file, err := os.OpenFile(name, os.O_RDWR|os.O_CREATE|os.O_EXCL, 0o666)
-		if errors.Is(err, fs.ErrExist) {
-			continue
-		}
-		if err != nil {
-			// The temporary name would only confuse; keep the cause.
-			return nil, fmt.Errorf("tables: cannot create %q: cannot write in directory %q: %w", path, dir, pathCause(err))
-		}
-		return file, nil
-	}
-	return nil, fmt.Errorf("tables: cannot create %q: no free temporary name in %q", path, dir)
-}
-
-// pathCause returns the cause inside a *fs.PathError, or err itself.
-func pathCause(err error) error {
-	var pe *fs.PathError
-	if errors.As(err, &pe) {
-		return pe.Err
-	}
-	return err
+	return f, nil
 }
 
 // Append adds a row. The values go with the fields in order: an int64 or int
@@ -261,32 +225,13 @@ func (w *Writer) Close() error {
 		err = w.buf.Flush()
 	}
 	if err == nil {
-		err = w.file.Sync()
-	}
-	if e := w.file.Close(); err == nil {
-		err = e
-	}
-	if err == nil {
-		err = os.Rename(w.tmp, w.path)
+		err = w.file.Commit()
 	}
 	if err != nil {
-		os.Remove(w.tmp)
+		w.file.Abort() // removes the temporary file if Commit was not reached
 		return fmt.Errorf("tables: write %q: %w", w.path, err)
 	}
-	syncDir(filepath.Dir(w.path))
 	return nil
-}
-
-// syncDir makes a rename in dir durable where the system allows it. It is
-// best effort: the table is complete once the rename is done, and some
-// systems cannot sync a directory.
-func syncDir(dir string) {
-	d, err := os.Open(dir)
-	if err != nil {
-		return
-	}
-	d.Sync()
-	d.Close()
 }
 
 // Abort discards the table: it removes the temporary file and leaves the
@@ -299,8 +244,7 @@ func (w *Writer) Abort() {
 	w.done = true
 	w.builder.Release()
 	w.out.Close() // releases the writer's memory; the output is discarded
-	w.file.Close()
-	os.Remove(w.tmp)
+	w.file.Abort()
 }
 
 // WriteTable writes t to path through Create, Append and Close. A nil

@@ -14,7 +14,6 @@ import (
 	"mixdepth/circuits"
 	"mixdepth/moments"
 	"mixdepth/plots"
-	"mixdepth/scan"
 	"mixdepth/sim"
 	"mixdepth/stats"
 	"mixdepth/tables"
@@ -360,16 +359,12 @@ func formatRatio(x float64) string {
 	return strconv.FormatFloat(x, 'f', 8, 64)
 }
 
-// plotExact draws the exact curve alone: rows with no Monte Carlo estimate
-// (NaN ratio and band) and the exact ratios.
+// plotExact draws the exact curve alone: the exact ratios per depth, with
+// no Monte Carlo estimate or band.
 func plotExact(path string, s *setup, r *exactResult, eps float64) error {
-	sum := &scan.Curve{Qubits: s.graph.Qubits, HaarCollision: r.haar}
-	nan := math.NaN()
-	for i, d := range r.depths {
-		sum.Rows = append(sum.Rows, scan.Row{Depth: d, GateCount: r.gateCounts[i], Ratio: nan, Lower: nan, Upper: nan})
-	}
-	sum.Depth, sum.Found = exactDepth(r, eps)
-	return plots.DepthPlot(path, sum, r.ratio, eps, plots.WithDepthUnit(depthUnit(s)),
+	series := &plots.DepthSeries{Qubits: s.graph.Qubits, Depths: r.depths, Exact: r.ratio}
+	series.Depth, series.Found = exactDepth(r, eps)
+	return plots.SaveDepthPlot(path, series, eps, plots.WithDepthUnit(depthUnit(s)),
 		plots.WithTitle(s.graph.Name+", "+s.ensemble.Name()+" gates, exact"))
 }
 

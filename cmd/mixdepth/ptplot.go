@@ -132,7 +132,7 @@ func runPTPlot(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		}
 	}
 	title := fmt.Sprintf("%s, %s schedule, %s gates: depth %d (D = %d)", s.graph.Name, s.schedule.Kind(), s.ensemble.Name(), d, dim)
-	if err := plots.PorterThomasPlot(*out, probs, d, title); err != nil {
+	if err := plots.SavePorterThomasPlot(*out, probs, d, title); err != nil {
 		return err
 	}
 	fmt.Fprintf(stdout, "Porter–Thomas plot of %d instance(s) × %d outcomes at depth %d: mean KS distance to Beta(1, D−1) %.4f; %d instance(s) matched the table's collision probability → %s\n",

@@ -202,7 +202,7 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		if exact != nil {
 			curve = exact.ratio
 		}
-		if err := plots.DepthPlot(*plot, sum, curve, *eps, plots.WithConfidence(*conf), plots.WithDepthUnit(depthUnit(s)),
+		if err := plots.SaveDepthPlot(*plot, curveSeries(sum, curve), *eps, plots.WithConfidence(*conf), plots.WithDepthUnit(depthUnit(s)),
 			plots.WithTitle(s.graph.Name+", "+s.ensemble.Name()+" gates")); err != nil {
 			return err
 		}

@@ -67,21 +67,35 @@ type Result struct {
 	Trajectories int
 }
 
-// ErrConfig is wrapped by the errors of Config.Validate.
-var ErrConfig = errors.New("invalid sampling configuration")
+// Samples returns the scoring input of the result: its instance id,
+// collision probability and the ideal probabilities of its shots (shared,
+// not copied).
+func (r *Result) Samples() InstanceSamples {
+	return InstanceSamples{Instance: r.Circuit.Instance, Collision: r.Collision, PIdeal: r.PIdeal}
+}
 
-// Validate returns an error wrapping ErrConfig (or ErrNoiseRange) for a
+// qubitRange describes the qubit counts that what takes, 2 to MaxQubits,
+// for the error about n qubits outside that range.
+func qubitRange(n int, what string) string {
+	return fmt.Sprintf("%d qubits: %s takes 2 to %d; use a smaller graph", n, what, MaxQubits)
+}
+
+// ErrBadConfig is wrapped by the errors of Config.Validate and by Collect's
+// error for a qubit count it cannot score.
+var ErrBadConfig = errors.New("invalid sampling configuration")
+
+// Validate returns an error wrapping ErrBadConfig (or ErrNoiseRange) for a
 // configuration that cannot run. It panics if Schedule or Ensemble is nil.
 func (c *Config) Validate() error {
 	if c.Schedule == nil || c.Ensemble == nil {
 		panic("sampling: Config needs Schedule and Ensemble")
 	}
 	bad := func(format string, args ...any) error {
-		return fmt.Errorf("sampling: %s: %w", fmt.Sprintf(format, args...), ErrConfig)
+		return fmt.Errorf("sampling: %s: %w", fmt.Sprintf(format, args...), ErrBadConfig)
 	}
 	switch {
 	case c.Qubits < 2 || c.Qubits > MaxQubits:
-		return bad("%d qubits: sampling takes 2 to %d", c.Qubits, MaxQubits)
+		return bad("%s", qubitRange(c.Qubits, "sampling"))
 	case c.Depth < 1:
 		return bad("depth %d is not positive", c.Depth)
 	case c.Shots < 1:
@@ -104,8 +118,11 @@ func (c *Config) Validate() error {
 	return c.Noise.Validate()
 }
 
-// trajectories returns the number of trajectories an instance simulates.
-func (c *Config) trajectories() int {
+// TrajectoriesPerInstance returns the number of quantum trajectories each
+// instance simulates: 0 without gate errors, else
+// T = min(Shots, Trajectories), with DefaultTrajectories for a zero
+// Trajectories.
+func (c *Config) TrajectoriesPerInstance() int {
 	if c.Noise.GateError == 0 {
 		return 0
 	}
@@ -302,7 +319,7 @@ func (w *worker) instance(ctx context.Context, id int) (r *Result, ok bool) {
 		return nil, false
 	}
 	w.ideal = w.st.Probabilities(w.ideal, w.workers)
-	r = &Result{Circuit: circ, Collision: stats.Collision(w.ideal), Trajectories: c.trajectories()}
+	r = &Result{Circuit: circ, Collision: stats.Collision(w.ideal), Trajectories: c.TrajectoriesPerInstance()}
 	shots := ShotStream(c.Seed, id, c.Depth)
 	out := make([]uint64, 0, c.Shots)
 	w.idealTable.Reset(w.ideal)

@@ -55,7 +55,7 @@ func runAll(t *testing.T, c *Config) []*Result {
 func groups(rs []*Result) []InstanceSamples {
 	g := make([]InstanceSamples, len(rs))
 	for i, r := range rs {
-		g[i] = InstanceSamples{Instance: r.Circuit.Instance, Collision: r.Collision, PIdeal: r.PIdeal}
+		g[i] = r.Samples()
 	}
 	return g
 }
@@ -174,7 +174,7 @@ func TestGateErrorDigitalModel(t *testing.T) {
 			}
 		}
 		rep := Score(6, groups(rs))
-		want := math.Pow(1-tc.nz.GateError, float64(g)) * tc.nz.Fidelity * tc.nz.ReadoutFidelity(6)
+		want := math.Pow(1-tc.nz.GateError, float64(g)) * tc.nz.Fidelity * math.Pow(1-(tc.nz.Readout01+tc.nz.Readout10)/2, 6)
 		t.Logf("%s: normalized %.4f ± %.4f, linear %.4f, digital model %.4f", tc.name, rep.Normalized, rep.NormalizedErr, rep.Linear, want)
 		if math.Abs(rep.Normalized-want) > 0.15*want {
 			t.Errorf("%s: normalized XEB %.4f ± %.4f, digital model %.4f (g = %d): off by more than 15%%", tc.name, rep.Normalized, rep.NormalizedErr, want, g)
@@ -451,7 +451,7 @@ func TestTrajectoryShots(t *testing.T) {
 		}
 	}
 	c := testConfig(t, "line:3", "haar", 2, 1, 30, Noise{Fidelity: 1, GateError: 0.1})
-	if got := c.trajectories(); got != 30 {
+	if got := c.TrajectoriesPerInstance(); got != 30 {
 		t.Errorf("30 shots: %d trajectories, want min(30, 100) = 30", got)
 	}
 }
@@ -474,7 +474,7 @@ func TestConfigValidate(t *testing.T) {
 		c := base()
 		mutate(c)
 		err := c.Validate()
-		if !errors.Is(err, ErrConfig) && !errors.Is(err, ErrNoiseRange) {
+		if !errors.Is(err, ErrBadConfig) && !errors.Is(err, ErrNoiseRange) {
 			t.Errorf("%s: Validate() = %v", name, err)
 		}
 	}

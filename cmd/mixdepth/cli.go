@@ -10,6 +10,9 @@ import (
 	"strings"
 
 	"github.com/spf13/pflag"
+
+	"mixdepth/sampling"
+	"mixdepth/sim"
 )
 
 // version is the tool version recorded in every table.
@@ -38,6 +41,13 @@ func badInput(format string, args ...any) error {
 	return usageError{fmt.Errorf(format, args...)}
 }
 
+// badInputErrors are the sentinels of errors caused by the user's input or
+// data: exitCode maps an error wrapping any of them to exit status 2.
+var badInputErrors = []error{
+	sim.ErrTooLarge,
+	sampling.ErrBadConfig, sampling.ErrNoiseRange, sampling.ErrCircuitFile, sampling.ErrCircuitMismatch, sampling.ErrEmpty, sampling.ErrColumn, sampling.ErrNotNumber, sampling.ErrBitstring, sampling.ErrInstance, sampling.ErrProbability, sampling.ErrMismatch,
+}
+
 // errInterrupted ends a run stopped by a signal: exit status 130.
 var errInterrupted = errors.New("interrupted")
 
@@ -51,7 +61,7 @@ func exitCode(err error, stderr io.Writer) int {
 	fmt.Fprintln(stderr, "mixdepth: "+msg)
 	var ue usageError
 	switch {
-	case errors.As(err, &ue):
+	case errors.As(err, &ue), slices.ContainsFunc(badInputErrors, func(s error) bool { return errors.Is(err, s) }):
 		return 2
 	case errors.Is(err, errInterrupted), errors.Is(err, context.Canceled):
 		return 130

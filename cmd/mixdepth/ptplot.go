@@ -12,6 +12,7 @@ import (
 
 	"mixdepth/circuits"
 	"mixdepth/plots"
+	"mixdepth/sampling"
 	"mixdepth/scan"
 	"mixdepth/sim"
 	"mixdepth/stats"
@@ -123,7 +124,9 @@ func runPTPlot(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		if ctx.Err() != nil {
 			return errInterrupted
 		}
-		probs[k] = instanceProbabilities(st, s, seed, id, d, *workers, make([]float64, dim))
+		// The gates scan applies, in its order, with the final single-qubit
+		// layer of depth d when the ensemble has one.
+		probs[k] = sampling.Build(s.schedule, s.ensemble, n, seed, id, d).Probabilities(st, make([]float64, dim), *workers)
 		ks[k] = stats.KSHaar(probs[k], scratch)
 		if want, ok := recorded[id]; ok {
 			got := stats.Collision(probs[k])
@@ -151,35 +154,6 @@ func defaultPTDepth(meta tables.Meta, qubits int, records []scan.Record) int {
 		return sum.Depth
 	}
 	return sum.Rows[len(sum.Rows)-1].Depth
-}
-
-// instanceProbabilities simulates instance id of the run described by s and
-// seed to the given depth, exactly as scan does (scan/scan.go), applies the
-// final single-qubit layer when the ensemble has one, and returns the output
-// probabilities in dst.
-func instanceProbabilities(st *sim.State, s *setup, seed uint64, id, depth, workers int, dst []float64) []float64 {
-	st.Reset()
-	n := s.graph.Qubits
-	// The state is split across goroutines only from sim.ParallelQubits
-	// qubits on, as in scan.Run.
-	gw := 1
-	if n >= sim.ParallelQubits {
-		gw = workers
-	}
-	b := circuits.NewBuilder(s.schedule, s.ensemble, seed, id)
-	var gates []circuits.Gate
-	for range depth {
-		gates = b.Next(gates[:0])
-		for i := range gates {
-			st.Apply2(gates[i].A, gates[i].B, &gates[i].M, gw)
-		}
-	}
-	if layer, ok := circuits.FinalLayer(s.ensemble, n, seed, id, depth, nil); ok {
-		for q := range layer {
-			st.Apply1(q, &layer[q], gw)
-		}
-	}
-	return st.Probabilities(dst, gw)
 }
 
 // tableInstances returns the finished instance ids of a table: its

@@ -16,7 +16,6 @@ import (
 
 	"mixdepth/circuits"
 	"mixdepth/sampling"
-	"mixdepth/sim"
 	"mixdepth/tables"
 )
 
@@ -144,9 +143,6 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	if err != nil {
 		return err
 	}
-	if s.graph.Qubits > sampling.MaxQubits {
-		return badInput("--graph %s has %d qubits: sample takes at most %d", s.graph.Name, s.graph.Qubits, sampling.MaxQubits)
-	}
 	noise := sampling.Noise{Fidelity: *fidelity, GateError: *gateError, Readout01: p01, Readout10: p10}
 	cfg := &sampling.Config{
 		Schedule: s.schedule, Ensemble: s.ensemble, Qubits: s.graph.Qubits, Depth: *depth, Seed: cf.seed,
@@ -155,11 +151,12 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	if len(cfg.Instances) == 0 {
 		return badInput("--shard %s selects no instance of %d: use fewer shards or more instances", shard, *instances)
 	}
-	gateCount := s.schedule.GateCount(*depth)
-	usedTrajectories := 0
-	if noise.GateError > 0 {
-		usedTrajectories = min(*shots, *trajectories)
+	if err := cfg.Validate(); err != nil {
+		return err
 	}
+	counts := sampling.CountGates(s.schedule, s.ensemble, s.graph.Qubits, *depth)
+	gateCount := counts.TwoQubit
+	usedTrajectories := cfg.TrajectoriesPerInstance()
 
 	meta := runMeta(s, &cf)
 	meta.Set("command", "sample")
@@ -205,9 +202,6 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	})
 	interrupted := errors.Is(err, context.Canceled)
 	if err != nil && !interrupted {
-		if errors.Is(err, sim.ErrTooLarge) || errors.Is(err, sampling.ErrConfig) || errors.Is(err, sampling.ErrNoiseRange) {
-			return usageError{err}
-		}
 		return err
 	}
 	partial := len(done) < len(cfg.Instances)
@@ -249,10 +243,10 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		return errInterrupted
 	}
 
-	predicted := math.Pow(1-noise.GateError, float64(gateCount)) * noise.Fidelity * noise.ReadoutFidelity(s.graph.Qubits)
+	predicted := noise.ErrorModel().Predict(counts).Fidelity
 	groups := make([]sampling.InstanceSamples, len(results))
 	for i, r := range results {
-		groups[i] = sampling.InstanceSamples{Instance: r.Circuit.Instance, Collision: r.Collision, PIdeal: r.PIdeal}
+		groups[i] = r.Samples()
 	}
 	rep := sampling.Score(s.graph.Qubits, groups)
 	if *asJSON {

@@ -12,7 +12,6 @@ import (
 	"unicode/utf8"
 
 	"mixdepth/sampling"
-	"mixdepth/sim"
 	"mixdepth/tables"
 )
 
@@ -111,7 +110,7 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 				return err
 			}
 			if err := cfile.Check(s.graph); err != nil {
-				return usageError{fmt.Errorf("--circuits %s: %w", *circuitsIn, err)}
+				return fmt.Errorf("--circuits %s: %w", *circuitsIn, err)
 			}
 		}
 		if d, ok := meta.Get("graph_digest"); ok && cfile.GraphDigest != "" && d != cfile.GraphDigest {
@@ -124,9 +123,6 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		s, seed, d, total, err := scoreSetup(fs.Changed, &cf, *depth, meta, sampled, path)
 		if err != nil {
 			return err
-		}
-		if s.graph.Qubits > sampling.MaxQubits {
-			return badInput("graph %s has %d qubits: score takes at most %d", s.graph.Name, s.graph.Qubits, sampling.MaxQubits)
 		}
 		qubits = s.graph.Qubits
 		lookup = func(id int) *sampling.Circuit {
@@ -143,20 +139,12 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	}
 
 	groups, err := sampling.Collect(ctx, path, recs, qubits, lookup, *workers)
-	if err != nil {
-		switch {
-		case errors.Is(err, context.Canceled):
-			return errInterrupted
-		case errors.Is(err, sim.ErrTooLarge):
-			return usageError{err}
-		}
-		var re *sampling.RowError
-		if errors.As(err, &re) {
-			if errors.Is(err, sampling.ErrInstance) && *circuitsIn != "" {
-				return badInput("%v (%s has %s)", err, *circuitsIn, describeCircuitIDs(lookup, recs))
-			}
-			return usageError{err}
-		}
+	switch {
+	case errors.Is(err, context.Canceled):
+		return errInterrupted
+	case errors.Is(err, sampling.ErrInstance) && *circuitsIn != "":
+		return badInput("%v (%s has %s)", err, *circuitsIn, describeCircuitIDs(lookup, recs))
+	case err != nil:
 		return err
 	}
 	rep := sampling.Score(qubits, groups)

@@ -34,10 +34,19 @@
 // F_lin/(D·Z_U − 1) as the fidelity estimate and flags tables whose circuits
 // have not anti-concentrated, where the raw F_lin overstates the fidelity.
 //
+// Prediction. ErrorModel is the digital error model (Arute et al. 2019,
+// Nature 574, 505): a circuit's fidelity is the product of its gate,
+// depolarizing and readout fidelities, with the gates counted by
+// CountGates; Noise.ErrorModel gives the model of a sampling noise model.
+//
 // Files. The circuit file (WriteCircuits, ReadCircuits) is JSON of this
 // project's own design, described at CircuitFile. Sample tables are read by
 // the caller; ReadCSV reads measured data with at least the columns
 // instance,bitstring. Data errors are *RowError and *CircuitFileError
-// values that name the row or field and wrap a sentinel; programmer
-// mistakes panic with a "sampling: " message.
+// values that name the row or field and wrap a sentinel (ErrEmpty,
+// ErrColumn, ErrNotNumber, ErrBitstring, ErrInstance, ErrProbability,
+// ErrMismatch; ErrCircuitFile, ErrCircuitMismatch); a configuration that
+// cannot run wraps ErrBadConfig or ErrNoiseRange, and a state too large for
+// memory sim.ErrTooLarge. Check them with errors.Is. Programmer mistakes
+// panic with a "sampling: " message.
 package sampling

@@ -175,6 +175,10 @@ func TestGateErrorDigitalModel(t *testing.T) {
 		}
 		rep := Score(6, groups(rs))
 		want := math.Pow(1-tc.nz.GateError, float64(g)) * tc.nz.Fidelity * math.Pow(1-(tc.nz.Readout01+tc.nz.Readout10)/2, 6)
+		// ErrorModel is the same product (to rounding: 1e-14 relative).
+		if model := tc.nz.ErrorModel().Predict(CountGates(c.Schedule, c.Ensemble, 6, c.Depth)).Fidelity; math.Abs(model-want) > 1e-14*want {
+			t.Errorf("%s: ErrorModel predicts %.17g, want %.17g", tc.name, model, want)
+		}
 		t.Logf("%s: normalized %.4f ± %.4f, linear %.4f, digital model %.4f", tc.name, rep.Normalized, rep.NormalizedErr, rep.Linear, want)
 		if math.Abs(rep.Normalized-want) > 0.15*want {
 			t.Errorf("%s: normalized XEB %.4f ± %.4f, digital model %.4f (g = %d): off by more than 15%%", tc.name, rep.Normalized, rep.NormalizedErr, want, g)

@@ -151,11 +151,10 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	if len(cfg.Instances) == 0 {
 		return badInput("--shard %s selects no instance of %d: use fewer shards or more instances", shard, *instances)
 	}
+	gateCount := s.schedule.GateCount(*depth)
 	if err := cfg.Validate(); err != nil {
 		return err
 	}
-	counts := sampling.CountGates(s.schedule, s.ensemble, s.graph.Qubits, *depth)
-	gateCount := counts.TwoQubit
 	usedTrajectories := cfg.TrajectoriesPerInstance()
 
 	meta := runMeta(s, &cf)
@@ -243,7 +242,7 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		return errInterrupted
 	}
 
-	predicted := noise.ErrorModel().Predict(counts).Fidelity
+	predicted := noise.ErrorModel().Predict(sampling.CountGates(s.schedule, s.ensemble, s.graph.Qubits, *depth)).Fidelity
 	groups := make([]sampling.InstanceSamples, len(results))
 	for i, r := range results {
 		groups[i] = r.Samples()

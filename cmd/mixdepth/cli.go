@@ -41,18 +41,20 @@ func badInput(format string, args ...any) error {
 	return usageError{fmt.Errorf(format, args...)}
 }
 
-// badInputErrors are the sentinels of errors caused by the user's input or
-// data: exitCode maps an error wrapping any of them to exit status 2.
+// errInterrupted ends a run stopped by a signal: exit status 130.
+var errInterrupted = errors.New("interrupted")
+
+// badInputErrors are the library sentinels that mean bad input (exit
+// status 2): the request cannot be run as given, and the message says why.
+// This is the one place where library errors become exit statuses.
 var badInputErrors = []error{
 	sim.ErrTooLarge,
 	sampling.ErrBadConfig, sampling.ErrNoiseRange, sampling.ErrCircuitFile, sampling.ErrCircuitMismatch, sampling.ErrEmpty, sampling.ErrColumn, sampling.ErrNotNumber, sampling.ErrBitstring, sampling.ErrInstance, sampling.ErrProbability, sampling.ErrMismatch,
 }
 
-// errInterrupted ends a run stopped by a signal: exit status 130.
-var errInterrupted = errors.New("interrupted")
-
 // exitCode prints err on one line and returns the exit status: 0 success,
-// 1 a failure while running, 2 bad usage or input, 130 interrupted.
+// 1 a failure while running, 2 bad usage or input (a usageError or one of
+// badInputErrors), 130 interrupted.
 func exitCode(err error, stderr io.Writer) int {
 	if err == nil || errors.Is(err, pflag.ErrHelp) {
 		return 0

@@ -124,9 +124,7 @@ func runPTPlot(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		if ctx.Err() != nil {
 			return errInterrupted
 		}
-		// The gates scan applies, in its order, with the final single-qubit
-		// layer of depth d when the ensemble has one.
-		probs[k] = sampling.Build(s.schedule, s.ensemble, n, seed, id, d).Probabilities(st, make([]float64, dim), *workers)
+		probs[k] = instanceProbabilities(st, s, seed, id, d, *workers, make([]float64, dim))
 		ks[k] = stats.KSHaar(probs[k], scratch)
 		if want, ok := recorded[id]; ok {
 			got := stats.Collision(probs[k])
@@ -154,6 +152,13 @@ func defaultPTDepth(meta tables.Meta, qubits int, records []scan.Record) int {
 		return sum.Depth
 	}
 	return sum.Rows[len(sum.Rows)-1].Depth
+}
+
+// instanceProbabilities simulates instance id of the run described by s and
+// seed to the given depth as scan does, final single-qubit layer included
+// (sampling.Build), and returns the output probabilities in dst.
+func instanceProbabilities(st *sim.State, s *setup, seed uint64, id, depth, workers int, dst []float64) []float64 {
+	return sampling.Build(s.schedule, s.ensemble, s.graph.Qubits, seed, id, depth).Probabilities(st, dst, workers)
 }
 
 // tableInstances returns the finished instance ids of a table: its

@@ -46,7 +46,7 @@
 // values that name the row or field and wrap a sentinel (ErrEmpty,
 // ErrColumn, ErrNotNumber, ErrBitstring, ErrInstance, ErrProbability,
 // ErrMismatch; ErrCircuitFile, ErrCircuitMismatch); a configuration that
-// cannot run wraps ErrBadConfig or ErrNoiseRange, and a state too large for
+// cannot run wraps ErrConfig or ErrNoiseRange, and a state too large for
 // memory sim.ErrTooLarge. Check them with errors.Is. Programmer mistakes
 // panic with a "sampling: " message.
 package sampling

@@ -80,18 +80,18 @@ func qubitRange(n int, what string) string {
 	return fmt.Sprintf("%d qubits: %s takes 2 to %d; use a smaller graph", n, what, MaxQubits)
 }
 
-// ErrBadConfig is wrapped by the errors of Config.Validate and by Collect's
+// ErrConfig is wrapped by the errors of Config.Validate and by Collect's
 // error for a qubit count it cannot score.
-var ErrBadConfig = errors.New("invalid sampling configuration")
+var ErrConfig = errors.New("invalid sampling configuration")
 
-// Validate returns an error wrapping ErrBadConfig (or ErrNoiseRange) for a
+// Validate returns an error wrapping ErrConfig (or ErrNoiseRange) for a
 // configuration that cannot run. It panics if Schedule or Ensemble is nil.
 func (c *Config) Validate() error {
 	if c.Schedule == nil || c.Ensemble == nil {
 		panic("sampling: Config needs Schedule and Ensemble")
 	}
 	bad := func(format string, args ...any) error {
-		return fmt.Errorf("sampling: %s: %w", fmt.Sprintf(format, args...), ErrBadConfig)
+		return fmt.Errorf("sampling: %s: %w", fmt.Sprintf(format, args...), ErrConfig)
 	}
 	switch {
 	case c.Qubits < 2 || c.Qubits > MaxQubits:

@@ -478,7 +478,7 @@ func TestConfigValidate(t *testing.T) {
 		c := base()
 		mutate(c)
 		err := c.Validate()
-		if !errors.Is(err, ErrBadConfig) && !errors.Is(err, ErrNoiseRange) {
+		if !errors.Is(err, ErrConfig) && !errors.Is(err, ErrNoiseRange) {
 			t.Errorf("%s: Validate() = %v", name, err)
 		}
 	}

@@ -207,12 +207,12 @@ const MatchTolerance = 1e-6
 // [0, 1] and agree with the simulation within MatchTolerance. Errors name
 // the file and row: *RowError values wrapping ErrEmpty, ErrBitstring,
 // ErrInstance, ErrProbability or ErrMismatch. A qubit count outside 2 to
-// MaxQubits is an error wrapping ErrBadConfig, and a state too large for
+// MaxQubits is an error wrapping ErrConfig, and a state too large for
 // memory one wrapping sim.ErrTooLarge. A cancelled ctx stops it between
 // instances with ctx.Err().
 func Collect(ctx context.Context, name string, records []Record, qubits int, circuit func(id int) *Circuit, workers int) ([]InstanceSamples, error) {
 	if qubits < 2 || qubits > MaxQubits {
-		return nil, fmt.Errorf("sampling: %s: %w", qubitRange(qubits, "scoring"), ErrBadConfig)
+		return nil, fmt.Errorf("sampling: %s: %w", qubitRange(qubits, "scoring"), ErrConfig)
 	}
 	if len(records) == 0 {
 		return nil, &RowError{File: name, Err: ErrEmpty, Detail: "the table has no rows"}

@@ -141,8 +141,8 @@ func TestCollect(t *testing.T) {
 	}
 	// Outcomes are uint64 indices and one state vector is simulated: more
 	// than MaxQubits qubits is refused before any circuit is looked up.
-	if _, err := Collect(context.Background(), "t.arrow", recs, MaxQubits+1, lookup, 1); !errors.Is(err, ErrBadConfig) {
-		t.Errorf("%d qubits: %v, want ErrBadConfig", MaxQubits+1, err)
+	if _, err := Collect(context.Background(), "t.arrow", recs, MaxQubits+1, lookup, 1); !errors.Is(err, ErrConfig) {
+		t.Errorf("%d qubits: %v, want ErrConfig", MaxQubits+1, err)
 	}
 	ctx, cancel := context.WithCancel(context.Background())
 	cancel()

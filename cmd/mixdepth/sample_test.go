@@ -481,7 +481,7 @@ func TestSampleScorePlanBadInput(t *testing.T) {
 // deeply it is wrapped, while another error stays a failure while running.
 func TestExitCodeSamplingErrors(t *testing.T) {
 	for _, s := range []error{
-		sampling.ErrBadConfig, sampling.ErrNoiseRange, sampling.ErrCircuitFile, sampling.ErrCircuitMismatch,
+		sampling.ErrConfig, sampling.ErrNoiseRange, sampling.ErrCircuitFile, sampling.ErrCircuitMismatch,
 		sampling.ErrEmpty, sampling.ErrColumn, sampling.ErrNotNumber, sampling.ErrBitstring, sampling.ErrInstance,
 		sampling.ErrProbability, sampling.ErrMismatch,
 	} {

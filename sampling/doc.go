@@ -21,7 +21,7 @@
 // one) from circuits.FinalStream(s, i, d), its Pauli errors from
 // ErrorStream(s, i, d) and its shots from ShotStream(s, i, d): four ChaCha8
 // generators with distinct keys. Results depend on (s, i, d) alone, not on
-// workers or shards.
+// workers or on how a run is split into parts.
 //
 // Scoring (Boixo et al. 2018, Nature Physics 14, 595; Arute et al. 2019,
 // Nature 574, 505), per instance and pooled:

@@ -35,7 +35,7 @@ type Config struct {
 	Depth int
 	Seed  uint64
 	// Instances lists the instance ids to run (0..N−1 for a whole run; a
-	// shard runs a subset with the same streams).
+	// part of a run runs a subset with the same streams).
 	Instances []int
 	// Shots is the number of bitstrings drawn per instance.
 	Shots int

@@ -400,7 +400,7 @@ func TestRunDeterminism(t *testing.T) {
 	a.Workers = 1
 	all := runAll(t, a)
 	b := testConfig(t, "line:5", "haar", 6, 6, 300, nz)
-	b.Instances, b.Workers = []int{4, 1}, 3 // a shard-like subset, listed out of order
+	b.Instances, b.Workers = []int{4, 1}, 3 // a subset, as a part of a run has, listed out of order
 	some := runAll(t, b)
 	if some[0].Circuit.Instance != 1 || some[1].Circuit.Instance != 4 {
 		t.Fatalf("results not in ascending order: %d, %d", some[0].Circuit.Instance, some[1].Circuit.Instance)

@@ -40,11 +40,14 @@
 // CountGates; Noise.ErrorModel gives the model of a sampling noise model.
 //
 // Files. The circuit file (WriteCircuits, ReadCircuits) is JSON of this
-// project's own design, described at CircuitFile. Sample tables are read by
-// the caller; ReadCSV reads measured data with at least the columns
-// instance,bitstring. Data errors are *RowError and *CircuitFileError
-// values that name the row or field and wrap a sentinel (ErrEmpty,
-// ErrColumn, ErrNotNumber, ErrBitstring, ErrInstance, ErrProbability,
+// project's own design, described at CircuitFile. A sample table holds one
+// row per shot (SampleFields) in an Arrow or Parquet file of package tables
+// (WriteSampleTable); ReadSampleTable reads it back, or measured data as a
+// CSV file with at least the columns instance,bitstring (ReadCSV).
+//
+// Errors. Data errors are *RowError and *CircuitFileError values that name
+// the row or field and wrap a sentinel (ErrEmpty, ErrColumn, ErrColumnType,
+// ErrNull, ErrNotNumber, ErrBitstring, ErrInstance, ErrProbability,
 // ErrMismatch; ErrCircuitFile, ErrCircuitMismatch); a configuration that
 // cannot run wraps ErrConfig or ErrNoiseRange, and a state too large for
 // memory sim.ErrTooLarge. Check them with errors.Is. Programmer mistakes

@@ -49,7 +49,7 @@ var errInterrupted = errors.New("interrupted")
 // This is the one place where library errors become exit statuses.
 var badInputErrors = []error{
 	sim.ErrTooLarge,
-	sampling.ErrConfig, sampling.ErrNoiseRange, sampling.ErrCircuitFile, sampling.ErrCircuitMismatch, sampling.ErrEmpty, sampling.ErrColumn, sampling.ErrNotNumber, sampling.ErrBitstring, sampling.ErrInstance, sampling.ErrProbability, sampling.ErrMismatch,
+	sampling.ErrConfig, sampling.ErrNoiseRange, sampling.ErrCircuitFile, sampling.ErrCircuitMismatch, sampling.ErrEmpty, sampling.ErrColumn, sampling.ErrColumnType, sampling.ErrNull, sampling.ErrNotNumber, sampling.ErrBitstring, sampling.ErrInstance, sampling.ErrProbability, sampling.ErrMismatch,
 }
 
 // exitCode prints err on one line and returns the exit status: 0 success,

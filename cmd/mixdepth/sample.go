@@ -28,15 +28,6 @@ func init() {
 // scan at eps 0.05).
 const defaultSampleDepth = 16
 
-// sampleFields are the columns of a sample table, one row per shot.
-var sampleFields = []tables.Field{
-	{Name: "instance", Type: tables.Int64, Doc: "instance id; its random streams depend only on (seed, instance, depth)"},
-	{Name: "shot", Type: tables.Int64, Doc: "shot number within the instance, from 0"},
-	{Name: "bitstring", Type: tables.String, Doc: "measured bits after all noise, qubit 0 first"},
-	{Name: "outcome", Type: tables.Int64, Doc: "basis index x = Σ b_q 2^q of the bitstring"},
-	{Name: "p_ideal", Type: tables.Float64, Unit: "probability", Doc: "noiseless probability of the bitstring under the instance's circuit"},
-}
-
 // testHookSampleProgress, when non-nil, is called after each finished
 // instance of sample; tests use it to interrupt a run part-way.
 var testHookSampleProgress func()
@@ -169,7 +160,7 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	meta.Set("trajectories", strconv.Itoa(usedTrajectories))
 	meta.Set("shard", shard.String())
 	if *out != "" {
-		if err := checkWritable(*out, sampleFields, meta, "--out"); err != nil {
+		if err := checkWritable(*out, sampling.SampleFields(), meta, "--out"); err != nil {
 			return err
 		}
 	}
@@ -207,7 +198,7 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	meta.Set("partial", strconv.FormatBool(partial))
 	meta.Set("instances_done", formatIDs(done))
 	if *out != "" {
-		if err := writeSampleTable(*out, meta, s.graph.Qubits, results); err != nil {
+		if err := sampling.WriteSampleTable(*out, meta, s.graph.Qubits, results); err != nil {
 			return err
 		}
 	}
@@ -307,21 +298,6 @@ func plusMinus(v, se float64) string {
 		return fmt.Sprintf("%.4f ± n/a", v)
 	}
 	return fmt.Sprintf("%.4f ± %.4f", v, se)
-}
-
-// writeSampleTable writes one row per shot, instances ascending.
-func writeSampleTable(path string, meta tables.Meta, qubits int, results []*sampling.Result) error {
-	w, err := tables.Create(path, sampleFields, meta)
-	if err != nil {
-		return fmt.Errorf("writing %s: %w", path, err)
-	}
-	defer w.Abort()
-	for _, r := range results {
-		for k, x := range r.Outcomes {
-			w.Append(r.Circuit.Instance, k, sampling.FormatBitstring(x, qubits), int64(x), r.PIdeal[k])
-		}
-	}
-	return w.Close()
 }
 
 // parseReadout reads --readout-error "p01,p10" or "p".

@@ -482,7 +482,7 @@ func TestSampleScorePlanBadInput(t *testing.T) {
 func TestExitCodeSamplingErrors(t *testing.T) {
 	for _, s := range []error{
 		sampling.ErrConfig, sampling.ErrNoiseRange, sampling.ErrCircuitFile, sampling.ErrCircuitMismatch,
-		sampling.ErrEmpty, sampling.ErrColumn, sampling.ErrNotNumber, sampling.ErrBitstring, sampling.ErrInstance,
+		sampling.ErrEmpty, sampling.ErrColumn, sampling.ErrColumnType, sampling.ErrNull, sampling.ErrNotNumber, sampling.ErrBitstring, sampling.ErrInstance,
 		sampling.ErrProbability, sampling.ErrMismatch,
 	} {
 		err := fmt.Errorf("--circuits c.json: %w", &sampling.RowError{File: "t.csv", Err: s})

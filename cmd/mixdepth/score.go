@@ -7,7 +7,6 @@ import (
 	"io"
 	"math"
 	"os"
-	"path/filepath"
 	"strings"
 	"unicode/utf8"
 
@@ -237,74 +236,18 @@ func describeCircuitIDs(lookup func(int) *sampling.Circuit, recs []sampling.Reco
 	return "instances " + formatIDs(ids)
 }
 
-// readSamples reads the records of a sample table: Arrow or Parquet through
-// package tables, with its run metadata, or CSV through sampling.ReadCSV
-// (no metadata). Every failure is bad input naming the file.
+// readSamples reads the records of a sample table with
+// sampling.ReadSampleTable; every failure is bad input naming the file.
 func readSamples(path string) ([]sampling.Record, tables.Meta, error) {
-	if strings.EqualFold(filepath.Ext(path), ".csv") {
-		f, err := os.Open(path)
-		if err != nil {
-			return nil, tables.Meta{}, usageError{fmt.Errorf("reading %s: %w", path, err)}
-		}
-		defer f.Close()
-		recs, err := sampling.ReadCSV(path, f)
-		if err != nil {
-			return nil, tables.Meta{}, usageError{err}
-		}
-		return recs, tables.Meta{}, nil
+	recs, meta, err := sampling.ReadSampleTable(path)
+	var fe *tables.FormatError
+	switch {
+	case errors.As(err, &fe):
+		return nil, meta, badInput("%s: unknown table format: use a name ending in .arrow, .parquet or .csv", path)
+	case err != nil:
+		return nil, meta, usageError{err}
 	}
-	t, err := tables.Read(path)
-	if err != nil {
-		var fe *tables.FormatError
-		if errors.As(err, &fe) {
-			return nil, tables.Meta{}, badInput("%s: unknown table format: use a name ending in .arrow, .parquet or .csv", path)
-		}
-		return nil, tables.Meta{}, usageError{err}
-	}
-	col := func(name string) (int, error) {
-		j, ok := t.Column(name)
-		if !ok {
-			return 0, badInput("%s: no %s column: a sample table needs instance (int64) and bitstring (string) columns", path, name)
-		}
-		return j, nil
-	}
-	ji, err := col("instance")
-	if err != nil {
-		return nil, t.Meta, err
-	}
-	jb, err := col("bitstring")
-	if err != nil {
-		return nil, t.Meta, err
-	}
-	inst, err := t.Int64s("instance")
-	if err != nil {
-		return nil, t.Meta, badInput("%s: column instance: %v", path, err)
-	}
-	bits, err := t.Strings("bitstring")
-	if err != nil {
-		return nil, t.Meta, badInput("%s: column bitstring: %v", path, err)
-	}
-	var p []float64
-	jp, hasP := t.Column("p_ideal")
-	if hasP {
-		if p, err = t.Float64s("p_ideal"); err != nil {
-			return nil, t.Meta, badInput("%s: column p_ideal: %v", path, err)
-		}
-	}
-	valid := func(j, i int) bool { return t.Valid == nil || t.Valid[j] == nil || t.Valid[j][i] }
-	recs := make([]sampling.Record, t.Len())
-	for i := range recs {
-		for _, j := range []int{ji, jb} {
-			if !valid(j, i) {
-				return nil, t.Meta, badInput("%s: row %d: column %s is null: every shot needs an instance and a bitstring", path, i+1, t.Fields[j].Name)
-			}
-		}
-		recs[i] = sampling.Record{Row: i + 1, Instance: int(inst[i]), Bitstring: bits[i]}
-		if hasP && valid(jp, i) {
-			recs[i].PIdeal, recs[i].HasP = p[i], true
-		}
-	}
-	return recs, t.Meta, nil
+	return recs, meta, nil
 }
 
 // readCircuitFile reads and checks a circuit file; every failure is bad input.

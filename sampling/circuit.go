@@ -28,7 +28,10 @@ type Circuit struct {
 // Build draws instance id at depth depth of the run with seed seed: step t's
 // gates come from circuits.NewBuilder's stream circuits.Stream(seed, id),
 // and the final layer, when the ensemble is a circuits.Finisher, from
-// circuits.FinalStream(seed, id, depth). It panics if depth < 1 or qubits < 2.
+// circuits.FinalStream(seed, id, depth). These are the gates, in the same
+// order, that scan.Run applies to instance id when it reads out depth depth,
+// so the circuit's Probabilities reproduce that readout to rounding. It
+// panics if depth < 1 or qubits < 2.
 func Build(s circuits.Schedule, e circuits.Ensemble, qubits int, seed uint64, id, depth int) *Circuit {
 	if depth < 1 || qubits < 2 {
 		panic(fmt.Sprintf("sampling: Build with depth %d on %d qubits", depth, qubits))

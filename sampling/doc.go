@@ -21,7 +21,7 @@
 // one) from circuits.FinalStream(s, i, d), its Pauli errors from
 // ErrorStream(s, i, d) and its shots from ShotStream(s, i, d): four ChaCha8
 // generators with distinct keys. Results depend on (s, i, d) alone, not on
-// workers or shards.
+// workers or on how a run is split into parts.
 //
 // Scoring (Boixo et al. 2018, Nature Physics 14, 595; Arute et al. 2019,
 // Nature 574, 505), per instance and pooled:
@@ -34,10 +34,22 @@
 // F_lin/(D·Z_U − 1) as the fidelity estimate and flags tables whose circuits
 // have not anti-concentrated, where the raw F_lin overstates the fidelity.
 //
+// Prediction. ErrorModel is the digital error model (Arute et al. 2019,
+// Nature 574, 505): a circuit's fidelity is the product of its gate,
+// depolarizing and readout fidelities, with the gates counted by
+// CountGates; Noise.ErrorModel gives the model of a sampling noise model.
+//
 // Files. The circuit file (WriteCircuits, ReadCircuits) is JSON of this
-// project's own design, described at CircuitFile. Sample tables are read by
-// the caller; ReadCSV reads measured data with at least the columns
-// instance,bitstring. Data errors are *RowError and *CircuitFileError
-// values that name the row or field and wrap a sentinel; programmer
-// mistakes panic with a "sampling: " message.
+// project's own design, described at CircuitFile. A sample table holds one
+// row per shot (SampleFields) in an Arrow or Parquet file of package tables
+// (WriteSampleTable); ReadSampleTable reads it back, or measured data as a
+// CSV file with at least the columns instance,bitstring (ReadCSV).
+//
+// Errors. Data errors are *RowError and *CircuitFileError values that name
+// the row or field and wrap a sentinel (ErrEmpty, ErrColumn, ErrColumnType,
+// ErrNull, ErrNotNumber, ErrBitstring, ErrInstance, ErrProbability,
+// ErrMismatch; ErrCircuitFile, ErrCircuitMismatch); a configuration that
+// cannot run wraps ErrConfig or ErrNoiseRange, and a state too large for
+// memory sim.ErrTooLarge. Check them with errors.Is. Programmer mistakes
+// panic with a "sampling: " message.
 package sampling

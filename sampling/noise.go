@@ -3,7 +3,6 @@ package sampling
 import (
 	"errors"
 	"fmt"
-	"math"
 	"math/rand/v2"
 )
 
@@ -39,10 +38,20 @@ var ErrNoiseRange = errors.New("noise parameter outside [0, 1]")
 // Validate returns an error wrapping ErrNoiseRange, naming the parameter,
 // unless every parameter lies in [0, 1].
 func (n Noise) Validate() error {
-	for _, p := range []struct {
-		name string
-		v    float64
-	}{{"fidelity", n.Fidelity}, {"gate error", n.GateError}, {"readout error 0→1", n.Readout01}, {"readout error 1→0", n.Readout10}} {
+	return checkUnitRange([]namedValue{{"fidelity", n.Fidelity}, {"gate error", n.GateError},
+		{"readout error 0→1", n.Readout01}, {"readout error 1→0", n.Readout10}})
+}
+
+// namedValue is a parameter and its name, for messages.
+type namedValue struct {
+	name string
+	v    float64
+}
+
+// checkUnitRange returns an error wrapping ErrNoiseRange for the first
+// value outside [0, 1] (NaN included).
+func checkUnitRange(values []namedValue) error {
+	for _, p := range values {
 		if !(p.v >= 0 && p.v <= 1) {
 			return fmt.Errorf("sampling: %s is %v: %w", p.name, p.v, ErrNoiseRange)
 		}
@@ -55,14 +64,6 @@ func (n Noise) check() {
 	if err := n.Validate(); err != nil {
 		panic(err.Error())
 	}
-}
-
-// ReadoutFidelity returns the digital-error-model factor of reading out
-// qubits qubits, (1 − (Readout01 + Readout10)/2)^qubits: each qubit counts
-// with its error averaged over the two outcomes (Arute et al. 2019, Nature
-// 574, 505, which multiplies the average readout fidelities of the qubits).
-func (n Noise) ReadoutFidelity(qubits int) float64 {
-	return math.Pow(1-(n.Readout01+n.Readout10)/2, float64(qubits))
 }
 
 // Readout returns the outcome x of qubits qubits after independent readout

@@ -35,7 +35,7 @@ type Config struct {
 	Depth int
 	Seed  uint64
 	// Instances lists the instance ids to run (0..N−1 for a whole run; a
-	// shard runs a subset with the same streams).
+	// part of a run runs a subset with the same streams).
 	Instances []int
 	// Shots is the number of bitstrings drawn per instance.
 	Shots int
@@ -67,7 +67,21 @@ type Result struct {
 	Trajectories int
 }
 
-// ErrConfig is wrapped by the errors of Config.Validate.
+// Samples returns the scoring input of the result: its instance id,
+// collision probability and the ideal probabilities of its shots (shared,
+// not copied).
+func (r *Result) Samples() InstanceSamples {
+	return InstanceSamples{Instance: r.Circuit.Instance, Collision: r.Collision, PIdeal: r.PIdeal}
+}
+
+// qubitRange describes the qubit counts that what takes, 2 to MaxQubits,
+// for the error about n qubits outside that range.
+func qubitRange(n int, what string) string {
+	return fmt.Sprintf("%d qubits: %s takes 2 to %d; use a smaller graph", n, what, MaxQubits)
+}
+
+// ErrConfig is wrapped by the errors of Config.Validate and by Collect's
+// error for a qubit count it cannot score.
 var ErrConfig = errors.New("invalid sampling configuration")
 
 // Validate returns an error wrapping ErrConfig (or ErrNoiseRange) for a
@@ -81,7 +95,7 @@ func (c *Config) Validate() error {
 	}
 	switch {
 	case c.Qubits < 2 || c.Qubits > MaxQubits:
-		return bad("%d qubits: sampling takes 2 to %d", c.Qubits, MaxQubits)
+		return bad("%s", qubitRange(c.Qubits, "sampling"))
 	case c.Depth < 1:
 		return bad("depth %d is not positive", c.Depth)
 	case c.Shots < 1:
@@ -104,8 +118,11 @@ func (c *Config) Validate() error {
 	return c.Noise.Validate()
 }
 
-// trajectories returns the number of trajectories an instance simulates.
-func (c *Config) trajectories() int {
+// TrajectoriesPerInstance returns the number of quantum trajectories each
+// instance simulates: 0 without gate errors, else
+// T = min(Shots, Trajectories), with DefaultTrajectories for a zero
+// Trajectories.
+func (c *Config) TrajectoriesPerInstance() int {
 	if c.Noise.GateError == 0 {
 		return 0
 	}
@@ -302,7 +319,7 @@ func (w *worker) instance(ctx context.Context, id int) (r *Result, ok bool) {
 		return nil, false
 	}
 	w.ideal = w.st.Probabilities(w.ideal, w.workers)
-	r = &Result{Circuit: circ, Collision: stats.Collision(w.ideal), Trajectories: c.trajectories()}
+	r = &Result{Circuit: circ, Collision: stats.Collision(w.ideal), Trajectories: c.TrajectoriesPerInstance()}
 	shots := ShotStream(c.Seed, id, c.Depth)
 	out := make([]uint64, 0, c.Shots)
 	w.idealTable.Reset(w.ideal)

@@ -55,7 +55,7 @@ func runAll(t *testing.T, c *Config) []*Result {
 func groups(rs []*Result) []InstanceSamples {
 	g := make([]InstanceSamples, len(rs))
 	for i, r := range rs {
-		g[i] = InstanceSamples{Instance: r.Circuit.Instance, Collision: r.Collision, PIdeal: r.PIdeal}
+		g[i] = r.Samples()
 	}
 	return g
 }
@@ -174,7 +174,11 @@ func TestGateErrorDigitalModel(t *testing.T) {
 			}
 		}
 		rep := Score(6, groups(rs))
-		want := math.Pow(1-tc.nz.GateError, float64(g)) * tc.nz.Fidelity * tc.nz.ReadoutFidelity(6)
+		want := math.Pow(1-tc.nz.GateError, float64(g)) * tc.nz.Fidelity * math.Pow(1-(tc.nz.Readout01+tc.nz.Readout10)/2, 6)
+		// ErrorModel is the same product (to rounding: 1e-14 relative).
+		if model := tc.nz.ErrorModel().Predict(CountGates(c.Schedule, c.Ensemble, 6, c.Depth)).Fidelity; math.Abs(model-want) > 1e-14*want {
+			t.Errorf("%s: ErrorModel predicts %.17g, want %.17g", tc.name, model, want)
+		}
 		t.Logf("%s: normalized %.4f ± %.4f, linear %.4f, digital model %.4f", tc.name, rep.Normalized, rep.NormalizedErr, rep.Linear, want)
 		if math.Abs(rep.Normalized-want) > 0.15*want {
 			t.Errorf("%s: normalized XEB %.4f ± %.4f, digital model %.4f (g = %d): off by more than 15%%", tc.name, rep.Normalized, rep.NormalizedErr, want, g)
@@ -396,7 +400,7 @@ func TestRunDeterminism(t *testing.T) {
 	a.Workers = 1
 	all := runAll(t, a)
 	b := testConfig(t, "line:5", "haar", 6, 6, 300, nz)
-	b.Instances, b.Workers = []int{4, 1}, 3 // a shard-like subset, listed out of order
+	b.Instances, b.Workers = []int{4, 1}, 3 // a subset, as a part of a run has, listed out of order
 	some := runAll(t, b)
 	if some[0].Circuit.Instance != 1 || some[1].Circuit.Instance != 4 {
 		t.Fatalf("results not in ascending order: %d, %d", some[0].Circuit.Instance, some[1].Circuit.Instance)
@@ -451,7 +455,7 @@ func TestTrajectoryShots(t *testing.T) {
 		}
 	}
 	c := testConfig(t, "line:3", "haar", 2, 1, 30, Noise{Fidelity: 1, GateError: 0.1})
-	if got := c.trajectories(); got != 30 {
+	if got := c.TrajectoriesPerInstance(); got != 30 {
 		t.Errorf("30 shots: %d trajectories, want min(30, 100) = 30", got)
 	}
 }

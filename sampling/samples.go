@@ -206,9 +206,14 @@ const MatchTolerance = 1e-6
 // probabilities of rows that have none; a row's own p_ideal must lie in
 // [0, 1] and agree with the simulation within MatchTolerance. Errors name
 // the file and row: *RowError values wrapping ErrEmpty, ErrBitstring,
-// ErrInstance, ErrProbability or ErrMismatch. A cancelled ctx stops it
-// between instances with ctx.Err().
+// ErrInstance, ErrProbability or ErrMismatch. A qubit count outside 2 to
+// MaxQubits is an error wrapping ErrConfig, and a state too large for
+// memory one wrapping sim.ErrTooLarge. A cancelled ctx stops it between
+// instances with ctx.Err().
 func Collect(ctx context.Context, name string, records []Record, qubits int, circuit func(id int) *Circuit, workers int) ([]InstanceSamples, error) {
+	if qubits < 2 || qubits > MaxQubits {
+		return nil, fmt.Errorf("sampling: %s: %w", qubitRange(qubits, "scoring"), ErrConfig)
+	}
 	if len(records) == 0 {
 		return nil, &RowError{File: name, Err: ErrEmpty, Detail: "the table has no rows"}
 	}

@@ -139,6 +139,11 @@ func TestCollect(t *testing.T) {
 	if _, err := Collect(context.Background(), "t.arrow", nil, 3, lookup, 1); !errors.Is(err, ErrEmpty) {
 		t.Errorf("no records: %v", err)
 	}
+	// Outcomes are uint64 indices and one state vector is simulated: more
+	// than MaxQubits qubits is refused before any circuit is looked up.
+	if _, err := Collect(context.Background(), "t.arrow", recs, MaxQubits+1, lookup, 1); !errors.Is(err, ErrConfig) {
+		t.Errorf("%d qubits: %v, want ErrConfig", MaxQubits+1, err)
+	}
 	ctx, cancel := context.WithCancel(context.Background())
 	cancel()
 	if _, err := Collect(ctx, "t.arrow", recs, 3, lookup, 1); !errors.Is(err, context.Canceled) {

@@ -106,19 +106,18 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if useRel && !(*rel > 0 && !math.IsInf(*rel, 1)) {
 		return badInput("--rel-precision %v: must be positive", *rel)
 	}
-	g2, g1 := gateCountsOf(s, *depth)
+	counts := sampling.CountGates(s.schedule, s.ensemble, s.graph.Qubits, *depth)
 	if fs.Changed("single-qubit-gates") {
 		if *singleGates < 0 {
 			return badInput("--single-qubit-gates %d: must be at least 0", *singleGates)
 		}
-		g1 = *singleGates
+		counts.SingleQubit = *singleGates
 	}
 
-	n := s.graph.Qubits
-	f2 := math.Pow(1-*gateError, float64(g2))
-	f1 := math.Pow(1-*singleError, float64(g1))
-	fr := sampling.Noise{Readout01: p01, Readout10: p10}.ReadoutFidelity(n)
-	model := f2 * f1 * fr
+	n, g2, g1 := counts.Qubits, counts.TwoQubit, counts.SingleQubit
+	errModel := sampling.ErrorModel{TwoQubitError: *gateError, SingleQubitError: *singleError, Depolarizing: 1, Readout01: p01, Readout10: p10}
+	pred := errModel.Predict(counts)
+	f2, f1, fr, model := pred.TwoQubit, pred.SingleQubit, pred.Readout, pred.Fidelity
 	f, source := model, "error model"
 	if given {
 		f, source = *fidelity, "given"
@@ -185,20 +184,4 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	}
 	fmt.Fprintf(stdout, "plan for N = %d shots in all (pooled over the instances)\n", doc.Samples)
 	return nil
-}
-
-// gateCountsOf returns the two-qubit gate count of depth steps and the
-// single-qubit gates the digital error model counts for the ensemble: the
-// final layer of n gates when the ensemble has one (circuits.Finisher), and
-// for a gate set G·(u_a ⊗ u_b) two more per two-qubit gate. Haar and
-// Clifford gates count as native two-qubit gates.
-func gateCountsOf(s *setup, depth int) (twoQubit, singleQubit int) {
-	twoQubit = s.schedule.GateCount(depth)
-	if _, ok := s.ensemble.(*circuits.GateSet); ok {
-		singleQubit += 2 * twoQubit
-	}
-	if _, ok := s.ensemble.(circuits.Finisher); ok {
-		singleQubit += s.graph.Qubits
-	}
-	return twoQubit, singleQubit
 }

@@ -7,9 +7,9 @@ import (
 	"io"
 	"math"
 
-	"mixdepth/circuits"
 	"mixdepth/plots"
 	"mixdepth/runs"
+	"mixdepth/sampling"
 	"mixdepth/scan"
 	"mixdepth/sim"
 	"mixdepth/stats"
@@ -152,32 +152,10 @@ func defaultPTDepth(meta tables.Meta, qubits int, records []scan.Record) int {
 }
 
 // instanceProbabilities simulates instance id of the run described by s and
-// seed to the given depth, exactly as scan does (scan/scan.go), applies the
-// final single-qubit layer when the ensemble has one, and returns the output
-// probabilities in dst.
+// seed to the given depth as scan does, final single-qubit layer included
+// (sampling.Build), and returns the output probabilities in dst.
 func instanceProbabilities(st *sim.State, s *setup, seed uint64, id, depth, workers int, dst []float64) []float64 {
-	st.Reset()
-	n := s.graph.Qubits
-	// The state is split across goroutines only from sim.ParallelQubits
-	// qubits on, as in scan.Run.
-	gw := 1
-	if n >= sim.ParallelQubits {
-		gw = workers
-	}
-	b := circuits.NewBuilder(s.schedule, s.ensemble, seed, id)
-	var gates []circuits.Gate
-	for range depth {
-		gates = b.Next(gates[:0])
-		for i := range gates {
-			st.Apply2(gates[i].A, gates[i].B, &gates[i].M, gw)
-		}
-	}
-	if layer, ok := circuits.FinalLayer(s.ensemble, n, seed, id, depth, nil); ok {
-		for q := range layer {
-			st.Apply1(q, &layer[q], gw)
-		}
-	}
-	return st.Probabilities(dst, gw)
+	return sampling.Build(s.schedule, s.ensemble, s.graph.Qubits, seed, id, depth).Probabilities(st, dst, workers)
 }
 
 // tableInstances returns the finished instance ids of a table

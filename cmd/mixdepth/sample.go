@@ -16,7 +16,6 @@ import (
 
 	"mixdepth/circuits"
 	"mixdepth/sampling"
-	"mixdepth/sim"
 	"mixdepth/tables"
 )
 
@@ -28,15 +27,6 @@ func init() {
 // given: past the anti-concentration depth of the demo chip (14 layers by
 // scan at eps 0.05).
 const defaultSampleDepth = 16
-
-// sampleFields are the columns of a sample table, one row per shot.
-var sampleFields = []tables.Field{
-	{Name: "instance", Type: tables.Int64, Doc: "instance id; its random streams depend only on (seed, instance, depth)"},
-	{Name: "shot", Type: tables.Int64, Doc: "shot number within the instance, from 0"},
-	{Name: "bitstring", Type: tables.String, Doc: "measured bits after all noise, qubit 0 first"},
-	{Name: "outcome", Type: tables.Int64, Doc: "basis index x = Σ b_q 2^q of the bitstring"},
-	{Name: "p_ideal", Type: tables.Float64, Unit: "probability", Doc: "noiseless probability of the bitstring under the instance's circuit"},
-}
 
 // testHookSampleProgress, when non-nil, is called after each finished
 // instance of sample; tests use it to interrupt a run part-way.
@@ -144,9 +134,6 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	if err != nil {
 		return err
 	}
-	if s.graph.Qubits > sampling.MaxQubits {
-		return badInput("--graph %s has %d qubits: sample takes at most %d", s.graph.Name, s.graph.Qubits, sampling.MaxQubits)
-	}
 	noise := sampling.Noise{Fidelity: *fidelity, GateError: *gateError, Readout01: p01, Readout10: p10}
 	cfg := &sampling.Config{
 		Schedule: s.schedule, Ensemble: s.ensemble, Qubits: s.graph.Qubits, Depth: *depth, Seed: cf.seed,
@@ -156,10 +143,10 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		return badInput("--part %s selects no instance of %d: use fewer parts or more instances", part, *instances)
 	}
 	gateCount := s.schedule.GateCount(*depth)
-	usedTrajectories := 0
-	if noise.GateError > 0 {
-		usedTrajectories = min(*shots, *trajectories)
+	if err := cfg.Validate(); err != nil {
+		return err
 	}
+	usedTrajectories := cfg.TrajectoriesPerInstance()
 
 	meta := runMeta(s, &cf)
 	meta.Set("command", "sample")
@@ -173,7 +160,7 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	meta.Set("trajectories", strconv.Itoa(usedTrajectories))
 	meta.Set("part", part.String())
 	if *out != "" {
-		if err := checkWritable(*out, sampleFields, meta, "--out"); err != nil {
+		if err := checkWritable(*out, sampling.SampleFields(), meta, "--out"); err != nil {
 			return err
 		}
 	}
@@ -205,16 +192,13 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	})
 	interrupted := errors.Is(err, context.Canceled)
 	if err != nil && !interrupted {
-		if errors.Is(err, sim.ErrTooLarge) || errors.Is(err, sampling.ErrConfig) || errors.Is(err, sampling.ErrNoiseRange) {
-			return usageError{err}
-		}
 		return err
 	}
 	partial := len(done) < len(cfg.Instances)
 	meta.Set("partial", strconv.FormatBool(partial))
 	meta.Set("instances_done", formatIDs(done))
 	if *out != "" {
-		if err := writeSampleTable(*out, meta, s.graph.Qubits, results); err != nil {
+		if err := sampling.WriteSampleTable(*out, meta, s.graph.Qubits, results); err != nil {
 			return err
 		}
 	}
@@ -249,10 +233,10 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		return errInterrupted
 	}
 
-	predicted := math.Pow(1-noise.GateError, float64(gateCount)) * noise.Fidelity * noise.ReadoutFidelity(s.graph.Qubits)
+	predicted := noise.ErrorModel().Predict(sampling.CountGates(s.schedule, s.ensemble, s.graph.Qubits, *depth)).Fidelity
 	groups := make([]sampling.InstanceSamples, len(results))
 	for i, r := range results {
-		groups[i] = sampling.InstanceSamples{Instance: r.Circuit.Instance, Collision: r.Collision, PIdeal: r.PIdeal}
+		groups[i] = r.Samples()
 	}
 	rep := sampling.Score(s.graph.Qubits, groups)
 	if *asJSON {
@@ -314,21 +298,6 @@ func plusMinus(v, se float64) string {
 		return fmt.Sprintf("%.4f ± n/a", v)
 	}
 	return fmt.Sprintf("%.4f ± %.4f", v, se)
-}
-
-// writeSampleTable writes one row per shot, instances ascending.
-func writeSampleTable(path string, meta tables.Meta, qubits int, results []*sampling.Result) error {
-	w, err := tables.Create(path, sampleFields, meta)
-	if err != nil {
-		return fmt.Errorf("writing %s: %w", path, err)
-	}
-	defer w.Abort()
-	for _, r := range results {
-		for k, x := range r.Outcomes {
-			w.Append(r.Circuit.Instance, k, sampling.FormatBitstring(x, qubits), int64(x), r.PIdeal[k])
-		}
-	}
-	return w.Close()
 }
 
 // parseReadout reads --readout-error "p01,p10" or "p".

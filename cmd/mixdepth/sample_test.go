@@ -5,6 +5,7 @@ import (
 	"context"
 	"encoding/json"
 	"fmt"
+	"io"
 	"math"
 	"os"
 	"path/filepath"
@@ -413,6 +414,7 @@ func TestSampleScorePlanBadInput(t *testing.T) {
 		{"circuits dir", []string{"sample", "--graph", "line:4", "--circuits", filepath.Join(dir, "no", "c.json")}, []string{"--circuits"}},
 		{"out format", []string{"sample", "--graph", "line:4", "--out", filepath.Join(dir, "t.csv")}, []string{".arrow or .parquet"}},
 		{"sample positional", []string{"sample", "extra"}, []string{"positional"}},
+		{"sample qubits", []string{"sample", "--graph", "line:40", "--depth", "2"}, []string{"40 qubits", "2 to 32"}},
 
 		{"no table", []string{"score"}, []string{"one sample table"}},
 		{"missing table", []string{"score", filepath.Join(dir, "absent.parquet")}, []string{"absent.parquet"}},
@@ -438,6 +440,8 @@ func TestSampleScorePlanBadInput(t *testing.T) {
 		{"circuits qubits", []string{"score", csvFile("q.csv", "instance,bitstring\n0,0101\n"), "--circuits", circ, "--graph", "line:5"}, []string{"field qubits"}},
 		{"circuits malformed", []string{"score", csvFile("m.csv", "instance,bitstring\n0,0101\n"), "--circuits", badCircuit}, []string{"bad.json", "circuits[0].steps[0][0].matrix"}},
 		{"circuits and depth", []string{"score", out, "--circuits", circ, "--depth", "3"}, []string{"drop --depth"}},
+		{"score qubits", []string{"score", csvFile("big.csv", "instance,bitstring\n0,"+strings.Repeat("0", 40)+"\n"), "--graph", "line:40", "--depth", "2"},
+			[]string{"40 qubits", "2 to 32"}},
 
 		{"plan needs f", []string{"plan"}, []string{"--fidelity"}},
 		{"plan f zero", []string{"plan", "--fidelity", "0"}, []string{"--fidelity 0"}},
@@ -469,5 +473,24 @@ func TestSampleScorePlanBadInput(t *testing.T) {
 	}
 	if left, _ := filepath.Glob(filepath.Join(dir, ".*.tmp")); len(left) > 0 {
 		t.Errorf("failed runs left temporary files: %v", left)
+	}
+}
+
+// TestExitCodeSamplingErrors: every sentinel of package sampling for bad
+// input or data maps to exit status 2 through exitCode's list, however
+// deeply it is wrapped, while another error stays a failure while running.
+func TestExitCodeSamplingErrors(t *testing.T) {
+	for _, s := range []error{
+		sampling.ErrConfig, sampling.ErrNoiseRange, sampling.ErrCircuitFile, sampling.ErrCircuitMismatch,
+		sampling.ErrEmpty, sampling.ErrColumn, sampling.ErrColumnType, sampling.ErrNull, sampling.ErrNotNumber, sampling.ErrBitstring, sampling.ErrInstance,
+		sampling.ErrProbability, sampling.ErrMismatch,
+	} {
+		err := fmt.Errorf("--circuits c.json: %w", &sampling.RowError{File: "t.csv", Err: s})
+		if code := exitCode(err, io.Discard); code != 2 {
+			t.Errorf("%v: exit %d, want 2", s, code)
+		}
+	}
+	if code := exitCode(fmt.Errorf("sampling: writing: %w", os.ErrClosed), io.Discard); code != 1 {
+		t.Errorf("a failure while running: exit %d, want 1", code)
 	}
 }

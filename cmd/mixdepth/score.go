@@ -7,12 +7,10 @@ import (
 	"io"
 	"math"
 	"os"
-	"path/filepath"
 	"strings"
 	"unicode/utf8"
 
 	"mixdepth/sampling"
-	"mixdepth/sim"
 	"mixdepth/tables"
 )
 
@@ -111,7 +109,7 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 				return err
 			}
 			if err := cfile.Check(s.graph); err != nil {
-				return usageError{fmt.Errorf("--circuits %s: %w", *circuitsIn, err)}
+				return fmt.Errorf("--circuits %s: %w", *circuitsIn, err)
 			}
 		}
 		if d, ok := meta.Get("graph_digest"); ok && cfile.GraphDigest != "" && d != cfile.GraphDigest {
@@ -124,9 +122,6 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		s, seed, d, total, err := scoreSetup(fs.Changed, &cf, *depth, meta, sampled, path)
 		if err != nil {
 			return err
-		}
-		if s.graph.Qubits > sampling.MaxQubits {
-			return badInput("graph %s has %d qubits: score takes at most %d", s.graph.Name, s.graph.Qubits, sampling.MaxQubits)
 		}
 		qubits = s.graph.Qubits
 		lookup = func(id int) *sampling.Circuit {
@@ -143,20 +138,12 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	}
 
 	groups, err := sampling.Collect(ctx, path, recs, qubits, lookup, *workers)
-	if err != nil {
-		switch {
-		case errors.Is(err, context.Canceled):
-			return errInterrupted
-		case errors.Is(err, sim.ErrTooLarge):
-			return usageError{err}
-		}
-		var re *sampling.RowError
-		if errors.As(err, &re) {
-			if errors.Is(err, sampling.ErrInstance) && *circuitsIn != "" {
-				return badInput("%v (%s has %s)", err, *circuitsIn, describeCircuitIDs(lookup, recs))
-			}
-			return usageError{err}
-		}
+	switch {
+	case errors.Is(err, context.Canceled):
+		return errInterrupted
+	case errors.Is(err, sampling.ErrInstance) && *circuitsIn != "":
+		return badInput("%v (%s has %s)", err, *circuitsIn, describeCircuitIDs(lookup, recs))
+	case err != nil:
 		return err
 	}
 	rep := sampling.Score(qubits, groups)
@@ -249,74 +236,18 @@ func describeCircuitIDs(lookup func(int) *sampling.Circuit, recs []sampling.Reco
 	return "instances " + formatIDs(ids)
 }
 
-// readSamples reads the records of a sample table: Arrow or Parquet through
-// package tables, with its run metadata, or CSV through sampling.ReadCSV
-// (no metadata). Every failure is bad input naming the file.
+// readSamples reads the records of a sample table with
+// sampling.ReadSampleTable; every failure is bad input naming the file.
 func readSamples(path string) ([]sampling.Record, tables.Meta, error) {
-	if strings.EqualFold(filepath.Ext(path), ".csv") {
-		f, err := os.Open(path)
-		if err != nil {
-			return nil, tables.Meta{}, usageError{fmt.Errorf("reading %s: %w", path, err)}
-		}
-		defer f.Close()
-		recs, err := sampling.ReadCSV(path, f)
-		if err != nil {
-			return nil, tables.Meta{}, usageError{err}
-		}
-		return recs, tables.Meta{}, nil
+	recs, meta, err := sampling.ReadSampleTable(path)
+	var fe *tables.FormatError
+	switch {
+	case errors.As(err, &fe):
+		return nil, meta, badInput("%s: unknown table format: use a name ending in .arrow, .parquet or .csv", path)
+	case err != nil:
+		return nil, meta, usageError{err}
 	}
-	t, err := tables.Read(path)
-	if err != nil {
-		var fe *tables.FormatError
-		if errors.As(err, &fe) {
-			return nil, tables.Meta{}, badInput("%s: unknown table format: use a name ending in .arrow, .parquet or .csv", path)
-		}
-		return nil, tables.Meta{}, usageError{err}
-	}
-	col := func(name string) (int, error) {
-		j, ok := t.Column(name)
-		if !ok {
-			return 0, badInput("%s: no %s column: a sample table needs instance (int64) and bitstring (string) columns", path, name)
-		}
-		return j, nil
-	}
-	ji, err := col("instance")
-	if err != nil {
-		return nil, t.Meta, err
-	}
-	jb, err := col("bitstring")
-	if err != nil {
-		return nil, t.Meta, err
-	}
-	inst, err := t.Int64s("instance")
-	if err != nil {
-		return nil, t.Meta, badInput("%s: column instance: %v", path, err)
-	}
-	bits, err := t.Strings("bitstring")
-	if err != nil {
-		return nil, t.Meta, badInput("%s: column bitstring: %v", path, err)
-	}
-	var p []float64
-	jp, hasP := t.Column("p_ideal")
-	if hasP {
-		if p, err = t.Float64s("p_ideal"); err != nil {
-			return nil, t.Meta, badInput("%s: column p_ideal: %v", path, err)
-		}
-	}
-	valid := func(j, i int) bool { return t.Valid == nil || t.Valid[j] == nil || t.Valid[j][i] }
-	recs := make([]sampling.Record, t.Len())
-	for i := range recs {
-		for _, j := range []int{ji, jb} {
-			if !valid(j, i) {
-				return nil, t.Meta, badInput("%s: row %d: column %s is null: every shot needs an instance and a bitstring", path, i+1, t.Fields[j].Name)
-			}
-		}
-		recs[i] = sampling.Record{Row: i + 1, Instance: int(inst[i]), Bitstring: bits[i]}
-		if hasP && valid(jp, i) {
-			recs[i].PIdeal, recs[i].HasP = p[i], true
-		}
-	}
-	return recs, t.Meta, nil
+	return recs, meta, nil
 }
 
 // readCircuitFile reads and checks a circuit file; every failure is bad input.

@@ -43,7 +43,7 @@ set -euo pipefail
 here=$(cd "$(dirname "${BASH_SOURCE[0]}")" && pwd)
 prog=local-sweep.sh
 valued=(parts out jobs part-dir)
-# shellcheck source=options.sh
+# shellcheck source-path=SCRIPTDIR source=options.sh
 source "$here/options.sh"
 
 parse_options "$@"
@@ -68,8 +68,8 @@ first_status=0 first_part=""
 
 # stop SIGNAL STATUS: on a signal to the script, send SIGNAL to the running
 # parts (none for SIGINT, which a terminal delivers to them as well), wait
-# for them to save their tables, and exit with STATUS. A second signal of
-# the same kind then ends the script at once.
+# for them to save their tables, and exit with STATUS. A second SIGINT or
+# SIGTERM then ends the script at once.
 stop() {
 	trap - INT TERM
 	local pid

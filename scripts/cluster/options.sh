@@ -1,3 +1,4 @@
+# shellcheck shell=bash disable=SC2154 # prog, valued, reserved_why: set by the sourcing script
 # options.sh: the option handling that local-sweep.sh and submit.sh share.
 # It is sourced, not run. The sourcing script sets, before calling
 # parse_options:

@@ -39,7 +39,7 @@ prog=submit.sh
 valued=(parts out part-dir cpus-per-part queue time-limit)
 reserved=--workers
 reserved_why="each part runs with --workers equal to its CPUs; set them with --cpus-per-part"
-# shellcheck source=options.sh
+# shellcheck source-path=SCRIPTDIR source=options.sh
 source "$here/options.sh"
 
 parse_options "$@"

@@ -148,8 +148,16 @@ fi
 	}
 }
 
+// needBash returns the path of bash, skipping the test when there is none.
+// It also reads the scripts, so that go test's cache, which notices the
+// files a test opens, reruns the tests when a script changes.
 func needBash(t *testing.T) string {
 	t.Helper()
+	for _, name := range []string{"test.sh", "options.sh", "local-sweep.sh", "submit.sh", "sweep.slurm", "merge.slurm"} {
+		if _, err := os.ReadFile(name); err != nil {
+			t.Fatal(err)
+		}
+	}
 	bash, err := exec.LookPath("bash")
 	if err != nil {
 		t.Skip("bash is not installed: the cluster scripts are bash scripts")

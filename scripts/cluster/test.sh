@@ -48,13 +48,14 @@ if [[ "$cmd" == merge ]]; then
 	exit 0
 fi
 k=${part%/*}
+sleeper=""
+# On SIGTERM, take half a second to "save", as mixdepth writes its partial
+# table, so that a sweep that does not wait for its parts is caught. The
+# trap is set before the part shows itself as running.
+trap 'kill "$sleeper" 2>/dev/null; sleep 0.5; rm -f "$FAKE_STATE/running/$k"; echo "$k" >>"$FAKE_STATE/stopped"; exit 130' TERM
 mkdir -p "$FAKE_STATE/running"
 touch "$FAKE_STATE/running/$k"
 echo "$k $(ls "$FAKE_STATE/running" | wc -l)" >>"$FAKE_STATE/concurrency"
-sleeper=""
-# On SIGTERM, take half a second to "save", as mixdepth writes its partial
-# table, so that a sweep that does not wait for its parts is caught.
-trap 'kill "$sleeper" 2>/dev/null; sleep 0.5; rm -f "$FAKE_STATE/running/$k"; echo "$k" >>"$FAKE_STATE/stopped"; exit 130' TERM
 sleep_var=FAKE_SLEEP_$k fail_var=FAKE_FAIL_$k
 sleep "${!sleep_var:-${FAKE_SLEEP:-0}}" &
 sleeper=$!

@@ -10,6 +10,10 @@ import (
 	"strings"
 
 	"github.com/spf13/pflag"
+
+	"mixdepth/moments"
+	"mixdepth/scan"
+	"mixdepth/sim"
 )
 
 // version is the tool version recorded in every table.
@@ -41,8 +45,19 @@ func badInput(format string, args ...any) error {
 // errInterrupted ends a run stopped by a signal: exit status 130.
 var errInterrupted = errors.New("interrupted")
 
+// badInputErrors are the library sentinels that mean bad input (exit
+// status 2): the request cannot be run as given, and the message says why.
+// This is the one place where library errors become exit statuses.
+var badInputErrors = []error{
+	sim.ErrTooLarge,
+	moments.ErrTooLarge,
+	moments.ErrNoExactMoments,
+	scan.ErrConfig,
+}
+
 // exitCode prints err on one line and returns the exit status: 0 success,
-// 1 a failure while running, 2 bad usage or input, 130 interrupted.
+// 1 a failure while running, 2 bad usage or input (a usageError or one of
+// badInputErrors), 130 interrupted.
 func exitCode(err error, stderr io.Writer) int {
 	if err == nil || errors.Is(err, pflag.ErrHelp) {
 		return 0
@@ -51,7 +66,7 @@ func exitCode(err error, stderr io.Writer) int {
 	fmt.Fprintln(stderr, "mixdepth: "+msg)
 	var ue usageError
 	switch {
-	case errors.As(err, &ue):
+	case errors.As(err, &ue), slices.ContainsFunc(badInputErrors, func(s error) bool { return errors.Is(err, s) }):
 		return 2
 	case errors.Is(err, errInterrupted), errors.Is(err, context.Canceled):
 		return 130

@@ -14,9 +14,9 @@ import (
 	"github.com/schollz/progressbar/v3"
 
 	"mixdepth/circuits"
+	"mixdepth/moments"
 	"mixdepth/plots"
 	"mixdepth/scan"
-	"mixdepth/sim"
 	"mixdepth/tables"
 )
 
@@ -159,9 +159,9 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 			return usageError{fmt.Errorf("--plot: %w", err)}
 		}
 	}
-	var exact *exactResult
+	var exact *moments.Result
 	if *withExact {
-		if exact, err = computeExact(ctx, s, depths, *workers, false, nil); err != nil {
+		if exact, err = moments.Exact(ctx, s.graph, s.schedule, s.ensemble, depths, moments.ExactWorkers(*workers), moments.ExactCurveOnly()); err != nil {
 			return err
 		}
 	}
@@ -195,9 +195,6 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	}
 	interrupted := errors.Is(err, context.Canceled)
 	if err != nil && !interrupted {
-		if errors.Is(err, sim.ErrTooLarge) {
-			return usageError{err}
-		}
 		return err
 	}
 	records = mergeRecords(previous, records)
@@ -228,7 +225,7 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if *plot != "" {
 		var curve []float64
 		if exact != nil {
-			curve = exact.ratio
+			curve = exact.Ratio
 		}
 		if err := plots.DepthPlot(*plot, sum, curve, *eps, plots.WithConfidence(*conf), plots.WithDepthUnit(depthUnit(s)),
 			plots.WithTitle(s.graph.Name+", "+s.ensemble.Name()+" gates")); err != nil {
@@ -239,7 +236,7 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		doc := scanDocument(s, cf.seed, len(doneAll), *eps, *conf, sum)
 		if exact != nil {
 			for k := range doc.Rows {
-				z, dev := exact.collision[k], (sum.Rows[k].Collision.Mean-exact.collision[k])/sum.Rows[k].Collision.StdErr
+				z, dev := exact.Collision[k], (sum.Rows[k].Collision.Mean-exact.Collision[k])/sum.Rows[k].Collision.StdErr
 				doc.Rows[k].CollisionExact, doc.Rows[k].ExactDeviation = &z, finiteOrNull(dev)
 			}
 		}
@@ -302,14 +299,14 @@ var scanExactField = tables.Field{Name: "collision_exact", Type: tables.Float64,
 
 // writeScanTable writes the per-instance records atomically, with the
 // exact E[Z] of each depth as an extra column when exact is not nil.
-func writeScanTable(path string, meta tables.Meta, records []scan.Record, exact *exactResult) error {
+func writeScanTable(path string, meta tables.Meta, records []scan.Record, exact *moments.Result) error {
 	fields := scanFields
 	var exactAt map[int]float64
 	if exact != nil {
 		fields = append(append([]tables.Field(nil), scanFields...), scanExactField)
 		exactAt = map[int]float64{}
-		for k, d := range exact.depths {
-			exactAt[d] = exact.collision[k]
+		for k, d := range exact.Depths {
+			exactAt[d] = exact.Collision[k]
 		}
 	}
 	w, err := tables.Create(path, fields, meta)
@@ -331,17 +328,17 @@ func writeScanTable(path string, meta tables.Meta, records []scan.Record, exact 
 // reports every depth more than 4 standard errors away: with a correct
 // simulator that happens with probability about 6e-5 per depth, so a flag
 // is a defect to report, not noise to hide.
-func printExactCheck(w io.Writer, sum *scan.Curve, exact *exactResult) {
+func printExactCheck(w io.Writer, sum *scan.Curve, exact *moments.Result) {
 	fmt.Fprintf(w, "\n%6s %12s %12s %10s\n", "depth", "R (MC)", "R (exact)", "MC−exact")
 	var bad []string
 	for k, r := range sum.Rows {
-		dev := (r.Collision.Mean - exact.collision[k]) / r.Collision.StdErr
+		dev := (r.Collision.Mean - exact.Collision[k]) / r.Collision.StdErr
 		mark := ""
 		if math.Abs(dev) > 4 {
 			mark = "  ← more than 4 s.e.: please report this"
 			bad = append(bad, strconv.Itoa(r.Depth))
 		}
-		fmt.Fprintf(w, "%6d %12.6f %12.6f %+9.2fσ%s\n", r.Depth, r.Ratio, exact.ratio[k], dev, mark)
+		fmt.Fprintf(w, "%6d %12.6f %12.6f %+9.2fσ%s\n", r.Depth, r.Ratio, exact.Ratio[k], dev, mark)
 	}
 	if len(bad) > 0 {
 		fmt.Fprintf(w, "Monte Carlo and exact values disagree beyond 4 standard errors at depth(s) %s: this is a defect; please report it with the command line.\n", strings.Join(bad, ", "))

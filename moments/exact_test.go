@@ -8,6 +8,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
@@ -66,54 +67,19 @@ var exactCases = []struct {
 	{"complete5-random", "complete:5", circuits.KindRandomEdge, depthRange(5, 100, 5)},
 }
 
-// goldenDoc is the content of a golden file in testdata.
+// goldenDoc is the content of a golden file in testdata: the Result of
+// Exact and, for a random-edge schedule, the design-depth bound at
+// goldenBoundEps.
 type goldenDoc struct {
-	Graph                  string                `json:"graph"`
-	Qubits                 int                   `json:"qubits"`
-	Schedule               circuits.ScheduleKind `json:"schedule"`
-	Gates                  string                `json:"gates"`
-	HaarCollision          float64               `json:"haar_collision"`
-	Eps                    float64               `json:"eps"`
-	AnticoncentrationDepth *int                  `json:"anticoncentration_depth"`
-	FrameNote              string                `json:"frame_potential_note,omitempty"`
-	GapNote                string                `json:"gap_note,omitempty"`
-	Rows                   []goldenRow           `json:"rows"`
-	Gap                    *goldenGap            `json:"gap,omitempty"`
+	moments.Result
+	DesignDepthBound int `json:",omitempty"`
 }
 
-type goldenRow struct {
-	Depth          int      `json:"depth"`
-	GateCount      int      `json:"gate_count"`
-	Collision      float64  `json:"collision"`
-	CollisionRatio float64  `json:"collision_ratio"`
-	FramePotential *float64 `json:"frame_potential"`
-}
-
-type goldenGap struct {
-	SecondEigenvalue float64 `json:"second_eigenvalue"`
-	HamiltonianGap   float64 `json:"hamiltonian_gap"`
-	MinDegree        int     `json:"min_degree"`
-	BoundEps         float64 `json:"bound_eps"`
-	DesignDepthBound int     `json:"design_depth_bound"`
-}
-
-// goldenOf is the golden document of r.
-func goldenOf(g *circuits.Graph, s circuits.Schedule, e circuits.Ensemble, r *moments.Result) goldenDoc {
-	doc := goldenDoc{Graph: g.Name, Qubits: g.Qubits, Schedule: s.Kind(), Gates: e.Name(), HaarCollision: r.HaarCollision,
-		Eps: r.Eps, FrameNote: r.FrameNote, GapNote: r.GapNote}
-	if r.Found {
-		doc.AnticoncentrationDepth = &r.Depth
-	}
-	for i, d := range r.Depths {
-		row := goldenRow{Depth: d, GateCount: r.GateCounts[i], Collision: r.Collision[i], CollisionRatio: r.Ratio[i]}
-		if r.Frame != nil {
-			row.FramePotential = &r.Frame[i]
-		}
-		doc.Rows = append(doc.Rows, row)
-	}
-	if gap := r.Gap; gap != nil {
-		doc.Gap = &goldenGap{SecondEigenvalue: gap.SecondEigenvalue, HamiltonianGap: gap.HamiltonianGap, MinDegree: gap.MinDegree,
-			BoundEps: goldenBoundEps, DesignDepthBound: moments.DesignDepthBound(*gap, g.Qubits, 2, goldenBoundEps)}
+// goldenOf is the golden document of r on g.
+func goldenOf(g *circuits.Graph, r *moments.Result) goldenDoc {
+	doc := goldenDoc{Result: *r}
+	if r.Gap != nil {
+		doc.DesignDepthBound = moments.DesignDepthBound(*r.Gap, g.Qubits, 2, goldenBoundEps)
 	}
 	return doc
 }
@@ -149,7 +115,7 @@ func TestExactAgainstPauliChain(t *testing.T) {
 					t.Errorf("depth %d: frame potential missing or below 2 (%q)", d, r.FrameNote)
 				}
 			}
-			golden(t, filepath.Join("testdata", c.name+".json"), goldenOf(g, s, e, r))
+			golden(t, filepath.Join("testdata", c.name+".json"), goldenOf(g, r))
 		})
 	}
 }
@@ -175,33 +141,24 @@ func golden(t *testing.T, path string, doc goldenDoc) {
 		t.Fatal(err)
 	}
 	near := func(a, b float64) bool { return math.Abs(a-b) <= 1e-12*math.Max(math.Abs(a), math.Abs(b)) }
-	if len(want.Rows) != len(doc.Rows) {
-		t.Fatalf("golden %s has %d rows, got %d", path, len(want.Rows), len(doc.Rows))
+	if !slices.Equal(doc.Depths, want.Depths) || !slices.Equal(doc.GateCounts, want.GateCounts) || len(want.Collision) != len(doc.Collision) {
+		t.Fatalf("golden %s: depths %v, gates %v; got %v, %v", path, want.Depths, want.GateCounts, doc.Depths, doc.GateCounts)
 	}
-	for k := range doc.Rows {
-		g, w := doc.Rows[k], want.Rows[k]
-		if g.Depth != w.Depth || g.GateCount != w.GateCount || !near(g.Collision, w.Collision) ||
-			(g.FramePotential == nil) != (w.FramePotential == nil) || (g.FramePotential != nil && !near(*g.FramePotential, *w.FramePotential)) {
-			t.Errorf("%s row %d: got depth %d, %d gates, E[Z] %.17g, F2 %v; golden depth %d, %d gates, E[Z] %.17g, F2 %v",
-				path, k, g.Depth, g.GateCount, g.Collision, deref(g.FramePotential), w.Depth, w.GateCount, w.Collision, deref(w.FramePotential))
+	if (doc.Frame == nil) != (want.Frame == nil) {
+		t.Fatalf("golden %s: frame potential %v, got %v", path, want.Frame, doc.Frame)
+	}
+	for k, d := range doc.Depths {
+		if !near(doc.Collision[k], want.Collision[k]) || doc.Frame != nil && !near(doc.Frame[k], want.Frame[k]) {
+			t.Errorf("%s depth %d: got E[Z] %.17g, F2 %v; golden E[Z] %.17g, F2 %v", path, d, doc.Collision[k], doc.Frame, want.Collision[k], want.Frame)
 		}
 	}
-	if (doc.Gap == nil) != (want.Gap == nil) || (doc.Gap != nil && (!near(doc.Gap.SecondEigenvalue, want.Gap.SecondEigenvalue) || doc.Gap.DesignDepthBound != want.Gap.DesignDepthBound)) {
-		t.Errorf("%s gap: got %+v, golden %+v", path, doc.Gap, want.Gap)
+	if (doc.Gap == nil) != (want.Gap == nil) || (doc.Gap != nil && (!near(doc.Gap.SecondEigenvalue, want.Gap.SecondEigenvalue) || doc.DesignDepthBound != want.DesignDepthBound)) {
+		t.Errorf("%s gap: got %+v (bound %d), golden %+v (bound %d)", path, doc.Gap, doc.DesignDepthBound, want.Gap, want.DesignDepthBound)
 	}
-	if !equalDepth(doc.AnticoncentrationDepth, want.AnticoncentrationDepth) {
-		t.Errorf("%s depth: got %v, golden %v", path, doc.AnticoncentrationDepth, want.AnticoncentrationDepth)
+	if doc.Depth != want.Depth || doc.Found != want.Found {
+		t.Errorf("%s anti-concentration depth: got %d %v, golden %d %v", path, doc.Depth, doc.Found, want.Depth, want.Found)
 	}
 }
-
-func deref(p *float64) any {
-	if p == nil {
-		return nil
-	}
-	return *p
-}
-
-func equalDepth(a, b *int) bool { return (a == nil) == (b == nil) && (a == nil || *a == *b) }
 
 // TestExactHaarValues: one Haar gate on two qubits gives E[Z] = 2/5 and
 // F2 = 2 exactly (Haar values 2/(D+1) and 2! for D ≥ 2; Gross, Audenaert,

@@ -86,8 +86,8 @@ var ErrConfig = errors.New("invalid scan configuration")
 
 // Validate returns an error wrapping ErrConfig for a configuration that
 // cannot run: no depths, depths that are not positive and strictly
-// increasing, no instances, a negative or repeated instance id, or an unknown
-// precision. It panics if Graph, Schedule or Ensemble is nil.
+// increasing, no instances, or an unknown precision. It panics if Graph,
+// Schedule or Ensemble is nil.
 func (c *Config) Validate() error {
 	if c.Graph == nil || c.Schedule == nil || c.Ensemble == nil {
 		panic("scan: Config needs Graph, Schedule and Ensemble")
@@ -108,16 +108,6 @@ func (c *Config) Validate() error {
 	}
 	if len(c.Instances) == 0 {
 		return bad("no instances to run")
-	}
-	seen := make(map[int]bool, len(c.Instances))
-	for _, id := range c.Instances {
-		if id < 0 {
-			return bad("instance id %d is negative", id)
-		}
-		if seen[id] {
-			return bad("instance id %d is listed twice", id)
-		}
-		seen[id] = true
 	}
 	switch c.Precision {
 	case "", PrecisionDouble, PrecisionSingle:

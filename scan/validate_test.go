@@ -16,8 +16,6 @@ func TestConfigValidate(t *testing.T) {
 		"depths unsorted": func(c *Config) { c.Depths = []int{3, 2} },
 		"depth repeated":  func(c *Config) { c.Depths = []int{2, 2} },
 		"no instances":    func(c *Config) { c.Instances = nil },
-		"negative id":     func(c *Config) { c.Instances = []int{0, -1} },
-		"repeated id":     func(c *Config) { c.Instances = []int{0, 1, 0} },
 		"precision":       func(c *Config) { c.Precision = "quad" },
 	} {
 		c := config(t, "line:3", "layered", "haar", []int{1, 2}, 2)

@@ -62,8 +62,6 @@ func deref(p *float64) any {
 	return *p
 }
 
-func equalDepth(a, b *int) bool { return (a == nil) == (b == nil) && (a == nil || *a == *b) }
-
 // TestScanExactAcceptance is the foundation's acceptance run: the Monte
 // Carlo collision means of `scan --graph line:8 --depths 2,4,8,16
 // --instances 400 --seed 11` agree with the exact values within 4 standard

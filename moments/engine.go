@@ -273,7 +273,8 @@ func collisionComplete(n int, edges []circuits.Edge) bool {
 // reduction when its edges are all pairs of qubits and t is symmetric (see
 // CompleteCollisionCurve), and otherwise by a sum of identity/swap chains
 // over the subsets of the qubits (see the package documentation), for at
-// most CollisionRandomEdgeMaxQubits qubits. workers bounds the goroutines.
+// most CollisionRandomEdgeMaxQubits qubits (more give an error wrapping
+// ErrTooLarge). workers bounds the goroutines.
 // Cancelling ctx stops the work between steps. Depth 0 gives E[Z] = 1. It
 // panics if g, s or t is nil.
 func CollisionCurve(ctx context.Context, g *circuits.Graph, s circuits.Schedule, t *Transfer, depths []int, workers int, opts ...CollisionOption) ([]float64, error) {

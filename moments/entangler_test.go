@@ -248,11 +248,10 @@ func TestEntanglerTransferMonteCarlo(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		kind, g, ok := circuits.SecondMoments(e)
-		if !ok || kind != circuits.EntanglerMoments {
-			t.Fatalf("%s: SecondMoments = %v", tc.gates, kind)
+		tr, finishes, err := moments.TransferFor(e)
+		if err != nil || !finishes {
+			t.Fatalf("%s: TransferFor: final layer %v, %v; want an entangler set with its final layer", tc.gates, finishes, err)
 		}
-		tr := moments.EntanglerTransfer(&g)
 		var chain []circuits.Edge
 		for _, l := range tc.layers {
 			chain = append(chain, l...)

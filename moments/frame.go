@@ -19,8 +19,8 @@ import (
 // transfer matrix over the supports has 4^n entries (128 MiB at n = 12).
 const FrameMaxQubits = 12
 
-// ErrFrameTooLarge is wrapped by FramePotential2 for graphs of more than
-// FrameMaxQubits qubits.
+// ErrFrameTooLarge is wrapped by FramePotential2, with ErrTooLarge, for
+// graphs of more than FrameMaxQubits qubits.
 var ErrFrameTooLarge = errors.New("the exact frame potential is limited to " + strconv.Itoa(FrameMaxQubits) + " qubits")
 
 // In the symmetrised coordinates x(A) = 3^(−|A|/2) w(A) of the support chain
@@ -75,7 +75,7 @@ func FramePotential2(ctx context.Context, g *circuits.Graph, s circuits.Schedule
 	}
 	n := g.Qubits
 	if n > FrameMaxQubits {
-		return nil, fmt.Errorf("moments: frame potential of %s (%d qubits): %w", g.Name, n, ErrFrameTooLarge)
+		return nil, fmt.Errorf("moments: frame potential of %s (%d qubits): %w (%w)", g.Name, n, ErrFrameTooLarge, ErrTooLarge)
 	}
 	if err := collisionCheckDepths(depths); err != nil {
 		return nil, err

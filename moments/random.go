@@ -51,8 +51,8 @@ const randomChunks = 4096
 // on no edge avoiding A stay (I+S)/3, a factor 2/3 each.
 func randomEdgeCurve(ctx context.Context, n int, edges []circuits.Edge, t *Transfer, depths []int, workers int, cfg *collisionConfig) ([]float64, error) {
 	if n > CollisionRandomEdgeMaxQubits {
-		return nil, fmt.Errorf("moments: the exact random-edge average on %d qubits sums %d chains over subsets of the qubits, about %.2g coefficient updates per gate; use at most %d qubits, the complete graph, or Monte Carlo",
-			n, uint64(1)<<n, float64(len(edges))*math.Pow(3, float64(n-2)), CollisionRandomEdgeMaxQubits)
+		return nil, fmt.Errorf("moments: the exact random-edge average on %d qubits sums %d chains over subsets of the qubits, about %.2g coefficient updates per gate: %w; use at most %d qubits, the complete graph, or Monte Carlo",
+			n, uint64(1)<<n, float64(len(edges))*math.Pow(3, float64(n-2)), ErrTooLarge, CollisionRandomEdgeMaxQubits)
 	}
 	workers = max(workers, 1)
 	need := float64(workers) * 2 * EngineBytes(n)

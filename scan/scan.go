@@ -79,29 +79,40 @@ type Record struct {
 	XEBIdeal float64
 }
 
-// Validate reports a usage error in c.
+// ErrConfig is wrapped by the errors of Config.Validate (and so of Run) for
+// a configuration that cannot run. Errors of memory wrap sim.ErrTooLarge
+// instead.
+var ErrConfig = errors.New("invalid scan configuration")
+
+// Validate returns an error wrapping ErrConfig for a configuration that
+// cannot run: no depths, depths that are not positive and strictly
+// increasing, no instances, or an unknown precision. It panics if Graph,
+// Schedule or Ensemble is nil.
 func (c *Config) Validate() error {
 	if c.Graph == nil || c.Schedule == nil || c.Ensemble == nil {
 		panic("scan: Config needs Graph, Schedule and Ensemble")
 	}
+	bad := func(format string, args ...any) error {
+		return fmt.Errorf("scan: %s: %w", fmt.Sprintf(format, args...), ErrConfig)
+	}
 	if len(c.Depths) == 0 {
-		return errors.New("scan: no depths requested")
+		return bad("no depths requested")
 	}
 	for i, d := range c.Depths {
 		if d <= 0 {
-			return fmt.Errorf("scan: depth %d is not positive", d)
+			return bad("depth %d is not positive", d)
 		}
 		if i > 0 && d <= c.Depths[i-1] {
-			return fmt.Errorf("scan: depths must be strictly increasing (%d after %d)", d, c.Depths[i-1])
+			return bad("depths must be strictly increasing (%d after %d)", d, c.Depths[i-1])
 		}
 	}
 	if len(c.Instances) == 0 {
-		return errors.New("scan: no instances to run")
+		return bad("no instances to run")
 	}
 	switch c.Precision {
 	case "", PrecisionDouble, PrecisionSingle:
 	default:
-		return fmt.Errorf("scan: precision %q: use double or single", c.Precision)
+		return bad("precision %q: use double or single", c.Precision)
 	}
 	return nil
 }
@@ -140,7 +151,9 @@ func (c *Config) instanceBytes(n int) float64 {
 // Run simulates the instances of c and returns their records, ordered by
 // depth and then by instance id. When ctx is cancelled it stops, returns the
 // records of the instances that finished (whole instances only) and
-// ctx.Err(); done lists the finished instance ids in ascending order.
+// ctx.Err(); done lists the finished instance ids in ascending order. An
+// invalid c gives an error wrapping ErrConfig (see Config.Validate), and
+// states the machine cannot hold an error wrapping sim.ErrTooLarge.
 func Run(ctx context.Context, c *Config) (records []Record, done []int, err error) {
 	if err := c.Validate(); err != nil {
 		return nil, nil, err

@@ -61,36 +61,19 @@ func TestRunMatchesExact(t *testing.T) {
 				t.Fatalf("Run: %v (%d done)", err, len(done))
 			}
 			sum := Estimate(cfg.Graph.Qubits, recs, 0.95, 0.05)
-			tr, final := transferOf(t, cfg.Ensemble)
-			var opts []moments.CollisionOption
-			if final {
-				opts = append(opts, moments.CollisionFinalLayer())
-			}
-			exact, err := moments.CollisionCurve(context.Background(), cfg.Graph, cfg.Schedule, &tr, c.depths, 1, opts...)
+			exact, err := moments.Exact(context.Background(), cfg.Graph, cfg.Schedule, cfg.Ensemble, c.depths, moments.ExactWorkers(1), moments.ExactCurveOnly())
 			if err != nil {
 				t.Fatal(err)
 			}
 			for k, row := range sum.Rows {
-				dev := (row.Collision.Mean - exact[k]) / row.Collision.StdErr
+				dev := (row.Collision.Mean - exact.Collision[k]) / row.Collision.StdErr
 				if math.Abs(dev) > 4 {
 					t.Errorf("depth %d: Monte Carlo %.6g ± %.2g vs exact %.6g (%.1f s.e.)",
-						row.Depth, row.Collision.Mean, row.Collision.StdErr, exact[k], dev)
+						row.Depth, row.Collision.Mean, row.Collision.StdErr, exact.Collision[k], dev)
 				}
 			}
 		})
 	}
-}
-
-func transferOf(t *testing.T, e circuits.Ensemble) (moments.Transfer, bool) {
-	kind, g, ok := circuits.SecondMoments(e)
-	if !ok {
-		t.Fatalf("%s has no exact moments", e.Name())
-	}
-	_, final := e.(circuits.Finisher)
-	if kind == circuits.EntanglerMoments {
-		return moments.EntanglerTransfer(&g), final
-	}
-	return moments.HaarTransfer, final
 }
 
 // TestRunWorkersAndDepths: the records of an instance depend only on

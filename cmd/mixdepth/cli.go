@@ -11,8 +11,10 @@ import (
 
 	"github.com/spf13/pflag"
 
+	"mixdepth/moments"
 	"mixdepth/runs"
 	"mixdepth/sampling"
+	"mixdepth/scan"
 	"mixdepth/sim"
 )
 
@@ -50,6 +52,9 @@ var errInterrupted = errors.New("interrupted")
 // This is the one place where library errors become exit statuses.
 var badInputErrors = []error{
 	sim.ErrTooLarge,
+	moments.ErrTooLarge,
+	moments.ErrNoExactMoments,
+	scan.ErrConfig,
 	sampling.ErrConfig, sampling.ErrNoiseRange, sampling.ErrCircuitFile, sampling.ErrCircuitMismatch, sampling.ErrEmpty, sampling.ErrColumn, sampling.ErrColumnType, sampling.ErrNull, sampling.ErrNotNumber, sampling.ErrBitstring, sampling.ErrInstance, sampling.ErrProbability, sampling.ErrMismatch,
 }
 

@@ -14,8 +14,6 @@ import (
 	"mixdepth/circuits"
 	"mixdepth/moments"
 	"mixdepth/plots"
-	"mixdepth/sim"
-	"mixdepth/stats"
 	"mixdepth/tables"
 )
 
@@ -65,102 +63,11 @@ var exactFields = []tables.Field{
 	{Name: "frame_potential", Type: tables.Float64, Nullable: true, Doc: "second frame potential F2 (Haar value 2); null above the size limit or for non-Haar gate sets"},
 }
 
-// frameRandomMaxQubits bounds the random-edge frame potential, whose cost
-// grows like the number of connected induced subgraphs.
-const frameRandomMaxQubits = 10
-
-// gapMaxQubits bounds the spectral-gap computation: Lanczos on the
-// 2^n-dimensional Pauli-support chain keeps about 30 such vectors. It
-// matches the largest random-edge graph the exact E[Z] accepts.
-const gapMaxQubits = moments.CollisionRandomEdgeMaxQubits
-
-// exactMaxQubits is where 2/(D+1) leaves the float64 range.
-const exactMaxQubits = 1000
-
-// exactResult is what exact computes; scan --exact reuses the curve.
-type exactResult struct {
-	depths     []int
-	gateCounts []int
-	collision  []float64
-	frame      []float64 // nil when not computed
-	frameNote  string
-	ratio      []float64
-	haar       float64
-	gap        *moments.Gap
-}
-
-// momentTransfer returns the 4×4 transfer of an ensemble and whether its
-// circuits end with a final single-qubit layer, or a usage error when the
-// ensemble is not invariant under single-qubit rotations.
-func momentTransfer(e circuits.Ensemble) (moments.Transfer, bool, error) {
-	kind, g, ok := circuits.SecondMoments(e)
-	if !ok {
-		return moments.Transfer{}, false, badInput("--gates %s: a finite single-qubit set is not invariant under single-qubit rotations, so its second moments have no exact identity/swap form; use 'mixdepth scan' to estimate them", e.Name())
-	}
-	_, final := e.(circuits.Finisher)
-	switch kind {
-	case circuits.HaarMoments:
-		return moments.HaarTransfer, final, nil
-	case circuits.EntanglerMoments:
-		return moments.EntanglerTransfer(&g), final, nil
-	}
-	return moments.Transfer{}, false, badInput("--gates %s: no exact second moments (%v)", e.Name(), kind)
-}
-
-// computeExact runs the exact engines for the circuits of s at depths.
-// progress, when not nil, is called as the engine goes (done of total).
-func computeExact(ctx context.Context, s *setup, depths []int, workers int, withFrame bool, progress func(done, total int)) (*exactResult, error) {
-	t, final, err := momentTransfer(s.ensemble)
-	if err != nil {
-		return nil, err
-	}
-	var opts []moments.CollisionOption
-	if final {
-		opts = append(opts, moments.CollisionFinalLayer())
-	}
-	dim := math.Ldexp(1, s.graph.Qubits)
-	r := &exactResult{depths: depths, haar: stats.HaarCollision(dim)}
-	for _, d := range depths {
-		r.gateCounts = append(r.gateCounts, s.schedule.GateCount(d))
-	}
-	if progress != nil {
-		opts = append(opts, moments.CollisionProgress(progress))
-	}
-	r.collision, err = moments.CollisionCurve(ctx, s.graph, s.schedule, &t, depths, workers, opts...)
-	if err != nil {
-		return nil, exactError(err)
-	}
-	for _, z := range r.collision {
-		r.ratio = append(r.ratio, z/r.haar)
-	}
-	if !withFrame {
-		return r, nil
-	}
-	kind, _, _ := circuits.SecondMoments(s.ensemble)
-	switch {
-	case kind != circuits.HaarMoments:
-		r.frameNote = "the frame potential is computed for Haar-equivalent gate sets (haar, clifford) only"
-	case s.schedule.Kind() == circuits.KindRandomEdge && s.graph.Qubits > frameRandomMaxQubits:
-		r.frameNote = fmt.Sprintf("for the random-edge schedule the exact frame potential sums the spectra of every connected induced subgraph, which takes minutes beyond %d qubits; this graph has %d", frameRandomMaxQubits, s.graph.Qubits)
-	case s.graph.Qubits > moments.FrameMaxQubits:
-		r.frameNote = fmt.Sprintf("the frame potential is computed exactly up to %d qubits (its transfer matrix has 4^n entries); this graph has %d", moments.FrameMaxQubits, s.graph.Qubits)
-	default:
-		r.frame, err = moments.FramePotential2(ctx, s.graph, s.schedule, depths)
-		if err != nil {
-			return nil, exactError(err)
-		}
-	}
-	return r, nil
-}
-
-// exactError classifies an engine error: sizes the machine cannot hold are
-// bad input (exit 2), interruptions exit 130.
-func exactError(err error) error {
-	switch {
-	case errors.Is(err, sim.ErrTooLarge):
-		return usageError{err}
-	case errors.Is(err, context.Canceled):
-		return errInterrupted
+// gatesHint adds the command that estimates what the exact engines refuse
+// to the error of a gate set with no exact second moments.
+func gatesHint(err error) error {
+	if errors.Is(err, moments.ErrNoExactMoments) {
+		return fmt.Errorf("%w; use 'mixdepth scan' to estimate them", err)
 	}
 	return err
 }
@@ -190,12 +97,6 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	}
 	if *explain {
 		return explainTransfer(stdout, s.ensemble)
-	}
-	if n := s.graph.Qubits; n > exactMaxQubits {
-		return badInput("--graph %s: %d qubits; the Haar collision probability 2/(2^n+1) underflows float64 beyond %d qubits", s.graph.Name, n, exactMaxQubits)
-	}
-	if re, ok := s.schedule.(*circuits.RandomEdge); ok && s.graph.Qubits > moments.CollisionRandomEdgeMaxQubits && len(re.Edges) != s.graph.Qubits*(s.graph.Qubits-1)/2 {
-		return badInput("--schedule random-edge on %d qubits: the exact average over edges handles at most %d qubits except on complete graphs; use --schedule layered, a complete graph, or 'mixdepth scan'", s.graph.Qubits, moments.CollisionRandomEdgeMaxQubits)
 	}
 	if *depthSpec == "" {
 		*depthSpec = "1:20"
@@ -241,35 +142,22 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 			_ = bar.Set(done)
 		}
 	}
-	r, err := computeExact(ctx, s, depths, *workers, true, progress)
+	r, err := moments.Exact(ctx, s.graph, s.schedule, s.ensemble, depths,
+		moments.ExactWorkers(*workers), moments.ExactEps(*eps), moments.ExactProgress(progress))
 	if err != nil {
-		return err
+		return gatesHint(err)
 	}
 	if *plot != "" {
-		if err := plotExact(*plot, s, r, *eps); err != nil {
+		if err := plotExact(*plot, s, r); err != nil {
 			return err
 		}
 	}
 	var gap *exactJSONGap
-	var gapNote string
-	if s.schedule.Kind() == circuits.KindRandomEdge {
-		kind, _, _ := circuits.SecondMoments(s.ensemble)
-		switch {
-		case kind != circuits.HaarMoments:
-			gapNote = "the spectral gap is computed for Haar-equivalent gate sets (haar, clifford) only"
-		case s.graph.Qubits > gapMaxQubits:
-			gapNote = fmt.Sprintf("the spectral gap is computed on the 2^n-dimensional support chain, up to %d qubits; this graph has %d", gapMaxQubits, s.graph.Qubits)
-		default:
-			g, err := moments.SpectralGap(ctx, s.graph, *workers)
-			if err != nil {
-				return exactError(err)
-			}
-			r.gap = &g
-			gap = &exactJSONGap{SecondEigenvalue: g.SecondEigenvalue, HamiltonianGap: g.HamiltonianGap,
-				MinDegree: g.MinDegree, BoundEps: *boundEps, DesignDepthBound: moments.DesignDepthBound(g, s.graph.Qubits, 2, *boundEps)}
-		}
+	if g := r.Gap; g != nil {
+		gap = &exactJSONGap{SecondEigenvalue: g.SecondEigenvalue, HamiltonianGap: g.HamiltonianGap,
+			MinDegree: g.MinDegree, BoundEps: *boundEps, DesignDepthBound: moments.DesignDepthBound(*g, s.graph.Qubits, 2, *boundEps)}
 	}
-	depth, found := exactDepth(r, *eps)
+	depth, found := r.Depth, r.Found
 
 	if *out != "" {
 		w, err := tables.Create(*out, exactFields, meta)
@@ -277,12 +165,12 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 			return fmt.Errorf("writing %s: %w", *out, err)
 		}
 		defer w.Abort()
-		for i, d := range r.depths {
+		for i, d := range r.Depths {
 			var f any
-			if r.frame != nil {
-				f = r.frame[i]
+			if r.Frame != nil {
+				f = r.Frame[i]
 			}
-			w.Append(d, r.gateCounts[i], r.collision[i], r.ratio[i], f)
+			w.Append(d, r.GateCounts[i], r.Collision[i], r.Ratio[i], f)
 		}
 		if err := w.Close(); err != nil {
 			return err
@@ -291,43 +179,43 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if *asJSON {
 		doc := exactJSON{Tool: "mixdepth", Version: version, Graph: s.graph.Name, GraphDigest: s.graph.Digest(),
 			Qubits: s.graph.Qubits, Edges: len(s.graph.Edges), Schedule: s.schedule.Kind(), Gates: s.ensemble.Name(),
-			HaarCollision: r.haar, Eps: *eps, FrameNote: r.frameNote, GapNote: gapNote, Gap: gap}
+			HaarCollision: r.HaarCollision, Eps: *eps, FrameNote: r.FrameNote, GapNote: r.GapNote, Gap: gap}
 		if found {
 			doc.AnticoncentrationDepth = &depth
 		}
-		for i, d := range r.depths {
-			row := exactJSONRow{Depth: d, GateCount: r.gateCounts[i], Collision: r.collision[i], CollisionRatio: r.ratio[i]}
-			if r.frame != nil {
-				row.FramePotential = &r.frame[i]
+		for i, d := range r.Depths {
+			row := exactJSONRow{Depth: d, GateCount: r.GateCounts[i], Collision: r.Collision[i], CollisionRatio: r.Ratio[i]}
+			if r.Frame != nil {
+				row.FramePotential = &r.Frame[i]
 			}
 			doc.Rows = append(doc.Rows, row)
 		}
 		return writeJSON(stdout, doc)
 	}
 	fmt.Fprintln(stdout, s.describe())
-	fmt.Fprintf(stdout, "exact second moments · eps %g · Haar collision 2/(D+1) = %.6g\n\n", *eps, r.haar)
+	fmt.Fprintf(stdout, "exact second moments · eps %g · Haar collision 2/(D+1) = %.6g\n\n", *eps, r.HaarCollision)
 	fmt.Fprintf(stdout, "%6s %7s %14s %12s\n", "depth", "gates", "E[Z]/Z_H", "F2")
-	for i, d := range r.depths {
+	for i, d := range r.Depths {
 		f := "—"
-		if r.frame != nil {
-			f = strconv.FormatFloat(r.frame[i], 'f', 6, 64)
+		if r.Frame != nil {
+			f = strconv.FormatFloat(r.Frame[i], 'f', 6, 64)
 		}
-		fmt.Fprintf(stdout, "%6d %7d %14s %12s\n", d, r.gateCounts[i], formatRatio(r.ratio[i]), f)
+		fmt.Fprintf(stdout, "%6d %7d %14s %12s\n", d, r.GateCounts[i], formatRatio(r.Ratio[i]), f)
 	}
 	fmt.Fprintln(stdout)
-	if r.frameNote != "" {
-		fmt.Fprintf(stdout, "F2 not shown: %s.\n", r.frameNote)
+	if r.FrameNote != "" {
+		fmt.Fprintf(stdout, "F2 not shown: %s.\n", r.FrameNote)
 	}
 	if found {
 		fmt.Fprintf(stdout, "Anti-concentration depth (exact): %d (%d gates), where E[Z]/Z_H = %.6f ≤ 1+eps = %.4f.\n",
-			depth, s.schedule.GateCount(depth), r.ratio[indexOf(r.depths, depth)], 1+*eps)
+			depth, s.schedule.GateCount(depth), r.Ratio[indexOf(r.Depths, depth)], 1+*eps)
 	} else {
-		last := len(r.depths) - 1
+		last := len(r.Depths) - 1
 		fmt.Fprintf(stdout, "No requested depth anti-concentrates: at depth %d E[Z]/Z_H = %.6f > 1+eps = %.4f; ask for larger depths.\n",
-			r.depths[last], r.ratio[last], 1+*eps)
+			r.Depths[last], r.Ratio[last], 1+*eps)
 	}
-	if gapNote != "" {
-		fmt.Fprintf(stdout, "No spectral gap: %s.\n", gapNote)
+	if r.GapNote != "" {
+		fmt.Fprintf(stdout, "No spectral gap: %s.\n", r.GapNote)
 	}
 	if gap != nil {
 		fmt.Fprintf(stdout, "Spectral gap (random-edge, Haar gates): λ₂ = %.10f, Hamiltonian gap Δ = |E|(1−λ₂) = %.8f, minimum degree %d.\n",
@@ -342,7 +230,7 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		fmt.Fprintln(stdout, sentence)
 	}
 	if *out != "" {
-		fmt.Fprintf(stdout, "Per-depth table: %s (%d rows)\n", *out, len(r.depths))
+		fmt.Fprintf(stdout, "Per-depth table: %s (%d rows)\n", *out, len(r.Depths))
 	}
 	if *plot != "" {
 		fmt.Fprintf(stdout, "Plot: %s\n", *plot)
@@ -361,16 +249,10 @@ func formatRatio(x float64) string {
 
 // plotExact draws the exact curve alone: the exact ratios per depth, with
 // no Monte Carlo estimate or band.
-func plotExact(path string, s *setup, r *exactResult, eps float64) error {
-	series := &plots.DepthSeries{Qubits: s.graph.Qubits, Depths: r.depths, Exact: r.ratio}
-	series.Depth, series.Found = exactDepth(r, eps)
-	return plots.SaveDepthPlot(path, series, eps, plots.WithDepthUnit(depthUnit(s)),
+func plotExact(path string, s *setup, r *moments.Result) error {
+	series := &plots.DepthSeries{Qubits: s.graph.Qubits, Depths: r.Depths, Exact: r.Ratio, Depth: r.Depth, Found: r.Found}
+	return plots.SaveDepthPlot(path, series, r.Eps, plots.WithDepthUnit(depthUnit(s)),
 		plots.WithTitle(s.graph.Name+", "+s.ensemble.Name()+" gates, exact"))
-}
-
-// exactDepth is the smallest depth whose exact ratio is ≤ 1+eps.
-func exactDepth(r *exactResult, eps float64) (int, bool) {
-	return stats.AnticoncentrationDepth(r.depths, r.ratio, eps)
 }
 
 func indexOf(v []int, x int) int {
@@ -385,9 +267,9 @@ func indexOf(v []int, x int) int {
 // explainTransfer prints the 4×4 transfer matrix of the ensemble on the
 // local pair states II, IS, SI, SS and its eigenvalues.
 func explainTransfer(w io.Writer, e circuits.Ensemble) error {
-	t, final, err := momentTransfer(e)
+	t, final, err := moments.TransferFor(e)
 	if err != nil {
-		return err
+		return gatesHint(err)
 	}
 	names := []string{"II", "IS", "SI", "SS"}
 	fmt.Fprintf(w, "Transfer of one %s gate on the identity/swap states of its two qubits\n", e.Name())

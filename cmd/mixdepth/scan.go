@@ -13,10 +13,10 @@ import (
 	"github.com/schollz/progressbar/v3"
 
 	"mixdepth/circuits"
+	"mixdepth/moments"
 	"mixdepth/plots"
 	"mixdepth/runs"
 	"mixdepth/scan"
-	"mixdepth/sim"
 	"mixdepth/tables"
 )
 
@@ -132,9 +132,9 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 			return usageError{fmt.Errorf("--plot: %w", err)}
 		}
 	}
-	var exact *exactResult
+	var exact *moments.Result
 	if *withExact {
-		if exact, err = computeExact(ctx, s, depths, *workers, false, nil); err != nil {
+		if exact, err = moments.Exact(ctx, s.graph, s.schedule, s.ensemble, depths, moments.ExactWorkers(*workers), moments.ExactCurveOnly()); err != nil {
 			return err
 		}
 	}
@@ -168,9 +168,6 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	}
 	interrupted := errors.Is(err, context.Canceled)
 	if err != nil && !interrupted {
-		if errors.Is(err, sim.ErrTooLarge) {
-			return usageError{err}
-		}
 		return err
 	}
 	records = append(previous, records...)
@@ -178,7 +175,7 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	doneAll := runs.RecordInstances(records)
 	if *out != "" {
 		runs.SetDone(&meta, doneAll, len(doneAll) < len(runIDs))
-		if err := runs.WriteScanTable(*out, meta, records, exact.at()); err != nil {
+		if err := runs.WriteScanTable(*out, meta, records, exact.CollisionByDepth()); err != nil {
 			return err
 		}
 	}
@@ -200,7 +197,7 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if *plot != "" {
 		var curve []float64
 		if exact != nil {
-			curve = exact.ratio
+			curve = exact.Ratio
 		}
 		if err := plots.SaveDepthPlot(*plot, curveSeries(sum, curve), *eps, plots.WithConfidence(*conf), plots.WithDepthUnit(depthUnit(s)),
 			plots.WithTitle(s.graph.Name+", "+s.ensemble.Name()+" gates")); err != nil {
@@ -211,7 +208,7 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		doc := scanDocument(s, cf.seed, len(doneAll), *eps, *conf, sum)
 		if exact != nil {
 			for k := range doc.Rows {
-				z, dev := exact.collision[k], (sum.Rows[k].Collision.Mean-exact.collision[k])/sum.Rows[k].Collision.StdErr
+				z, dev := exact.Collision[k], (sum.Rows[k].Collision.Mean-exact.Collision[k])/sum.Rows[k].Collision.StdErr
 				doc.Rows[k].CollisionExact, doc.Rows[k].ExactDeviation = &z, finiteOrNull(dev)
 			}
 		}
@@ -267,18 +264,6 @@ func checkWritable(path string, fields []tables.Field, meta tables.Meta, flag st
 	return nil
 }
 
-// at returns the exact E[Z] by depth, or nil when r is nil (no --exact).
-func (r *exactResult) at() map[int]float64 {
-	if r == nil {
-		return nil
-	}
-	m := map[int]float64{}
-	for k, d := range r.depths {
-		m[d] = r.collision[k]
-	}
-	return m
-}
-
 // resumeInput turns a failure of runs.Resume into bad input, with the hint
 // for a table of another run.
 func resumeInput(err error) error {
@@ -293,17 +278,17 @@ func resumeInput(err error) error {
 // reports every depth more than 4 standard errors away: with a correct
 // simulator that happens with probability about 6e-5 per depth, so a flag
 // is a defect to report, not noise to hide.
-func printExactCheck(w io.Writer, sum *scan.Curve, exact *exactResult) {
+func printExactCheck(w io.Writer, sum *scan.Curve, exact *moments.Result) {
 	fmt.Fprintf(w, "\n%6s %12s %12s %10s\n", "depth", "R (MC)", "R (exact)", "MC−exact")
 	var bad []string
 	for k, r := range sum.Rows {
-		dev := (r.Collision.Mean - exact.collision[k]) / r.Collision.StdErr
+		dev := (r.Collision.Mean - exact.Collision[k]) / r.Collision.StdErr
 		mark := ""
 		if math.Abs(dev) > 4 {
 			mark = "  ← more than 4 s.e.: please report this"
 			bad = append(bad, strconv.Itoa(r.Depth))
 		}
-		fmt.Fprintf(w, "%6d %12.6f %12.6f %+9.2fσ%s\n", r.Depth, r.Ratio, exact.ratio[k], dev, mark)
+		fmt.Fprintf(w, "%6d %12.6f %12.6f %+9.2fσ%s\n", r.Depth, r.Ratio, exact.Ratio[k], dev, mark)
 	}
 	if len(bad) > 0 {
 		fmt.Fprintf(w, "Monte Carlo and exact values disagree beyond 4 standard errors at depth(s) %s: this is a defect; please report it with the command line.\n", strings.Join(bad, ", "))

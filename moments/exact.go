@@ -1,0 +1,264 @@
+package moments
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"runtime"
+
+	"mixdepth/circuits"
+	"mixdepth/sim"
+	"mixdepth/stats"
+)
+
+// ErrNoExactMoments is wrapped by TransferFor and Exact for a gate set whose
+// two-copy average has no identity/swap form: an ensemble that is not
+// invariant under single-qubit rotations, such as a finite single-qubit set.
+var ErrNoExactMoments = errors.New("no exact second moments")
+
+// ErrTooLarge is wrapped by Exact for sizes the exact engines refuse: more
+// than ExactMaxQubits qubits, a random-edge schedule beyond
+// CollisionRandomEdgeMaxQubits qubits on a graph that is not complete, and
+// vectors the machine cannot hold. In the last case the error also wraps
+// sim.ErrTooLarge, so errors.Is holds for both.
+var ErrTooLarge = errors.New("too large for exact second moments")
+
+// ExactMaxQubits is the largest qubit count Exact accepts: beyond it the
+// Haar collision probability 2/(2^n+1) underflows float64.
+const ExactMaxQubits = 1000
+
+// FrameRandomEdgeMaxQubits is the largest qubit count for which Exact
+// computes the frame potential of a random-edge schedule, whose cost grows
+// like the number of connected induced subgraphs (minutes beyond it).
+const FrameRandomEdgeMaxQubits = 10
+
+// GapMaxQubits is the largest qubit count for which Exact computes the
+// spectral gap: Lanczos on the 2^n-dimensional support chain keeps about 30
+// such vectors. It matches the largest random-edge graph the exact E[Z]
+// accepts.
+const GapMaxQubits = CollisionRandomEdgeMaxQubits
+
+// DefaultExactEps is the anti-concentration threshold ε of Exact unless
+// ExactEps sets another.
+const DefaultExactEps = 0.05
+
+// TransferFor returns the 4×4 transfer on {I,S}² of one gate of the
+// ensemble e and whether its circuits end with a final single-qubit layer
+// (e is a circuits.Finisher; pass CollisionFinalLayer to CollisionCurve
+// then). An ensemble that circuits.SecondMoments reports as having no
+// exact moments gives an error wrapping ErrNoExactMoments. It panics if e
+// is nil.
+func TransferFor(e circuits.Ensemble) (t Transfer, final bool, err error) {
+	t, _, final, err = transferFor(e)
+	return t, final, err
+}
+
+// transferFor is TransferFor with the moment kind of e.
+func transferFor(e circuits.Ensemble) (Transfer, circuits.MomentKind, bool, error) {
+	if e == nil {
+		panic("moments: TransferFor with a nil ensemble")
+	}
+	kind, g, ok := circuits.SecondMoments(e)
+	if !ok {
+		return Transfer{}, kind, false, fmt.Errorf("moments: gate set %s has %w: a finite single-qubit set is not invariant under single-qubit rotations, so its second moments have no identity/swap form", e.Name(), ErrNoExactMoments)
+	}
+	_, final := e.(circuits.Finisher)
+	switch kind {
+	case circuits.HaarMoments:
+		return HaarTransfer, kind, final, nil
+	case circuits.EntanglerMoments:
+		return EntanglerTransfer(&g), kind, final, nil
+	}
+	return Transfer{}, kind, false, fmt.Errorf("moments: gate set %s has %w (moment kind %v)", e.Name(), ErrNoExactMoments, kind)
+}
+
+// Result is what Exact computes; the slices hold one entry per depth.
+type Result struct {
+	Depths     []int
+	GateCounts []int
+	// Collision is the exact E[Z] and Ratio is E[Z]/HaarCollision.
+	Collision, Ratio []float64
+	// HaarCollision is Z_H = 2/(D+1), D = 2^n.
+	HaarCollision float64
+	// Frame is the second frame potential F^(2) (Haar value 2), or nil with
+	// FrameNote saying why it was not computed.
+	Frame     []float64
+	FrameNote string
+	// Gap is the spectral gap of a random-edge schedule, or nil with GapNote
+	// saying why it was not computed; both are empty for a layered schedule
+	// and with ExactCurveOnly.
+	Gap     *Gap
+	GapNote string
+	// Eps is the anti-concentration threshold; Depth is the smallest depth
+	// with Ratio ≤ 1 + Eps, and Found is false when no depth is.
+	Eps   float64
+	Depth int
+	Found bool
+}
+
+// ExactOption sets an optional parameter of Exact.
+type ExactOption func(*exactConfig)
+
+type exactConfig struct {
+	workers   int
+	eps       float64
+	progress  func(done, total int)
+	curveOnly bool
+}
+
+// ExactWorkers bounds the goroutines of Exact (values below 1 mean 1); the
+// default is runtime.GOMAXPROCS(0). The result does not depend on it.
+func ExactWorkers(n int) ExactOption {
+	return func(c *exactConfig) { c.workers = max(n, 1) }
+}
+
+// ExactEps sets the anti-concentration threshold ε, 0 < ε < 1; the default
+// is DefaultExactEps. Exact panics for other values.
+func ExactEps(eps float64) ExactOption {
+	return func(c *exactConfig) { c.eps = eps }
+}
+
+// ExactProgress makes Exact report the progress of E[Z] as CollisionProgress
+// does; the default is no report.
+func ExactProgress(f func(done, total int)) ExactOption {
+	return func(c *exactConfig) { c.progress = f }
+}
+
+// ExactCurveOnly makes Exact compute E[Z] only, with no frame potential and
+// no spectral gap (and no notes about them).
+func ExactCurveOnly() ExactOption {
+	return func(c *exactConfig) { c.curveOnly = true }
+}
+
+// Exact computes the exact second moments of the circuits of schedule s on
+// g with gates from e at each of depths (ascending, non-negative): E[Z] by
+// CollisionCurve with the transfer of TransferFor (and the final layer when
+// e has one), the ratio to the Haar value Z_H = 2/(D+1) (stats.HaarCollision),
+// and the anti-concentration depth, the smallest depth with
+// E[Z]/Z_H ≤ 1 + ε (Dalzell, Hunter-Jones, Brandão, PRX Quantum 3, 010333,
+// 2022). Unless ExactCurveOnly is given it adds
+//
+//   - the frame potential F^(2) by FramePotential2, for gate sets with the
+//     Haar transfer, up to FrameMaxQubits qubits (FrameRandomEdgeMaxQubits
+//     for a random-edge schedule);
+//   - for a random-edge schedule, the spectral gap by SpectralGap, for gate
+//     sets with the Haar transfer, up to GapMaxQubits qubits.
+//
+// A value outside those rules is absent, with a note in the Result. A gate
+// set with no exact moments gives an error wrapping ErrNoExactMoments; sizes
+// beyond the engines give an error wrapping ErrTooLarge. Cancelling ctx stops
+// the work with an error wrapping ctx.Err(). It panics if g, s or e is nil
+// or if the ε of ExactEps is not in (0, 1).
+func Exact(ctx context.Context, g *circuits.Graph, s circuits.Schedule, e circuits.Ensemble, depths []int, opts ...ExactOption) (*Result, error) {
+	if g == nil || s == nil {
+		panic("moments: Exact with a nil graph or schedule")
+	}
+	cfg := exactConfig{workers: runtime.GOMAXPROCS(0), eps: DefaultExactEps}
+	for _, o := range opts {
+		o(&cfg)
+	}
+	if !(cfg.eps > 0 && cfg.eps < 1) {
+		panic(fmt.Sprintf("moments: Exact with eps %g: need 0 < eps < 1", cfg.eps))
+	}
+	t, kind, final, err := transferFor(e)
+	if err != nil {
+		return nil, err
+	}
+	if err := exactCheckSize(g, s); err != nil {
+		return nil, err
+	}
+	var copts []CollisionOption
+	if final {
+		copts = append(copts, CollisionFinalLayer())
+	}
+	if cfg.progress != nil {
+		copts = append(copts, CollisionProgress(cfg.progress))
+	}
+	n := g.Qubits
+	r := &Result{Depths: depths, HaarCollision: stats.HaarCollision(math.Ldexp(1, n)), Eps: cfg.eps}
+	for _, d := range depths {
+		r.GateCounts = append(r.GateCounts, s.GateCount(d))
+	}
+	if r.Collision, err = CollisionCurve(ctx, g, s, &t, depths, cfg.workers, copts...); err != nil {
+		return nil, exactMemory(err)
+	}
+	for _, z := range r.Collision {
+		r.Ratio = append(r.Ratio, z/r.HaarCollision)
+	}
+	r.Depth, r.Found = stats.AnticoncentrationDepth(depths, r.Ratio, cfg.eps)
+	if cfg.curveOnly {
+		return r, nil
+	}
+	randomEdge := s.Kind() == circuits.KindRandomEdge
+	switch {
+	case kind != circuits.HaarMoments:
+		r.FrameNote = "the frame potential is computed for Haar-equivalent gate sets (haar, clifford) only"
+	case randomEdge && n > FrameRandomEdgeMaxQubits:
+		r.FrameNote = fmt.Sprintf("for the random-edge schedule the exact frame potential sums the spectra of every connected induced subgraph, which takes minutes beyond %d qubits; this graph has %d", FrameRandomEdgeMaxQubits, n)
+	case n > FrameMaxQubits:
+		r.FrameNote = fmt.Sprintf("the frame potential is computed exactly up to %d qubits (its transfer matrix has 4^n entries); this graph has %d", FrameMaxQubits, n)
+	default:
+		if r.Frame, err = FramePotential2(ctx, g, s, depths); err != nil {
+			return nil, exactMemory(err)
+		}
+	}
+	if !randomEdge {
+		return r, nil
+	}
+	switch {
+	case kind != circuits.HaarMoments:
+		r.GapNote = "the spectral gap is computed for Haar-equivalent gate sets (haar, clifford) only"
+	case n > GapMaxQubits:
+		r.GapNote = fmt.Sprintf("the spectral gap is computed on the 2^n-dimensional support chain, up to %d qubits; this graph has %d", GapMaxQubits, n)
+	default:
+		gap, err := SpectralGap(ctx, g, cfg.workers)
+		if err != nil {
+			return nil, exactMemory(err)
+		}
+		r.Gap = &gap
+	}
+	return r, nil
+}
+
+// exactCheckSize returns an error wrapping ErrTooLarge for the sizes Exact
+// refuses before any work.
+func exactCheckSize(g *circuits.Graph, s circuits.Schedule) error {
+	n := g.Qubits
+	if n > ExactMaxQubits {
+		return fmt.Errorf("moments: %s (%d qubits) is %w: the Haar collision probability 2/(2^n+1) underflows float64 beyond %d qubits", g.Name, n, ErrTooLarge, ExactMaxQubits)
+	}
+	if re, ok := s.(*circuits.RandomEdge); ok && n > CollisionRandomEdgeMaxQubits && len(re.Edges) != n*(n-1)/2 {
+		return fmt.Errorf("moments: a random-edge schedule on %d qubits is %w: the exact average over edges handles at most %d qubits except on complete graphs; use a layered schedule, a complete graph, or a Monte Carlo scan", n, ErrTooLarge, CollisionRandomEdgeMaxQubits)
+	}
+	return nil
+}
+
+// memoryError is an error caused by memory: errors.Is finds both
+// ErrTooLarge and sim.ErrTooLarge in it, and its message is the cause's.
+type memoryError struct{ err error }
+
+func (e memoryError) Error() string   { return e.err.Error() }
+func (e memoryError) Unwrap() []error { return []error{ErrTooLarge, e.err} }
+
+// exactMemory marks an engine error caused by memory (sim.ErrTooLarge) as
+// ErrTooLarge too.
+func exactMemory(err error) error {
+	if errors.Is(err, sim.ErrTooLarge) && !errors.Is(err, ErrTooLarge) {
+		return memoryError{err}
+	}
+	return err
+}
+
+// CollisionByDepth returns E[Z] keyed by depth, or nil for a nil Result (so
+// a caller without an exact curve can pass it on unchanged).
+func (r *Result) CollisionByDepth() map[int]float64 {
+	if r == nil {
+		return nil
+	}
+	m := make(map[int]float64, len(r.Depths))
+	for k, d := range r.Depths {
+		m[d] = r.Collision[k]
+	}
+	return m
+}

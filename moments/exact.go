@@ -262,3 +262,8 @@ func (r *Result) CollisionByDepth() map[int]float64 {
 	}
 	return m
 }
+
+// Spread reports whether depth r.Depths[i] meets the anti-concentration
+// threshold, E[Z]/Z_H ≤ 1 + Eps (the rule that sets Depth). It panics if i
+// is out of range.
+func (r *Result) Spread(i int) bool { return r.Ratio[i] <= 1+r.Eps }

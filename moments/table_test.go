@@ -8,22 +8,16 @@ import (
 
 	"mixdepth/circuits"
 	"mixdepth/moments"
+	"mixdepth/runs"
 	"mixdepth/tables"
 )
 
 // TestExactToTable: a Go program can run an exact computation and keep it
-// as a table with the library alone (moments and tables, no CLI): the
+// as a table with the library alone (moments, runs and tables, no CLI): the
 // per-depth values written to Arrow IPC and to Parquet read back bit for
 // bit, an absent frame potential as nulls, and the run's parameters as
 // metadata.
 func TestExactToTable(t *testing.T) {
-	fields := []tables.Field{
-		{Name: "depth", Type: tables.Int64},
-		{Name: "gate_count", Type: tables.Int64},
-		{Name: "collision", Type: tables.Float64},
-		{Name: "collision_ratio", Type: tables.Float64},
-		{Name: "frame_potential", Type: tables.Float64, Nullable: true},
-	}
 	dir := t.TempDir()
 	for _, gates := range []string{"haar", "cz+haar1"} {
 		g, s, e := exactInputs(t, "grid:2x3", circuits.KindLayered, gates)
@@ -40,18 +34,7 @@ func TestExactToTable(t *testing.T) {
 		meta.Set("anticoncentration_depth", strconv.Itoa(r.Depth))
 		for _, name := range []string{"exact.arrow", "exact.parquet"} {
 			path := filepath.Join(dir, gates+"-"+name)
-			w, err := tables.Create(path, fields, meta)
-			if err != nil {
-				t.Fatal(err)
-			}
-			for i, d := range r.Depths {
-				var f any
-				if r.Frame != nil {
-					f = r.Frame[i]
-				}
-				w.Append(d, r.GateCounts[i], r.Collision[i], r.Ratio[i], f)
-			}
-			if err := w.Close(); err != nil {
+			if err := runs.WriteExactTable(path, meta, r); err != nil {
 				t.Fatal(err)
 			}
 

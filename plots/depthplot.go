@@ -304,7 +304,7 @@ func depthPlot(s *depthPoints, ds *DepthSeries, eps float64, o depthOptions) (*f
 	if len(s.bands) == 0 && len(s.line) == 0 {
 		rule = "R ≤ 1 + ε" // the exact curve alone
 	}
-	fig.key("ε = "+strconv.FormatFloat(eps, 'g', 4, 64)+": a depth is ready when "+rule, epsLine)
+	fig.key("ε = "+strconv.FormatFloat(eps, 'g', 4, 64)+": a depth is spread when "+rule, epsLine)
 
 	if ds.Found {
 		d := float64(ds.Depth)

@@ -124,8 +124,8 @@ func TestIdealSampler(t *testing.T) {
 		t.Errorf("mean D·Z − 1 over instances = %.4f ± %.4f, want (D−1)/(D+1) = %.4f", m, se, pt)
 	}
 	rep := Score(6, groups(rs))
-	if !rep.Anticoncentrated || math.Abs(rep.Normalized-1) > 4*rep.NormalizedErr {
-		t.Errorf("Score: normalized %.4f ± %.4f (want 1), anticoncentrated %v", rep.Normalized, rep.NormalizedErr, rep.Anticoncentrated)
+	if !rep.Spread || math.Abs(rep.Normalized-1) > 4*rep.NormalizedErr {
+		t.Errorf("Score: normalized %.4f ± %.4f (want 1), anticoncentrated %v", rep.Normalized, rep.NormalizedErr, rep.Spread)
 	}
 }
 
@@ -503,7 +503,7 @@ func TestScoreByHand(t *testing.T) {
 		t.Errorf("report %+v", r)
 	}
 	// D·Z − 1 = 0.2 is far from (D−1)/(D+1) = 0.6.
-	if r.Anticoncentrated {
-		t.Error("Anticoncentrated with D·Z − 1 = 0.2 against 0.6")
+	if r.Spread {
+		t.Error("Spread with D·Z − 1 = 0.2 against 0.6")
 	}
 }

@@ -7,7 +7,7 @@ import (
 )
 
 // AnticoncentrationTolerance is the relative distance from the Porter–Thomas
-// value (D−1)/(D+1) beyond which Report.Anticoncentrated is false.
+// value (D−1)/(D+1) beyond which Report.Spread is false (the word this project uses for a depth or a circuit set that meets its anti-concentration threshold).
 const AnticoncentrationTolerance = 0.1
 
 // InstanceScore is the cross-entropy benchmark of one instance's shots.
@@ -43,12 +43,12 @@ type Report struct {
 	// PorterThomas is (D−1)/(D+1), the value of Ideal for Haar-random
 	// outputs (Boixo et al. 2018).
 	PorterThomas float64
-	// Anticoncentrated is true when Ideal lies within
+	// Spread is true when Ideal lies within
 	// AnticoncentrationTolerance of PorterThomas (relative). Otherwise the
 	// raw F_lin misstates the fidelity (it overstates it when Ideal > 1):
 	// read Normalized instead, and prefer deeper circuits.
-	Anticoncentrated bool
-	Instances        []InstanceScore
+	Spread    bool
+	Instances []InstanceScore
 }
 
 // Score computes the linear and logarithmic cross-entropy benchmarks of the
@@ -81,6 +81,6 @@ func Score(qubits int, groups []InstanceSamples) *Report {
 	r.Log, r.LogErr = stats.LogXEB(all, dim)
 	r.Ideal = idealSum / float64(r.Shots)
 	r.Normalized, r.NormalizedErr = r.Linear/r.Ideal, r.LinearErr/r.Ideal
-	r.Anticoncentrated = math.Abs(r.Ideal/r.PorterThomas-1) <= AnticoncentrationTolerance
+	r.Spread = math.Abs(r.Ideal/r.PorterThomas-1) <= AnticoncentrationTolerance
 	return r
 }

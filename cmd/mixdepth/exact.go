@@ -14,7 +14,7 @@ import (
 	"mixdepth/circuits"
 	"mixdepth/moments"
 	"mixdepth/plots"
-	"mixdepth/tables"
+	"mixdepth/runs"
 )
 
 func init() {
@@ -22,21 +22,14 @@ func init() {
 }
 
 type exactJSON struct {
-	Tool                   string                `json:"tool"`
-	Version                string                `json:"version"`
-	Graph                  string                `json:"graph"`
-	GraphDigest            string                `json:"graph_digest"`
-	Qubits                 int                   `json:"qubits"`
-	Edges                  int                   `json:"edges"`
-	Schedule               circuits.ScheduleKind `json:"schedule"`
-	Gates                  string                `json:"gates"`
-	HaarCollision          float64               `json:"haar_collision"`
-	Eps                    float64               `json:"eps"`
-	AnticoncentrationDepth *int                  `json:"anticoncentration_depth"`
-	FrameNote              string                `json:"frame_potential_note,omitempty"`
-	GapNote                string                `json:"gap_note,omitempty"`
-	Rows                   []exactJSONRow        `json:"rows"`
-	Gap                    *exactJSONGap         `json:"gap,omitempty"`
+	runs.Header
+	HaarCollision          float64        `json:"haar_collision"`
+	Eps                    float64        `json:"eps"`
+	AnticoncentrationDepth *int           `json:"anticoncentration_depth"`
+	FrameNote              string         `json:"frame_potential_note,omitempty"`
+	GapNote                string         `json:"gap_note,omitempty"`
+	Rows                   []exactJSONRow `json:"rows"`
+	Gap                    *exactJSONGap  `json:"gap,omitempty"`
 }
 
 type exactJSONRow struct {
@@ -45,6 +38,7 @@ type exactJSONRow struct {
 	Collision      float64  `json:"collision"`
 	CollisionRatio float64  `json:"collision_ratio"`
 	FramePotential *float64 `json:"frame_potential"`
+	Spread         bool     `json:"spread"`
 }
 
 type exactJSONGap struct {
@@ -53,14 +47,6 @@ type exactJSONGap struct {
 	MinDegree        int     `json:"min_degree"`
 	BoundEps         float64 `json:"bound_eps"`
 	DesignDepthBound int     `json:"design_depth_bound"`
-}
-
-var exactFields = []tables.Field{
-	{Name: "depth", Type: tables.Int64, Unit: "layers (gates for random-edge)", Doc: "circuit depth (layers, or gates for random-edge)"},
-	{Name: "gate_count", Type: tables.Int64, Unit: "gates", Doc: "two-qubit gates applied up to this depth"},
-	{Name: "collision", Type: tables.Float64, Unit: "probability", Doc: "exact ensemble average E[Z] of the collision probability"},
-	{Name: "collision_ratio", Type: tables.Float64, Doc: "E[Z] / Z_H with Z_H = 2/(D+1)"},
-	{Name: "frame_potential", Type: tables.Float64, Nullable: true, Doc: "second frame potential F2 (Haar value 2); null above the size limit or for non-Haar gate sets"},
 }
 
 // gatesHint adds the command that estimates what the exact engines refuse
@@ -122,7 +108,7 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	meta.Set("depths", joinInts(depths))
 	meta.Set("eps", strconv.FormatFloat(*eps, 'g', -1, 64))
 	if *out != "" {
-		if err := checkWritable(*out, exactFields, meta, "--out"); err != nil {
+		if err := checkWritable(*out, runs.ExactFields(), meta, "--out"); err != nil {
 			return err
 		}
 	}
@@ -160,31 +146,17 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	depth, found := r.Depth, r.Found
 
 	if *out != "" {
-		w, err := tables.Create(*out, exactFields, meta)
-		if err != nil {
-			return fmt.Errorf("writing %s: %w", *out, err)
-		}
-		defer w.Abort()
-		for i, d := range r.Depths {
-			var f any
-			if r.Frame != nil {
-				f = r.Frame[i]
-			}
-			w.Append(d, r.GateCounts[i], r.Collision[i], r.Ratio[i], f)
-		}
-		if err := w.Close(); err != nil {
+		if err := runs.WriteExactTable(*out, meta, r); err != nil {
 			return err
 		}
 	}
 	if *asJSON {
-		doc := exactJSON{Tool: "mixdepth", Version: version, Graph: s.graph.Name, GraphDigest: s.graph.Digest(),
-			Qubits: s.graph.Qubits, Edges: len(s.graph.Edges), Schedule: s.schedule.Kind(), Gates: s.ensemble.Name(),
-			HaarCollision: r.HaarCollision, Eps: *eps, FrameNote: r.FrameNote, GapNote: r.GapNote, Gap: gap}
+		doc := exactJSON{Header: s.spec.Header(), HaarCollision: r.HaarCollision, Eps: *eps, FrameNote: r.FrameNote, GapNote: r.GapNote, Gap: gap}
 		if found {
 			doc.AnticoncentrationDepth = &depth
 		}
 		for i, d := range r.Depths {
-			row := exactJSONRow{Depth: d, GateCount: r.GateCounts[i], Collision: r.Collision[i], CollisionRatio: r.Ratio[i]}
+			row := exactJSONRow{Depth: d, GateCount: r.GateCounts[i], Collision: r.Collision[i], CollisionRatio: r.Ratio[i], Spread: r.Spread(i)}
 			if r.Frame != nil {
 				row.FramePotential = &r.Frame[i]
 			}

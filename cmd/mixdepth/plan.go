@@ -6,7 +6,7 @@ import (
 	"io"
 	"math"
 
-	"mixdepth/circuits"
+	"mixdepth/runs"
 	"mixdepth/sampling"
 	"mixdepth/stats"
 )
@@ -17,29 +17,24 @@ func init() {
 
 // planJSON is the --json document of plan. Field names are an interface.
 type planJSON struct {
-	Tool                string                `json:"tool"`
-	Version             string                `json:"version"`
-	Graph               string                `json:"graph"`
-	Qubits              int                   `json:"qubits"`
-	Schedule            circuits.ScheduleKind `json:"schedule"`
-	Gates               string                `json:"gates"`
-	Depth               int                   `json:"depth"`
-	TwoQubitGates       int                   `json:"two_qubit_gates"`
-	SingleQubitGates    int                   `json:"single_qubit_gates"`
-	GateError           float64               `json:"gate_error"`
-	SingleQubitError    float64               `json:"single_qubit_error"`
-	ReadoutError        [2]float64            `json:"readout_error"`
-	TwoQubitFidelity    float64               `json:"two_qubit_fidelity"`
-	SingleQubitFidelity float64               `json:"single_qubit_fidelity"`
-	ReadoutFidelity     float64               `json:"readout_fidelity"`
-	ErrorModelFidelity  *float64              `json:"error_model_fidelity"`
-	PredictedFidelity   float64               `json:"predicted_fidelity"`
-	FidelitySource      string                `json:"fidelity_source"`
-	Sigmas              *float64              `json:"sigmas"`
-	RelPrecision        *float64              `json:"rel_precision"`
-	SamplesSigmas       *int64                `json:"samples_sigmas"`
-	SamplesRelPrecision *int64                `json:"samples_rel_precision"`
-	Samples             int64                 `json:"samples"`
+	runs.Header
+	Depth               int        `json:"depth"`
+	TwoQubitGates       int        `json:"two_qubit_gates"`
+	SingleQubitGates    int        `json:"single_qubit_gates"`
+	GateError           float64    `json:"gate_error"`
+	SingleQubitError    float64    `json:"single_qubit_error"`
+	ReadoutError        [2]float64 `json:"readout_error"`
+	TwoQubitFidelity    float64    `json:"two_qubit_fidelity"`
+	SingleQubitFidelity float64    `json:"single_qubit_fidelity"`
+	ReadoutFidelity     float64    `json:"readout_fidelity"`
+	ErrorModelFidelity  *float64   `json:"error_model_fidelity"`
+	PredictedFidelity   float64    `json:"predicted_fidelity"`
+	FidelitySource      string     `json:"fidelity_source"`
+	Sigmas              *float64   `json:"sigmas"`
+	RelPrecision        *float64   `json:"rel_precision"`
+	SamplesSigmas       *int64     `json:"samples_sigmas"`
+	SamplesRelPrecision *int64     `json:"samples_rel_precision"`
+	Samples             int64      `json:"samples"`
 }
 
 func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error {
@@ -126,8 +121,8 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		return badInput("the digital error model predicts fidelity %g: no number of samples resolves it; lower the error rates or the depth", f)
 	}
 	doc := planJSON{
-		Tool: "mixdepth", Version: version, Graph: s.graph.Name, Qubits: n, Schedule: s.schedule.Kind(), Gates: s.ensemble.Name(),
-		Depth: *depth, TwoQubitGates: g2, SingleQubitGates: g1, GateError: *gateError, SingleQubitError: *singleError,
+		Header: s.spec.Header(),
+		Depth:  *depth, TwoQubitGates: g2, SingleQubitGates: g1, GateError: *gateError, SingleQubitError: *singleError,
 		ReadoutError: [2]float64{p01, p10}, TwoQubitFidelity: f2, SingleQubitFidelity: f1, ReadoutFidelity: fr,
 		PredictedFidelity: f, FidelitySource: source,
 	}

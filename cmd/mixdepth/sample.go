@@ -14,7 +14,7 @@ import (
 
 	"github.com/schollz/progressbar/v3"
 
-	"mixdepth/circuits"
+	"mixdepth/runs"
 	"mixdepth/sampling"
 	"mixdepth/tables"
 )
@@ -34,31 +34,25 @@ var testHookSampleProgress func()
 
 // sampleJSON is the --json document of sample. Field names are an interface.
 type sampleJSON struct {
-	Tool              string                `json:"tool"`
-	Version           string                `json:"version"`
-	Graph             string                `json:"graph"`
-	GraphDigest       string                `json:"graph_digest"`
-	Qubits            int                   `json:"qubits"`
-	Schedule          circuits.ScheduleKind `json:"schedule"`
-	Gates             string                `json:"gates"`
-	Seed              uint64                `json:"seed"`
-	Depth             int                   `json:"depth"`
-	GateCount         int                   `json:"gate_count"`
-	Instances         int                   `json:"instances"`
-	Part              string                `json:"part"`
-	InstancesDone     string                `json:"instances_done"`
-	Shots             int                   `json:"shots"`
-	Fidelity          float64               `json:"fidelity"`
-	GateError         float64               `json:"gate_error"`
-	ReadoutError      [2]float64            `json:"readout_error"`
-	Trajectories      int                   `json:"trajectories"`
-	PredictedFidelity float64               `json:"predicted_fidelity"`
-	LinearXEB         *float64              `json:"linear_xeb"`
-	LinearXEBStderr   *float64              `json:"linear_xeb_stderr"`
-	IdealXEB          *float64              `json:"ideal_xeb"`
-	NormalizedXEB     *float64              `json:"normalized_xeb"`
-	Out               string                `json:"out,omitempty"`
-	Circuits          string                `json:"circuits,omitempty"`
+	runs.Header
+	Seed              uint64     `json:"seed"`
+	Depth             int        `json:"depth"`
+	GateCount         int        `json:"gate_count"`
+	Instances         int        `json:"instances"`
+	Part              string     `json:"part"`
+	InstancesDone     string     `json:"instances_done"`
+	Shots             int        `json:"shots"`
+	Fidelity          float64    `json:"fidelity"`
+	GateError         float64    `json:"gate_error"`
+	ReadoutError      [2]float64 `json:"readout_error"`
+	Trajectories      int        `json:"trajectories"`
+	PredictedFidelity float64    `json:"predicted_fidelity"`
+	LinearXEB         *float64   `json:"linear_xeb"`
+	LinearXEBStderr   *float64   `json:"linear_xeb_stderr"`
+	IdealXEB          *float64   `json:"ideal_xeb"`
+	NormalizedXEB     *float64   `json:"normalized_xeb"`
+	Out               string     `json:"out,omitempty"`
+	Circuits          string     `json:"circuits,omitempty"`
 }
 
 func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) error {
@@ -241,8 +235,8 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	rep := sampling.Score(s.graph.Qubits, groups)
 	if *asJSON {
 		return writeJSON(stdout, sampleJSON{
-			Tool: "mixdepth", Version: version, Graph: s.graph.Name, GraphDigest: s.graph.Digest(), Qubits: s.graph.Qubits,
-			Schedule: s.schedule.Kind(), Gates: s.ensemble.Name(), Seed: cf.seed, Depth: *depth, GateCount: gateCount,
+			Header: s.spec.Header(),
+			Seed:   cf.seed, Depth: *depth, GateCount: gateCount,
 			Instances: *instances, Part: part.String(), InstancesDone: formatIDs(done), Shots: *shots,
 			Fidelity: noise.Fidelity, GateError: noise.GateError, ReadoutError: [2]float64{p01, p10},
 			Trajectories: usedTrajectories, PredictedFidelity: predicted,

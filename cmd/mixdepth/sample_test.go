@@ -213,8 +213,8 @@ func TestScoreWarnsWithoutAnticoncentration(t *testing.T) {
 		t.Errorf("report does not say so: %s", stdout)
 	}
 	doc := scoreDoc(t, out)
-	if doc.Anticoncentrated || len(doc.Warnings) != 1 || *doc.IdealXEB < 2 {
-		t.Errorf("anticoncentrated %v, warnings %q, ideal %v", doc.Anticoncentrated, doc.Warnings, *doc.IdealXEB)
+	if doc.Spread || len(doc.Warnings) != 1 || *doc.IdealXEB < 2 {
+		t.Errorf("anticoncentrated %v, warnings %q, ideal %v", doc.Spread, doc.Warnings, *doc.IdealXEB)
 	}
 	deep := filepath.Join(dir, "deep.parquet")
 	sampleOK(t, "sample", "--graph", "line:6", "--depth", "20", "--instances", "5", "--shots", "200", "--out", deep)

@@ -45,6 +45,7 @@ type scanJSONRow struct {
 	RatioLower     *float64 `json:"ratio_lower"`
 	RatioUpper     *float64 `json:"ratio_upper"`
 	PTKSMean       float64  `json:"pt_ks_mean"`
+	Spread         bool     `json:"spread"`
 	// CollisionExact and ExactDeviation are set with --exact: the exact
 	// E[Z] and (mean − exact)/stderr.
 	CollisionExact *float64 `json:"collision_exact,omitempty"`
@@ -58,7 +59,7 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	cf.add(fs)
 	depthSpec := fs.String("depths", "", "depths to report: 2,4,8 or FROM:TO or FROM:TO:STEP (default 1:20; demo 2:24:2)")
 	instances := fs.Int("instances", 200, "number of random circuit instances")
-	eps := fs.Float64("eps", 0.05, "anti-concentration threshold: depth reached when the upper bound of R ≤ 1+eps")
+	eps := fs.Float64("eps", 0.05, "anti-concentration threshold: a depth is spread when the upper bound of R ≤ 1+eps")
 	conf := fs.Float64("confidence", 0.95, "confidence level of the interval for R")
 	workers := fs.Int("workers", defaultWorkers(), "worker goroutines")
 	out := fs.String("out", "", "write the per-instance table to FILE.arrow or FILE.parquet")
@@ -247,7 +248,7 @@ func scanDocument(s *setup, seed uint64, instances int, eps, conf float64, sum *
 	for _, r := range sum.Rows {
 		doc.Rows = append(doc.Rows, scanJSONRow{
 			Depth: r.Depth, GateCount: r.GateCount, CollisionMean: r.Collision.Mean, CollisionStder: finiteOrNull(r.Collision.StdErr),
-			CollisionRatio: r.Ratio, RatioLower: finiteOrNull(r.Lower), RatioUpper: finiteOrNull(r.Upper), PTKSMean: r.KSMean,
+			CollisionRatio: r.Ratio, RatioLower: finiteOrNull(r.Lower), RatioUpper: finiteOrNull(r.Upper), PTKSMean: r.KSMean, Spread: r.Spread,
 		})
 	}
 	return doc

@@ -10,6 +10,7 @@ import (
 	"strings"
 	"unicode/utf8"
 
+	"mixdepth/runs"
 	"mixdepth/sampling"
 	"mixdepth/tables"
 )
@@ -20,8 +21,7 @@ func init() {
 
 // scoreJSON is the --json document of score. Field names are an interface.
 type scoreJSON struct {
-	Tool                string              `json:"tool"`
-	Version             string              `json:"version"`
+	runs.Producer
 	Table               string              `json:"table"`
 	Circuits            string              `json:"circuits"`
 	Qubits              int                 `json:"qubits"`
@@ -34,7 +34,7 @@ type scoreJSON struct {
 	NormalizedXEB       *float64            `json:"normalized_xeb"`
 	NormalizedXEBStderr *float64            `json:"normalized_xeb_stderr"`
 	PorterThomasXEB     float64             `json:"porter_thomas_xeb"`
-	Anticoncentrated    bool                `json:"anticoncentrated"`
+	Spread              bool                `json:"spread"`
 	Warnings            []string            `json:"warnings"`
 	Instances           []scoreJSONInstance `json:"instances"`
 }
@@ -148,7 +148,7 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	}
 	rep := sampling.Score(qubits, groups)
 	warnings := []string{}
-	if !rep.Anticoncentrated {
+	if !rep.Spread {
 		w := fmt.Sprintf("the circuits have not anti-concentrated: the ideal value D·Z − 1 = %.4f is more than %.0f%% from the Porter–Thomas value %.4f, so the raw linear XEB misstates the fidelity; read normalized_xeb, or use deeper circuits",
 			rep.Ideal, 100*sampling.AnticoncentrationTolerance, rep.PorterThomas)
 		if rep.Ideal > rep.PorterThomas {
@@ -161,11 +161,11 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	}
 	if *asJSON {
 		doc := scoreJSON{
-			Tool: "mixdepth", Version: version, Table: path, Circuits: source, Qubits: qubits, Shots: rep.Shots,
+			Producer: runs.ThisProducer, Table: path, Circuits: source, Qubits: qubits, Shots: rep.Shots,
 			LinearXEB: finiteOrNull(rep.Linear), LinearXEBStderr: finiteOrNull(rep.LinearErr),
 			LogXEB: finiteOrNull(rep.Log), LogXEBStderr: finiteOrNull(rep.LogErr),
 			IdealXEB: finiteOrNull(rep.Ideal), NormalizedXEB: finiteOrNull(rep.Normalized), NormalizedXEBStderr: finiteOrNull(rep.NormalizedErr),
-			PorterThomasXEB: rep.PorterThomas, Anticoncentrated: rep.Anticoncentrated, Warnings: warnings,
+			PorterThomasXEB: rep.PorterThomas, Spread: rep.Spread, Warnings: warnings,
 		}
 		for _, s := range rep.Instances {
 			doc.Instances = append(doc.Instances, scoreJSONInstance{
@@ -187,7 +187,7 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		row(fmt.Sprintf("instance %d", s.Instance), s.Shots, s.Linear, s.LinearErr, s.Log, s.LogErr, s.Ideal, s.Normalized, s.NormalizedErr)
 	}
 	fmt.Fprintf(stdout, "\nPorter–Thomas value of D·Z − 1: (D−1)/(D+1) = %.4f", rep.PorterThomas)
-	if rep.Anticoncentrated {
+	if rep.Spread {
 		fmt.Fprintln(stdout, "; the circuits anti-concentrate (mean within 10%).")
 	} else {
 		fmt.Fprintln(stdout, "; the circuits do NOT anti-concentrate: read the normalized column.")

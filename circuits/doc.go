@@ -12,7 +12,7 @@
 //     gate.
 //   - Instance i of a run with seed s draws every random choice from its own
 //     stream, derived only from (s, i) by Stream, so results do not depend on
-//     worker counts or shards.
+//     worker counts or parts.
 //
 // Gate sets (NewEnsemble specs): "haar" (Haar U(4)), "clifford" (uniform on
 // the two-qubit Clifford group modulo phases), "NAME+haar1" (Haar U(2) on

@@ -7,7 +7,7 @@ import (
 
 // Stream returns the random stream of instance i of a run with seed s. It is
 // a ChaCha8 generator keyed by (s, i) alone, so an instance's circuit does
-// not depend on the worker count, the order of work or the shard split.
+// not depend on the worker count, the order of work or the split into parts.
 func Stream(seed uint64, instance int) *rand.Rand {
 	var key [32]byte
 	copy(key[:8], "mixdepth")

@@ -230,7 +230,7 @@ func bruteTrace(a, b *bruteRho) float64 {
 
 // bruteTransfer derives the Transfer of the ensemble gate from its action
 // on the operators V_σ: with Y_σ = gate(V_σ) in span{V_τ}, the coefficients
-// solve Σ_τ Tr(V_τ' V_τ) T[τ][σ] = Tr(V_τ' Y_σ) (design.md §5: a transfer
+// solve Σ_τ Tr(V_τ' V_τ) T[τ][σ] = Tr(V_τ' Y_σ) (Weingarten calculus, Collins 2003: a transfer
 // computed from traces of G^⊗2 V_σ G^†⊗2 V_τ). The 4×4 Gram solve uses gonum.
 func bruteTransfer(t *testing.T, gate bruteGate) Transfer {
 	t.Helper()

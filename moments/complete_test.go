@@ -86,7 +86,7 @@ func TestCompleteFirstGates(t *testing.T) {
 }
 
 // TestCompleteLarge: on complete:300 the random-edge average reaches the
-// Haar value Z_H = 2/(D+1) (design.md §3) once the circuit is deep: E[Z]/Z_H
+// Haar value Z_H = 2/(D+1) (Dalzell, Hunter-Jones, Brandão 2022) once the circuit is deep: E[Z]/Z_H
 // must tend to 1. The values are ~1e-90, kept exact through the logarithmic
 // rescaling; the linear curve must agree with the logarithmic one. 10000
 // gates is over three times the depth where the deviation fell to 1e-3, and

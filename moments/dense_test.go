@@ -412,7 +412,7 @@ func denseGraph(t *testing.T, spec string) *circuits.Graph {
 // TestDenseOperator checks the reference itself: each M_e is a symmetric
 // orthogonal projector of rank 2·16^(n−2) (the twirl projects the pair's
 // two-copy space onto span{I, S}: Collins 2003), and one gate on two qubits
-// gives E[Z] = 2/(D+1) = 2/5 (the Haar collision probability; design.md §3).
+// gives E[Z] = 2/(D+1) = 2/5 (the Haar collision probability; Dalzell, Hunter-Jones, Brandão 2022).
 func TestDenseOperator(t *testing.T) {
 	var tr float64
 	for i := range 256 {

@@ -15,7 +15,7 @@ import (
 )
 
 // collisionHaarValue is Z_H = 2/(D+1), D = 2^n, the collision probability
-// of a Haar-random state (design.md §3).
+// of a Haar-random state (Dalzell, Hunter-Jones, Brandão 2022, PRX Quantum 3, 010333).
 func collisionHaarValue(n int) float64 { return 2 / (math.Ldexp(1, n) + 1) }
 
 func engineGraph(t testing.TB, spec string) *circuits.Graph {
@@ -37,7 +37,7 @@ func engineSchedule(t testing.TB, kind circuits.ScheduleKind, g *circuits.Graph)
 }
 
 // TestEngineOneHaarGate: one Haar U(4) gate on two qubits makes the state
-// Haar on D = 4, so E[Z] = Z_H = 2/(D+1) = 2/5 (design.md §3, §5). Every
+// Haar on D = 4, so E[Z] = Z_H = 2/(D+1) = 2/5 (Dalzell, Hunter-Jones, Brandão 2022; Hunter-Jones 2019, arXiv:1905.12053). Every
 // engine must give it; tolerance 1e-15 covers the few roundings of 0.4.
 func TestEngineOneHaarGate(t *testing.T) {
 	e, err := NewEngine(2, 1)
@@ -82,7 +82,7 @@ func TestEngineOneHaarGate(t *testing.T) {
 // TestEngineTwoGatesSameQubit: after one Haar gate on (0, 1) of three
 // qubits, qubit 2 is untouched: the state is Haar on qubits 0, 1 times
 // |0⟩, so Z = Z_H(4)·1 = 2/5. A Haar gate on (1, 2) next gives E[Z] by hand
-// (design.md §5): the pair state is (II+SS)/(4·5) in c-coordinates, qubit 2
+// (Hunter-Jones 2019, arXiv:1905.12053): the pair state is (II+SS)/(4·5) in c-coordinates, qubit 2
 // enters as (I+S)/6, the gate keeps I₁I₂ and S₁S₂ and sends I₁S₂ and S₁I₂
 // to (2/5)(II+SS), total weight 4/5 each; with readout 2 per qubit,
 // E[Z] = 8/(20·6)·2·(1 + 4/5) = 6/25. Tolerance: a handful of roundings.
@@ -106,7 +106,7 @@ func TestEngineTwoGatesSameQubit(t *testing.T) {
 
 // TestEngineMemory: 40 qubits need 8·2^40 bytes = 8 TiB, far beyond the
 // 24 GiB machine, so NewEngine must refuse with sim.ErrTooLarge and say the
-// size in GiB (design.md §7).
+// size in GiB (memory is checked before a vector is allocated).
 func TestEngineMemory(t *testing.T) {
 	_, err := NewEngine(40, 1)
 	if !errors.Is(err, sim.ErrTooLarge) {
@@ -188,8 +188,7 @@ func TestEngineParallelMatchesSerial(t *testing.T) {
 
 // TestEngineKernelDefinition compares Apply, for an asymmetric transfer
 // with negative entries, with the definition written as a plain loop over
-// σ: u'(σ) = Σ_{x,y} T[2σ_a+σ_b][2x+y] u(σ with a→x, b→y) (design.md §2 and
-// §5: local index 2·σ_a + σ_b, column = input), on a vector whose qubits
+// σ: u'(σ) = Σ_{x,y} T[2σ_a+σ_b][2x+y] u(σ with a→x, b→y) (local index 2·σ_a + σ_b, column = input), on a vector whose qubits
 // are all touched. Tolerance: four products of numbers of order 1.
 func TestEngineKernelDefinition(t *testing.T) {
 	const n = 6
@@ -284,7 +283,7 @@ func TestCollisionMonteCarlo(t *testing.T) {
 
 // TestCollisionDeep: deep Haar circuits on a connected graph converge to a
 // 2-design, E[Z] → Z_H = 2/(D+1) (Dalzell, Hunter-Jones, Brandão 2022;
-// design.md §3). The depths are at least twice those at which the deviation
+// Dalzell, Hunter-Jones, Brandão 2022). The depths are at least twice those at which the deviation
 // fell below 1e-12 (layered: 100 layers; random-edge: 400 gates), so the
 // tolerance 1e-9 on E[Z]/Z_H leaves the remaining deviation and the rounding
 // (below 1e-13 over these depths) far inside it.

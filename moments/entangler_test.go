@@ -33,7 +33,7 @@ func entNamed(t *testing.T, name string) moments.Transfer {
 // entReadout is E[Z] for two qubits from their first gate's transfer: each
 // fresh qubit enters as (I+S)/6, v₀ = (1/36)(1, 1, 1, 1), and after the
 // final single-qubit layer every qubit reads Σ_x ⟨xx|σ|xx⟩ = 2 for σ = I
-// or S, so E[Z] = 4 Σ_τ (T·v₀)_τ (design §5).
+// or S, so E[Z] = 4 Σ_τ (T·v₀)_τ (Hunter-Jones 2019, arXiv:1905.12053).
 func entReadout(t *moments.Transfer) float64 {
 	var z float64
 	for r := 0; r < 4; r++ {
@@ -60,7 +60,7 @@ func TestEntanglerTransferIdentity(t *testing.T) {
 // E[Z] = 4 Σ_τ (T·v₀)_τ on published values: the Haar U(4) transfer gives
 // Z_H = 2/(D+1) = 2/5 for D = 4, and the identity gives two independent
 // Haar qubit states, Z = (2/3)² (Haar collision probability for D = 2; the
-// Beta(1, D−1) law, Porter & Thomas 1956, design §3). Then CZ: one cz+haar1
+// Beta(1, D−1) law, Porter & Thomas 1956). Then CZ: one cz+haar1
 // gate followed by the final layer gives E[Z] = 32/81, derived by hand:
 //
 // Write Z = Tr[ρ^⊗2 M], M = ⊗_q (II + ZZ)/2 on the two copies. The final

@@ -13,7 +13,7 @@ import (
 // complete-graph reduction — must agree where they overlap, and one gate on
 // two of three qubits must give the product of the pair value and the
 // Haar-qubit value 2/3 (a Haar-random qubit has collision probability
-// 2/(2+1); design.md §3).
+// 2/(2+1); Dalzell, Hunter-Jones, Brandão 2022).
 func TestFinalLayerMethodsAgree(t *testing.T) {
 	cz, _ := circuits.Entangler("cz")
 	tr := EntanglerTransfer(&cz)

@@ -44,7 +44,7 @@ var (
 // F^(2) is the squared Frobenius norm of the averaged two-copy channel
 // E[U^⊗2 ⊗ Ū^⊗2]. A layered schedule (*circuits.Layered) evolves the 2^n×2^n
 // transfer matrix T of the support chain, one column per starting support,
-// gate by gate (design.md §5):
+// gate by gate (Pauli-support chain; Harrow & Low 2009):
 //
 //	F^(2) = 16^|U| · Σ_{A,B ⊆ V∖U} 3^(|A|−|B|) T(A→B)² = 8^|U| · Σ_{A,B ⊆ V} 3^(|A|−|B|) T(A→B)²,
 //

@@ -31,7 +31,7 @@ const (
 )
 
 // Gap is the spectral gap of the second-moment operator of the random-edge
-// schedule with Haar U(4) gates, M = mean_e M_e (design.md §5).
+// schedule with Haar U(4) gates, M = mean_e M_e (Brandão, Harrow, Horodecki 2016).
 type Gap struct {
 	// SecondEigenvalue is λ₂, the largest eigenvalue of M below 1 once the
 	// fixed space is removed. The eigenvalue 1 has multiplicity 2, spanned by
@@ -50,7 +50,7 @@ type Gap struct {
 }
 
 // SpectralGap returns the spectral gap of M = mean_e M_e for the random-edge
-// schedule on g with Haar U(4) gates (design.md §5):
+// schedule on g with Haar U(4) gates (Brandão, Harrow, Horodecki 2016, Commun. Math. Phys. 346, 397):
 //
 //	λ₂ = max(λ_diag, 1 − δ/|E|),  Δ = |E|(1 − λ₂).
 //

@@ -10,7 +10,7 @@ import (
 	"mixdepth/sim"
 )
 
-// The Pauli-support chain (design.md §5; Harrow & Low, "Random quantum
+// The Pauli-support chain (Harrow & Low, "Random quantum
 // circuits are approximate 2-designs", Commun. Math. Phys. 291, 257, 2009).
 // Expand ρ = U|0⟩⟨0|U† = D⁻¹ Σ_P c_P P over Pauli strings. For an ensemble
 // invariant under single-qubit unitaries only the diagonal terms E[c_P²] of
@@ -41,7 +41,7 @@ const (
 // gate with at most two 2^n vectors in memory. Depth 0 gives 1. Cancelling
 // ctx stops the work. It panics if g or s is nil.
 //
-// Readout, with T the touched qubits (Harrow & Low 2009; design.md §5):
+// Readout, with T the touched qubits (Harrow & Low 2009):
 //
 //	E[Z] = D⁻¹ Σ_A w(A) 3^−|A∩T|
 func PauliCollisionCurve(ctx context.Context, g *circuits.Graph, s circuits.Schedule, depths []int) ([]float64, error) {

@@ -25,8 +25,8 @@ func pauliTestSchedules(t *testing.T, g *circuits.Graph) map[circuits.ScheduleKi
 }
 
 // TestPauliOneGate: one Haar gate on two qubits leaves a Haar-random state,
-// whose collision probability is Z_H = 2/(D+1) = 2/5 for D = 4 (design.md
-// §3; the Haar moments E[p²] = 2/(D(D+1))). Any number of gates on the same
+// whose collision probability is Z_H = 2/(D+1) = 2/5 for D = 4 (Dalzell, Hunter-Jones, Brandão 2022;
+// the Haar moments E[p²] = 2/(D(D+1))). Any number of gates on the same
 // pair is again Haar. Depth 0 is |00⟩, Z = 1.
 func TestPauliOneGate(t *testing.T) {
 	g := denseGraph(t, "line:2")
@@ -125,7 +125,7 @@ func TestPauliVsDense(t *testing.T) {
 }
 
 // TestPauliDeepHaar: deep circuits are 2-designs, so E[Z] tends to the Haar
-// value 2/(D+1) (design.md §3; Harrow & Low 2009). The distance decays as
+// value 2/(D+1) (Dalzell, Hunter-Jones, Brandão 2022; Harrow & Low 2009). The distance decays as
 // λ₂^t: for the random-edge schedule on these graphs λ₂ ≤ 0.94 (the values
 // of SpectralGap, which gap_test.go checks against EigenSym), so after 1500
 // gates it is below 0.94^1500 ≈ 1e-40 times a prefactor of order D; a layer

@@ -41,12 +41,12 @@ func TestTransferDressedSymmetric(t *testing.T) {
 	}
 }
 
-// TestTransferFreshQubit checks the entry of fresh qubits (design.md §5):
+// TestTransferFreshQubit checks the entry of fresh qubits (an untouched qubit acts in later twirls like (I+S)/6, same Tr and Tr(·S)):
 // |0⟩⟨0|^⊗2 has Tr = Tr(·S) = 1, like (I+S)/6 (Tr I = 4, Tr S = 2 on one
 // qubit's two copies), so two fresh qubits enter a gate with readout-weighted
 // weight 1/9 on each of II, IS, SI, SS; a Haar gate keeps II and SS and
 // sends IS and SI to weight 4/5 each, total (1 + 4/5 + 4/5 + 1)/9 = 2/5,
-// which is Z_H = 2/(D+1) for D = 4 (design.md §3).
+// which is Z_H = 2/(D+1) for D = 4 (Dalzell, Hunter-Jones, Brandão 2022).
 func TestTransferFreshQubit(t *testing.T) {
 	m := HaarTransfer.withFresh(true, true)
 	var sum float64

@@ -9,7 +9,7 @@ import (
 )
 
 // TestCountGates checks the gate counts on circuits counted by hand. line:4
-// layered has class A = (0,1), (2,3) and class B = (1,2) (design.md §2), so
+// layered has class A = (0,1), (2,3) and class B = (1,2) (the line rule: i even, then i odd), so
 // depth 4 is A, B, A, B: 6 two-qubit gates. A gate set G·(u_a ⊗ u_b) with a
 // final layer adds 2 single-qubit gates per two-qubit gate and one per
 // qubit; Haar and Clifford gates are native two-qubit gates. The random-edge

@@ -131,7 +131,7 @@ func TestIdealSampler(t *testing.T) {
 
 // TestUniformAndDepolarizing: a uniform sampler (fidelity 0) scores 0 and
 // the global depolarizing model with fidelity f scores f·(D·Z − 1)
-// (Boixo et al. 2018; design.md §6), within 4 standard errors of the pooled
+// (Boixo et al. 2018, Nature Physics 14, 595), within 4 standard errors of the pooled
 // shots. Shots of different instances are pooled with equal counts, a
 // stratified sample whose pooled standard error is conservative.
 func TestUniformAndDepolarizing(t *testing.T) {
@@ -393,7 +393,7 @@ func TestLogXEB(t *testing.T) {
 }
 
 // TestRunDeterminism: an instance's shots depend only on (seed, instance,
-// depth), not on the worker count or the other instances run (design.md §2).
+// depth), not on the worker count or the other instances run (per-instance streams keyed by (seed, instance)).
 func TestRunDeterminism(t *testing.T) {
 	nz := Noise{Fidelity: 0.9, GateError: 0.02, Readout01: 0.01, Readout10: 0.02}
 	a := testConfig(t, "line:5", "haar", 6, 6, 300, nz)
@@ -489,7 +489,7 @@ func TestConfigValidate(t *testing.T) {
 
 // TestScoreByHand checks Score on values worked out by hand: D = 4,
 // p = (0.1, 0.4, 0.25) gives F_lin = 4·0.25 − 1 = 0 and, with Z = 0.3,
-// D·Z − 1 = 0.2 (definitions of design.md §6).
+// D·Z − 1 = 0.2 (F_lin = D·mean p(x) − 1, Boixo et al. 2018).
 func TestScoreByHand(t *testing.T) {
 	r := Score(2, []InstanceSamples{{Instance: 7, Collision: 0.3, PIdeal: []float64{0.1, 0.4, 0.25}}})
 	s := r.Instances[0]

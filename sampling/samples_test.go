@@ -11,7 +11,7 @@ import (
 )
 
 func TestBitstrings(t *testing.T) {
-	// x = Σ b_q 2^q with qubit 0 first (design.md §2): "1011" is 1 + 4 + 8.
+	// x = Σ b_q 2^q with qubit 0 first: "1011" is 1 + 4 + 8.
 	for _, c := range []struct {
 		s string
 		x uint64

@@ -24,7 +24,7 @@ type Config struct {
 	// Depths are the depths to report, ascending and positive.
 	Depths []int
 	// Instances lists the instance ids to simulate (for a whole run,
-	// 0..N−1; a shard runs a subset with the same streams).
+	// 0..N−1; a part runs a subset with the same streams).
 	Instances []int
 	Seed      uint64
 	// Workers bounds the goroutines; 0 or less means 1.

@@ -32,7 +32,7 @@ func config(t *testing.T, spec, schedule, gates string, depths []int, instances 
 }
 
 // TestRunMatchesExact: the Monte Carlo mean collision probability agrees with
-// the exact second-moment engine (an independent derivation, design.md §5)
+// the exact second-moment engine (an independent derivation: Hunter-Jones 2019, arXiv:1905.12053)
 // within 4 standard errors, on line, ring, grid and star graphs, for both
 // schedules and for an entangler gate set with its final single-qubit layer.
 // Four standard errors leave a false-alarm rate of about 6e-5 per comparison
@@ -79,7 +79,7 @@ func TestRunMatchesExact(t *testing.T) {
 // TestRunWorkersAndDepths: the records of an instance depend only on
 // (seed, instance) — not on the worker count — and reading out an extra
 // depth (which applies and undoes a final single-qubit layer) leaves later
-// depths unchanged up to rounding (design.md §2, seeds).
+// depths unchanged up to rounding (each instance draws only from the stream of (seed, i)).
 func TestRunWorkersAndDepths(t *testing.T) {
 	for _, gates := range []string{"haar", "cz+haar1"} {
 		a := config(t, "grid:2x3", "layered", gates, []int{2, 4, 7}, 10)

@@ -132,8 +132,8 @@ func partRun(t *testing.T, dir string, args []string, ext string) (string, []str
 
 // TestMergeParts: parts 0/3, 1/3 and 2/3 merged give the single run's rows
 // bit for bit and its metadata but the command line, in either format and
-// whatever order the parts are given in (the seed convention of design.md
-// section 2 makes each instance independent of the split).
+// whatever order the parts are given in (instance i draws only from the
+// stream of (seed, i), which makes each instance independent of the split).
 func TestMergeParts(t *testing.T) {
 	dir := t.TempDir()
 	single, parts := partRun(t, dir, smallRun, ".parquet")

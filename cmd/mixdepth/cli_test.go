@@ -29,7 +29,7 @@ func writeFile(t *testing.T, dir, name, text string) string {
 }
 
 // TestBadInput: every bad input exits with status 2 and one line on stderr
-// naming the problem, never a panic (the CLI's contract, design.md §7).
+// naming the problem, never a panic (the CLI's contract: exit status 2 and one line).
 func TestBadInput(t *testing.T) {
 	dir := t.TempDir()
 	selfLoop := writeFile(t, dir, "self.edges", "0 1\n1 1\n")
@@ -117,7 +117,7 @@ func scanJSONOf(t *testing.T, args ...string) scanJSON {
 }
 
 // TestScanDeterminism: results depend only on the seed and instance ids,
-// not on the worker count (design.md §2, seeds), and a layout file that
+// not on the worker count (each instance draws only from the stream of (seed, i)), and a layout file that
 // spells out a family's layers gives the family's results.
 func TestScanDeterminism(t *testing.T) {
 	base := []string{"--graph", "grid:2x3", "--depths", "1,3,6", "--instances", "24", "--seed", "5"}
@@ -126,7 +126,7 @@ func TestScanDeterminism(t *testing.T) {
 	if !equalRows(one.Rows, two.Rows) {
 		t.Errorf("--workers 1 and 2 differ:\n%+v\n%+v", one.Rows, two.Rows)
 	}
-	// grid:2x3 classes (design.md §2): horizontal c even, horizontal c odd,
+	// grid:2x3 classes (the grid rule): horizontal c even, horizontal c odd,
 	// vertical r even; qubit (r, c) = 3r + c.
 	layout := writeFile(t, t.TempDir(), "grid.json",
 		`{"qubits": 6, "layers": [[[0,1],[3,4]], [[1,2],[4,5]], [[0,3],[1,4],[2,5]]]}`)

@@ -5,13 +5,10 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"math"
 
 	"mixdepth/plots"
 	"mixdepth/runs"
-	"mixdepth/sampling"
 	"mixdepth/scan"
-	"mixdepth/sim"
 	"mixdepth/stats"
 	"mixdepth/tables"
 )
@@ -19,16 +16,6 @@ import (
 func init() {
 	register(command{name: "pt-plot", summary: "plot the output probabilities of a scan's circuits against the Porter–Thomas law", run: runPTPlot})
 }
-
-// ptRelTol is the relative difference allowed between a collision
-// probability re-simulated by pt-plot and the one its table records. The
-// gates are the same, applied in the same order; but scan reads out several
-// depths from one run, applying the final single-qubit layer (if any) for
-// each readout and undoing it, which perturbs the state by rounding, about
-// 1e-16 per readout, and the sums may split differently across goroutines.
-// 1e-12 is far above that and far below any real mismatch (another seed or
-// circuit changes Z in the first digits).
-const ptRelTol = 1e-12
 
 func runPTPlot(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	fs := newFlags("pt-plot", "mixdepth pt-plot FILE --out PLOT.png|PLOT.svg: FILE is a per-instance scan table.\n\nRebuilds the circuits of a per-instance scan table from its metadata, simulates some of its\ninstances again to one depth, and draws the histogram of the rescaled output probabilities D·p\nagainst the Porter–Thomas density e^(−x) and the exact finite-D Haar law. Each re-simulated\ninstance is checked against the collision probability the table records.",
@@ -67,10 +54,6 @@ func runPTPlot(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	if err != nil {
 		return usageError{fmt.Errorf("%s: %w", path, err)}
 	}
-	seed, err := metaUint(t.Meta, "seed")
-	if err != nil {
-		return usageError{fmt.Errorf("%s: %w", path, err)}
-	}
 	var records []scan.Record
 	if cmd, _ := t.Meta.Get("command"); cmd == "scan" {
 		if records, err = runs.ScanRecords(t); err != nil {
@@ -104,39 +87,23 @@ func runPTPlot(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		}
 	}
 
-	n := s.graph.Qubits
-	dim := 1 << n
-	st, err := sim.NewState(n, float64(len(ids))*float64(dim)*8)
-	if err != nil {
-		if errors.Is(err, sim.ErrTooLarge) {
-			return usageError{err}
-		}
+	rep, err := s.spec.Replay(ctx, ids, d, recorded, *workers)
+	var mismatch *runs.ReplayMismatchError
+	switch {
+	case errors.As(err, &mismatch):
+		return usageError{fmt.Errorf("%s: %w", path, err)}
+	case errors.Is(err, context.Canceled):
+		return errInterrupted
+	case err != nil:
 		return err
 	}
-	probs := make([][]float64, len(ids))
-	scratch := make([]float64, dim)
-	ks := make([]float64, len(ids))
-	checked := 0
-	for k, id := range ids {
-		if ctx.Err() != nil {
-			return errInterrupted
-		}
-		probs[k] = instanceProbabilities(st, s, seed, id, d, *workers, make([]float64, dim))
-		ks[k] = stats.KSHaar(probs[k], scratch)
-		if want, ok := recorded[id]; ok {
-			got := stats.Collision(probs[k])
-			if math.Abs(got-want) > ptRelTol*math.Abs(want) {
-				return badInput("%s: instance %d at depth %d simulates to Z = %.17g but the table records %.17g: its metadata does not rebuild its circuits (an edited table, or one from another mixdepth version)", path, id, d, got, want)
-			}
-			checked++
-		}
-	}
+	dim := 1 << s.graph.Qubits
 	title := fmt.Sprintf("%s, %s schedule, %s gates: depth %d (D = %d)", s.graph.Name, s.schedule.Kind(), s.ensemble.Name(), d, dim)
-	if err := plots.SavePorterThomasPlot(*out, probs, d, title); err != nil {
+	if err := plots.SavePorterThomasPlot(*out, rep.Probabilities, d, title); err != nil {
 		return err
 	}
 	fmt.Fprintf(stdout, "Porter–Thomas plot of %d instance(s) × %d outcomes at depth %d: mean KS distance to Beta(1, D−1) %.4f; %d instance(s) matched the table's collision probability → %s\n",
-		len(ids), dim, d, stats.Summarize(ks).Mean, checked, *out)
+		len(ids), dim, d, stats.Summarize(rep.KS).Mean, rep.Matched, *out)
 	return nil
 }
 
@@ -149,13 +116,6 @@ func defaultPTDepth(meta tables.Meta, qubits int, records []scan.Record) int {
 		return sum.Depth
 	}
 	return sum.Rows[len(sum.Rows)-1].Depth
-}
-
-// instanceProbabilities simulates instance id of the run described by s and
-// seed to the given depth as scan does, final single-qubit layer included
-// (sampling.Build), and returns the output probabilities in dst.
-func instanceProbabilities(st *sim.State, s *setup, seed uint64, id, depth, workers int, dst []float64) []float64 {
-	return sampling.Build(s.schedule, s.ensemble, s.graph.Qubits, seed, id, depth).Probabilities(st, dst, workers)
 }
 
 // tableInstances returns the finished instance ids of a table

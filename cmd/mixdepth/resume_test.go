@@ -17,7 +17,7 @@ import (
 // TestInterruptAndResume: a scan stopped by a signal (a cancelled context)
 // exits 130 and leaves a valid table marked partial that holds whole
 // instances only; --resume with the same flags completes it to exactly the
-// rows of an uninterrupted run (per-instance streams, design.md §2).
+// rows of an uninterrupted run (per-instance streams keyed by (seed, instance)).
 func TestInterruptAndResume(t *testing.T) {
 	dir := t.TempDir()
 	flags := []string{"scan", "--graph", "grid:3x4", "--depths", "2,6,12", "--instances", "600", "--seed", "9"}

@@ -55,7 +55,7 @@ var smallSample = []string{"sample", "--graph", "line:5", "--depth", "8", "--ins
 
 // TestSampleTable checks the columns, rows and metadata of a sample table,
 // and that bitstring, outcome and p_ideal agree with each other
-// (x = Σ b_q 2^q, qubit 0 first: design.md §2).
+// (x = Σ b_q 2^q, qubit 0 first).
 func TestSampleTable(t *testing.T) {
 	dir := t.TempDir()
 	out, circ := filepath.Join(dir, "s.parquet"), filepath.Join(dir, "c.json")
@@ -223,10 +223,10 @@ func TestScoreWarnsWithoutAnticoncentration(t *testing.T) {
 	}
 }
 
-// TestSampleShards: the shards of a run hold the run's rows (the same
-// per-instance streams, design.md §2) and record the shard and the full
-// run's parameters.
-func TestSampleShards(t *testing.T) {
+// TestSampleParts: the parts of a run hold the run's rows (the same
+// per-instance streams keyed by (seed, instance)) and record the part and
+// the full run's parameters.
+func TestSampleParts(t *testing.T) {
 	dir := t.TempDir()
 	single := filepath.Join(dir, "all.arrow")
 	sampleOK(t, append(smallSample, "--out", single)...)
@@ -243,23 +243,23 @@ func TestSampleShards(t *testing.T) {
 		bits, _ := tab.Strings("bitstring")
 		pi, _ := tab.Float64s("p_ideal")
 		if tab.Len() != 600 {
-			t.Fatalf("shard %d/2: %d rows, want 600", k, tab.Len())
+			t.Fatalf("part %d/2: %d rows, want 600", k, tab.Len())
 		}
 		for i := range inst {
 			j := int(inst[i])*300 + int(shot[i])
 			if int(inst[i])%2 != k || bits[i] != allBits[j] || pi[i] != allP[j] {
-				t.Fatalf("shard %d/2 row %d (instance %d shot %d) differs from the whole run", k, i, inst[i], shot[i])
+				t.Fatalf("part %d/2 row %d (instance %d shot %d) differs from the whole run", k, i, inst[i], shot[i])
 			}
 		}
 		wantDone := map[int]string{0: "0,2", 1: "1,3"}[k]
 		for key, v := range map[string]string{"part": strconv.Itoa(k) + "/2", "instances": "4", "instances_done": wantDone, "partial": "false"} {
 			if got, _ := tab.Meta.Get(key); got != v {
-				t.Errorf("shard %d/2: metadata %s = %q, want %q", k, key, got, v)
+				t.Errorf("part %d/2: metadata %s = %q, want %q", k, key, got, v)
 			}
 		}
-		// Each shard scores with its own circuit file.
+		// Each part scores with its own circuit file.
 		if doc := scoreDoc(t, p, "--circuits", cp); len(doc.Instances) != 2 {
-			t.Errorf("shard %d/2 scored %d instances", k, len(doc.Instances))
+			t.Errorf("part %d/2 scored %d instances", k, len(doc.Instances))
 		}
 	}
 }
@@ -332,7 +332,7 @@ func TestSampleDemoChip(t *testing.T) {
 // TestPlan checks plan's predicted fidelity against the digital error model
 // (Arute et al. 2019, Nature 574, 505: the product of the gate and readout
 // fidelities) on gate counts made by hand, and its sample counts against
-// N = z²(1 + 2f − f²)/f² and N = (1 + 2f − f²)/(r·f)² (design.md §6).
+// N = z²(1 + 2f − f²)/f² and N = (1 + 2f − f²)/(r·f)² (linear XEB under global depolarization, per-sample variance 1 + 2f − f²).
 func TestPlan(t *testing.T) {
 	plan := func(args ...string) planJSON {
 		t.Helper()
@@ -409,7 +409,7 @@ func TestSampleScorePlanBadInput(t *testing.T) {
 		{"readout range", []string{"sample", "--graph", "line:4", "--readout-error", "2"}, []string{"--readout-error", "[0, 1]"}},
 		{"trajectories", []string{"sample", "--graph", "line:4", "--trajectories", "0"}, []string{"--trajectories 0"}},
 		{"part", []string{"sample", "--graph", "line:4", "--part", "2/2"}, []string{"--part"}},
-		{"empty shard", []string{"sample", "--graph", "line:4", "--instances", "2", "--part", "3/4"}, []string{"selects no instance"}},
+		{"empty part", []string{"sample", "--graph", "line:4", "--instances", "2", "--part", "3/4"}, []string{"selects no instance"}},
 		{"circuits name", []string{"sample", "--graph", "line:4", "--circuits", filepath.Join(dir, "c.txt")}, []string{"--circuits", ".json"}},
 		{"circuits dir", []string{"sample", "--graph", "line:4", "--circuits", filepath.Join(dir, "no", "c.json")}, []string{"--circuits"}},
 		{"out format", []string{"sample", "--graph", "line:4", "--out", filepath.Join(dir, "t.csv")}, []string{".arrow or .parquet"}},

@@ -48,11 +48,6 @@ func TestScriptsWithMixdepth(t *testing.T) {
 		t.Skip("local-sweep.sh needs bash 5.1 or later")
 	}
 	bin := buildMixdepth(t)
-	// Until the branch that renames --shard to --part is merged, the
-	// scripts cannot run against this binary; the test then runs on its own.
-	if help, _ := exec.Command(bin, "scan", "--help").CombinedOutput(); strings.Contains(string(help), "--shard ") {
-		t.Skip("this mixdepth still takes --shard K/N instead of the --part K/N that the scripts pass")
-	}
 	dir := t.TempDir()
 	// sweep runs SCRIPT ARGS... in dir with MIXDEPTH=bin and more environment
 	// settings, and returns its exit status.

@@ -11,6 +11,7 @@ import (
 	"mixdepth/circuits"
 	"mixdepth/moments"
 	"mixdepth/scan"
+	"mixdepth/stats"
 )
 
 // lineScan runs a small real scan (line:4, Haar U(4) gates) and summarises it.
@@ -31,7 +32,7 @@ func lineScan(t *testing.T, depths []int, instances int) *scan.Curve {
 	if err != nil {
 		t.Fatal(err)
 	}
-	return scan.Estimate(4, recs, 0.95, 0.05)
+	return scan.Estimate(4, recs, stats.DefaultCriteria(0.05, 0.95))
 }
 
 // seriesOf is the DepthSeries of a scan's curve, with the exact ratios (or

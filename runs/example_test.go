@@ -10,6 +10,7 @@ import (
 
 	"mixdepth/runs"
 	"mixdepth/scan"
+	"mixdepth/stats"
 )
 
 // A run of 40 instances split into two parts, each simulated and written to
@@ -73,7 +74,7 @@ func ExampleSet_Merge() {
 		same = same && records[i] == whole[i]
 	}
 	fmt.Println("records equal to the whole run:", same)
-	curve := scan.Estimate(spec.Graph.Qubits, records, 0.95, 0.05)
+	curve := scan.Estimate(spec.Graph.Qubits, records, stats.DefaultCriteria(0.05, 0.95))
 	for _, r := range curve.Rows {
 		fmt.Printf("depth %d: R = %.3f\n", r.Depth, r.Ratio)
 	}

@@ -14,6 +14,7 @@ import (
 	"mixdepth/circuits"
 	"mixdepth/runs"
 	"mixdepth/scan"
+	"mixdepth/stats"
 	"mixdepth/tables"
 )
 
@@ -260,7 +261,7 @@ func TestMergeAndSummarize(t *testing.T) {
 	if !reflect.DeepEqual(recs, whole) {
 		t.Fatal("records of the set differ from the whole run's")
 	}
-	if a, b := scan.Estimate(6, recs, 0.95, 0.05), scan.Estimate(6, whole, 0.95, 0.05); !reflect.DeepEqual(a, b) {
+	if a, b := scan.Estimate(6, recs, stats.DefaultCriteria(0.05, 0.95)), scan.Estimate(6, whole, stats.DefaultCriteria(0.05, 0.95)); !reflect.DeepEqual(a, b) {
 		t.Errorf("curves differ: %+v vs %+v", a, b)
 	}
 	merged, err := set.Merge()

@@ -3,11 +3,14 @@ package runs
 import (
 	"errors"
 	"fmt"
+	"maps"
+	"math"
 	"slices"
 	"strconv"
 	"strings"
 
 	"mixdepth/scan"
+	"mixdepth/stats"
 	"mixdepth/tables"
 )
 
@@ -18,15 +21,19 @@ type ScanRun struct {
 	Depths          []int
 	Instances       int
 	Eps, Confidence float64
-	Part            Part
-	Precision       scan.Precision
+	// Rule and PTMargin are the verdict's criteria (stats.Criteria); Rule
+	// "" is recorded as stats.RuleBoth.
+	Rule      stats.Rule
+	PTMargin  float64
+	Part      Part
+	Precision scan.Precision
 	// Exact is set when the tables carry the exact E[Z] column.
 	Exact bool
 }
 
 // Meta returns the table metadata of the scan: Spec.Meta followed by
-// command (scan), depths, instances, eps, confidence, part, precision and
-// exact. The keys partial and instances_done are added by SetDone once the
+// command (scan), depths, instances, eps, confidence, rule, pt_margin,
+// part, precision and exact. The keys partial and instances_done are added by SetDone once the
 // instances are known.
 func (r *ScanRun) Meta(commandLine string) tables.Meta {
 	m := r.Spec.Meta(commandLine)
@@ -35,6 +42,12 @@ func (r *ScanRun) Meta(commandLine string) tables.Meta {
 	m.Set("instances", strconv.Itoa(r.Instances))
 	m.Set("eps", strconv.FormatFloat(r.Eps, 'g', -1, 64))
 	m.Set("confidence", strconv.FormatFloat(r.Confidence, 'g', -1, 64))
+	rule := r.Rule
+	if rule == "" {
+		rule = stats.RuleBoth
+	}
+	m.Set("rule", string(rule))
+	m.Set("pt_margin", strconv.FormatFloat(r.PTMargin, 'g', -1, 64))
 	m.Set("part", r.Part.String())
 	m.Set("precision", string(r.Precision))
 	m.Set("exact", strconv.FormatBool(r.Exact))
@@ -222,4 +235,32 @@ func Resume(path string, want tables.Meta, ids []int) (previous []scan.Record, t
 		}
 	}
 	return recs, todo, nil
+}
+
+// ExactRatios returns the exact E[Z]/Z_H of each depth, in ascending depth
+// order, from the collision_exact column that scan --exact writes, or nil
+// when the tables carry none (so a plot of the merged tables shows what scan
+// --plot showed). qubits gives Z_H = 2/(D+1).
+func (s *Set) ExactRatios(qubits int) []float64 {
+	byDepth := map[int]float64{}
+	for _, m := range s.Members {
+		z, err := m.Table.Float64s(scanExactField.Name)
+		if err != nil {
+			return nil
+		}
+		d, err := m.Table.Int64s("depth")
+		if err != nil {
+			return nil
+		}
+		for i := range z {
+			byDepth[int(d[i])] = z[i]
+		}
+	}
+	depths := slices.Sorted(maps.Keys(byDepth))
+	zh := stats.HaarCollision(math.Ldexp(1, qubits))
+	out := make([]float64, len(depths))
+	for i, d := range depths {
+		out[i] = byDepth[d] / zh
+	}
+	return out
 }

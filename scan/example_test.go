@@ -6,6 +6,7 @@ import (
 
 	"mixdepth/circuits"
 	"mixdepth/scan"
+	"mixdepth/stats"
 )
 
 // ExampleRun scans a six-qubit line with Haar gates: 200 seeded instances,
@@ -27,16 +28,16 @@ func ExampleRun() {
 		fmt.Println(err)
 		return
 	}
-	curve := scan.Estimate(g.Qubits, records, 0.95, 0.05)
+	curve := scan.Estimate(g.Qubits, records, stats.DefaultCriteria(0.05, 0.95))
 	for _, row := range curve.Rows {
-		fmt.Printf("depth %d (%2d gates): R = %.3f, 95%% interval [%.3f, %.3f], spread %v\n",
-			row.Depth, row.GateCount, row.Ratio, row.Lower, row.Upper, row.Spread)
+		fmt.Printf("depth %d (%2d gates): R = %.3f, 95%% interval [%.3f, %.3f], PT distance %.3f: %s\n",
+			row.Depth, row.GateCount, row.Ratio, row.Lower, row.Upper, row.KSMean, row.Verdict)
 	}
-	fmt.Println("anti-concentration depth:", curve.Depth, curve.Found)
+	fmt.Printf("Haar PT distance %.3f; recommended depth: %d %v\n", curve.PTBaseline.Mean, curve.Depth, curve.Found)
 	// Output:
-	// depth 2 ( 5 gates): R = 1.627, 95% interval [1.537, 1.717], spread false
-	// depth 4 (10 gates): R = 1.300, 95% interval [1.252, 1.347], spread false
-	// depth 8 (20 gates): R = 1.047, 95% interval [1.027, 1.068], spread false
-	// depth 16 (40 gates): R = 1.002, 95% interval [0.984, 1.020], spread true
-	// anti-concentration depth: 16 true
+	// depth 2 ( 5 gates): R = 1.627, 95% interval [1.545, 1.728], PT distance 0.192: shallow
+	// depth 4 (10 gates): R = 1.300, 95% interval [1.254, 1.354], PT distance 0.133: shallow
+	// depth 8 (20 gates): R = 1.047, 95% interval [1.029, 1.071], PT distance 0.095: shallow
+	// depth 16 (40 gates): R = 1.002, 95% interval [0.986, 1.023], PT distance 0.089: spread
+	// Haar PT distance 0.089; recommended depth: 16 true
 }

@@ -356,32 +356,49 @@ type Row struct {
 	Depth     int
 	GateCount int
 	Collision stats.Summary
-	// Ratio is mean(Z)/Z_H with its confidence interval [Lower, Upper].
+	// Ratio is mean(Z)/Z_H; [Lower, Upper] is its two-sided BCa bootstrap
+	// interval over instances (stats.MeanIntervalBCa). HasInterval is false,
+	// and the bounds ±Inf, with fewer than stats.MinIntervalValues
+	// instances: "too few instances for an interval".
 	Ratio, Lower, Upper float64
-	// KSMean is the mean Porter–Thomas (Kolmogorov–Smirnov) distance.
+	HasInterval         bool
+	// KSMean is the mean Porter–Thomas (Kolmogorov–Smirnov) distance, to be
+	// read against Curve.PTBaseline.
 	KSMean float64
-	// Spread is true when Upper ≤ 1 + eps: the depth meets the
-	// anti-concentration threshold ("spread" everywhere: code, JSON, tables
-	// and the human report).
-	Spread bool
+	// Verdict is the depth's state under the curve's criteria; Spread is
+	// Verdict == stats.VerdictSpread ("spread" everywhere: code, JSON,
+	// tables and the human report).
+	Verdict stats.Verdict
+	Spread  bool
 }
 
 // Curve is the per-depth result of a scan: one Row per depth.
 type Curve struct {
 	Qubits        int
 	HaarCollision float64
-	Rows          []Row
-	// Depth is the anti-concentration depth: the smallest depth whose upper
-	// confidence bound of R is ≤ 1 + eps; Found is false when none is.
+	// PTBaseline is the Porter–Thomas distance of Haar-random states of the
+	// same dimension (stats.HaarPTBaseline), the reference of the second
+	// criterion.
+	PTBaseline stats.PTBaseline
+	Criteria   stats.Criteria
+	Rows       []Row
+	// Depth is the recommended depth: the first depth from which every later
+	// requested depth is spread (stats.RecommendedDepth); Found is false
+	// when the last depth is not spread.
 	Depth int
 	Found bool
 }
 
 // Estimate groups records by depth and summarises each group, in
-// ascending depth order, at confidence level conf with threshold eps.
-func Estimate(qubits int, records []Record, conf, eps float64) *Curve {
+// ascending depth order, and judges each depth with the criteria c. It
+// panics if c is invalid (stats.Criteria.Check) or qubits < 1.
+func Estimate(qubits int, records []Record, c stats.Criteria) *Curve {
+	c.Check()
 	dim := math.Ldexp(1, qubits)
-	s := &Curve{Qubits: qubits, HaarCollision: stats.HaarCollision(dim)}
+	s := &Curve{Qubits: qubits, HaarCollision: stats.HaarCollision(dim), Criteria: c}
+	if c.Rule != stats.RuleCollision {
+		s.PTBaseline = stats.HaarPTBaseline(dim)
+	}
 	byDepth := map[int][]Record{}
 	for _, r := range records {
 		byDepth[r.Depth] = append(byDepth[r.Depth], r)
@@ -401,15 +418,18 @@ func Estimate(qubits int, records []Record, conf, eps float64) *Curve {
 		}
 	}
 	depths := make([]int, len(s.Rows))
-	upper := make([]float64, len(s.Rows))
+	verdicts := make([]stats.Verdict, len(s.Rows))
 	for k := range s.Rows {
 		row := &s.Rows[k]
 		row.Collision = stats.Summarize(zs[k])
-		row.Ratio, row.Lower, row.Upper = stats.RatioInterval(row.Collision, s.HaarCollision, conf)
+		row.Ratio = row.Collision.Mean / s.HaarCollision
+		lo, hi, ok := stats.MeanIntervalBCa(zs[k], c.Confidence)
+		row.Lower, row.Upper, row.HasInterval = lo/s.HaarCollision, hi/s.HaarCollision, ok
 		row.KSMean = stats.Summarize(ks[k]).Mean
-		row.Spread = row.Upper <= 1+eps
-		depths[k], upper[k] = row.Depth, row.Upper
+		row.Verdict = c.Judge(row.Lower, row.Upper, ok, row.KSMean, s.PTBaseline.Mean)
+		row.Spread = row.Verdict == stats.VerdictSpread
+		depths[k], verdicts[k] = row.Depth, row.Verdict
 	}
-	s.Depth, s.Found = stats.AnticoncentrationDepth(depths, upper, eps)
+	s.Depth, s.Found = stats.RecommendedDepth(depths, verdicts)
 	return s
 }

@@ -8,6 +8,7 @@ import (
 
 	"mixdepth/circuits"
 	"mixdepth/moments"
+	"mixdepth/stats"
 )
 
 func config(t *testing.T, spec, schedule, gates string, depths []int, instances int) *Config {
@@ -60,7 +61,7 @@ func TestRunMatchesExact(t *testing.T) {
 			if err != nil || len(done) != 3000 {
 				t.Fatalf("Run: %v (%d done)", err, len(done))
 			}
-			sum := Estimate(cfg.Graph.Qubits, recs, 0.95, 0.05)
+			sum := Estimate(cfg.Graph.Qubits, recs, stats.DefaultCriteria(0.05, 0.95))
 			exact, err := moments.Exact(context.Background(), cfg.Graph, cfg.Schedule, cfg.Ensemble, c.depths, moments.ExactWorkers(1), moments.ExactCurveOnly())
 			if err != nil {
 				t.Fatal(err)
@@ -136,22 +137,30 @@ func TestRunCancelled(t *testing.T) {
 
 // TestEstimate checks the per-depth summary on hand-made records.
 func TestEstimate(t *testing.T) {
-	// Two qubits: Z_H = 2/5. Depth 3 listed before depth 1 must come out sorted.
-	recs := []Record{
-		{Depth: 3, GateCount: 3, Collision: 0.40, KS: 0.1},
-		{Depth: 3, GateCount: 3, Collision: 0.40, KS: 0.3},
-		{Depth: 1, GateCount: 1, Collision: 0.5, KS: 0.2},
-		{Depth: 1, GateCount: 1, Collision: 0.7, KS: 0.4},
+	// Two qubits: Z_H = 2/5. Depth 3 listed before depth 1 must come out
+	// sorted; depth 2 has too few instances for an interval.
+	var recs []Record
+	for i := range stats.MinIntervalValues {
+		recs = append(recs, Record{Depth: 3, GateCount: 3, Instance: i, Collision: 0.40, KS: 0.1})
 	}
-	s := Estimate(2, recs, 0.95, 0.05)
-	if s.HaarCollision != 0.4 || len(s.Rows) != 2 || s.Rows[0].Depth != 1 || s.Rows[1].Depth != 3 {
+	recs = append(recs, Record{Depth: 2, GateCount: 2, Collision: 0.40, KS: 0.1}, Record{Depth: 2, GateCount: 2, Instance: 1, Collision: 0.40, KS: 0.1})
+	for i := range stats.MinIntervalValues {
+		recs = append(recs, Record{Depth: 1, GateCount: 1, Instance: i, Collision: 0.5 + 0.2*float64(i%2), KS: 0.2 + 0.2*float64(i%2)})
+	}
+	s := Estimate(2, recs, stats.DefaultCriteria(0.05, 0.95))
+	if s.HaarCollision != 0.4 || len(s.Rows) != 3 || s.Rows[0].Depth != 1 || s.Rows[2].Depth != 3 {
 		t.Fatalf("summary %+v", s)
 	}
-	if r := s.Rows[0]; math.Abs(r.Ratio-1.5) > 1e-15 || math.Abs(r.KSMean-0.3) > 1e-15 || r.Spread {
+	if r := s.Rows[0]; math.Abs(r.Ratio-1.5) > 1e-15 || math.Abs(r.KSMean-0.3) > 1e-15 || r.Spread || r.Verdict != stats.VerdictShallow {
 		t.Errorf("depth 1 row %+v", r)
 	}
-	// Depth 3: zero spread, so the interval collapses onto R = 1 ≤ 1+eps.
-	if r := s.Rows[1]; r.Upper != 1 || !r.Spread || !s.Found || s.Depth != 3 {
-		t.Errorf("depth 3 row %+v, found %v depth %d", r, s.Found, s.Depth)
+	if r := s.Rows[1]; r.HasInterval || r.Verdict != stats.VerdictUnresolved {
+		t.Errorf("depth 2 row %+v", r)
+	}
+	// Depth 3: zero spread, so the interval collapses onto R = 1, and the
+	// PT distance 0.1 is below the baseline of D = 4 (about 0.31). The mean
+	// of ten equal values is exact to rounding (1e-15).
+	if r := s.Rows[2]; math.Abs(r.Upper-1) > 1e-15 || math.Abs(r.Lower-1) > 1e-15 || !r.Spread || !s.Found || s.Depth != 3 {
+		t.Errorf("depth 3 row %+v, found %v depth %d, baseline %+v", r, s.Found, s.Depth, s.PTBaseline)
 	}
 }

@@ -6,7 +6,8 @@ import "math"
 // bound of R = E[Z]/Z_H is at most 1+eps, the anti-concentration rule of
 // this project (Z_H = 2/(D+1) the Haar collision probability). depths must be
 // strictly ascending and upper[i] is the bound at depths[i]; a NaN bound never
-// qualifies. It does not ask later depths to stay below the threshold. If no
+// qualifies. It does not ask later depths to stay below the threshold (for
+// the verdict of a scan, which does, see RecommendedDepth). If no
 // depth qualifies it returns 0, false. It panics if the lengths differ, the
 // depths are not strictly ascending, or eps is negative or NaN.
 func AnticoncentrationDepth(depths []int, upper []float64, eps float64) (depth int, ok bool) {
@@ -16,11 +17,7 @@ func AnticoncentrationDepth(depths []int, upper []float64, eps float64) (depth i
 	if !(eps >= 0) {
 		panic("stats: eps must be non-negative")
 	}
-	for i := 1; i < len(depths); i++ {
-		if depths[i] <= depths[i-1] {
-			panic("stats: depths not strictly ascending")
-		}
-	}
+	checkAscending(depths)
 	for i, u := range upper {
 		if u <= 1+eps {
 			return depths[i], true

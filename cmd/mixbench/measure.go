@@ -18,6 +18,7 @@ import (
 	"mixdepth/moments"
 	"mixdepth/scan"
 	"mixdepth/sim"
+	"mixdepth/stats"
 )
 
 // benchConfig holds the settings of a full measurement run (see the flags
@@ -398,7 +399,7 @@ func scanBench(ctx context.Context, rows, cols, depth, instances, workers int) (
 		return nil, err
 	}
 	secs := time.Since(start).Seconds()
-	sum := scan.Estimate(cfg.Graph.Qubits, recs, 0.95, 0.05)
+	sum := scan.Estimate(cfg.Graph.Qubits, recs, stats.Criteria{Eps: 0.05, Confidence: 0.95, Rule: stats.RuleCollision})
 	return &scanResult{Graph: spec, Depths: depth, Instances: instances, GoSeconds: secs,
 		GoRatio: sum.Rows[len(sum.Rows)-1].Ratio}, nil
 }

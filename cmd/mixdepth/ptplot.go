@@ -107,11 +107,10 @@ func runPTPlot(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	return nil
 }
 
-// defaultPTDepth is the anti-concentration depth of the table's summary at
-// its own eps and confidence, or its deepest depth when none qualifies.
+// defaultPTDepth is the recommended depth of the table's summary under
+// its own criteria, or its deepest depth when there is none.
 func defaultPTDepth(meta tables.Meta, qubits int, records []scan.Record) int {
-	eps, conf := metaFloatOr(meta, "eps", fallbackEps), metaFloatOr(meta, "confidence", fallbackConfidence)
-	sum := scan.Estimate(qubits, records, conf, eps)
+	sum := scan.Estimate(qubits, records, recordedCriteria(meta))
 	if sum.Found {
 		return sum.Depth
 	}

@@ -11,12 +11,14 @@ import (
 	"strings"
 
 	"github.com/schollz/progressbar/v3"
+	"github.com/spf13/pflag"
 
 	"mixdepth/circuits"
 	"mixdepth/moments"
 	"mixdepth/plots"
 	"mixdepth/runs"
 	"mixdepth/scan"
+	"mixdepth/stats"
 	"mixdepth/tables"
 )
 
@@ -27,13 +29,18 @@ func init() {
 // scanJSON is the --json document of scan. Field names are an interface.
 type scanJSON struct {
 	runs.Header
-	HaarCollision          float64       `json:"haar_collision"`
-	Seed                   uint64        `json:"seed"`
-	Instances              int           `json:"instances"`
-	Eps                    float64       `json:"eps"`
-	Confidence             float64       `json:"confidence"`
-	AnticoncentrationDepth *int          `json:"anticoncentration_depth"`
-	Rows                   []scanJSONRow `json:"rows"`
+	HaarCollision float64 `json:"haar_collision"`
+	// PTHaar is the mean Porter–Thomas distance of Haar-random states of the
+	// same dimension (stats.HaarPTBaseline); null under the collision rule.
+	PTHaar           *float64      `json:"pt_ks_haar"`
+	Seed             uint64        `json:"seed"`
+	Instances        int           `json:"instances"`
+	Eps              float64       `json:"eps"`
+	Confidence       float64       `json:"confidence"`
+	Rule             stats.Rule    `json:"rule"`
+	PTMargin         float64       `json:"pt_margin"`
+	RecommendedDepth *int          `json:"recommended_depth"`
+	Rows             []scanJSONRow `json:"rows"`
 }
 
 type scanJSONRow struct {
@@ -45,7 +52,9 @@ type scanJSONRow struct {
 	RatioLower     *float64 `json:"ratio_lower"`
 	RatioUpper     *float64 `json:"ratio_upper"`
 	PTKSMean       float64  `json:"pt_ks_mean"`
-	Spread         bool     `json:"spread"`
+	// Verdict is one of the stats.Verdict words; Spread is verdict = spread.
+	Verdict stats.Verdict `json:"verdict"`
+	Spread  bool          `json:"spread"`
 	// CollisionExact and ExactDeviation are set with --exact: the exact
 	// E[Z] and (mean − exact)/stderr.
 	CollisionExact *float64 `json:"collision_exact,omitempty"`
@@ -59,8 +68,7 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	cf.add(fs)
 	depthSpec := fs.String("depths", "", "depths to report: 2,4,8 or FROM:TO or FROM:TO:STEP (default 1:20; demo 2:24:2)")
 	instances := fs.Int("instances", 200, "number of random circuit instances")
-	eps := fs.Float64("eps", 0.05, "anti-concentration threshold: a depth is spread when the upper bound of R ≤ 1+eps")
-	conf := fs.Float64("confidence", 0.95, "confidence level of the interval for R")
+	vf := addVerdictFlags(fs)
 	workers := fs.Int("workers", defaultWorkers(), "worker goroutines")
 	out := fs.String("out", "", "write the per-instance table to FILE.arrow or FILE.parquet")
 	partFlag := fs.String("part", "", partFlagHelp)
@@ -95,12 +103,11 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if *instances*len(depths) > 100_000_000 {
 		return badInput("--instances %d × %d depths: more than 10^8 per-instance records to hold; use fewer, or parts (--part)", *instances, len(depths))
 	}
-	if err := checkUnit("eps", *eps); err != nil {
+	crit, err := vf.criteria()
+	if err != nil {
 		return err
 	}
-	if err := checkUnit("confidence", *conf); err != nil {
-		return err
-	}
+	eps, conf := &crit.Eps, &crit.Confidence
 	if *workers <= 0 {
 		return badInput("--workers %d: must be at least 1", *workers)
 	}
@@ -115,7 +122,7 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		*out = *resume
 	}
 
-	sr := &runs.ScanRun{Spec: s.spec, Depths: depths, Instances: *instances, Eps: *eps, Confidence: *conf,
+	sr := &runs.ScanRun{Spec: s.spec, Depths: depths, Instances: *instances, Eps: *eps, Confidence: *conf, Rule: crit.Rule, PTMargin: crit.PTMargin,
 		Part: part, Precision: scan.Precision(*precision), Exact: *withExact}
 	meta := sr.Meta(commandLine())
 	fields := runs.ScanFields(*withExact)
@@ -188,7 +195,7 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		fmt.Fprintln(stderr, msg)
 		return errInterrupted
 	}
-	sum := scan.Estimate(s.graph.Qubits, records, *conf, *eps)
+	sum := scan.Estimate(s.graph.Qubits, records, crit)
 	for _, r := range sum.Rows {
 		if r.Collision.N > 1 && r.Collision.StdDev == 0 {
 			fmt.Fprintf(stderr, "mixdepth: warning: all %d instances have the same collision probability at depth %d: the gate set draws too few distinct circuits to estimate an ensemble average; its interval is not meaningful\n", r.Collision.N, r.Depth)
@@ -200,13 +207,12 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		if exact != nil {
 			curve = exact.Ratio
 		}
-		if err := plots.SaveDepthPlot(*plot, curveSeries(sum, curve), *eps, plots.WithConfidence(*conf), plots.WithDepthUnit(depthUnit(s)),
-			plots.WithTitle(s.graph.Name+", "+s.ensemble.Name()+" gates")); err != nil {
+		if err := saveScanPlot(*plot, s, sum, curve); err != nil {
 			return err
 		}
 	}
 	if *asJSON {
-		doc := scanDocument(s, cf.seed, len(doneAll), *eps, *conf, sum)
+		doc := scanDocument(s, cf.seed, len(doneAll), sum)
 		if exact != nil {
 			for k := range doc.Rows {
 				z, dev := exact.Collision[k], (sum.Rows[k].Collision.Mean-exact.Collision[k])/sum.Rows[k].Collision.StdErr
@@ -215,7 +221,7 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		}
 		return writeJSON(stdout, doc)
 	}
-	printScan(stdout, s, &cf, instancesNote(len(doneAll), part, *instances), *eps, *conf, sum)
+	printScan(stdout, s, &cf, instancesNote(len(doneAll), part, *instances), sum)
 	if exact != nil {
 		printExactCheck(stdout, sum, exact)
 	}
@@ -228,6 +234,13 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	return nil
 }
 
+// saveScanPlot draws the depth plot of a scan's curve (scan --plot and
+// summarize --plot), with the exact ratios when exact is not nil.
+func saveScanPlot(path string, s *setup, sum *scan.Curve, exact []float64) error {
+	return plots.SaveDepthPlot(path, curveSeries(sum, exact), sum.Criteria.Eps, plots.WithConfidence(sum.Criteria.Confidence),
+		plots.WithDepthUnit(depthUnit(s)), plots.WithTitle(s.graph.Name+", "+s.ensemble.Name()+" gates"))
+}
+
 // depthUnit names what a depth counts, for plot axes.
 func depthUnit(s *setup) string {
 	if s.schedule.Kind() == circuits.KindRandomEdge {
@@ -237,18 +250,24 @@ func depthUnit(s *setup) string {
 }
 
 // scanDocument assembles the --json document of a scan summary.
-func scanDocument(s *setup, seed uint64, instances int, eps, conf float64, sum *scan.Curve) scanJSON {
+func scanDocument(s *setup, seed uint64, instances int, sum *scan.Curve) scanJSON {
+	c := sum.Criteria
 	doc := scanJSON{
-		Header: s.spec.Header(), HaarCollision: sum.HaarCollision, Seed: seed, Instances: instances, Eps: eps, Confidence: conf,
+		Header: s.spec.Header(), HaarCollision: sum.HaarCollision, Seed: seed, Instances: instances,
+		Eps: c.Eps, Confidence: c.Confidence, Rule: c.Rule, PTMargin: c.PTMargin,
+	}
+	if c.Rule != stats.RuleCollision {
+		doc.PTHaar = &sum.PTBaseline.Mean
 	}
 	if sum.Found {
 		d := sum.Depth
-		doc.AnticoncentrationDepth = &d
+		doc.RecommendedDepth = &d
 	}
 	for _, r := range sum.Rows {
 		doc.Rows = append(doc.Rows, scanJSONRow{
 			Depth: r.Depth, GateCount: r.GateCount, CollisionMean: r.Collision.Mean, CollisionStder: finiteOrNull(r.Collision.StdErr),
-			CollisionRatio: r.Ratio, RatioLower: finiteOrNull(r.Lower), RatioUpper: finiteOrNull(r.Upper), PTKSMean: r.KSMean, Spread: r.Spread,
+			CollisionRatio: r.Ratio, RatioLower: finiteOrNull(r.Lower), RatioUpper: finiteOrNull(r.Upper), PTKSMean: r.KSMean,
+			Verdict: r.Verdict, Spread: r.Spread,
 		})
 	}
 	return doc
@@ -299,21 +318,44 @@ func printExactCheck(w io.Writer, sum *scan.Curve, exact *moments.Result) {
 }
 
 // printScan writes the human report of a scan.
-func printScan(w io.Writer, s *setup, cf *circuitFlags, instances string, eps, conf float64, sum *scan.Curve) {
+func printScan(w io.Writer, s *setup, cf *circuitFlags, instances string, sum *scan.Curve) {
+	c := sum.Criteria
 	fmt.Fprintln(w, s.describe())
-	fmt.Fprintf(w, "seed %d · %s · eps %g · confidence %g · Haar collision 2/(D+1) = %.6g\n\n",
-		cf.seed, instances, eps, conf, sum.HaarCollision)
-	pct := strconv.FormatFloat(100*conf, 'g', 4, 64) + "% interval"
-	fmt.Fprintf(w, "%6s %7s %10s  %-21s %9s  %s\n", "depth", "gates", "R=Z/Z_H", pct, "PT dist", "verdict")
-	for _, r := range sum.Rows {
-		verdict := "too shallow"
-		if r.Spread {
-			verdict = "spread"
-		}
-		fmt.Fprintf(w, "%6d %7d %10.4f  [%8.4f, %8.4f]  %9.4f  %s\n", r.Depth, r.GateCount, r.Ratio, r.Lower, r.Upper, r.KSMean, verdict)
+	fmt.Fprintf(w, "seed %d · %s · eps %g · confidence %g · rule %s · Haar collision 2/(D+1) = %.6g\n",
+		cf.seed, instances, c.Eps, c.Confidence, c.Rule, sum.HaarCollision)
+	if c.Rule != stats.RuleCollision {
+		b := sum.PTBaseline
+		fmt.Fprintf(w, "Haar PT dist (mean over %d Haar-random states of D = %s%s) = %.4g; margin %g\n",
+			b.States, dimString(s.graph.Qubits), scaledNote(b), b.Mean, c.PTMargin)
 	}
 	fmt.Fprintln(w)
-	fmt.Fprintln(w, scanVerdict(sum, eps, conf))
+	pct := strconv.FormatFloat(100*c.Confidence, 'g', 4, 64) + "% interval"
+	fmt.Fprintf(w, "%6s %7s %10s  %-21s %9s  %s\n", "depth", "gates", "R=Z/Z_H", pct, "PT dist", "verdict")
+	for _, r := range sum.Rows {
+		interval := fmt.Sprintf("[%8.4f, %8.4f]", r.Lower, r.Upper)
+		if !r.HasInterval {
+			interval = "too few instances for an interval"
+		}
+		fmt.Fprintf(w, "%6d %7d %10.4f  %-21s %9.4f  %s\n", r.Depth, r.GateCount, r.Ratio, interval, r.KSMean, r.Verdict)
+	}
+	fmt.Fprintln(w)
+	fmt.Fprintln(w, scanVerdict(sum))
+}
+
+// dimString writes D = 2^n.
+func dimString(n int) string {
+	if n <= 20 {
+		return strconv.Itoa(1 << n)
+	}
+	return "2^" + strconv.Itoa(n)
+}
+
+// scaledNote says when a PT baseline was scaled from a smaller dimension.
+func scaledNote(b stats.PTBaseline) string {
+	if !b.Scaled {
+		return ""
+	}
+	return fmt.Sprintf(", scaled by 1/√D from D = %d", stats.PTBaselineMaxDim)
 }
 
 // instancesNote says how many instances a summary holds, and of which
@@ -329,18 +371,25 @@ func instancesNote(n int, part runs.Part, total int) string {
 	return note
 }
 
-// scanVerdict is the one-sentence recommendation.
-func scanVerdict(sum *scan.Curve, eps, conf float64) string {
-	level := strconv.FormatFloat(100*conf, 'g', 4, 64) + "%"
+// scanVerdict is the recommendation: the depth and why, or why none.
+func scanVerdict(sum *scan.Curve) string {
+	c := sum.Criteria
+	level := strconv.FormatFloat(100*c.Confidence, 'g', 4, 64) + "%"
+	rule := fmt.Sprintf("the %s interval of R within [%.4g, %.4g] and the mean PT distance at most %.4g (Haar %.4g + margin %g)",
+		level, 1-c.Eps, 1+c.Eps, sum.PTBaseline.Mean+c.PTMargin, sum.PTBaseline.Mean, c.PTMargin)
+	if c.Rule == stats.RuleCollision {
+		rule = fmt.Sprintf("the upper end of the %s interval of R at most 1+eps = %.4g", level, 1+c.Eps)
+	}
 	if !sum.Found {
 		last := sum.Rows[len(sum.Rows)-1]
-		return fmt.Sprintf("No requested depth anti-concentrates: at depth %d the upper end of the %s interval of R is %.4f > 1+eps = %.4f; scan deeper or run more instances.",
-			last.Depth, level, last.Upper, 1+eps)
+		return fmt.Sprintf("No recommended depth: the deepest requested depth, %d, is %s, not spread (spread needs %s); scan deeper or run more instances.",
+			last.Depth, last.Verdict, rule)
 	}
 	for _, r := range sum.Rows {
 		if r.Depth == sum.Depth {
-			return fmt.Sprintf("Recommended depth: %d (%d gates): R ≤ %.4f (upper end of the %s interval), a margin of %.4f under 1+eps = %.4f.",
-				r.Depth, r.GateCount, r.Upper, level, 1+eps-r.Upper, 1+eps)
+			return fmt.Sprintf("Recommended depth: %d (%d gates), the first depth from which every requested depth is spread: %s.\n"+
+				"Requiring every later depth to pass keeps the %s level for the whole claim (an intersection–union test), not once per depth.",
+				r.Depth, r.GateCount, rule, level)
 		}
 	}
 	return ""
@@ -370,4 +419,37 @@ func writeJSON(w io.Writer, v any) error {
 	enc := json.NewEncoder(w)
 	enc.SetIndent("", "  ")
 	return enc.Encode(v)
+}
+
+// verdictFlags are the criteria flags that scan and summarize share.
+type verdictFlags struct {
+	eps, conf, margin *float64
+	rule              *string
+}
+
+func addVerdictFlags(fs *pflag.FlagSet) *verdictFlags {
+	return &verdictFlags{
+		eps:    fs.Float64("eps", 0.05, "tolerance on R = E[Z]/Z_H: a depth is spread when the interval of R lies within [1−eps, 1+eps] (--rule collision: its upper end ≤ 1+eps)"),
+		conf:   fs.Float64("confidence", 0.95, "confidence level of the two-sided interval of R"),
+		margin: fs.Float64("pt-margin", stats.DefaultPTMargin, "a depth is spread only when its mean Porter–Thomas distance is at most the Haar value for the same D plus this margin"),
+		rule:   fs.String("rule", string(stats.RuleBoth), "verdict rule: both (R two-sided and the Porter–Thomas distance) or collision (the anti-concentration depth alone: upper end of R ≤ 1+eps)"),
+	}
+}
+
+// criteria checks the flags and returns the verdict criteria.
+func (v *verdictFlags) criteria() (stats.Criteria, error) {
+	c := stats.Criteria{Eps: *v.eps, Confidence: *v.conf, PTMargin: *v.margin, Rule: stats.Rule(*v.rule)}
+	if err := checkUnit("eps", c.Eps); err != nil {
+		return c, err
+	}
+	if err := checkUnit("confidence", c.Confidence); err != nil {
+		return c, err
+	}
+	if !(c.PTMargin >= 0 && c.PTMargin <= 1) {
+		return c, badInput("--pt-margin %v: must lie between 0 and 1 (a distance between two CDFs)", c.PTMargin)
+	}
+	if c.Rule != stats.RuleBoth && c.Rule != stats.RuleCollision {
+		return c, badInput("--rule %q: use both or collision", *v.rule)
+	}
+	return c, nil
 }

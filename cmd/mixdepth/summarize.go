@@ -5,8 +5,11 @@ import (
 	"fmt"
 	"io"
 
+	"mixdepth/plots"
 	"mixdepth/runs"
 	"mixdepth/scan"
+	"mixdepth/stats"
+	"mixdepth/tables"
 )
 
 func init() {
@@ -20,11 +23,38 @@ const (
 	fallbackConfidence = 0.95
 )
 
+// recorded says, in summarize --help, where a verdict flag's default comes
+// from.
+const recorded = "; default: the value the tables record (scan's default for tables that record none)"
+
+// recordedCriteria returns the verdict criteria a scan table records, with
+// scan's defaults for the keys it lacks (tables written before scan
+// recorded them) or holds out of range.
+func recordedCriteria(meta tables.Meta) stats.Criteria {
+	in := func(key string, def, lo, hi float64) float64 {
+		if v := metaFloatOr(meta, key, def); v > lo && v < hi {
+			return v
+		}
+		return def
+	}
+	c := stats.Criteria{
+		Eps: in("eps", fallbackEps, 0, 1), Confidence: in("confidence", fallbackConfidence, 0, 1),
+		PTMargin: in("pt_margin", stats.DefaultPTMargin, -1e-300, 1), Rule: stats.RuleBoth,
+	}
+	if r, _ := meta.Get("rule"); r == string(stats.RuleCollision) {
+		c.Rule = stats.RuleCollision
+	}
+	return c
+}
+
 func runSummarize(ctx context.Context, args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("summarize", "mixdepth summarize FILE...: each FILE is a per-instance scan table.\n\nReads one or more per-instance scan tables of one run (a whole run, or its parts) and prints\nthe per-depth summary that scan prints: R = mean(Z)/Z_H with its confidence interval, the\nPorter–Thomas distance and the anti-concentration depth. --json prints the scan --json document.",
-		"mixdepth summarize part-0.parquet part-1.parquet --eps 0.02", stdout)
-	eps := fs.Float64("eps", fallbackEps, "anti-concentration threshold; the fallback when the table records none")
-	conf := fs.Float64("confidence", fallbackConfidence, "confidence level of the interval for R; the fallback when the table records none")
+	fs := newFlags("summarize", "mixdepth summarize FILE...: each FILE is a per-instance scan table.\n\nReads one or more per-instance scan tables of one run (a whole run, or its parts) and prints\nthe per-depth summary that scan prints: R = mean(Z)/Z_H with its confidence interval, the\nPorter–Thomas distance beside the Haar value, each depth's verdict and the recommended depth.\n--json prints the scan --json document; --plot draws the chart of scan --plot.",
+		"mixdepth summarize part-0.parquet part-1.parquet --eps 0.02 --plot sweep.png", stdout)
+	vf := addVerdictFlags(fs)
+	for _, name := range []string{"eps", "confidence", "pt-margin", "rule"} {
+		fs.Lookup(name).Usage += recorded
+	}
+	plot := fs.String("plot", "", "draw R − 1 against depth with its confidence band to FILE.png or FILE.svg, as scan --plot does")
 	asJSON := fs.Bool("json", false, "print one JSON document instead of the text report")
 	if err := parseFlags(fs, args); err != nil {
 		return err
@@ -40,17 +70,23 @@ func runSummarize(ctx context.Context, args []string, stdout, stderr io.Writer) 
 	if cmd, _ := first.Table.Meta.Get("command"); cmd != "scan" {
 		return badInput("%s was written by %q, not scan: summarize reads per-instance scan tables", first.Path, cmd)
 	}
-	if !fs.Changed("eps") {
-		*eps = metaFloatOr(first.Table.Meta, "eps", fallbackEps)
+	rec := recordedCriteria(first.Table.Meta)
+	for name, set := range map[string]func(){
+		"eps": func() { *vf.eps = rec.Eps }, "confidence": func() { *vf.conf = rec.Confidence },
+		"pt-margin": func() { *vf.margin = rec.PTMargin }, "rule": func() { *vf.rule = string(rec.Rule) },
+	} {
+		if !fs.Changed(name) {
+			set()
+		}
 	}
-	if !fs.Changed("confidence") {
-		*conf = metaFloatOr(first.Table.Meta, "confidence", fallbackConfidence)
-	}
-	if err := checkUnit("eps", *eps); err != nil {
+	crit, err := vf.criteria()
+	if err != nil {
 		return err
 	}
-	if err := checkUnit("confidence", *conf); err != nil {
-		return err
+	if *plot != "" {
+		if err := plots.CheckPath(*plot); err != nil {
+			return usageError{fmt.Errorf("--plot: %w", err)}
+		}
 	}
 	s, err := setupFromMeta(first.Table.Meta)
 	if err != nil {
@@ -65,10 +101,18 @@ func runSummarize(ctx context.Context, args []string, stdout, stderr io.Writer) 
 	if missing := run.Missing(); len(missing) > 0 {
 		fmt.Fprintf(stderr, "mixdepth: note: summarizing %d of the run's %d instances (missing %s)\n", len(run.Done), run.Instances, briefIDs(missing))
 	}
-	sum := scan.Estimate(s.graph.Qubits, records, *conf, *eps)
-	if *asJSON {
-		return writeJSON(stdout, scanDocument(s, s.spec.Seed, len(run.Done), *eps, *conf, sum))
+	sum := scan.Estimate(s.graph.Qubits, records, crit)
+	if *plot != "" {
+		if err := saveScanPlot(*plot, s, sum, run.ExactRatios(s.graph.Qubits)); err != nil {
+			return err
+		}
 	}
-	printScan(stdout, s, &circuitFlags{seed: s.spec.Seed}, instancesNote(len(run.Done), runs.Whole, len(run.Done)), *eps, *conf, sum)
+	if *asJSON {
+		return writeJSON(stdout, scanDocument(s, s.spec.Seed, len(run.Done), sum))
+	}
+	printScan(stdout, s, &circuitFlags{seed: s.spec.Seed}, instancesNote(len(run.Done), runs.Whole, len(run.Done)), sum)
+	if *plot != "" {
+		fmt.Fprintf(stdout, "Plot: %s\n", *plot)
+	}
 	return nil
 }

@@ -164,7 +164,7 @@ func TestScanJSONFields(t *testing.T) {
 	if err := json.Unmarshal([]byte(stdout), &doc); err != nil {
 		t.Fatal(err)
 	}
-	for _, k := range []string{"qubits", "edges", "haar_collision", "seed", "instances", "eps", "anticoncentration_depth", "rows"} {
+	for _, k := range []string{"qubits", "edges", "haar_collision", "seed", "instances", "eps", "recommended_depth", "pt_ks_haar", "rule", "pt_margin", "rows"} {
 		if _, ok := doc[k]; !ok {
 			t.Errorf("missing top-level field %q", k)
 		}
@@ -173,7 +173,7 @@ func TestScanJSONFields(t *testing.T) {
 	if len(rows) != 3 {
 		t.Fatalf("%d rows, want 3", len(rows))
 	}
-	for _, k := range []string{"depth", "gate_count", "collision_mean", "collision_stderr", "collision_ratio", "ratio_lower", "ratio_upper", "pt_ks_mean"} {
+	for _, k := range []string{"depth", "gate_count", "collision_mean", "collision_stderr", "collision_ratio", "ratio_lower", "ratio_upper", "pt_ks_mean", "verdict", "spread"} {
 		if _, ok := rows[0].(map[string]any)[k]; !ok {
 			t.Errorf("missing row field %q", k)
 		}

@@ -20,7 +20,14 @@ type depthOptions struct {
 	title      string
 	depthUnit  string
 	confidence float64
+	rule       string
 }
+
+// WithRule states, for the legend, when a depth is spread, such as "R's
+// interval lies within 1 ± ε and the PT distance is near Haar's". The
+// default is "the upper bound of R ≤ 1 + ε" ("R ≤ 1 + ε" for an exact curve
+// alone).
+func WithRule(rule string) Option { return func(o *depthOptions) { o.rule = rule } }
 
 // WithTitle sets the title of a DepthPlot. The default names the qubit
 // count: "Distance from the Haar collision probability, n = 12 qubits".
@@ -303,6 +310,9 @@ func depthPlot(s *depthPoints, ds *DepthSeries, eps float64, o depthOptions) (*f
 	rule := "the upper bound of R ≤ 1 + ε"
 	if len(s.bands) == 0 && len(s.line) == 0 {
 		rule = "R ≤ 1 + ε" // the exact curve alone
+	}
+	if o.rule != "" {
+		rule = o.rule
 	}
 	fig.key("ε = "+strconv.FormatFloat(eps, 'g', 4, 64)+": a depth is spread when "+rule, epsLine)
 

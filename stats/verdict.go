@@ -9,7 +9,7 @@ type Verdict string
 // The verdict states. Under RuleBoth a depth is VerdictSpread when R's
 // interval lies within [1−eps, 1+eps] and the mean Porter–Thomas distance is
 // within PTMargin of the Haar baseline; otherwise the first failing check
-// names it. Under RuleCollision only the upper end of R's interval is
+// of Criteria.Judge names it. Under RuleCollision only the upper end of R's interval is
 // tested (R ≤ 1+eps, the one-sided anti-concentration property).
 const (
 	// VerdictSpread: every criterion of the rule holds.
@@ -22,9 +22,10 @@ const (
 	// does): outputs flatter than Haar-random ones, as stabilizer circuits'
 	// uniform supports are.
 	VerdictFlat Verdict = "flat"
-	// VerdictDistorted: R is within its band but the Porter–Thomas distance
-	// is more than PTMargin above the Haar baseline: the second moment is
-	// right, the shape of the output distribution is not.
+	// VerdictDistorted: R's interval is not wholly above 1+eps but the
+	// Porter–Thomas distance is more than PTMargin above the Haar baseline:
+	// the shape of the output distribution is not Porter–Thomas, whatever
+	// the second moment says.
 	VerdictDistorted Verdict = "distorted"
 	// VerdictUnresolved: there is no interval (too few instances) or it
 	// reaches below 1−eps and above 1+eps at once.
@@ -83,10 +84,12 @@ func (c Criteria) Check() {
 // Judge returns the verdict of one depth from the interval [lower, upper]
 // of R (ok false when there is none), the mean Porter–Thomas distance pt
 // and the Haar baseline of the same dimension. The checks run in this order:
-// no interval or one reaching past both ends of the band → unresolved;
-// upper > 1+eps → shallow; under RuleBoth, lower < 1−eps → flat and
-// pt > baseline + PTMargin → distorted; otherwise spread. A NaN pt fails
-// the Porter–Thomas check. It panics if c is invalid.
+// no interval → unresolved; the whole interval above 1+eps → shallow; under
+// RuleBoth, pt > baseline + PTMargin → distorted (a distribution that is not
+// Porter–Thomas is named so whatever R does), an interval reaching past
+// both ends of the band → unresolved; upper > 1+eps → shallow; under
+// RuleBoth, lower < 1−eps → flat; otherwise spread. A NaN pt fails the
+// Porter–Thomas check. It panics if c is invalid.
 func (c Criteria) Judge(lower, upper float64, ok bool, pt, baseline float64) Verdict {
 	c.Check()
 	hi, lo := 1+c.Eps, 1-c.Eps
@@ -94,16 +97,16 @@ func (c Criteria) Judge(lower, upper float64, ok bool, pt, baseline float64) Ver
 	switch {
 	case !ok || math.IsNaN(lower) || math.IsNaN(upper):
 		return VerdictUnresolved
+	case lower > hi:
+		return VerdictShallow
+	case both && !(pt <= baseline+c.PTMargin):
+		return VerdictDistorted
 	case both && lower < lo && upper > hi:
 		return VerdictUnresolved
 	case upper > hi:
 		return VerdictShallow
-	case !both:
-		return VerdictSpread
-	case lower < lo:
+	case both && lower < lo:
 		return VerdictFlat
-	case !(pt <= baseline+c.PTMargin):
-		return VerdictDistorted
 	}
 	return VerdictSpread
 }

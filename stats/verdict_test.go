@@ -103,6 +103,8 @@ func TestJudge(t *testing.T) {
 		{both, 0.93, 1.07, true, 0.05, VerdictUnresolved, "both ends outside"},
 		{both, 0.98, 1.03, false, 0.05, VerdictUnresolved, "no interval"},
 		{both, 0.98, 1.03, true, 0.5, VerdictDistorted, "PT distance far above Haar"},
+		{both, 0.80, 1.20, true, 0.5, VerdictDistorted, "PT distance far above Haar, R unresolved"},
+		{both, 1.10, 1.20, true, 0.5, VerdictShallow, "whole interval above 1+eps"},
 		{both, 0.98, 1.03, true, math.NaN(), VerdictDistorted, "no PT distance"},
 		{r, 0.80, 1.03, true, 0.5, VerdictSpread, "collision rule: only the upper end"},
 		{r, 0.80, 1.06, true, 0.05, VerdictShallow, "collision rule, upper end above"},

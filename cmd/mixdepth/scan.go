@@ -330,13 +330,20 @@ func printScan(w io.Writer, s *setup, cf *circuitFlags, instances string, sum *s
 	}
 	fmt.Fprintln(w)
 	pct := strconv.FormatFloat(100*c.Confidence, 'g', 4, 64) + "% interval"
-	fmt.Fprintf(w, "%6s %7s %10s  %-21s %9s  %s\n", "depth", "gates", "R=Z/Z_H", pct, "PT dist", "verdict")
+	const noInterval = "too few instances for an interval"
+	width := 21
+	for _, r := range sum.Rows {
+		if !r.HasInterval {
+			width = len(noInterval)
+		}
+	}
+	fmt.Fprintf(w, "%6s %7s %10s  %-*s %9s  %s\n", "depth", "gates", "R=Z/Z_H", width, pct, "PT dist", "verdict")
 	for _, r := range sum.Rows {
 		interval := fmt.Sprintf("[%8.4f, %8.4f]", r.Lower, r.Upper)
 		if !r.HasInterval {
-			interval = "too few instances for an interval"
+			interval = noInterval
 		}
-		fmt.Fprintf(w, "%6d %7d %10.4f  %-21s %9.4f  %s\n", r.Depth, r.GateCount, r.Ratio, interval, r.KSMean, r.Verdict)
+		fmt.Fprintf(w, "%6d %7d %10.4f  %-*s %9.4f  %s\n", r.Depth, r.GateCount, r.Ratio, width, interval, r.KSMean, r.Verdict)
 	}
 	fmt.Fprintln(w)
 	fmt.Fprintln(w, scanVerdict(sum))
@@ -382,8 +389,8 @@ func scanVerdict(sum *scan.Curve) string {
 	}
 	if !sum.Found {
 		last := sum.Rows[len(sum.Rows)-1]
-		return fmt.Sprintf("No recommended depth: the deepest requested depth, %d, is %s, not spread (spread needs %s); scan deeper or run more instances.",
-			last.Depth, last.Verdict, rule)
+		return fmt.Sprintf("No recommended depth: the deepest requested depth, %d, is %s, not spread (spread needs %s); %s.",
+			last.Depth, last.Verdict, rule, verdictAdvice(last))
 	}
 	for _, r := range sum.Rows {
 		if r.Depth == sum.Depth {
@@ -393,6 +400,22 @@ func scanVerdict(sum *scan.Curve) string {
 		}
 	}
 	return ""
+}
+
+// verdictAdvice says what to do about a depth that is not spread.
+func verdictAdvice(r scan.Row) string {
+	switch r.Verdict {
+	case stats.VerdictUnresolved:
+		if !r.HasInterval {
+			return fmt.Sprintf("run at least %d instances for an interval", stats.MinIntervalValues)
+		}
+		return "run more instances to narrow the interval of R"
+	case stats.VerdictDistorted:
+		return "the output distribution is not Porter–Thomas: scan deeper if the PT distance is still falling; a gate set that is not universal (Clifford gates) never gets there"
+	case stats.VerdictFlat:
+		return "R is below 1 − eps: the outputs are flatter than Haar-random ones; run more instances if the interval is wide, else check the gate set"
+	}
+	return "scan deeper or run more instances"
 }
 
 // runMeta is the table metadata shared by every command that builds

@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"io"
 
+	"github.com/spf13/pflag"
+
 	"mixdepth/plots"
 	"mixdepth/runs"
 	"mixdepth/scan"
@@ -50,10 +52,7 @@ func recordedCriteria(meta tables.Meta) stats.Criteria {
 func runSummarize(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	fs := newFlags("summarize", "mixdepth summarize FILE...: each FILE is a per-instance scan table.\n\nReads one or more per-instance scan tables of one run (a whole run, or its parts) and prints\nthe per-depth summary that scan prints: R = mean(Z)/Z_H with its confidence interval, the\nPorter–Thomas distance beside the Haar value, each depth's verdict and the recommended depth.\n--json prints the scan --json document; --plot draws the chart of scan --plot.",
 		"mixdepth summarize part-0.parquet part-1.parquet --eps 0.02 --plot sweep.png", stdout)
-	vf := addVerdictFlags(fs)
-	for _, name := range []string{"eps", "confidence", "pt-margin", "rule"} {
-		fs.Lookup(name).Usage += recorded
-	}
+	vf := addRecordedVerdictFlags(fs)
 	plot := fs.String("plot", "", "draw R − 1 against depth with its confidence band to FILE.png or FILE.svg, as scan --plot does")
 	asJSON := fs.Bool("json", false, "print one JSON document instead of the text report")
 	if err := parseFlags(fs, args); err != nil {
@@ -62,46 +61,19 @@ func runSummarize(ctx context.Context, args []string, stdout, stderr io.Writer) 
 	if fs.NArg() == 0 {
 		return badInput("summarize needs at least one scan table: mixdepth summarize FILE...")
 	}
-	run, err := readRun(fs.Args())
-	if err != nil {
-		return err
-	}
-	first := run.Members[0]
-	if cmd, _ := first.Table.Meta.Get("command"); cmd != "scan" {
-		return badInput("%s was written by %q, not scan: summarize reads per-instance scan tables", first.Path, cmd)
-	}
-	rec := recordedCriteria(first.Table.Meta)
-	for name, set := range map[string]func(){
-		"eps": func() { *vf.eps = rec.Eps }, "confidence": func() { *vf.conf = rec.Confidence },
-		"pt-margin": func() { *vf.margin = rec.PTMargin }, "rule": func() { *vf.rule = string(rec.Rule) },
-	} {
-		if !fs.Changed(name) {
-			set()
-		}
-	}
-	crit, err := vf.criteria()
-	if err != nil {
-		return err
-	}
 	if *plot != "" {
 		if err := plots.CheckPath(*plot); err != nil {
 			return usageError{fmt.Errorf("--plot: %w", err)}
 		}
 	}
-	s, err := setupFromMeta(first.Table.Meta)
+	sc, err := loadScan(fs, vf, fs.Args(), "summarize")
 	if err != nil {
-		return usageError{fmt.Errorf("%s: %w", first.Path, err)}
+		return err
 	}
-	// In scan's order, (depth, instance), so that the sums are added in the
-	// same order and the summary agrees with scan's to the last bit.
-	records, err := run.ScanRecords()
-	if err != nil {
-		return usageError{err}
-	}
+	s, run, sum := sc.setup, sc.run, sc.curve
 	if missing := run.Missing(); len(missing) > 0 {
 		fmt.Fprintf(stderr, "mixdepth: note: summarizing %d of the run's %d instances (missing %s)\n", len(run.Done), run.Instances, briefIDs(missing))
 	}
-	sum := scan.Estimate(s.graph.Qubits, records, crit)
 	if *plot != "" {
 		if err := saveScanPlot(*plot, s, sum, run.ExactRatios(s.graph.Qubits)); err != nil {
 			return err
@@ -115,4 +87,66 @@ func runSummarize(ctx context.Context, args []string, stdout, stderr io.Writer) 
 		fmt.Fprintf(stdout, "Plot: %s\n", *plot)
 	}
 	return nil
+}
+
+// addRecordedVerdictFlags adds the verdict flags of a command that reads
+// scan tables, whose defaults are the values the tables record.
+func addRecordedVerdictFlags(fs *pflag.FlagSet) *verdictFlags {
+	vf := addVerdictFlags(fs)
+	for _, name := range []string{"eps", "confidence", "pt-margin", "rule"} {
+		fs.Lookup(name).Usage += recorded
+	}
+	return vf
+}
+
+// loadedScan is a scan run read back from its tables and summarised.
+type loadedScan struct {
+	setup *setup
+	run   *runs.Set
+	curve *scan.Curve
+}
+
+// loadScan reads the per-instance scan tables paths of one run and
+// summarises them under the verdict flags vf, each flag the user did not
+// give taking the value the tables record. cmd names the command in errors.
+func loadScan(fs *pflag.FlagSet, vf *verdictFlags, paths []string, cmd string) (*loadedScan, error) {
+	run, err := readRun(paths)
+	if err != nil {
+		return nil, err
+	}
+	first := run.Members[0]
+	if by, _ := first.Table.Meta.Get("command"); by != "scan" {
+		return nil, badInput("%s was written by %q, not scan: %s reads per-instance scan tables", first.Path, by, cmd)
+	}
+	rec := recordedCriteria(first.Table.Meta)
+	v := *vf
+	eps, conf, margin, rule := *vf.eps, *vf.conf, *vf.margin, *vf.rule
+	v.eps, v.conf, v.margin, v.rule = &eps, &conf, &margin, &rule
+	if !fs.Changed("eps") {
+		eps = rec.Eps
+	}
+	if !fs.Changed("confidence") {
+		conf = rec.Confidence
+	}
+	if !fs.Changed("pt-margin") {
+		margin = rec.PTMargin
+	}
+	if !fs.Changed("rule") {
+		rule = string(rec.Rule)
+	}
+	crit, err := v.criteria()
+	if err != nil {
+		return nil, err
+	}
+	s, err := setupFromMeta(first.Table.Meta)
+	if err != nil {
+		return nil, usageError{fmt.Errorf("%s: %w", first.Path, err)}
+	}
+	// In scan's order, (depth, instance), so that the sums are added in the
+	// same order and the summary agrees with scan's to the last bit.
+	records, err := run.ScanRecords()
+	if err != nil {
+		return nil, usageError{err}
+	}
+	return &loadedScan{setup: s, run: run, curve: scan.Estimate(s.graph.Qubits, records, crit)}, nil
 }

@@ -12,8 +12,6 @@ import (
 	"strconv"
 	"strings"
 
-	"github.com/schollz/progressbar/v3"
-
 	"mixdepth/runs"
 	"mixdepth/sampling"
 	"mixdepth/tables"
@@ -89,6 +87,7 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	out := fs.String("out", "", "write the shots to FILE.arrow or FILE.parquet")
 	circuitsOut := fs.String("circuits", "", "write every instance's gates to FILE.json (qubit pairs and 4×4 matrices) for hardware or another simulator")
 	asJSON := fs.Bool("json", false, "print one JSON document instead of the text report")
+	progress := fs.Bool("progress", false, progressFlagHelp)
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
@@ -164,17 +163,10 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		}
 	}
 
-	var bar *progressbar.ProgressBar
-	if isTerminal(stderr) {
-		bar = progressbar.NewOptions(len(cfg.Instances), progressbar.OptionSetWriter(stderr),
-			progressbar.OptionSetDescription("sampling instances"), progressbar.OptionShowCount(),
-			progressbar.OptionClearOnFinish())
-		defer bar.Finish()
-	}
+	tick, stopProgress := startProgress(stderr, *progress, "sampling instances", len(cfg.Instances))
+	defer stopProgress()
 	cfg.Progress = func() {
-		if bar != nil {
-			_ = bar.Add(1)
-		}
+		tick()
 		if testHookSampleProgress != nil {
 			testHookSampleProgress()
 		}

@@ -10,7 +10,6 @@ import (
 	"strconv"
 	"strings"
 
-	"github.com/schollz/progressbar/v3"
 	"github.com/spf13/pflag"
 
 	"mixdepth/circuits"
@@ -77,6 +76,7 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	plot := fs.String("plot", "", "draw R − 1 against depth with its confidence band to FILE.png or FILE.svg")
 	withExact := fs.Bool("exact", false, "also compute the exact E[Z] at each depth (no sampling) and flag depths where the Monte Carlo mean is more than 4 standard errors from it")
 	asJSON := fs.Bool("json", false, "print one JSON document instead of the text report")
+	progress := fs.Bool("progress", false, progressFlagHelp)
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
@@ -163,13 +163,9 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		Graph: s.graph, Schedule: s.schedule, Ensemble: s.ensemble,
 		Depths: depths, Instances: ids, Seed: cf.seed, Workers: *workers, Precision: scan.Precision(*precision),
 	}
-	if isTerminal(stderr) && len(ids) > 0 {
-		bar := progressbar.NewOptions(len(ids), progressbar.OptionSetWriter(stderr),
-			progressbar.OptionSetDescription("simulating instances"), progressbar.OptionShowCount(),
-			progressbar.OptionClearOnFinish())
-		cfg.Progress = func() { _ = bar.Add(1) }
-		defer bar.Finish()
-	}
+	tick, stopProgress := startProgress(stderr, *progress, "simulating instances", len(ids))
+	cfg.Progress = tick
+	defer stopProgress()
 	var records []scan.Record
 	if len(ids) > 0 {
 		records, _, err = scan.Run(ctx, cfg)

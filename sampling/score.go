@@ -6,9 +6,17 @@ import (
 	"mixdepth/stats"
 )
 
-// AnticoncentrationTolerance is the relative distance from the Porter–Thomas
-// value (D−1)/(D+1) beyond which Report.Spread is false (the word this project uses for a depth or a circuit set that meets its anti-concentration threshold).
-const AnticoncentrationTolerance = 0.1
+// DefaultEps is the relative distance from the Porter–Thomas value
+// (D−1)/(D+1) beyond which Report.Spread is false unless SetEps chooses
+// another: 0.05, the default eps of scan, so that "spread" (the word this
+// project uses for a depth or a circuit set that meets its
+// anti-concentration threshold) means one threshold in scan, score and
+// plan.
+const DefaultEps = 0.05
+
+// InstanceConfidence is the level of Report's interval of the fidelity
+// estimate over instances.
+const InstanceConfidence = 0.95
 
 // InstanceScore is the cross-entropy benchmark of one instance's shots.
 type InstanceScore struct {
@@ -38,16 +46,29 @@ type Report struct {
 	// Ideal is the shot-weighted mean of the instances' D·Z_U − 1: the
 	// expected pooled F_lin of an ideal sampler.
 	Ideal float64
-	// Normalized is Linear/Ideal and NormalizedErr its standard error.
+	// Normalized is Linear/Ideal and NormalizedErr its standard error from
+	// the shots alone, as if every shot were independent.
 	Normalized, NormalizedErr float64
+	// NormalizedErrInstances is the standard error of Normalized with every
+	// source of variation (shots, noise trajectories, circuits), and
+	// [NormalizedLower, NormalizedUpper] its two-sided interval at level
+	// Confidence: the bootstrap over instances (stats.ClusterBootstrap).
+	// HasInstanceErr is false, and these NaN, with fewer than
+	// stats.MinIntervalValues instances. LinearErrInstances is the same
+	// standard error for Linear.
+	NormalizedErrInstances, NormalizedLower, NormalizedUpper float64
+	LinearErrInstances                                       float64
+	HasInstanceErr                                           bool
+	Confidence                                               float64
 	// PorterThomas is (D−1)/(D+1), the value of Ideal for Haar-random
 	// outputs (Boixo et al. 2018).
 	PorterThomas float64
-	// Spread is true when Ideal lies within
-	// AnticoncentrationTolerance of PorterThomas (relative). Otherwise the
-	// raw F_lin misstates the fidelity (it overstates it when Ideal > 1):
-	// read Normalized instead, and prefer deeper circuits.
+	// Spread is true when Ideal lies within Eps of PorterThomas
+	// (relative). Otherwise the raw F_lin misstates the fidelity (it
+	// overstates it when Ideal > 1): read Normalized instead, and prefer
+	// deeper circuits.
 	Spread    bool
+	Eps       float64
 	Instances []InstanceScore
 }
 
@@ -81,6 +102,27 @@ func Score(qubits int, groups []InstanceSamples) *Report {
 	r.Log, r.LogErr = stats.LogXEB(all, dim)
 	r.Ideal = idealSum / float64(r.Shots)
 	r.Normalized, r.NormalizedErr = r.Linear/r.Ideal, r.LinearErr/r.Ideal
-	r.Spread = math.Abs(r.Ideal/r.PorterThomas-1) <= AnticoncentrationTolerance
+	r.Confidence = InstanceConfidence
+	num, shots, ideal := make([]float64, len(groups)), make([]float64, len(groups)), make([]float64, len(groups))
+	for i, g := range groups {
+		s := r.Instances[i]
+		// Σ_k (D·p_k − 1) = N·F_lin of the instance.
+		num[i] = float64(s.Shots) * s.Linear
+		shots[i] = float64(s.Shots)
+		ideal[i] = float64(len(g.PIdeal)) * s.Ideal
+	}
+	r.NormalizedErrInstances, r.NormalizedLower, r.NormalizedUpper, r.HasInstanceErr = stats.ClusterBootstrap(num, ideal, r.Confidence)
+	r.LinearErrInstances, _, _, _ = stats.ClusterBootstrap(num, shots, r.Confidence)
+	r.SetEps(DefaultEps)
 	return r
+}
+
+// SetEps sets the threshold Eps and Spread = |Ideal/PorterThomas − 1| ≤ eps.
+// It panics unless 0 ≤ eps < 1.
+func (r *Report) SetEps(eps float64) {
+	if !(eps >= 0 && eps < 1) {
+		panic("sampling: eps must lie in [0, 1)")
+	}
+	r.Eps = eps
+	r.Spread = math.Abs(r.Ideal/r.PorterThomas-1) <= eps
 }

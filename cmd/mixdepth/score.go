@@ -12,6 +12,7 @@ import (
 
 	"mixdepth/runs"
 	"mixdepth/sampling"
+	"mixdepth/stats"
 	"mixdepth/tables"
 )
 
@@ -22,21 +23,29 @@ func init() {
 // scoreJSON is the --json document of score. Field names are an interface.
 type scoreJSON struct {
 	runs.Producer
-	Table               string              `json:"table"`
-	Circuits            string              `json:"circuits"`
-	Qubits              int                 `json:"qubits"`
-	Shots               int                 `json:"shots"`
-	LinearXEB           *float64            `json:"linear_xeb"`
-	LinearXEBStderr     *float64            `json:"linear_xeb_stderr"`
-	LogXEB              *float64            `json:"log_xeb"`
-	LogXEBStderr        *float64            `json:"log_xeb_stderr"`
-	IdealXEB            *float64            `json:"ideal_xeb"`
-	NormalizedXEB       *float64            `json:"normalized_xeb"`
-	NormalizedXEBStderr *float64            `json:"normalized_xeb_stderr"`
-	PorterThomasXEB     float64             `json:"porter_thomas_xeb"`
-	Spread              bool                `json:"spread"`
-	Warnings            []string            `json:"warnings"`
-	Instances           []scoreJSONInstance `json:"instances"`
+	Table               string   `json:"table"`
+	Circuits            string   `json:"circuits"`
+	Qubits              int      `json:"qubits"`
+	Shots               int      `json:"shots"`
+	LinearXEB           *float64 `json:"linear_xeb"`
+	LinearXEBStderr     *float64 `json:"linear_xeb_stderr"`
+	LogXEB              *float64 `json:"log_xeb"`
+	LogXEBStderr        *float64 `json:"log_xeb_stderr"`
+	IdealXEB            *float64 `json:"ideal_xeb"`
+	NormalizedXEB       *float64 `json:"normalized_xeb"`
+	NormalizedXEBStderr *float64 `json:"normalized_xeb_stderr"`
+	// The errors over instances (stats.ClusterBootstrap): every source of
+	// variation; null with too few instances.
+	LinearXEBStderrInstances     *float64            `json:"linear_xeb_stderr_instances"`
+	NormalizedXEBStderrInstances *float64            `json:"normalized_xeb_stderr_instances"`
+	NormalizedXEBLower           *float64            `json:"normalized_xeb_lower"`
+	NormalizedXEBUpper           *float64            `json:"normalized_xeb_upper"`
+	Confidence                   float64             `json:"confidence"`
+	PorterThomasXEB              float64             `json:"porter_thomas_xeb"`
+	Eps                          float64             `json:"eps"`
+	Spread                       bool                `json:"spread"`
+	Warnings                     []string            `json:"warnings"`
+	Instances                    []scoreJSONInstance `json:"instances"`
 }
 
 type scoreJSONInstance struct {
@@ -58,9 +67,11 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		"qubit 0 first; an optional p_ideal column is checked against the simulation). Reports per instance\n"+
 		"and over all shots: the linear XEB F_lin = D·mean p − 1 and the logarithmic XEB\n"+
 		"F_log = ln D + γ + mean ln p with their standard errors, the ideal-device value D·Z_U − 1 and the\n"+
-		"normalized estimate F_lin/(D·Z_U − 1). It warns when the circuits have not anti-concentrated\n"+
-		"(mean D·Z_U − 1 more than 10% from the Porter–Thomas value (D−1)/(D+1)), where the raw F_lin\n"+
-		"misstates the fidelity.\n\n"+
+		"normalized estimate F_lin/(D·Z_U − 1), whose error bar over all shots comes twice: from the shots\n"+
+		"alone, and from a bootstrap over instances that includes every source of variation (shots,\n"+
+		"noise trajectories, circuits). It warns when the circuits have not anti-concentrated (mean\n"+
+		"D·Z_U − 1 more than eps from the Porter–Thomas value (D−1)/(D+1), relative), where the raw\n"+
+		"F_lin misstates the fidelity.\n\n"+
 		"The circuits come from --circuits FILE.json, or are rebuilt: for a table written by sample,\n"+
 		"from its recorded run parameters (any of --graph, --layout, --schedule, --gates, --seed and\n"+
 		"--depth given overrides them); for a CSV, from those flags and their defaults, as sample uses them.",
@@ -71,7 +82,11 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	circuitsIn := fs.String("circuits", "", "read the circuits from FILE.json, as written by 'mixdepth sample --circuits'")
 	workers := fs.Int("workers", defaultWorkers(), "worker goroutines for states of 16 qubits or more")
 	asJSON := fs.Bool("json", false, "print one JSON document instead of the text report")
+	eps := fs.Float64("eps", sampling.DefaultEps, "anti-concentration threshold, as scan's: the circuits are spread when the mean D·Z_U − 1 lies within eps of (D−1)/(D+1), relative")
 	if err := parseFlags(fs, args); err != nil {
+		return err
+	}
+	if err := checkUnit("eps", *eps); err != nil {
 		return err
 	}
 	if fs.NArg() != 1 {
@@ -147,10 +162,11 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		return err
 	}
 	rep := sampling.Score(qubits, groups)
+	rep.SetEps(*eps)
 	warnings := []string{}
 	if !rep.Spread {
-		w := fmt.Sprintf("the circuits have not anti-concentrated: the ideal value D·Z − 1 = %.4f is more than %.0f%% from the Porter–Thomas value %.4f, so the raw linear XEB misstates the fidelity; read normalized_xeb, or use deeper circuits",
-			rep.Ideal, 100*sampling.AnticoncentrationTolerance, rep.PorterThomas)
+		w := fmt.Sprintf("the circuits have not anti-concentrated: the ideal value D·Z − 1 = %.4f is more than %g%% from the Porter–Thomas value %.4f, so the raw linear XEB misstates the fidelity; read normalized_xeb, or use deeper circuits",
+			rep.Ideal, 100*rep.Eps, rep.PorterThomas)
 		if rep.Ideal > rep.PorterThomas {
 			w = strings.Replace(w, "misstates", "overstates", 1)
 		}
@@ -165,7 +181,9 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 			LinearXEB: finiteOrNull(rep.Linear), LinearXEBStderr: finiteOrNull(rep.LinearErr),
 			LogXEB: finiteOrNull(rep.Log), LogXEBStderr: finiteOrNull(rep.LogErr),
 			IdealXEB: finiteOrNull(rep.Ideal), NormalizedXEB: finiteOrNull(rep.Normalized), NormalizedXEBStderr: finiteOrNull(rep.NormalizedErr),
-			PorterThomasXEB: rep.PorterThomas, Spread: rep.Spread, Warnings: warnings,
+			LinearXEBStderrInstances: finiteOrNull(rep.LinearErrInstances), NormalizedXEBStderrInstances: finiteOrNull(rep.NormalizedErrInstances),
+			NormalizedXEBLower: finiteOrNull(rep.NormalizedLower), NormalizedXEBUpper: finiteOrNull(rep.NormalizedUpper), Confidence: rep.Confidence,
+			PorterThomasXEB: rep.PorterThomas, Eps: rep.Eps, Spread: rep.Spread, Warnings: warnings,
 		}
 		for _, s := range rep.Instances {
 			doc.Instances = append(doc.Instances, scoreJSONInstance{
@@ -188,11 +206,18 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	}
 	fmt.Fprintf(stdout, "\nPorter–Thomas value of D·Z − 1: (D−1)/(D+1) = %.4f", rep.PorterThomas)
 	if rep.Spread {
-		fmt.Fprintln(stdout, "; the circuits anti-concentrate (mean within 10%).")
+		fmt.Fprintf(stdout, "; the circuits are spread (mean within eps = %g).\n", rep.Eps)
 	} else {
-		fmt.Fprintln(stdout, "; the circuits do NOT anti-concentrate: read the normalized column.")
+		fmt.Fprintf(stdout, "; the circuits are NOT spread (mean more than eps = %g away): read the normalized column.\n", rep.Eps)
 	}
-	fmt.Fprintf(stdout, "Fidelity estimate: %s (normalized linear XEB over all shots).\n", plusMinus(rep.Normalized, rep.NormalizedErr))
+	fmt.Fprintf(stdout, "Fidelity estimate (normalized linear XEB over all shots): %.4f\n", rep.Normalized)
+	fmt.Fprintf(stdout, "  standard error from the shots alone: %.4f\n", rep.NormalizedErr)
+	if rep.HasInstanceErr {
+		fmt.Fprintf(stdout, "  standard error over instances (shots, trajectories and circuits): %.4f; %g%% interval [%.4f, %.4f]\n",
+			rep.NormalizedErrInstances, 100*rep.Confidence, rep.NormalizedLower, rep.NormalizedUpper)
+	} else {
+		fmt.Fprintf(stdout, "  standard error over instances: too few instances for an interval (%d; at least %d)\n", len(rep.Instances), stats.MinIntervalValues)
+	}
 	return nil
 }
 

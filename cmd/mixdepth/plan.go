@@ -6,6 +6,9 @@ import (
 	"io"
 	"math"
 
+	"github.com/spf13/pflag"
+
+	"mixdepth/moments"
 	"mixdepth/runs"
 	"mixdepth/sampling"
 	"mixdepth/stats"
@@ -35,6 +38,18 @@ type planJSON struct {
 	SamplesSigmas       *int64     `json:"samples_sigmas"`
 	SamplesRelPrecision *int64     `json:"samples_rel_precision"`
 	Samples             int64      `json:"samples"`
+	// Instances and ShotsPerInstance split Samples (at least
+	// stats.MinIntervalValues instances, for an error bar over instances).
+	Instances        int   `json:"instances"`
+	ShotsPerInstance int64 `json:"shots_per_instance"`
+	// AnticoncentrationDepth is the chip's depth from exact (when it fits)
+	// or from the --from scan table, with its source; Spread says whether
+	// --depth reaches it. Null when neither is available.
+	AnticoncentrationDepth *int     `json:"anticoncentration_depth"`
+	DepthSource            string   `json:"depth_source"`
+	Eps                    float64  `json:"eps"`
+	Spread                 *bool    `json:"spread"`
+	Warnings               []string `json:"warnings"`
 }
 
 func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error {
@@ -60,7 +75,12 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	readout := fs.String("readout-error", "0,0", "readout flip probabilities p01,p10 (0→1, 1→0), or one value for both")
 	singleGates := fs.Int("single-qubit-gates", -1, "single-qubit gates to count; −1 counts them from the gate set (see above)")
 	asJSON := fs.Bool("json", false, "print one JSON document instead of the text report")
+	eps := fs.Float64("eps", sampling.DefaultEps, "anti-concentration threshold, as scan's: plan warns when --depth is below the depth whose R ≤ 1+eps")
+	from := fs.String("from", "", "take the anti-concentration depth from this per-instance scan table of the chip (its recommended depth) instead of the exact computation")
 	if err := parseFlags(fs, args); err != nil {
+		return err
+	}
+	if err := checkUnit("eps", *eps); err != nil {
 		return err
 	}
 	if fs.NArg() > 0 {
@@ -155,6 +175,15 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		doc.RelPrecision, doc.SamplesRelPrecision = &r, &v
 		doc.Samples = max(doc.Samples, v)
 	}
+	doc.Instances = stats.MinIntervalValues
+	doc.ShotsPerInstance = (doc.Samples + int64(doc.Instances) - 1) / int64(doc.Instances)
+	doc.Eps, doc.Warnings = *eps, []string{}
+	if err := planDepthCheck(ctx, fs, s, *depth, *eps, *from, &doc); err != nil {
+		return err
+	}
+	for _, w := range doc.Warnings {
+		fmt.Fprintln(stderr, "mixdepth: warning: "+w)
+	}
 	if *asJSON {
 		return writeJSON(stdout, doc)
 	}
@@ -177,6 +206,70 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if useRel {
 		fmt.Fprintf(stdout, "shots for a standard error of %g·F:  N = (1 + 2F − F²)/(r·F)² = %d\n", *rel, *doc.SamplesRelPrecision)
 	}
-	fmt.Fprintf(stdout, "plan for N = %d shots in all (pooled over the instances)\n", doc.Samples)
+	fmt.Fprintf(stdout, "plan for N = %d shots in all (pooled over the instances): for example %d instances × %d shots;\n"+
+		"the formulas count shots only, so use at least %d instances, more when circuits differ in fidelity: the\n"+
+		"variance of the estimate is σ_b²/M + (1 + 2F − F²)/(M·m) for M instances of m shots, σ_b² the\n"+
+		"circuit-to-circuit variance (two-stage sampling, Cochran 1977, Sampling Techniques, ch. 10), which\n"+
+		"score's error over instances includes\n",
+		doc.Samples, doc.Instances, doc.ShotsPerInstance, stats.MinIntervalValues)
+	if doc.AnticoncentrationDepth != nil {
+		fmt.Fprintf(stdout, "anti-concentration depth of the chip (eps %g, %s): %d; --depth %d %s\n", *eps, doc.DepthSource,
+			*doc.AnticoncentrationDepth, *depth, map[bool]string{true: "reaches it", false: "is below it (see the warning)"}[*doc.Spread])
+	}
+	return nil
+}
+
+// planDepthCheck finds the chip's anti-concentration depth, from the scan
+// table from when given, else from the exact second moments when they
+// exist and fit, and adds a warning to doc when depth is below it.
+func planDepthCheck(ctx context.Context, fs *pflag.FlagSet, s *setup, depth int, eps float64, from string, doc *planJSON) error {
+	var ac int
+	found := false
+	switch {
+	case from != "":
+		vf := addVerdictFlags(pflag.NewFlagSet("from", pflag.ContinueOnError))
+		*vf.eps = eps
+		sc, err := loadScan(fs, vf, []string{from}, "plan --from")
+		if err != nil {
+			return err
+		}
+		if sc.setup.graph.Digest() != s.graph.Digest() {
+			return badInput("--from %s is a scan of graph %s, not of %s: scan the chip you plan for", from, sc.setup.graph.Name, s.graph.Name)
+		}
+		ac, found = sc.curve.Depth, sc.curve.Found
+		doc.DepthSource = "scan table " + from
+		if !found {
+			doc.Warnings = append(doc.Warnings, fmt.Sprintf("--from %s: no depth of that scan is spread, so the depth cannot be checked; scan deeper", from))
+			return nil
+		}
+	case depth <= 1000:
+		depths := make([]int, depth)
+		for i := range depths {
+			depths[i] = i + 1
+		}
+		r, err := moments.Exact(ctx, s.graph, s.schedule, s.ensemble, depths, moments.ExactEps(eps), moments.ExactCurveOnly())
+		if err != nil {
+			// No exact moments for this gate set or size: nothing to check
+			// against without --from.
+			return nil
+		}
+		doc.DepthSource = "exact E[Z]"
+		ac, found = r.Depth, r.Found
+		if !found {
+			doc.Warnings = append(doc.Warnings, fmt.Sprintf("depth %d has not anti-concentrated: the exact R = E[Z]/Z_H there is %.4f > 1+eps = %.4f, so the raw linear XEB overstates the fidelity; use deeper circuits (see mixdepth exact)",
+				depth, r.Ratio[len(r.Ratio)-1], 1+eps))
+			spread := false
+			doc.Spread = &spread
+			return nil
+		}
+	default:
+		return nil
+	}
+	spread := depth >= ac
+	doc.AnticoncentrationDepth, doc.Spread = &ac, &spread
+	if !spread {
+		doc.Warnings = append(doc.Warnings, fmt.Sprintf("depth %d is below the chip's anti-concentration depth %d (%s, eps %g): the raw linear XEB overstates the fidelity there; plan for depth %d or more",
+			depth, ac, doc.DepthSource, eps, ac))
+	}
 	return nil
 }

@@ -28,8 +28,13 @@
 // deviation and the standard error. With fewer than two values the spread is
 // unknown, so StdDev and StdErr are NaN, and MeanInterval and RatioInterval
 // return the unbounded interval (−Inf, +Inf) rather than a false precision.
+// MeanIntervalBCa is the bootstrap interval of a scan's R (positive, right
+// for skewed data; none below MinIntervalValues values), HaarPTBaseline the
+// Porter–Thomas distance of Haar-random states of one dimension, and
+// Criteria.Judge and RecommendedDepth the verdict of a depth and of a scan.
 // AnticoncentrationDepth picks the smallest depth whose upper confidence bound
-// of R = E[Z]/Z_H is at most 1+ε.
+// of R = E[Z]/Z_H is at most 1+ε. ClusterBootstrap gives the error of a
+// ratio over instances (the XEB fidelity estimate).
 //
 // Cross-entropy benchmarks (Boixo et al. 2018, Nature Physics 14, 595; Arute
 // et al. 2019, Nature 574, 505): LinearXEB, LogXEB and the sample-count

@@ -78,14 +78,14 @@ var scanFields = []tables.Field{
 	{Name: "collision", Type: tables.Float64, Unit: "probability", Doc: "collision probability Z = Σ p(x)²"},
 	{Name: "collision_ratio", Type: tables.Float64, Doc: "Z / Z_H with Z_H = 2/(D+1)"},
 	{Name: "pt_ks", Type: tables.Float64, Doc: "Kolmogorov–Smirnov distance of the output probabilities to Beta(1, D−1)"},
-	{Name: "xeb_ideal", Type: tables.Float64, Doc: "linear XEB of an ideal sampler, D·Z − 1"},
+	{Name: "ideal_xeb", Type: tables.Float64, Doc: "linear XEB of an ideal sampler, D·Z − 1"},
 }
 
 // scanExactField is the extra column of a scan with the exact E[Z].
 var scanExactField = tables.Field{Name: "collision_exact", Type: tables.Float64, Unit: "probability", Doc: "exact ensemble average E[Z] at this depth (scan --exact)"}
 
 // ScanFields returns the columns of a per-instance scan table: depth,
-// gate_count, instance, collision, collision_ratio, pt_ks, xeb_ideal, and
+// gate_count, instance, collision, collision_ratio, pt_ks, ideal_xeb, and
 // collision_exact when exact is set. The slice is new on every call.
 func ScanFields(exact bool) []tables.Field {
 	f := slices.Clone(scanFields)
@@ -131,7 +131,11 @@ func scanRecords(t *tables.Table) ([]scan.Record, error) {
 	z, err4 := t.Float64s("collision")
 	ratio, err5 := t.Float64s("collision_ratio")
 	ks, err6 := t.Float64s("pt_ks")
-	xeb, err7 := t.Float64s("xeb_ideal")
+	xeb, err7 := t.Float64s("ideal_xeb")
+	if _, ok := t.Column("ideal_xeb"); !ok {
+		// Tables written before the column took score's name.
+		xeb, err7 = t.Float64s("xeb_ideal")
+	}
 	if err := errors.Join(err1, err2, err3, err4, err5, err6, err7); err != nil {
 		return nil, err
 	}

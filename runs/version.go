@@ -29,7 +29,7 @@ type Header struct {
 	Graph       string                `json:"graph"`
 	GraphDigest string                `json:"graph_digest"`
 	Qubits      int                   `json:"qubits"`
-	Edges       int                   `json:"edges"`
+	Edges       int                   `json:"couplers"`
 	Schedule    circuits.ScheduleKind `json:"schedule"`
 	Gates       string                `json:"gates"`
 }

@@ -260,7 +260,7 @@ func TestShow(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(records) != 1+tab.Len() || strings.Join(records[0], ",") != "depth,gate_count,instance,collision,collision_ratio,pt_ks,xeb_ideal" {
+	if len(records) != 1+tab.Len() || strings.Join(records[0], ",") != "depth,gate_count,instance,collision,collision_ratio,pt_ks,ideal_xeb" {
 		t.Fatalf("csv: %d records, header %v", len(records), records[0])
 	}
 	z, _ := tab.Float64s("collision")

@@ -164,7 +164,7 @@ func TestScanJSONFields(t *testing.T) {
 	if err := json.Unmarshal([]byte(stdout), &doc); err != nil {
 		t.Fatal(err)
 	}
-	for _, k := range []string{"qubits", "edges", "haar_collision", "seed", "instances", "eps", "recommended_depth", "pt_ks_haar", "rule", "pt_margin", "rows"} {
+	for _, k := range []string{"qubits", "couplers", "haar_collision", "seed", "instances", "eps", "recommended_depth", "pt_ks_haar", "rule", "pt_margin", "rows"} {
 		if _, ok := doc[k]; !ok {
 			t.Errorf("missing top-level field %q", k)
 		}

@@ -35,10 +35,10 @@ type planJSON struct {
 	FidelitySource      string     `json:"fidelity_source"`
 	Sigmas              *float64   `json:"sigmas"`
 	RelPrecision        *float64   `json:"rel_precision"`
-	SamplesSigmas       *int64     `json:"samples_sigmas"`
-	SamplesRelPrecision *int64     `json:"samples_rel_precision"`
-	Samples             int64      `json:"samples"`
-	// Instances and ShotsPerInstance split Samples (at least
+	ShotsSigmas         *int64     `json:"shots_sigmas"`
+	ShotsRelPrecision   *int64     `json:"shots_rel_precision"`
+	Shots               int64      `json:"shots"`
+	// Instances and ShotsPerInstance split Shots (at least
 	// stats.MinIntervalValues instances, for an error bar over instances).
 	Instances        int   `json:"instances"`
 	ShotsPerInstance int64 `json:"shots_per_instance"`
@@ -163,8 +163,8 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		if err != nil {
 			return err
 		}
-		doc.Sigmas, doc.SamplesSigmas = &z, &v
-		doc.Samples = v
+		doc.Sigmas, doc.ShotsSigmas = &z, &v
+		doc.Shots = v
 	}
 	if useRel {
 		r := *rel
@@ -172,11 +172,11 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		if err != nil {
 			return err
 		}
-		doc.RelPrecision, doc.SamplesRelPrecision = &r, &v
-		doc.Samples = max(doc.Samples, v)
+		doc.RelPrecision, doc.ShotsRelPrecision = &r, &v
+		doc.Shots = max(doc.Shots, v)
 	}
 	doc.Instances = stats.MinIntervalValues
-	doc.ShotsPerInstance = (doc.Samples + int64(doc.Instances) - 1) / int64(doc.Instances)
+	doc.ShotsPerInstance = (doc.Shots + int64(doc.Instances) - 1) / int64(doc.Instances)
 	doc.Eps, doc.Warnings = *eps, []string{}
 	if err := planDepthCheck(ctx, fs, s, *depth, *eps, *from, &doc); err != nil {
 		return err
@@ -201,17 +201,17 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	}
 	fmt.Fprintln(stdout)
 	if useSigmas {
-		fmt.Fprintf(stdout, "shots to tell F from 0 at %gσ:        N = z²(1 + 2F − F²)/F² = %d\n", *sigmas, *doc.SamplesSigmas)
+		fmt.Fprintf(stdout, "shots to tell F from 0 at %gσ:        N = z²(1 + 2F − F²)/F² = %d\n", *sigmas, *doc.ShotsSigmas)
 	}
 	if useRel {
-		fmt.Fprintf(stdout, "shots for a standard error of %g·F:  N = (1 + 2F − F²)/(r·F)² = %d\n", *rel, *doc.SamplesRelPrecision)
+		fmt.Fprintf(stdout, "shots for a standard error of %g·F:  N = (1 + 2F − F²)/(r·F)² = %d\n", *rel, *doc.ShotsRelPrecision)
 	}
 	fmt.Fprintf(stdout, "plan for N = %d shots in all (pooled over the instances): for example %d instances × %d shots;\n"+
 		"the formulas count shots only, so use at least %d instances, more when circuits differ in fidelity: the\n"+
 		"variance of the estimate is σ_b²/M + (1 + 2F − F²)/(M·m) for M instances of m shots, σ_b² the\n"+
 		"circuit-to-circuit variance (two-stage sampling, Cochran 1977, Sampling Techniques, ch. 10), which\n"+
 		"score's error over instances includes\n",
-		doc.Samples, doc.Instances, doc.ShotsPerInstance, stats.MinIntervalValues)
+		doc.Shots, doc.Instances, doc.ShotsPerInstance, stats.MinIntervalValues)
 	if doc.AnticoncentrationDepth != nil {
 		fmt.Fprintf(stdout, "anti-concentration depth of the chip (eps %g, %s): %d; --depth %d %s\n", *eps, doc.DepthSource,
 			*doc.AnticoncentrationDepth, *depth, map[bool]string{true: "reaches it", false: "is below it (see the warning)"}[*doc.Spread])

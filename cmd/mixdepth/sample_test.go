@@ -184,12 +184,12 @@ func TestSampleScore(t *testing.T) {
 	if err := json.Unmarshal([]byte(stdout), &raw); err != nil {
 		t.Fatal(err)
 	}
-	for _, k := range []string{"linear_xeb", "linear_xeb_stderr", "log_xeb", "log_xeb_stderr", "normalized_xeb", "instances"} {
+	for _, k := range []string{"linear_xeb", "linear_xeb_stderr", "log_xeb", "log_xeb_stderr", "normalized_xeb", "instance_scores"} {
 		if _, ok := raw[k]; !ok {
 			t.Errorf("score --json has no %q", k)
 		}
 	}
-	first := raw["instances"].([]any)[0].(map[string]any)
+	first := raw["instance_scores"].([]any)[0].(map[string]any)
 	for _, k := range []string{"instance", "linear_xeb", "linear_xeb_stderr", "log_xeb", "log_xeb_stderr", "ideal_xeb", "normalized_xeb"} {
 		if _, ok := first[k]; !ok {
 			t.Errorf("score --json instances[0] has no %q", k)
@@ -353,8 +353,8 @@ func TestPlan(t *testing.T) {
 	if doc.TwoQubitGates != 6 || doc.SingleQubitGates != 0 || math.Abs(doc.PredictedFidelity-f) > 1e-12 {
 		t.Errorf("gates %d/%d, fidelity %v; want 6/0 and %v", doc.TwoQubitGates, doc.SingleQubitGates, doc.PredictedFidelity, f)
 	}
-	if *doc.SamplesSigmas != int64(nz) || *doc.SamplesRelPrecision != int64(nr) || doc.Samples != int64(max(nz, nr)) {
-		t.Errorf("samples %d, %d, %d; want %v, %v", *doc.SamplesSigmas, *doc.SamplesRelPrecision, doc.Samples, nz, nr)
+	if *doc.ShotsSigmas != int64(nz) || *doc.ShotsRelPrecision != int64(nr) || doc.Shots != int64(max(nz, nr)) {
+		t.Errorf("samples %d, %d, %d; want %v, %v", *doc.ShotsSigmas, *doc.ShotsRelPrecision, doc.Shots, nz, nr)
 	}
 	// A dressed gate set G·(u_a ⊗ u_b) with a final layer: 2 single-qubit
 	// gates per two-qubit gate plus one per qubit.
@@ -365,15 +365,15 @@ func TestPlan(t *testing.T) {
 	// --fidelity alone, the default 5σ: Arute et al.'s f ≈ 0.002 needs
 	// about 25/f² ≈ 6.3 million shots.
 	doc = plan("--fidelity", "0.002")
-	if doc.ErrorModelFidelity != nil || doc.SamplesRelPrecision != nil || doc.Samples != int64(math.Ceil(stats.XEBSamples(0.002, 5))) {
+	if doc.ErrorModelFidelity != nil || doc.ShotsRelPrecision != nil || doc.Shots != int64(math.Ceil(stats.XEBSamples(0.002, 5))) {
 		t.Errorf("--fidelity 0.002: %+v", doc)
 	}
-	if doc.Samples < 6_200_000 || doc.Samples > 6_300_000 {
-		t.Errorf("--fidelity 0.002: %d samples, want about 25·1.004/0.002² ≈ 6.27 million", doc.Samples)
+	if doc.Shots < 6_200_000 || doc.Shots > 6_300_000 {
+		t.Errorf("--fidelity 0.002: %d samples, want about 25·1.004/0.002² ≈ 6.27 million", doc.Shots)
 	}
 	// --rel-precision alone drops the default --sigmas.
 	doc = plan("--fidelity", "0.5", "--rel-precision", "0.1")
-	if doc.SamplesSigmas != nil || doc.Samples != int64(math.Ceil(1.75/0.0025)) {
+	if doc.ShotsSigmas != nil || doc.Shots != int64(math.Ceil(1.75/0.0025)) {
 		t.Errorf("--rel-precision alone: %+v", doc)
 	}
 }

@@ -233,8 +233,13 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 // saveScanPlot draws the depth plot of a scan's curve (scan --plot and
 // summarize --plot), with the exact ratios when exact is not nil.
 func saveScanPlot(path string, s *setup, sum *scan.Curve, exact []float64) error {
-	return plots.SaveDepthPlot(path, curveSeries(sum, exact), sum.Criteria.Eps, plots.WithConfidence(sum.Criteria.Confidence),
-		plots.WithDepthUnit(depthUnit(s)), plots.WithTitle(s.graph.Name+", "+s.ensemble.Name()+" gates"))
+	opts := []plots.Option{plots.WithConfidence(sum.Criteria.Confidence), plots.WithDepthUnit(depthUnit(s)),
+		plots.WithTitle(s.graph.Name + ", " + s.ensemble.Name() + " gates")}
+	if sum.Criteria.Rule != stats.RuleCollision {
+		opts = append(opts, plots.WithRule(fmt.Sprintf("R's interval is in 1 ± ε, PT dist ≤ %.3g",
+			sum.PTBaseline.Mean+sum.Criteria.PTMargin)))
+	}
+	return plots.SaveDepthPlot(path, curveSeries(sum, exact), sum.Criteria.Eps, opts...)
 }
 
 // depthUnit names what a depth counts, for plot axes.
@@ -390,7 +395,7 @@ func scanVerdict(sum *scan.Curve) string {
 	}
 	for _, r := range sum.Rows {
 		if r.Depth == sum.Depth {
-			return fmt.Sprintf("Recommended depth: %d (%d gates), the first depth from which every requested depth is spread: %s.\n"+
+			return fmt.Sprintf("Recommended depth: %d (%d gates), the first depth from which every later requested depth is spread: %s.\n"+
 				"Requiring every later depth to pass keeps the %s level for the whole claim (an intersection–union test), not once per depth.",
 				r.Depth, r.GateCount, rule, level)
 		}

@@ -45,7 +45,7 @@ type scoreJSON struct {
 	Eps                          float64             `json:"eps"`
 	Spread                       bool                `json:"spread"`
 	Warnings                     []string            `json:"warnings"`
-	Instances                    []scoreJSONInstance `json:"instances"`
+	Instances                    []scoreJSONInstance `json:"instance_scores"`
 }
 
 type scoreJSONInstance struct {

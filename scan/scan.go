@@ -370,6 +370,10 @@ type Row struct {
 	// tables and the human report).
 	Verdict stats.Verdict
 	Spread  bool
+	// RWithin and PTNear are the verdict's two criteria on their own
+	// (stats.Criteria.RWithin, PTNear; PTNear is not judged, and false,
+	// under stats.RuleCollision).
+	RWithin, PTNear bool
 }
 
 // Curve is the per-depth result of a scan: one Row per depth.
@@ -428,6 +432,8 @@ func Estimate(qubits int, records []Record, c stats.Criteria) *Curve {
 		row.KSMean = stats.Summarize(ks[k]).Mean
 		row.Verdict = c.Judge(row.Lower, row.Upper, ok, row.KSMean, s.PTBaseline.Mean)
 		row.Spread = row.Verdict == stats.VerdictSpread
+		row.RWithin = c.RWithin(row.Lower, row.Upper, ok)
+		row.PTNear = c.Rule != stats.RuleCollision && c.PTNear(row.KSMean, s.PTBaseline.Mean)
 		depths[k], verdicts[k] = row.Depth, row.Verdict
 	}
 	s.Depth, s.Found = stats.RecommendedDepth(depths, verdicts)

@@ -111,6 +111,22 @@ func (c Criteria) Judge(lower, upper float64, ok bool, pt, baseline float64) Ver
 	return VerdictSpread
 }
 
+// RWithin reports criterion (a): R's interval [lower, upper] exists (ok)
+// and lies within [1−eps, 1+eps] (under RuleCollision: upper ≤ 1+eps).
+func (c Criteria) RWithin(lower, upper float64, ok bool) bool {
+	if !ok {
+		return false
+	}
+	if c.Rule == RuleCollision {
+		return upper <= 1+c.Eps
+	}
+	return lower >= 1-c.Eps && upper <= 1+c.Eps
+}
+
+// PTNear reports criterion (b): the mean Porter–Thomas distance pt is at
+// most baseline + PTMargin.
+func (c Criteria) PTNear(pt, baseline float64) bool { return pt <= baseline+c.PTMargin }
+
 // RecommendedDepth returns the first depth from which every later requested
 // depth is spread, and false when the last depth is not. Asking every later
 // depth to pass, each at its own level, is an intersection–union test, so

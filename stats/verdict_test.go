@@ -110,8 +110,14 @@ func TestJudge(t *testing.T) {
 		{r, 0.80, 1.06, true, 0.05, VerdictShallow, "collision rule, upper end above"},
 	}
 	for _, c := range cases {
-		if got := c.c.Judge(c.lo, c.hi, c.ok, c.pt, 0.045); got != c.want {
+		got := c.c.Judge(c.lo, c.hi, c.ok, c.pt, 0.045)
+		if got != c.want {
 			t.Errorf("%s: %s, want %s", c.whatItTest, got, c.want)
+		}
+		// Spread is exactly both criteria (the collision rule: the first).
+		both := c.c.RWithin(c.lo, c.hi, c.ok) && (c.c.Rule == RuleCollision || c.c.PTNear(c.pt, 0.045))
+		if (got == VerdictSpread) != both {
+			t.Errorf("%s: verdict %s but criteria %v", c.whatItTest, got, both)
 		}
 	}
 	if !mustPanic(func() { Criteria{Eps: 0.05, Confidence: 0.95, Rule: "r"}.Check() }) {

@@ -173,7 +173,7 @@ func TestScanJSONFields(t *testing.T) {
 	if len(rows) != 3 {
 		t.Fatalf("%d rows, want 3", len(rows))
 	}
-	for _, k := range []string{"depth", "gate_count", "collision_mean", "collision_stderr", "collision_ratio", "ratio_lower", "ratio_upper", "pt_ks_mean", "verdict", "spread"} {
+	for _, k := range []string{"depth", "gate_count", "collision_mean", "collision_stderr", "collision_ratio", "ratio_lower", "ratio_upper", "pt_ks_mean", "verdict", "spread", "r_within_band", "pt_near_haar"} {
 		if _, ok := rows[0].(map[string]any)[k]; !ok {
 			t.Errorf("missing row field %q", k)
 		}

@@ -54,6 +54,11 @@ type scanJSONRow struct {
 	// Verdict is one of the stats.Verdict words; Spread is verdict = spread.
 	Verdict stats.Verdict `json:"verdict"`
 	Spread  bool          `json:"spread"`
+	// RWithin and PTNear are the two criteria: R's interval within the band
+	// and the PT distance within the margin of pt_ks_haar (null under the
+	// collision rule).
+	RWithin bool  `json:"r_within_band"`
+	PTNear  *bool `json:"pt_near_haar"`
 	// CollisionExact and ExactDeviation are set with --exact: the exact
 	// E[Z] and (mean − exact)/stderr.
 	CollisionExact *float64 `json:"collision_exact,omitempty"`
@@ -265,10 +270,14 @@ func scanDocument(s *setup, seed uint64, instances int, sum *scan.Curve) scanJSO
 		doc.RecommendedDepth = &d
 	}
 	for _, r := range sum.Rows {
+		var near *bool
+		if c.Rule != stats.RuleCollision {
+			near = &r.PTNear
+		}
 		doc.Rows = append(doc.Rows, scanJSONRow{
 			Depth: r.Depth, GateCount: r.GateCount, CollisionMean: r.Collision.Mean, CollisionStder: finiteOrNull(r.Collision.StdErr),
 			CollisionRatio: r.Ratio, RatioLower: finiteOrNull(r.Lower), RatioUpper: finiteOrNull(r.Upper), PTKSMean: r.KSMean,
-			Verdict: r.Verdict, Spread: r.Spread,
+			Verdict: r.Verdict, Spread: r.Spread, RWithin: r.RWithin, PTNear: near,
 		})
 	}
 	return doc

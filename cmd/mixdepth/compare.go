@@ -18,7 +18,7 @@ func init() {
 var compareKeys = []string{"graph", "schedule", "layout", "gates", "gate_set_digest", "precision", "seed", "instances"}
 
 func runCompare(ctx context.Context, args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("compare", "mixdepth compare FILE... --plot OUT: each FILE is the per-instance scan table of one run.\n\nSummarises each run as summarize does and draws their R − 1 curves on one chart, with its\nconfidence bounds as error bars; the legend names each run by the parameters in which the\nruns differ (graph, schedule, gates, ...) and gives its recommended depth.",
+	fs := newFlags("compare", "mixdepth compare FILE... --plot OUT: each FILE is the per-instance scan table of one run.\n\nSummarises each run as summarize does and draws their R − 1 curves on one chart, with their\nconfidence bounds as error bars; the legend names each run by the parameters in which the\nruns differ (graph, schedule, gates, ...) and gives its recommended depth.",
 		"mixdepth compare haar.parquet cz.parquet iswap.parquet --plot gates.png", stdout)
 	vf := addRecordedVerdictFlags(fs)
 	plot := fs.String("plot", "", "write the chart to FILE.png or FILE.svg (required)")

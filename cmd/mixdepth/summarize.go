@@ -27,7 +27,7 @@ const (
 
 // recorded says, in summarize --help, where a verdict flag's default comes
 // from.
-const recorded = "; default: the value the tables record (scan's default for tables that record none)"
+const recorded = "; unless given, the value the tables record (the default shown is for tables that record none)"
 
 // recordedCriteria returns the verdict criteria a scan table records, with
 // scan's defaults for the keys it lacks (tables written before scan

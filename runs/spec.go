@@ -22,6 +22,8 @@ type Options struct {
 	Gates string
 	// Seed keys the per-instance random streams.
 	Seed uint64
+	// Drop lists out-of-service qubits and couplers (circuits.Drop), or "".
+	Drop string
 }
 
 // Spec is a run's circuits: what a table must record to rebuild every gate of
@@ -62,8 +64,9 @@ func (e *OptionError) Unwrap() error { return e.Err }
 // NewSpec builds the graph, schedule and ensemble that o selects: the demo
 // chip with its layout when o names neither a graph nor a layout; a layout
 // file's graph (or the given graph, checked against it); the layered
-// schedule's classes of circuits.LayeredClasses unless a layout gives them.
-// Every failure is an *OptionError.
+// schedule's classes of circuits.LayeredClasses unless a layout gives them;
+// then the elements of Drop removed from the graph and the layout. Every
+// failure is an *OptionError.
 func NewSpec(o Options) (*Spec, error) {
 	s := &Spec{Layout: o.Layout, Seed: o.Seed}
 	var layout *circuits.Layout
@@ -95,6 +98,16 @@ func NewSpec(o Options) (*Spec, error) {
 			return nil, &OptionError{Option: "graph", Err: err}
 		}
 		s.Graph = g
+	}
+	if o.Drop != "" {
+		d, err := circuits.Drop(s.Graph, o.Drop, circuits.ReadOptions{})
+		if err != nil {
+			return nil, &OptionError{Option: "drop", Err: err}
+		}
+		s.Graph = d.Graph
+		if layout != nil {
+			layout = layout.Drop(d)
+		}
 	}
 	switch o.Schedule {
 	case "layered", "":

@@ -270,7 +270,7 @@ func readCircuitFile(path string) (*sampling.CircuitFile, error) {
 // total is the full run's instance count when the table records it (ids at
 // or above it are unknown), else 0.
 func scoreSetup(changed func(string) bool, cf *circuitFlags, depth int, meta tables.Meta, sampled bool, path string) (s *setup, seed uint64, d, total int, err error) {
-	flagged := changed("graph") || changed("layout") || changed("schedule") || changed("gates")
+	flagged := changed("graph") || changed("layout") || changed("schedule") || changed("gates") || changed("drop")
 	if sampled && !flagged {
 		if s, err = setupFromMeta(meta); err != nil {
 			return nil, 0, 0, 0, badInput("%s: cannot rebuild its circuits: %v; give --circuits FILE.json or the circuit flags", path, err)

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"os"
 	"runtime"
+	"strings"
 
 	"github.com/spf13/pflag"
 	"golang.org/x/term"
@@ -18,12 +19,13 @@ const defaultSeed = 20261201
 
 // circuitFlags are the flags of every command that builds circuits.
 type circuitFlags struct {
-	graph, layout, schedule, gates string
-	seed                           uint64
+	graph, layout, schedule, gates, drop string
+	seed                                 uint64
 }
 
 func (c *circuitFlags) add(fs *pflag.FlagSet) {
-	fs.StringVar(&c.graph, "graph", "", "coupling graph: line:N, ring:N, grid:RxC, complete:N, star:N, or an edge-list file (default: the demo chip)")
+	fs.StringVar(&c.graph, "graph", "", "coupling graph: a family ("+strings.Join(circuits.Families, ", ")+") or an edge-list file (default: the demo chip); mixdepth graph shows it")
+	fs.StringVar(&c.drop, "drop", "", "out-of-service qubits and couplers to remove, as Q,Q,A-B,… in the graph's labels")
 	fs.StringVar(&c.layout, "layout", "", "layout file (JSON) with explicit gate layers; overrides the layered schedule's classes")
 	fs.StringVar(&c.schedule, "schedule", "layered", "gate schedule: layered or random-edge")
 	fs.StringVar(&c.gates, "gates", "haar", "two-qubit gate set: haar, clifford, cz+haar1, cnot+haar1, iswap+haar1, sqrt-iswap+haar1, or a gate-set JSON file")
@@ -49,7 +51,7 @@ func newSetup(sp *runs.Spec) *setup {
 
 // resolve builds the graph, schedule and ensemble; every failure is bad input.
 func (c *circuitFlags) resolve() (*setup, error) {
-	sp, err := runs.NewSpec(runs.Options{Graph: c.graph, Layout: c.layout, Schedule: c.schedule, Gates: c.gates, Seed: c.seed})
+	sp, err := runs.NewSpec(runs.Options{Graph: c.graph, Layout: c.layout, Schedule: c.schedule, Gates: c.gates, Seed: c.seed, Drop: c.drop})
 	var oe *runs.OptionError
 	if errors.As(err, &oe) {
 		if oe.Value != "" {
@@ -75,7 +77,11 @@ func (s *setup) describe() string {
 	default:
 		sched = "random-edge schedule (one gate per step)"
 	}
-	return fmt.Sprintf("%s: %d qubits, %d couplers; %s; %s gates", s.graph.Name, s.graph.Qubits, len(s.graph.Edges), sched, s.ensemble.Name())
+	name := s.graph.Name
+	if d := s.graph.Dropped; len(d) > 0 {
+		name += " without " + strings.Join(d, ",")
+	}
+	return fmt.Sprintf("%s: %d qubits, %d couplers; %s; %s gates", name, s.graph.Qubits, len(s.graph.Edges), sched, s.ensemble.Name())
 }
 
 // The bounds of --depths and --instances.

@@ -20,6 +20,7 @@ import (
 
 	"mixdepth/circuits"
 	"mixdepth/moments"
+	"mixdepth/stats"
 )
 
 // MaxSpectrumQubits bounds the chips whose Laplacian is diagonalised (a
@@ -55,8 +56,12 @@ type Report struct {
 	// (moments.SpectralGap), nil for a chip in parts or of more than
 	// moments.GapMaxQubits qubits.
 	Gap *moments.Gap
+	// HaarCollision is the Haar value 2/(D+1) of the whole chip, D = 2^n
+	// (stats.HaarCollision).
+	HaarCollision float64
 	// HaarLimit is the value E[Z] tends to at large depth: the product over
-	// the parts of their Haar collision probabilities (PartLimit).
+	// the parts of their Haar collision probabilities (PartLimit); it equals
+	// HaarCollision for a connected chip.
 	HaarLimit float64
 }
 
@@ -80,6 +85,7 @@ func Describe(ctx context.Context, g *circuits.Graph, layers [][]circuits.Edge, 
 	if g.Qubits <= MaxSpectrumQubits {
 		r.AlgebraicConnectivity = AlgebraicConnectivity(g)
 	}
+	r.HaarCollision = stats.HaarCollision(math.Ldexp(1, g.Qubits))
 	r.HaarLimit = 1
 	for _, c := range r.Components {
 		r.HaarLimit *= PartLimit(len(c), false)

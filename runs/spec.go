@@ -24,6 +24,11 @@ type Options struct {
 	Seed uint64
 	// Drop lists out-of-service qubits and couplers (circuits.Drop), or "".
 	Drop string
+	// AllowDisconnected accepts a chip with isolated qubits or several
+	// parts. Only a description of the chip sets it: the run commands
+	// measure R against the Haar value of the whole chip, which such a chip
+	// never reaches.
+	AllowDisconnected bool
 }
 
 // Spec is a run's circuits: what a table must record to rebuild every gate of
@@ -39,6 +44,11 @@ type Spec struct {
 	// its layout.
 	Demo bool
 	Seed uint64
+	// Chip is the graph before Drop removed anything, and Kept maps its
+	// qubits to those of Graph (−1 for a dropped qubit); Chip is Graph and
+	// Kept nil when nothing was dropped.
+	Chip *circuits.Graph
+	Kept []int
 }
 
 // OptionError reports an option that does not select valid circuits. Option
@@ -69,6 +79,7 @@ func (e *OptionError) Unwrap() error { return e.Err }
 // failure is an *OptionError.
 func NewSpec(o Options) (*Spec, error) {
 	s := &Spec{Layout: o.Layout, Seed: o.Seed}
+	ro := circuits.ReadOptions{AllowDisconnected: o.AllowDisconnected}
 	var layout *circuits.Layout
 	switch {
 	case o.Graph == "" && o.Layout == "":
@@ -83,7 +94,7 @@ func NewSpec(o Options) (*Spec, error) {
 		if o.Graph == "" {
 			s.Graph = l.Graph(o.Layout)
 		} else {
-			g, err := circuits.ParseGraph(o.Graph)
+			g, err := circuits.ParseGraphWith(o.Graph, ro)
 			if err != nil {
 				return nil, &OptionError{Option: "graph", Err: err}
 			}
@@ -93,18 +104,19 @@ func NewSpec(o Options) (*Spec, error) {
 			s.Graph = g
 		}
 	default:
-		g, err := circuits.ParseGraph(o.Graph)
+		g, err := circuits.ParseGraphWith(o.Graph, ro)
 		if err != nil {
 			return nil, &OptionError{Option: "graph", Err: err}
 		}
 		s.Graph = g
 	}
+	s.Chip = s.Graph
 	if o.Drop != "" {
-		d, err := circuits.Drop(s.Graph, o.Drop, circuits.ReadOptions{})
+		d, err := circuits.Drop(s.Graph, o.Drop, ro)
 		if err != nil {
 			return nil, &OptionError{Option: "drop", Err: err}
 		}
-		s.Graph = d.Graph
+		s.Graph, s.Kept = d.Graph, d.New
 		if layout != nil {
 			layout = layout.Drop(d)
 		}

@@ -50,8 +50,14 @@ func newSetup(sp *runs.Spec) *setup {
 }
 
 // resolve builds the graph, schedule and ensemble; every failure is bad input.
-func (c *circuitFlags) resolve() (*setup, error) {
-	sp, err := runs.NewSpec(runs.Options{Graph: c.graph, Layout: c.layout, Schedule: c.schedule, Gates: c.gates, Seed: c.seed, Drop: c.drop})
+func (c *circuitFlags) resolve() (*setup, error) { return c.resolveWith(func(*runs.Options) {}) }
+
+// resolveWith is resolve with a change to the options before the spec is
+// built.
+func (c *circuitFlags) resolveWith(change func(*runs.Options)) (*setup, error) {
+	o := runs.Options{Graph: c.graph, Layout: c.layout, Schedule: c.schedule, Gates: c.gates, Seed: c.seed, Drop: c.drop}
+	change(&o)
+	sp, err := runs.NewSpec(o)
 	var oe *runs.OptionError
 	if errors.As(err, &oe) {
 		if oe.Value != "" {

@@ -2,6 +2,7 @@ package main
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -24,12 +25,13 @@ func init() {
 const graphListMax = 64
 
 func runGraph(ctx context.Context, args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("graph", "mixdepth graph [SPEC|FILE]: SPEC is a graph family ("+strings.Join(circuits.Families, ", ")+"),\n"+
-		"FILE an edge-list file; with neither, the demo chip.\n\n"+
+	fs := newFlags("graph", "mixdepth graph [SPEC|FILE]: SPEC is a graph family, FILE an edge-list file; with neither, the\n"+
+		"demo chip. Families: "+strings.Join(circuits.Families, ", ")+".\n\n"+
 		"Prints what the other commands will use: the qubits and couplers (with their labels), the\n"+
 		"degree histogram, the connected parts, the diameter, whether the chip is bipartite, the layers\n"+
 		"of the layered schedule and where they come from, the algebraic connectivity of the graph\n"+
-		"Laplacian and, up to 20 qubits, the spectral gap of the random-edge schedule with Haar gates.\n"+
+		"Laplacian and, up to 20 qubits, the spectral gap of the random-edge schedule with Haar gates\n"+
+		"(about a minute of computing at 20 qubits).\n"+
 		"--plot draws the chip with its couplers coloured by layer and dropped elements faded.",
 		"mixdepth graph chip.edges --drop Q7,Q3-Q4 --plot chip.png", stdout)
 	layout := fs.String("layout", "", "layout file (JSON) with explicit gate layers")
@@ -55,14 +57,22 @@ func runGraph(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	}
 	cf := circuitFlags{graph: spec, layout: *layout, drop: *drop}
 	s, err := cf.resolveWith(func(o *runs.Options) { o.AllowDisconnected = *allow })
+	var ue usageError
+	if errors.As(err, &ue) && spec != "" {
+		// The graph is an argument here, not --graph.
+		return usageError{errors.New(strings.Replace(ue.Error(), "--graph: ", "", 1))}
+	}
 	if err != nil {
 		return err
 	}
 	sp := s.spec
 	layers := s.schedule.(*circuits.Layered).Classes
 	source := circuits.ClassSource(sp.Graph)
-	if sp.Layout != "" {
+	switch {
+	case sp.Layout != "":
 		source = "the layout file " + sp.Layout
+	case sp.Demo:
+		source = "the demo chip's layout"
 	}
 	r, err := chip.Describe(ctx, sp.Graph, layers, source, *workers)
 	if err != nil {
@@ -201,6 +211,8 @@ func printGraph(w io.Writer, sp *runs.Spec, r *chip.Report) {
 		fmt.Fprintf(w, "random-edge schedule, Haar gates: second eigenvalue %.9f of the moment operator, gap Δ = |E|(1 − λ₂) = %.6g\n", r.Gap.SecondEigenvalue, r.Gap.HamiltonianGap)
 	case len(r.Components) == 1:
 		fmt.Fprintf(w, "random-edge gap: not computed above %d qubits\n", moments.GapMaxQubits)
+	default:
+		fmt.Fprintln(w, "random-edge gap: 0 (identity on one part and swap on another stay fixed, so the second eigenvalue is 1)")
 	}
 	if len(r.Components) > 1 {
 		fmt.Fprintf(w, "a chip in parts never reaches the Haar value 2/(D+1) = %.6g: E[Z] tends to the product of the parts' Haar values, %.6g (an isolated qubit counts 1)\n",

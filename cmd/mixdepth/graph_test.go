@@ -3,9 +3,11 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"fmt"
 	"image/png"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 )
@@ -187,5 +189,58 @@ func TestChipBadInput(t *testing.T) {
 		if code != 2 || strings.Count(strings.TrimSpace(stderr), "\n") != 0 || strings.Contains(stderr, "panic") {
 			t.Errorf("%v: exit %d, stderr %q; want exit 2 and one line", args, code, stderr)
 		}
+	}
+}
+
+// TestScoreBitOrder: measured data written with qubit 0 last scores as
+// unrelated outputs; score says so, and --bit-order last gives exactly the
+// score of the data in the tool's order.
+func TestScoreBitOrder(t *testing.T) {
+	dir := t.TempDir()
+	out := filepath.Join(dir, "s.parquet")
+	args := []string{"--graph", "grid:2x3", "--depth", "12", "--instances", "4", "--seed", "5"}
+	sampleOK(t, append(append([]string{"sample"}, args...), "--shots", "500", "--out", out)...)
+	tab := sampleTable(t, out)
+	ids, err := tab.Int64s("instance")
+	if err != nil {
+		t.Fatal(err)
+	}
+	bits, err := tab.Strings("bitstring")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var first, last strings.Builder
+	first.WriteString("instance,bitstring\n")
+	last.WriteString("instance,bitstring\n")
+	for i := range ids {
+		b := []byte(bits[i])
+		fmt.Fprintf(&first, "%d,%s\n", ids[i], b)
+		slices.Reverse(b)
+		fmt.Fprintf(&last, "%d,%s\n", ids[i], b)
+	}
+	firstCSV := writeFile(t, dir, "first.csv", first.String())
+	lastCSV := writeFile(t, dir, "last.csv", last.String())
+	scoreArgs := []string{"--graph", "grid:2x3", "--depth", "12", "--seed", "5"}
+	want := scoreDoc(t, append([]string{firstCSV}, scoreArgs...)...)
+	got := scoreDoc(t, append([]string{lastCSV, "--bit-order", "last"}, scoreArgs...)...)
+	if *got.LinearXEB != *want.LinearXEB || *got.NormalizedXEB != *want.NormalizedXEB {
+		t.Errorf("--bit-order last: XEB %v, want %v", *got.LinearXEB, *want.LinearXEB)
+	}
+	wrong := scoreDoc(t, append([]string{lastCSV}, scoreArgs...)...)
+	found := false
+	for _, w := range wrong.Warnings {
+		found = found || strings.Contains(w, "--bit-order last")
+	}
+	if !found {
+		t.Errorf("reversed data scored %v without a bit-order warning: %v", *wrong.LinearXEB, wrong.Warnings)
+	}
+	for _, w := range want.Warnings {
+		if strings.Contains(w, "bit-order") {
+			t.Errorf("data in the right order draws a bit-order warning: %s", w)
+		}
+	}
+	_, stderr, code := runCLI(t, "score", out, "--bit-order", "last")
+	if code != 2 || !strings.Contains(stderr, "qubit 0 first") {
+		t.Errorf("--bit-order last on a sample table: exit %d, %s", code, stderr)
 	}
 }

@@ -55,7 +55,8 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	fs := newFlags("score", "mixdepth score FILE [flags]\n\n"+
 		"Scores the shots of a sample table (FILE.arrow or FILE.parquet from 'mixdepth sample', or a\n"+
 		"CSV of measured data with a header and at least the columns instance,bitstring; bitstrings list\n"+
-		"qubit 0 first; an optional p_ideal column is checked against the simulation). Reports per instance\n"+
+		"qubit 0 first, or last with --bit-order last; an optional p_ideal column is checked against the\n"+
+		"simulation). Reports per instance\n"+
 		"and over all shots: the linear XEB F_lin = D·mean p − 1 and the logarithmic XEB\n"+
 		"F_log = ln D + γ + mean ln p with their standard errors, the ideal-device value D·Z_U − 1 and the\n"+
 		"normalized estimate F_lin/(D·Z_U − 1). It warns when the circuits have not anti-concentrated\n"+
@@ -71,8 +72,13 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	circuitsIn := fs.String("circuits", "", "read the circuits from FILE.json, as written by 'mixdepth sample --circuits'")
 	workers := fs.Int("workers", defaultWorkers(), "worker goroutines for states of 16 qubits or more")
 	asJSON := fs.Bool("json", false, "print one JSON document instead of the text report")
+	bitOrder := fs.String("bit-order", "first", "which end of a measured bitstring is qubit 0: first or last")
 	if err := parseFlags(fs, args); err != nil {
 		return err
+	}
+	order, err := sampling.ParseBitOrder(*bitOrder)
+	if err != nil {
+		return badInput("--bit-order %q: use first (qubit 0 is the first character, the tool's order) or last", *bitOrder)
 	}
 	if fs.NArg() != 1 {
 		return badInput("score takes one sample table: mixdepth score FILE [flags] (got %d arguments)", fs.NArg())
@@ -90,6 +96,9 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		sampled = true
 	}
 
+	if sampled && order != sampling.QubitZeroFirst {
+		return badInput("--bit-order %s: %s was written by mixdepth sample, whose bitstrings list qubit 0 first; drop --bit-order", *bitOrder, path)
+	}
 	var qubits int
 	var lookup func(int) *sampling.Circuit
 	var source string
@@ -137,6 +146,7 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		fmt.Fprintf(stderr, "mixdepth: note: %s is partial (an interrupted run); it holds instances %q\n", path, done)
 	}
 
+	recs = sampling.InOrder(recs, order)
 	groups, err := sampling.Collect(ctx, path, recs, qubits, lookup, *workers)
 	switch {
 	case errors.Is(err, context.Canceled):
@@ -155,6 +165,22 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 			w = strings.Replace(w, "misstates", "overstates", 1)
 		}
 		warnings = append(warnings, w)
+	}
+	if sampling.LowScore(rep) {
+		// Bits in the other order score as unrelated outputs; say so when
+		// the other order scores high. A row's p_ideal belongs to its own
+		// order, so the trial ignores it.
+		other := sampling.Reversed(recs)
+		for i := range other {
+			other[i].HasP = false
+		}
+		if g, err := sampling.Collect(ctx, path, other, qubits, lookup, *workers); err == nil {
+			if rev := sampling.Score(qubits, g); sampling.ScoresBetter(rev, rep) {
+				flip := map[sampling.BitOrder]string{sampling.QubitZeroFirst: "last", sampling.QubitZeroLast: "first"}[order]
+				warnings = append(warnings, fmt.Sprintf("the linear XEB %s is low, but with each bitstring reversed it is %s: the data may list qubit 0 %s; score with --bit-order %s",
+					plusMinus(rep.Linear, rep.LinearErr), plusMinus(rev.Linear, rev.LinearErr), flip, flip))
+			}
+		}
 	}
 	for _, w := range warnings {
 		fmt.Fprintln(stderr, "mixdepth: warning: "+w)

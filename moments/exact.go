@@ -133,8 +133,9 @@ func ExactCurveOnly() ExactOption {
 
 // Exact computes the exact second moments of the circuits of schedule s on
 // g with gates from e at each of depths (ascending, non-negative): E[Z] by
-// CollisionCurve with the transfer of TransferFor (and the final layer when
-// e has one), the ratio to the Haar value Z_H = 2/(D+1) (stats.HaarCollision),
+// CollisionCurve with the transfer of TransferFor, or of EdgeTransfersFor
+// for a gate set with calibrated couplers (and the final layer when e has
+// one), the ratio to the Haar value Z_H = 2/(D+1) (stats.HaarCollision),
 // and the anti-concentration depth, the smallest depth with
 // E[Z]/Z_H ≤ 1 + ε (Dalzell, Hunter-Jones, Brandão, PRX Quantum 3, 010333,
 // 2022). Unless ExactCurveOnly is given it adds
@@ -171,6 +172,13 @@ func Exact(ctx context.Context, g *circuits.Graph, s circuits.Schedule, e circui
 	var copts []CollisionOption
 	if final {
 		copts = append(copts, CollisionFinalLayer())
+	}
+	et, err := EdgeTransfersFor(e)
+	if err != nil {
+		return nil, err
+	}
+	if et != nil {
+		copts = append(copts, CollisionEdgeTransfers(et))
 	}
 	if cfg.progress != nil {
 		copts = append(copts, CollisionProgress(cfg.progress))

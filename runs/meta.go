@@ -156,6 +156,9 @@ func FromMeta(meta tables.Meta) (*Spec, error) {
 	if s.Ensemble, err = ensembleFromMeta(meta); err != nil {
 		return nil, err
 	}
+	if s.Ensemble, err = bindCouplers(s.Ensemble, g); err != nil {
+		return nil, fmt.Errorf("runs: metadata %s: %w", KeyGateSet, err)
+	}
 	if s.Seed, err = MetaUint(meta, "seed"); err != nil {
 		return nil, err
 	}

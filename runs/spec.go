@@ -29,6 +29,9 @@ type Options struct {
 	// measure R against the Haar value of the whole chip, which such a chip
 	// never reaches.
 	AllowDisconnected bool
+	// Unitarize replaces the matrices of a gate-set file by their nearest
+	// unitaries (circuits.GateOptions).
+	Unitarize bool
 }
 
 // Spec is a run's circuits: what a table must record to rebuild every gate of
@@ -140,8 +143,11 @@ func NewSpec(o Options) (*Spec, error) {
 	if gates == "" {
 		gates = "haar"
 	}
-	e, err := circuits.NewEnsemble(gates)
+	e, err := circuits.NewEnsembleWith(gates, circuits.GateOptions{Unitarize: o.Unitarize})
 	if err != nil {
+		return nil, &OptionError{Option: "gates", Err: err}
+	}
+	if e, err = bindCouplers(e, s.Graph); err != nil {
 		return nil, &OptionError{Option: "gates", Err: err}
 	}
 	s.Ensemble = e
@@ -152,3 +158,12 @@ var (
 	errLayoutRandomEdge = fmt.Errorf("sets explicit layers, which the random-edge schedule does not use: drop one of them")
 	errSchedule         = fmt.Errorf("use layered or random-edge")
 )
+
+// bindCouplers binds a gate set with calibrated couplers to the graph
+// (circuits.GateSet.Bind); other ensembles are returned as they are.
+func bindCouplers(e circuits.Ensemble, g *circuits.Graph) (circuits.Ensemble, error) {
+	if gs, ok := e.(*circuits.GateSet); ok && len(gs.Couplers) > 0 {
+		return gs.Bind(g)
+	}
+	return e, nil
+}

@@ -21,6 +21,7 @@ const defaultSeed = 20261201
 type circuitFlags struct {
 	graph, layout, schedule, gates, drop string
 	seed                                 uint64
+	unitarize                            bool
 }
 
 func (c *circuitFlags) add(fs *pflag.FlagSet) {
@@ -30,6 +31,7 @@ func (c *circuitFlags) add(fs *pflag.FlagSet) {
 	fs.StringVar(&c.schedule, "schedule", "layered", "gate schedule: layered or random-edge")
 	fs.StringVar(&c.gates, "gates", "haar", "two-qubit gate set: haar, clifford, cz+haar1, cnot+haar1, iswap+haar1, sqrt-iswap+haar1, or a gate-set JSON file")
 	fs.Uint64Var(&c.seed, "seed", defaultSeed, "seed of the per-instance random streams")
+	fs.BoolVar(&c.unitarize, "unitarize", false, "replace each matrix of a gate-set file by its nearest unitary (measured matrices are unitary only to the digits written)")
 }
 
 // setup is what the circuit flags resolve to: a view of a runs.Spec with
@@ -55,7 +57,7 @@ func (c *circuitFlags) resolve() (*setup, error) { return c.resolveWith(func(*ru
 // resolveWith is resolve with a change to the options before the spec is
 // built.
 func (c *circuitFlags) resolveWith(change func(*runs.Options)) (*setup, error) {
-	o := runs.Options{Graph: c.graph, Layout: c.layout, Schedule: c.schedule, Gates: c.gates, Seed: c.seed, Drop: c.drop}
+	o := runs.Options{Graph: c.graph, Layout: c.layout, Schedule: c.schedule, Gates: c.gates, Seed: c.seed, Drop: c.drop, Unitarize: c.unitarize}
 	change(&o)
 	sp, err := runs.NewSpec(o)
 	var oe *runs.OptionError
@@ -87,7 +89,16 @@ func (s *setup) describe() string {
 	if d := s.graph.Dropped; len(d) > 0 {
 		name += " without " + strings.Join(d, ",")
 	}
-	return fmt.Sprintf("%s: %d qubits, %d couplers; %s; %s gates", name, s.graph.Qubits, len(s.graph.Edges), sched, s.ensemble.Name())
+	gates := s.ensemble.Name() + " gates"
+	if gs, ok := s.ensemble.(*circuits.GateSet); ok {
+		if len(gs.Couplers) > 0 {
+			gates += fmt.Sprintf(" (%d couplers calibrated)", len(gs.EdgeEntanglers())/2)
+		}
+		if gs.Unitarized > 0 {
+			gates += fmt.Sprintf(" (made unitary: largest entry change %.2g)", gs.Unitarized)
+		}
+	}
+	return fmt.Sprintf("%s: %d qubits, %d couplers; %s; %s", name, s.graph.Qubits, len(s.graph.Edges), sched, gates)
 }
 
 // The bounds of --depths and --instances.

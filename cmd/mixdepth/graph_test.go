@@ -5,11 +5,15 @@ import (
 	"encoding/json"
 	"fmt"
 	"image/png"
+	"math"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"slices"
 	"strings"
 	"testing"
+
+	"mixdepth/circuits"
 )
 
 // tempFile writes content to a file name in a new temporary directory.
@@ -242,5 +246,89 @@ func TestScoreBitOrder(t *testing.T) {
 	_, stderr, code := runCLI(t, "score", out, "--bit-order", "last")
 	if code != 2 || !strings.Contains(stderr, "qubit 0 first") {
 		t.Errorf("--bit-order last on a sample table: exit %d, %s", code, stderr)
+	}
+}
+
+// matrixJSON writes a 4×4 matrix as rows of [re, im] pairs.
+func matrixJSON(m [16]complex128) string {
+	var b strings.Builder
+	b.WriteString("[")
+	for i := 0; i < 4; i++ {
+		if i > 0 {
+			b.WriteString(",")
+		}
+		b.WriteString("[")
+		for j := 0; j < 4; j++ {
+			if j > 0 {
+				b.WriteString(",")
+			}
+			fmt.Fprintf(&b, "[%v,%v]", real(m[4*i+j]), imag(m[4*i+j]))
+		}
+		b.WriteString("]")
+	}
+	return b.String() + "]"
+}
+
+// TestCouplerGateFiles: a gate file giving the same matrix for every coupler
+// builds exactly the circuits of the single-matrix file (same draws, same
+// gates), so exact and sample print the same numbers; a matrix rounded to 4
+// digits is refused with a message naming --unitarize, and accepted with it.
+func TestCouplerGateFiles(t *testing.T) {
+	dir := t.TempDir()
+	named := writeFile(t, dir, "named.edges", labelledChip)
+	g, _ := circuits.Entangler("sqrt-iswap")
+	single := writeFile(t, dir, "single.json", `{"entangler": `+matrixJSON(g)+`, "single_qubit": "haar"}`)
+	var couplers []string
+	for _, pair := range [][2]string{{"QA0", "QA1"}, {"QA1", "QA2"}, {"QB0", "QB1"}, {"QB1", "QB2"}, {"QC0", "QC1"}, {"QC1", "QC2"},
+		{"QA0", "QB0"}, {"QA1", "QB1"}, {"QA2", "QB2"}, {"QB0", "QC0"}, {"QB1", "QC1"}, {"QB2", "QC2"}} {
+		couplers = append(couplers, `{"qubits": ["`+pair[0]+`", "`+pair[1]+`"], "entangler": `+matrixJSON(g)+`}`)
+	}
+	perCoupler := writeFile(t, dir, "couplers.json", `{"entangler": `+matrixJSON(g)+`, "couplers": [`+strings.Join(couplers, ", ")+`], "single_qubit": "haar"}`)
+	a := exactRatios(t, "--graph", named, "--gates", single, "--depths", "1:10")
+	b := exactRatios(t, "--graph", named, "--gates", perCoupler, "--depths", "1:10")
+	sameFloats(t, "exact: per-coupler file with one matrix vs the single-matrix file", a, b)
+	sa, _ := sampleOK(t, "sample", "--graph", named, "--gates", single, "--depth", "6", "--instances", "3", "--shots", "50", "--json")
+	sb, _ := sampleOK(t, "sample", "--graph", named, "--gates", perCoupler, "--depth", "6", "--instances", "3", "--shots", "50", "--json")
+	strip := func(s string) string { // the gates key names the file
+		var kept []string
+		for _, l := range strings.Split(s, "\n") {
+			if !strings.Contains(l, `"gates"`) {
+				kept = append(kept, l)
+			}
+		}
+		return strings.Join(kept, "\n")
+	}
+	if strip(sa) != strip(sb) {
+		t.Errorf("sample differs between the per-coupler and the single-matrix file:\n%s\n%s", sa, sb)
+	}
+
+	// A calibrated coupler changes the numbers (the file is bound to the chip).
+	cz, _ := circuits.Entangler("cz")
+	one := writeFile(t, dir, "one.json", `{"entangler": `+matrixJSON(g)+`, "couplers": [{"qubits": ["QB1", "QB2"], "entangler": `+matrixJSON(cz)+`}], "single_qubit": "haar"}`)
+	c := exactRatios(t, "--graph", named, "--gates", one, "--depths", "1:10")
+	if c[9] == a[9] {
+		t.Error("a coupler calibrated with CZ leaves E[Z] unchanged")
+	}
+	// Unknown coupler labels are bad input; a coupler on a dropped element is skipped.
+	bad := writeFile(t, dir, "bad.json", `{"entangler": `+matrixJSON(g)+`, "couplers": [{"qubits": ["QB1", "QZ"], "entangler": `+matrixJSON(cz)+`}], "single_qubit": "haar"}`)
+	if _, stderr, code := runCLI(t, "exact", "--graph", named, "--gates", bad, "--depths", "1:3"); code != 2 || !strings.Contains(stderr, "QZ") {
+		t.Errorf("unknown coupler label: exit %d, %s", code, stderr)
+	}
+	mustRun(t, "exact", "--graph", named, "--gates", one, "--drop", "QB1-QB2", "--depths", "1:3")
+
+	// Rounded to 4 digits: refused, naming --unitarize; accepted with it.
+	var u [16]complex128
+	circuits.HaarUnitary(rand.New(rand.NewPCG(4, 4)), 4, u[:])
+	for i := range u {
+		u[i] = complex(math.Round(real(u[i])*1e4)/1e4, math.Round(imag(u[i])*1e4)/1e4)
+	}
+	rounded := writeFile(t, dir, "rounded.json", `{"entangler": `+matrixJSON(u)+`, "single_qubit": "haar"}`)
+	_, stderr, code := runCLI(t, "exact", "--graph", "line:4", "--gates", rounded, "--depths", "1:3")
+	if code != 2 || !strings.Contains(stderr, "--unitarize") {
+		t.Errorf("rounded matrix: exit %d, %s", code, stderr)
+	}
+	out := mustRun(t, "exact", "--graph", "line:4", "--gates", rounded, "--unitarize", "--depths", "1:3")
+	if !strings.Contains(out, "made unitary: largest entry change") {
+		t.Errorf("--unitarize does not report its change:\n%s", out)
 	}
 }

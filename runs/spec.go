@@ -88,24 +88,23 @@ func NewSpec(o Options) (*Spec, error) {
 	case o.Graph == "" && o.Layout == "":
 		s.Demo = true
 		s.Graph, layout = fixtures.DemoChip()
-	case o.Layout != "":
+	case o.Layout != "" && o.Graph == "":
 		l, err := circuits.ReadLayoutFile(o.Layout)
 		if err != nil {
 			return nil, &OptionError{Option: "layout", Err: err}
 		}
 		layout = l
-		if o.Graph == "" {
-			s.Graph = l.Graph(o.Layout)
-		} else {
-			g, err := circuits.ParseGraphWith(o.Graph, ro)
-			if err != nil {
-				return nil, &OptionError{Option: "graph", Err: err}
-			}
-			if err := l.Check(o.Layout, g); err != nil {
-				return nil, &OptionError{Option: "layout", Err: err}
-			}
-			s.Graph = g
+		s.Graph = l.Graph(o.Layout)
+	case o.Layout != "":
+		g, err := circuits.ParseGraphWith(o.Graph, ro)
+		if err != nil {
+			return nil, &OptionError{Option: "graph", Err: err}
 		}
+		// With a graph the layout may name qubits by their labels.
+		if layout, err = circuits.ReadLayoutFileFor(o.Layout, g); err != nil {
+			return nil, &OptionError{Option: "layout", Err: err}
+		}
+		s.Graph = g
 	default:
 		g, err := circuits.ParseGraphWith(o.Graph, ro)
 		if err != nil {

@@ -169,7 +169,11 @@ func printGraph(w io.Writer, sp *runs.Spec, r *chip.Report) {
 	}
 	fmt.Fprintf(w, "couplers: %s\n", listItems(edgeLabels(g, g.Edges)))
 	if len(g.Dropped) > 0 {
-		fmt.Fprintf(w, "out of service (dropped; the rest renumbered): %s\n", strings.Join(g.Dropped, " "))
+		note := "dropped"
+		if sp.Chip.Qubits != g.Qubits {
+			note += "; the other qubits renumbered"
+		}
+		fmt.Fprintf(w, "out of service (%s): %s\n", note, strings.Join(g.Dropped, " "))
 	}
 	var hist []string
 	for d, k := range r.Degrees {

@@ -127,7 +127,7 @@ func TestGraphCommand(t *testing.T) {
 	for _, want := range []string{
 		"8 qubits, 10 couplers",
 		"0=QA0 1=QA1 2=QA2 3=QB0 4=QB1 5=QB2 6=QC0 7=QC1",
-		"out of service (dropped; the rest renumbered): QC2",
+		"out of service (dropped; the other qubits renumbered): QC2",
 		"degrees: 5×degree 2, 2×degree 3, 1×degree 4",
 		"connected: yes", "diameter: 4 couplers", "bipartite: yes",
 		"layer 0: ", "Laplacian algebraic connectivity", "random-edge schedule, Haar gates",

@@ -169,26 +169,7 @@ func newGraph(name string, n int, edges []Edge, parts bool) (*Graph, error) {
 // firstIsolated returns the smallest qubit in 0..n-1 on no edge of edges, or
 // -1 if every qubit is on an edge. The ids in edges must lie in 0..n-1 (n may
 // be math.MaxInt for "unbounded"); the work is O(len(edges)) whatever n is.
-func firstIsolated(n int, edges []Edge) int {
-	// The answer, if any, is at most 2·len(edges): only that many ids can be
-	// on an edge.
-	limit := min(n, 2*len(edges)+1)
-	on := make([]bool, limit)
-	for _, e := range edges {
-		if e.A < limit {
-			on[e.A] = true
-		}
-		if e.B < limit {
-			on[e.B] = true
-		}
-	}
-	for q, ok := range on {
-		if !ok {
-			return q
-		}
-	}
-	return -1
-}
+func firstIsolated(n int, edges []Edge) int { return firstUnlisted(n-1, edges, nil) }
 
 func isolatedError(name string, q, maxID int) error {
 	return &ParseError{File: name, Err: ErrIsolatedQubit, Detail: fmt.Sprintf("qubit %d is on no edge (qubits are 0..%d); couple it or renumber the qubits (mixdepth graph --allow-disconnected shows it)", q, maxID)}

@@ -102,12 +102,7 @@ func chipDrawing(sp *runs.Spec, layers [][]circuits.Edge) *plots.ChipDrawing {
 			layerOf[[2]int{min(e.A, e.B), max(e.A, e.B)}] = l
 		}
 	}
-	newID := func(q int) int {
-		if sp.Kept == nil {
-			return q
-		}
-		return sp.Kept[q]
-	}
+	newID := func(q int) int { return keptID(sp, q) }
 	d := &plots.ChipDrawing{Title: graphTitle(sp.Graph), Layers: len(layers)}
 	for _, cl := range layers {
 		d.LayerSizes = append(d.LayerSizes, len(cl))
@@ -124,6 +119,15 @@ func chipDrawing(sp *runs.Spec, layers [][]circuits.Edge) *plots.ChipDrawing {
 		d.Couplers = append(d.Couplers, plots.ChipCoupler{A: e.A, B: e.B, Layer: layer})
 	}
 	return d
+}
+
+// keptID is the number in sp.Graph of qubit q of the whole chip, −1 when it
+// was dropped.
+func keptID(sp *runs.Spec, q int) int {
+	if sp.Kept == nil {
+		return q
+	}
+	return sp.Kept[q]
 }
 
 func graphTitle(g *circuits.Graph) string {
@@ -255,8 +259,9 @@ type graphJSON struct {
 	HaarCollision              float64  `json:"haar_collision"`
 	// CollisionLimit is the large-depth E[Z]: the Haar value for a connected
 	// chip, the product of the parts' values otherwise.
-	CollisionLimit float64      `json:"collision_limit"`
-	Coordinates    [][2]float64 `json:"coordinates"`
+	CollisionLimit float64 `json:"collision_limit"`
+	// Coordinates are the drawing coordinates of --plot, one (x, y) per qubit.
+	Coordinates [][2]float64 `json:"coordinates"`
 }
 
 func pairs(edges []circuits.Edge) [][2]int {
@@ -274,7 +279,13 @@ func graphDoc(sp *runs.Spec, r *chip.Report) graphJSON {
 		Graph:    g.Name, GraphDigest: g.Digest(), Qubits: g.Qubits, Labels: make([]string, g.Qubits),
 		Couplers: pairs(g.Edges), Dropped: g.Dropped, Degrees: r.Degrees, Components: r.Components,
 		Bipartite: r.Bipartite, LayerSource: r.LayerSource, HaarCollision: r.HaarCollision,
-		CollisionLimit: r.HaarLimit, Coordinates: g.Coords,
+		CollisionLimit: r.HaarLimit, Coordinates: make([][2]float64, g.Qubits),
+	}
+	full := chip.Coordinates(sp.Chip)
+	for q, xy := range full {
+		if n := keptID(sp, q); n >= 0 {
+			doc.Coordinates[n] = xy
+		}
 	}
 	if doc.Dropped == nil {
 		doc.Dropped = []string{}

@@ -60,8 +60,9 @@ type Report struct {
 	// (stats.HaarCollision).
 	HaarCollision float64
 	// HaarLimit is the value E[Z] tends to at large depth: the product over
-	// the parts of their Haar collision probabilities (PartLimit); it equals
-	// HaarCollision for a connected chip.
+	// the parts of their Haar collision probabilities (moments.PartsLimit,
+	// without a final single-qubit layer); it equals HaarCollision for a
+	// connected chip.
 	HaarLimit float64
 }
 
@@ -86,10 +87,7 @@ func Describe(ctx context.Context, g *circuits.Graph, layers [][]circuits.Edge, 
 		r.AlgebraicConnectivity = AlgebraicConnectivity(g)
 	}
 	r.HaarCollision = stats.HaarCollision(math.Ldexp(1, g.Qubits))
-	r.HaarLimit = 1
-	for _, c := range r.Components {
-		r.HaarLimit *= PartLimit(len(c), false)
-	}
+	r.HaarLimit = moments.PartsLimit(g, false)
 	if len(r.Components) == 1 && g.Qubits <= moments.GapMaxQubits {
 		gap, err := moments.SpectralGap(ctx, g, workers)
 		if err != nil {
@@ -98,19 +96,6 @@ func Describe(ctx context.Context, g *circuits.Graph, layers [][]circuits.Edge, 
 		r.Gap = &gap
 	}
 	return r, nil
-}
-
-// PartLimit is the large-depth collision probability of one connected part
-// of n qubits: the Haar value 2/(2^n + 1) (design.md §3) for a part with a
-// coupler; for an isolated qubit, which no gate touches, 1, or 2/3 when the
-// circuits end with a Haar single-qubit layer (final). A chip in parts is a
-// product state of its parts, so its E[Z] tends to the product of their
-// limits instead of the Haar value of the whole chip.
-func PartLimit(n int, final bool) float64 {
-	if n == 1 && !final {
-		return 1
-	}
-	return 2 / (math.Ldexp(1, n) + 1)
 }
 
 // adjacency returns the neighbours of each qubit.

@@ -127,8 +127,12 @@ func TestDisconnectedLimit(t *testing.T) {
 	}
 	// An isolated qubit, never touched, keeps Z = 1 (2/3 after a final Haar
 	// single-qubit layer: Σ_x p_x² of a Haar qubit has mean 2/3).
-	if PartLimit(1, false) != 1 || math.Abs(PartLimit(1, true)-2.0/3) > 1e-15 {
-		t.Errorf("PartLimit(1) = %g, %g", PartLimit(1, false), PartLimit(1, true))
+	iso, err := circuits.NewGraphParts("line:2 and a qubit", 3, []circuits.Edge{{A: 0, B: 1}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if a, b := moments.PartsLimit(iso, false), moments.PartsLimit(iso, true); math.Abs(a-0.4) > 1e-15 || math.Abs(b-0.4*2/3) > 1e-15 {
+		t.Errorf("PartsLimit(line:2 + qubit) = %g, %g; want 2/5 and 2/5·2/3", a, b)
 	}
 }
 

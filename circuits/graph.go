@@ -161,7 +161,7 @@ func newGraph(name string, n int, edges []Edge, parts bool) (*Graph, error) {
 		return nil, isolatedError(name, q, n-1)
 	}
 	if comps := len(g.Components()); comps > 1 {
-		return nil, &ParseError{File: name, Err: ErrDisconnected, Detail: fmt.Sprintf("%d separate parts; random circuits on it never mix between them (mixdepth graph --allow-disconnected shows it)", comps)}
+		return nil, &ParseError{File: name, Err: ErrDisconnected, Detail: fmt.Sprintf("%d separate parts; random circuits on it never mix between them (graph and exact accept it with --allow-disconnected)", comps)}
 	}
 	return g, nil
 }
@@ -172,7 +172,7 @@ func newGraph(name string, n int, edges []Edge, parts bool) (*Graph, error) {
 func firstIsolated(n int, edges []Edge) int { return firstUnlisted(n-1, edges, nil) }
 
 func isolatedError(name string, q, maxID int) error {
-	return &ParseError{File: name, Err: ErrIsolatedQubit, Detail: fmt.Sprintf("qubit %d is on no edge (qubits are 0..%d); couple it or renumber the qubits (mixdepth graph --allow-disconnected shows it)", q, maxID)}
+	return &ParseError{File: name, Err: ErrIsolatedQubit, Detail: fmt.Sprintf("qubit %d is on no edge (qubits are 0..%d); couple it or renumber the qubits (graph and exact accept it with --allow-disconnected)", q, maxID)}
 }
 
 func key(e Edge) [2]int {

@@ -332,3 +332,24 @@ func TestCouplerGateFiles(t *testing.T) {
 		t.Errorf("--unitarize does not report its change:\n%s", out)
 	}
 }
+
+// TestExactDisconnected: two disjoint line:4 chips, accepted with
+// --allow-disconnected, tend to (2/17)² (the product of the parts' Haar
+// values, design.md §3), and the ratio is measured against that limit: at
+// depth 300 it is 1 to 1e-9 (each part's excess decays geometrically).
+func TestExactDisconnected(t *testing.T) {
+	two := tempFile(t, "two.edges", "a b\nb c\nc d\ne f\nf g\ng h\n")
+	if _, _, code := runCLI(t, "exact", "--graph", two, "--depths", "1:3"); code != 2 {
+		t.Errorf("a chip in parts without --allow-disconnected: exit %d, want 2", code)
+	}
+	doc := exactJSONOf(t, "--graph", two, "--allow-disconnected", "--depths", "300")
+	want := (2.0 / 17) * (2.0 / 17)
+	if doc.CollisionLimit == nil || math.Abs(*doc.CollisionLimit-want) > 1e-15 ||
+		math.Abs(doc.Rows[0].Collision-want) > 1e-12 || math.Abs(doc.Rows[0].CollisionRatio-1) > 1e-9 {
+		t.Errorf("limit %v, E[Z] %.15g, ratio %.12g; want %.15g and 1", doc.CollisionLimit, doc.Rows[0].Collision, doc.Rows[0].CollisionRatio, want)
+	}
+	out := mustRun(t, "exact", "--graph", two, "--allow-disconnected", "--depths", "5")
+	if !strings.Contains(out, "in 2 parts and never reaches that value") {
+		t.Errorf("exact does not say the chip is in parts:\n%s", out)
+	}
+}

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"os"
 	"runtime"
+	"strconv"
 	"strings"
 
 	"github.com/spf13/pflag"
@@ -78,7 +79,11 @@ func (s *setup) describe() string {
 	var sched string
 	switch sc := s.schedule.(type) {
 	case *circuits.Layered:
-		sched = fmt.Sprintf("layered schedule, %d layers per cycle", len(sc.Classes))
+		sizes := make([]string, len(sc.Classes))
+		for i, cl := range sc.Classes {
+			sizes[i] = strconv.Itoa(len(cl))
+		}
+		sched = fmt.Sprintf("layered schedule, %d layers per cycle (%s couplers)", len(sc.Classes), strings.Join(sizes, "+"))
 		if s.layout != "" {
 			sched += " from " + s.layout
 		}

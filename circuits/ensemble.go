@@ -27,10 +27,13 @@ var Ensembles = []string{"haar", "clifford", "cz+haar1", "cnot+haar1", "iswap+ha
 // the path of a gate-set file (see ReadGateSet); built-in names win over
 // files. Errors are *ParseError values wrapping ErrUnknownGateSet or
 // ErrGateSet.
-func NewEnsemble(spec string) (Ensemble, error) {
+func NewEnsemble(spec string) (Ensemble, error) { return NewEnsembleWith(spec, GateOptions{}) }
+
+// NewEnsembleWith is NewEnsemble with options for a gate-set file.
+func NewEnsembleWith(spec string, o GateOptions) (Ensemble, error) {
 	switch spec {
 	case "haar":
 		return Haar{}, nil
 	}
-	return namedEnsemble(spec)
+	return namedEnsemble(spec, o)
 }

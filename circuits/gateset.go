@@ -76,6 +76,37 @@ type GateSet struct {
 	// Single is the finite single-qubit set (row-major 2×2); nil means Haar
 	// U(2).
 	Single [][4]complex128
+	// Couplers are calibrated entanglers of single couplers, which replace
+	// G on them once the set is bound to a graph (Bind); G is the default.
+	Couplers []CouplerGate
+	// Unitarized is the largest entry change made by replacing the file's
+	// matrices by their nearest unitaries (GateOptions.Unitarize), 0 when
+	// none was replaced.
+	Unitarized float64
+	// bound maps both orientations (a, b) of a coupler of the bound graph
+	// to its entangler in that orientation.
+	bound map[[2]int]*[16]complex128
+}
+
+// CouplerGate is the entangler of one coupler, between the qubits labelled
+// A and B (Graph.Label), in the basis 2·b_A + b_B.
+type CouplerGate struct {
+	A, B string
+	G    [16]complex128
+}
+
+// EdgeEnsemble is an Ensemble whose gates depend on the coupler: the
+// Builder calls GateOn instead of Gate, with the same draws from rng.
+type EdgeEnsemble interface {
+	Ensemble
+	GateOn(e Edge, rng *rand.Rand, m *[16]complex128)
+}
+
+// GateOptions change how a gate-set file is read.
+type GateOptions struct {
+	// Unitarize replaces every matrix by its nearest unitary (NearestUnitary)
+	// instead of refusing one that is unitary only to the digits written.
+	Unitarize bool
 }
 
 // NewGateSet validates g and single (every matrix unitary to
@@ -104,13 +135,95 @@ func NewGateSet(spec string, g [16]complex128, single [][4]complex128) (*GateSet
 func (s *GateSet) Name() string { return s.Spec }
 
 // Gate draws u_a, then u_b, and writes G·(u_a ⊗ u_b) into m.
-func (s *GateSet) Gate(rng *rand.Rand, m *[16]complex128) {
+func (s *GateSet) Gate(rng *rand.Rand, m *[16]complex128) { s.gate(&s.G, rng, m) }
+
+// GateOn is Gate with the entangler of coupler e when the set is bound to a
+// graph and calibrates e, and G otherwise; the draws are those of Gate.
+func (s *GateSet) GateOn(e Edge, rng *rand.Rand, m *[16]complex128) {
+	if g, ok := s.bound[[2]int{e.A, e.B}]; ok {
+		s.gate(g, rng, m)
+		return
+	}
+	s.gate(&s.G, rng, m)
+}
+
+func (s *GateSet) gate(g *[16]complex128, rng *rand.Rand, m *[16]complex128) {
 	var ua, ub [4]complex128
 	s.single(rng, &ua)
 	s.single(rng, &ub)
 	var k [16]complex128
 	kron2(&k, &ua, &ub)
-	mul4(m, &s.G, &k)
+	mul4(m, g, &k)
+}
+
+// EdgeEntanglers returns the calibrated entangler of every coupler (a, b) of
+// the bound graph that has one, in the orientation (a, b) of the key; nil
+// when the set is not bound or calibrates no coupler.
+func (s *GateSet) EdgeEntanglers() map[[2]int][16]complex128 {
+	if len(s.bound) == 0 {
+		return nil
+	}
+	out := make(map[[2]int][16]complex128, len(s.bound))
+	for k, g := range s.bound {
+		out[k] = *g
+	}
+	return out
+}
+
+// swapped returns SWAP·g·SWAP, the gate g with its two qubits exchanged.
+func swapped(g *[16]complex128) [16]complex128 {
+	perm := [4]int{0, 2, 1, 3} // 2·b_a + b_b ↔ 2·b_b + b_a
+	var out [16]complex128
+	for i := 0; i < 4; i++ {
+		for j := 0; j < 4; j++ {
+			out[perm[i]*4+perm[j]] = g[i*4+j]
+		}
+	}
+	return out
+}
+
+// Bind returns a copy of s whose calibrated couplers are resolved against g:
+// each CouplerGate's labels must name qubits of g joined by a coupler, except
+// that entries on qubits or couplers g.Dropped removed are skipped (a
+// calibration sheet lists the broken couplers too). A coupler given twice is
+// an error. Errors are *ParseError values wrapping ErrUnknownLabel,
+// ErrNotInGraph or ErrDuplicateEdge.
+func (s *GateSet) Bind(g *Graph) (*GateSet, error) {
+	if len(s.Couplers) == 0 {
+		return s, nil
+	}
+	bad := func(err error, format string, args ...any) error {
+		return &ParseError{File: s.Spec, Err: err, Detail: fmt.Sprintf(format, args...)}
+	}
+	index := make(map[string]int, g.Qubits)
+	for q := 0; q < g.Qubits; q++ {
+		index[g.Label(q)] = q
+	}
+	dropped := map[string]bool{}
+	for _, d := range g.Dropped {
+		dropped[d] = true
+	}
+	out := *s
+	out.bound = map[[2]int]*[16]complex128{}
+	for i, c := range s.Couplers {
+		a, okA := index[c.A]
+		b, okB := index[c.B]
+		pair := c.A + "-" + c.B
+		switch {
+		case (!okA && dropped[c.A]) || (!okB && dropped[c.B]) || dropped[pair] || dropped[c.B+"-"+c.A]:
+			continue
+		case !okA || !okB:
+			return nil, bad(ErrUnknownLabel, "coupler %d names %s, but %s has no such qubit", i+1, pair, g.Name)
+		case !g.HasEdge(a, b):
+			return nil, bad(ErrNotInGraph, "coupler %d is %s, which %s does not couple", i+1, pair, g.Name)
+		}
+		if _, dup := out.bound[[2]int{a, b}]; dup {
+			return nil, bad(ErrDuplicateEdge, "coupler %s is calibrated twice", pair)
+		}
+		m, r := c.G, swapped(&c.G)
+		out.bound[[2]int{a, b}], out.bound[[2]int{b, a}] = &m, &r
+	}
+	return &out, nil
 }
 
 // Final draws one gate of the final single-qubit layer into m.
@@ -189,7 +302,7 @@ func SecondMoments(e Ensemble) (kind MomentKind, g [16]complex128, ok bool) {
 
 // namedEnsemble resolves the specs NewEnsemble does not handle itself:
 // "clifford", "NAME+haar1" and gate-set files.
-func namedEnsemble(spec string) (Ensemble, error) {
+func namedEnsemble(spec string, o GateOptions) (Ensemble, error) {
 	if spec == "clifford" {
 		return Clifford{}, nil
 	}
@@ -201,7 +314,7 @@ func namedEnsemble(spec string) (Ensemble, error) {
 	detail := "no such file, and not one of " + strings.Join(Ensembles, ", ")
 	if st, err := os.Stat(spec); err == nil {
 		if !st.IsDir() {
-			return ReadGateSetFile(spec)
+			return ReadGateSetFileWith(spec, o)
 		}
 		detail = "a directory, not a gate-set file or one of " + strings.Join(Ensembles, ", ")
 	}
@@ -211,29 +324,52 @@ func namedEnsemble(spec string) (Ensemble, error) {
 // gateSetFile is the JSON form of a gate-set file.
 type gateSetFile struct {
 	Entangler   json.RawMessage `json:"entangler"`
+	Couplers    []couplerFile   `json:"couplers"`
 	SingleQubit json.RawMessage `json:"single_qubit"`
+}
+
+type couplerFile struct {
+	Qubits    []json.RawMessage `json:"qubits"`
+	Entangler json.RawMessage   `json:"entangler"`
 }
 
 // ReadGateSetFile reads the gate-set file at path (see ReadGateSet).
 func ReadGateSetFile(path string) (*GateSet, error) {
+	return ReadGateSetFileWith(path, GateOptions{})
+}
+
+// ReadGateSetFileWith reads the gate-set file at path with options (see
+// ReadGateSetWith).
+func ReadGateSetFileWith(path string, o GateOptions) (*GateSet, error) {
 	data, err := os.ReadFile(path)
 	if err != nil {
 		return nil, fmt.Errorf("circuits: reading gate-set file: %w", err)
 	}
-	return ReadGateSet(path, bytes.NewReader(data))
+	return ReadGateSetWith(path, bytes.NewReader(data), o)
 }
 
-// ReadGateSet reads a gate-set file from r; name labels errors and becomes
-// the set's Spec. The format is one JSON object,
+// ReadGateSet reads a gate-set file without options; see ReadGateSetWith.
+func ReadGateSet(name string, r io.Reader) (*GateSet, error) {
+	return ReadGateSetWith(name, r, GateOptions{})
+}
+
+// ReadGateSetWith reads a gate-set file from r; name labels errors and
+// becomes the set's Spec. The format is one JSON object,
 //
 //	{"entangler": [[[re, im], …4 entries…], …4 rows…],
+//	 "couplers": [{"qubits": ["Q1", "Q2"], "entangler": [[[re, im], …], …]}, …],
 //	 "single_qubit": "haar"}
 //
 // or with "single_qubit": [[[[re, im], [re, im]], [[re, im], [re, im]]], …],
-// a finite set of 2×2 unitaries drawn uniformly. Matrices are row-major, the
-// entangler in the basis 2·b_a + b_b; rows, entries and matrices are counted
-// from 1 in messages. Errors are *ParseError values wrapping ErrGateSet.
-func ReadGateSet(name string, r io.Reader) (*GateSet, error) {
+// a finite set of 2×2 unitaries drawn uniformly. "couplers" is optional: the
+// calibrated entanglers of single couplers, named by the qubit labels of the
+// graph (or numbers, written as strings or numbers), each in the basis
+// 2·b_first + b_second; "entangler" is the default for the other couplers.
+// Matrices are row-major, the entangler in the basis 2·b_a + b_b; rows,
+// entries and matrices are counted from 1 in messages. A matrix must be
+// unitary to UnitaryTolerance unless o.Unitarize, which replaces it by its
+// nearest unitary. Errors are *ParseError values wrapping ErrGateSet.
+func ReadGateSetWith(name string, r io.Reader, o GateOptions) (*GateSet, error) {
 	bad := func(format string, args ...any) error {
 		return &ParseError{File: name, Err: ErrGateSet, Detail: fmt.Sprintf(format, args...)}
 	}
@@ -250,7 +386,7 @@ func ReadGateSet(name string, r io.Reader) (*GateSet, error) {
 			return nil, bad("the file holds a JSON %s, want an object {\"entangler\": …, \"single_qubit\": …}", te.Value)
 		case strings.HasPrefix(err.Error(), "json: unknown field "):
 			// encoding/json has no typed error for DisallowUnknownFields.
-			return nil, bad("%s: a gate-set file has only \"entangler\" and \"single_qubit\"", strings.TrimPrefix(err.Error(), "json: "))
+			return nil, bad("%s: a gate-set file has only \"entangler\", \"couplers\" and \"single_qubit\" (a coupler only \"qubits\" and \"entangler\")", strings.TrimPrefix(err.Error(), "json: "))
 		case errors.Is(err, io.ErrUnexpectedEOF):
 			return nil, bad("invalid JSON: the file ends inside a value")
 		case errors.Is(err, io.EOF):
@@ -271,6 +407,37 @@ func ReadGateSet(name string, r io.Reader) (*GateSet, error) {
 	if err := readMatrix(f.Entangler, 4, g[:], "entangler"); err != nil {
 		return nil, bad("%s", err)
 	}
+	var couplers []CouplerGate
+	for i, c := range f.Couplers {
+		what := fmt.Sprintf("coupler %d", i+1)
+		if len(c.Qubits) != 2 {
+			return nil, bad("%s has %d qubits; write \"qubits\": [\"A\", \"B\"]", what, len(c.Qubits))
+		}
+		var labels [2]string
+		for k, raw := range c.Qubits {
+			var str string
+			var num int
+			switch {
+			case json.Unmarshal(raw, &str) == nil && validName(str):
+				labels[k] = str
+			case json.Unmarshal(raw, &num) == nil && num >= 0:
+				labels[k] = strconv.Itoa(num)
+			default:
+				return nil, bad("%s qubit %s is not a qubit label or number", what, raw)
+			}
+		}
+		if labels[0] == labels[1] {
+			return nil, bad("%s couples %s to itself", what, labels[0])
+		}
+		cg := CouplerGate{A: labels[0], B: labels[1]}
+		if isNull(c.Entangler) {
+			return nil, bad("%s (%s-%s) has no \"entangler\"", what, cg.A, cg.B)
+		}
+		if err := readMatrix(c.Entangler, 4, cg.G[:], what+" entangler"); err != nil {
+			return nil, bad("%s", err)
+		}
+		couplers = append(couplers, cg)
+	}
 	var single [][4]complex128
 	var sname string
 	if json.Unmarshal(f.SingleQubit, &sname) == nil {
@@ -289,7 +456,46 @@ func ReadGateSet(name string, r io.Reader) (*GateSet, error) {
 			}
 		}
 	}
-	return NewGateSet(name, g, single)
+	var change float64
+	if o.Unitarize {
+		fix := func(m []complex128, d int, what string) error {
+			u, c, err := NearestUnitary(m, d)
+			if err != nil {
+				return bad("%s: %v", what, err)
+			}
+			copy(m, u)
+			change = max(change, c)
+			return nil
+		}
+		if err := fix(g[:], 4, "entangler"); err != nil {
+			return nil, err
+		}
+		for i := range couplers {
+			if err := fix(couplers[i].G[:], 4, fmt.Sprintf("coupler %d entangler", i+1)); err != nil {
+				return nil, err
+			}
+		}
+		for k := range single {
+			if err := fix(single[k][:], 2, fmt.Sprintf("single_qubit matrix %d", k+1)); err != nil {
+				return nil, err
+			}
+		}
+	}
+	for i, c := range couplers {
+		if dev := UnitaryDeviation(c.G[:], 4); !(dev <= UnitaryTolerance) {
+			return nil, bad("coupler %d (%s-%s) entangler is not unitary: ‖G†G − I‖ = %.3g (max entry; tolerance %g); --unitarize replaces each matrix by its nearest unitary", i+1, c.A, c.B, dev, UnitaryTolerance)
+		}
+	}
+	s, err := NewGateSet(name, g, single)
+	if err != nil {
+		var pe *ParseError
+		if errors.As(err, &pe) && strings.Contains(pe.Detail, "not unitary") {
+			pe.Detail += "; --unitarize replaces each matrix by its nearest unitary"
+		}
+		return nil, err
+	}
+	s.Couplers, s.Unitarized = couplers, change
+	return s, nil
 }
 
 // readMatrix decodes a d×d matrix of [re, im] pairs into dst (row-major);
@@ -378,7 +584,7 @@ func mul4(dst, a, b *[16]complex128) {
 // IsBuiltin reports whether the set is one of the built-in "NAME+haar1"
 // sets, which a name alone rebuilds; a set read from a file is not.
 func (s *GateSet) IsBuiltin() bool {
-	if name, ok := strings.CutSuffix(s.Spec, "+haar1"); ok && s.Single == nil {
+	if name, ok := strings.CutSuffix(s.Spec, "+haar1"); ok && s.Single == nil && len(s.Couplers) == 0 {
 		g, known := Entangler(name)
 		return known && g == s.G
 	}
@@ -393,6 +599,20 @@ func (s *GateSet) Encode() string {
 	var b strings.Builder
 	b.WriteString(`{"entangler":`)
 	writeMatrix(&b, s.G[:], 4)
+	if len(s.Couplers) > 0 {
+		b.WriteString(`,"couplers":[`)
+		for i, c := range s.Couplers {
+			if i > 0 {
+				b.WriteByte(',')
+			}
+			// Labels are made of letters, digits and _ . : -, which need no
+			// JSON escaping.
+			b.WriteString(`{"qubits":["` + c.A + `","` + c.B + `"],"entangler":`)
+			writeMatrix(&b, c.G[:], 4)
+			b.WriteByte('}')
+		}
+		b.WriteByte(']')
+	}
 	b.WriteString(`,"single_qubit":`)
 	if s.Single == nil {
 		b.WriteString(`"haar"`)

@@ -1,12 +1,11 @@
 package circuits
 
 import (
-	"bufio"
 	"crypto/sha256"
 	"encoding/hex"
 	"errors"
 	"fmt"
-	"io"
+	"math"
 	"os"
 	"strconv"
 	"strings"
@@ -31,7 +30,37 @@ type Graph struct {
 	Qubits int
 	// Edges lists the couplings.
 	Edges []Edge
+	// Labels names the qubits, Labels[q] for qubit q, when the graph came
+	// from an edge file with named qubits (or from such a graph by Drop);
+	// nil means the qubits are known by their numbers (see Label).
+	Labels []string
+	// Coords are drawing coordinates (x, y), one per qubit: the family's
+	// lattice positions, or those an edge file gives; nil when unknown.
+	// They do not enter the Digest.
+	Coords [][2]float64
+	// Classes are the family's own layered classes (see LayeredClasses),
+	// or nil when the graph has none or they follow from Family, Rows and
+	// Cols (line, ring, grid).
+	Classes [][]Edge
+	// Dropped lists the qubits and couplers that Drop removed, in the
+	// labels of the graph they were removed from; nil if none.
+	Dropped []string
 }
+
+// Label returns the name of qubit q: Labels[q], or q in decimal when the
+// graph has no labels. It panics if q is out of range.
+func (g *Graph) Label(q int) string {
+	if q < 0 || q >= g.Qubits {
+		panic(fmt.Sprintf("circuits: qubit %d out of range 0..%d", q, g.Qubits-1))
+	}
+	if g.Labels != nil {
+		return g.Labels[q]
+	}
+	return strconv.Itoa(q)
+}
+
+// EdgeLabel returns the coupler e as "A-B" in the qubits' labels.
+func (g *Graph) EdgeLabel(e Edge) string { return g.Label(e.A) + "-" + g.Label(e.B) }
 
 // Sentinel errors wrapped by *ParseError and by NewGraph.
 var (
@@ -88,8 +117,21 @@ func (e *ParseError) Unwrap() error { return e.Err }
 // The error, if any, is a *ParseError with Line 0 (or the 1-based position of
 // the offending edge in edges).
 func NewGraph(name string, n int, edges []Edge) (*Graph, error) {
+	return newGraph(name, n, edges, false)
+}
+
+// NewGraphParts is NewGraph for a chip that may have isolated qubits and
+// several connected parts; it still needs at least one edge.
+func NewGraphParts(name string, n int, edges []Edge) (*Graph, error) {
+	return newGraph(name, n, edges, true)
+}
+
+func newGraph(name string, n int, edges []Edge, parts bool) (*Graph, error) {
 	if n < 2 {
 		return nil, &ParseError{File: name, Err: ErrTooFewQubits, Detail: fmt.Sprintf("%d qubit(s); a coupling graph needs at least one edge", n)}
+	}
+	if len(edges) == 0 {
+		return nil, &ParseError{File: name, Err: ErrTooFewQubits, Detail: "no edges; a coupling graph needs at least one"}
 	}
 	seen := make(map[[2]int]int, len(edges))
 	for i, e := range edges {
@@ -108,15 +150,18 @@ func NewGraph(name string, n int, edges []Edge) (*Graph, error) {
 		}
 		seen[k] = i + 1
 	}
+	g := &Graph{Name: name, Qubits: n, Edges: append([]Edge(nil), edges...)}
+	if parts {
+		return g, nil
+	}
 	// Each edge covers at most two qubits, so with n > 2·len(edges) some qubit
 	// is isolated; finding it without an n-sized table keeps a huge id in a
 	// file from allocating gigabytes.
 	if q := firstIsolated(n, edges); q >= 0 {
 		return nil, isolatedError(name, q, n-1)
 	}
-	g := &Graph{Name: name, Qubits: n, Edges: append([]Edge(nil), edges...)}
-	if comps := g.components(); comps > 1 {
-		return nil, &ParseError{File: name, Err: ErrDisconnected, Detail: fmt.Sprintf("%d separate parts; random circuits on it never mix between them", comps)}
+	if comps := len(g.Components()); comps > 1 {
+		return nil, &ParseError{File: name, Err: ErrDisconnected, Detail: fmt.Sprintf("%d separate parts; random circuits on it never mix between them (graph and exact accept it with --allow-disconnected)", comps)}
 	}
 	return g, nil
 }
@@ -124,29 +169,10 @@ func NewGraph(name string, n int, edges []Edge) (*Graph, error) {
 // firstIsolated returns the smallest qubit in 0..n-1 on no edge of edges, or
 // -1 if every qubit is on an edge. The ids in edges must lie in 0..n-1 (n may
 // be math.MaxInt for "unbounded"); the work is O(len(edges)) whatever n is.
-func firstIsolated(n int, edges []Edge) int {
-	// The answer, if any, is at most 2·len(edges): only that many ids can be
-	// on an edge.
-	limit := min(n, 2*len(edges)+1)
-	on := make([]bool, limit)
-	for _, e := range edges {
-		if e.A < limit {
-			on[e.A] = true
-		}
-		if e.B < limit {
-			on[e.B] = true
-		}
-	}
-	for q, ok := range on {
-		if !ok {
-			return q
-		}
-	}
-	return -1
-}
+func firstIsolated(n int, edges []Edge) int { return firstUnlisted(n-1, edges, nil) }
 
 func isolatedError(name string, q, maxID int) error {
-	return &ParseError{File: name, Err: ErrIsolatedQubit, Detail: fmt.Sprintf("qubit %d is on no edge (qubits are 0..%d); couple it or renumber the qubits", q, maxID)}
+	return &ParseError{File: name, Err: ErrIsolatedQubit, Detail: fmt.Sprintf("qubit %d is on no edge (qubits are 0..%d); couple it or renumber the qubits (graph and exact accept it with --allow-disconnected)", q, maxID)}
 }
 
 func key(e Edge) [2]int {
@@ -156,27 +182,42 @@ func key(e Edge) [2]int {
 	return [2]int{e.A, e.B}
 }
 
-// components counts the connected components with a union-find.
-func (g *Graph) components() int {
-	parent := make([]int, g.Qubits)
+// Components returns the connected components of g, each a sorted list of
+// qubits, ordered by their smallest qubit. A valid Graph has one; a graph
+// read with AllowDisconnected may have several.
+func (g *Graph) Components() [][]int { return componentsOf(g.Qubits, g.Edges) }
+
+// componentsOf returns the connected components of the graph on 0..n−1 with
+// the given edges (ids in range), by union-find.
+func componentsOf(n int, edges []Edge) [][]int {
+	parent := make([]int, n)
 	for i := range parent {
 		parent[i] = i
 	}
-	var find func(int) int
-	find = func(x int) int {
+	find := func(x int) int {
 		for parent[x] != x {
 			parent[x] = parent[parent[x]]
 			x = parent[x]
 		}
 		return x
 	}
-	comps := g.Qubits
-	for _, e := range g.Edges {
+	for _, e := range edges {
 		ra, rb := find(e.A), find(e.B)
 		if ra != rb {
-			parent[ra] = rb
-			comps--
+			parent[max(ra, rb)] = min(ra, rb)
 		}
+	}
+	index := map[int]int{}
+	var comps [][]int
+	for q := 0; q < n; q++ {
+		r := find(q)
+		k, ok := index[r]
+		if !ok {
+			k = len(comps)
+			index[r] = k
+			comps = append(comps, nil)
+		}
+		comps[k] = append(comps[k], q)
 	}
 	return comps
 }
@@ -221,29 +262,42 @@ func (g *Graph) HasEdge(a, b int) bool {
 	return false
 }
 
-// Digest returns a short hex digest of the qubit count and the edge list in
-// order, identifying the graph in table metadata.
+// Digest returns a short hex digest of the qubit count, the edge list in
+// order and the labels (if any), identifying the graph in table metadata.
 func (g *Graph) Digest() string {
 	h := sha256.New()
 	fmt.Fprintf(h, "qubits %d\n", g.Qubits)
 	for _, e := range g.Edges {
 		fmt.Fprintf(h, "%d %d\n", e.A, e.B)
 	}
+	// Labels enter only when present, so that the digest of an unlabelled
+	// graph is the one tables have always recorded.
+	for q, l := range g.Labels {
+		fmt.Fprintf(h, "label %d %s\n", q, l)
+	}
 	return hex.EncodeToString(h.Sum(nil))[:16]
 }
 
 // Families lists the built-in graph families with their spec syntax.
-var Families = []string{"line:N", "ring:N", "grid:RxC", "complete:N", "star:N"}
+var Families = []string{"line:N", "ring:N", "grid:RxC", "complete:N", "star:N",
+	"honeycomb:RxC", "triangular:RxC", "diagonal:RxC", "torus:RxC", "subdivide:SPEC",
+	"regular:N,K[,SEED]", "gnp:N,P[,SEED]", "tree:N[,SEED]", "btree:DEPTH"}
 
-// ParseGraph returns the graph named by spec: a family ("line:8", "ring:6",
-// "grid:3x4", "complete:5", "star:7") or the path of an edge-list file.
-func ParseGraph(spec string) (*Graph, error) {
+// ReadOptions relax the validation of a graph read from a file.
+type ReadOptions struct {
+	// AllowDisconnected accepts isolated qubits and several connected parts.
+	AllowDisconnected bool
+}
+
+// ParseGraph returns the graph named by spec: a family (see Families and
+// Family) or the path of an edge-list file (see ReadEdgeList).
+func ParseGraph(spec string) (*Graph, error) { return ParseGraphWith(spec, ReadOptions{}) }
+
+// ParseGraphWith is ParseGraph with options for a file's graph.
+func ParseGraphWith(spec string, o ReadOptions) (*Graph, error) {
 	fam, arg, isFamily := strings.Cut(spec, ":")
-	if isFamily {
-		switch fam {
-		case "line", "ring", "complete", "star", "grid":
-			return Family(fam, arg)
-		}
+	if isFamily && isFamilyName(fam) {
+		return Family(fam, arg)
 	}
 	f, err := os.Open(spec)
 	if err != nil {
@@ -253,15 +307,29 @@ func ParseGraph(spec string) (*Graph, error) {
 		return nil, fmt.Errorf("circuits: reading graph file: %w", err)
 	}
 	defer f.Close()
-	return ReadEdgeList(spec, f)
+	return ReadEdgeListWith(spec, f, o)
 }
 
-// Family builds the graph of a named family with its size argument.
+func isFamilyName(fam string) bool {
+	switch fam {
+	case "line", "ring", "complete", "star", "grid":
+		return true
+	}
+	_, ok := newFamilies[fam]
+	return ok
+}
+
+// Family builds the graph of a named family with its size argument; the
+// numbering and classes of each family are documented in the README's
+// conventions and beside latticeFamily.
 func Family(fam, arg string) (*Graph, error) {
 	spec := fam + ":" + arg
 	switch fam {
 	case "line", "ring", "grid", "complete", "star":
 	default:
+		if _, ok := newFamilies[fam]; ok {
+			return latticeFamily(fam, arg)
+		}
 		return nil, &ParseError{File: spec, Err: ErrUnknownFamily, Detail: "use one of " + strings.Join(Families, ", ")}
 	}
 	bad := func(detail string) error {
@@ -282,6 +350,10 @@ func Family(fam, arg string) (*Graph, error) {
 			return nil, err
 		}
 		g.Family, g.Rows, g.Cols = fam, r, c
+		g.Coords = make([][2]float64, r*c)
+		for q := range g.Coords {
+			g.Coords[q] = [2]float64{float64(q % c), -float64(q / c)}
+		}
 		return g, nil
 	}
 	n, err := strconv.Atoi(arg)
@@ -325,7 +397,27 @@ func Family(fam, arg string) (*Graph, error) {
 		return nil, err
 	}
 	g.Family = fam
+	g.Coords = make([][2]float64, n)
+	for i := range g.Coords {
+		switch fam {
+		case "line":
+			g.Coords[i] = [2]float64{float64(i), 0}
+		case "star":
+			if i > 0 {
+				g.Coords[i] = circlePoint(i-1, n-1)
+			}
+		default:
+			g.Coords[i] = circlePoint(i, n)
+		}
+	}
 	return g, nil
+}
+
+// circlePoint is point i of n evenly spaced on the unit circle, the first at
+// the top, going clockwise.
+func circlePoint(i, n int) [2]float64 {
+	a := math.Pi/2 - 2*math.Pi*float64(i)/float64(n)
+	return [2]float64{math.Cos(a), math.Sin(a)}
 }
 
 // maxFamilyQubits bounds family sizes so a typo cannot ask for billions of
@@ -352,72 +444,4 @@ func gridEdges(r, c int) []Edge {
 		}
 	}
 	return edges
-}
-
-// ReadEdgeList reads an edge-list file: one "a b" pair per line, '#' starts a
-// comment, blank lines are skipped. Qubits are 0..max id. name labels errors.
-func ReadEdgeList(name string, r io.Reader) (*Graph, error) {
-	sc := bufio.NewScanner(r)
-	var edges []Edge
-	var lines []int
-	maxID := -1
-	seen := map[[2]int]int{}
-	for ln := 1; sc.Scan(); ln++ {
-		text := sc.Text()
-		if i := strings.IndexByte(text, '#'); i >= 0 {
-			text = text[:i]
-		}
-		fields := strings.Fields(text)
-		if len(fields) == 0 {
-			continue
-		}
-		perr := func(err error, detail string) error {
-			return &ParseError{File: name, Line: ln, Err: err, Detail: detail}
-		}
-		if len(fields) != 2 {
-			return nil, perr(ErrFieldCount, fmt.Sprintf("got %d fields %q; write two qubit ids \"a b\" per line", len(fields), strings.TrimSpace(text)))
-		}
-		var ids [2]int
-		for k, f := range fields {
-			v, err := strconv.Atoi(f)
-			if err != nil {
-				return nil, perr(ErrNotNumber, fmt.Sprintf("%q", f))
-			}
-			if v < 0 {
-				return nil, perr(ErrNegativeID, fmt.Sprintf("%d; qubit ids start at 0", v))
-			}
-			ids[k] = v
-		}
-		e := Edge{ids[0], ids[1]}
-		if e.A == e.B {
-			return nil, perr(ErrSelfLoop, fmt.Sprintf("qubit %d coupled to itself", e.A))
-		}
-		if prev, dup := seen[key(e)]; dup {
-			return nil, perr(ErrDuplicateEdge, fmt.Sprintf("%d %d already on line %d", e.A, e.B, prev))
-		}
-		seen[key(e)] = ln
-		edges = append(edges, e)
-		lines = append(lines, ln)
-		maxID = max(maxID, e.A, e.B)
-	}
-	if err := sc.Err(); err != nil {
-		return nil, fmt.Errorf("circuits: reading %s: %w", name, err)
-	}
-	if len(edges) == 0 {
-		return nil, &ParseError{File: name, Err: ErrTooFewQubits, Detail: "the file lists no edges"}
-	}
-	// Checked here as well as in NewGraph because maxID+1 overflows for an id
-	// of math.MaxInt.
-	if maxID >= 2*len(edges) {
-		return nil, isolatedError(name, firstIsolated(maxID, edges), maxID)
-	}
-	g, err := NewGraph(name, maxID+1, edges)
-	if err != nil {
-		var pe *ParseError
-		if errors.As(err, &pe) && pe.Line > 0 {
-			pe.Line = lines[pe.Line-1]
-		}
-		return nil, err
-	}
-	return g, nil
 }

@@ -3,7 +3,6 @@ package circuits
 import (
 	"bytes"
 	"errors"
-	"fmt"
 	"os"
 	"path/filepath"
 	"reflect"
@@ -70,13 +69,25 @@ func TestReadEdgeListErrors(t *testing.T) {
 		{"duplicate", "0 1\n1 2\n0 1\n", ErrDuplicateEdge, 3},
 		{"duplicate reversed", "0 1\n1 0\n", ErrDuplicateEdge, 2},
 		{"line counts comments and blanks", "# header\n\n0 1\n# note\n1 0\n", ErrDuplicateEdge, 5},
-		{"non-numeric", "0 1\n1 x\n", ErrNotNumber, 2},
-		{"float id", "0 1.0\n", ErrNotNumber, 1},
+		{"bad character", "0 1\n1 x/y\n", ErrBadLabel, 2},
+		{"plus sign", "+1 0\n", ErrBadLabel, 1},
 		{"id too large for int", "0 1\n1 99999999999999999999\n", ErrNotNumber, 2},
 		{"negative id", "0 1\n-1 2\n", ErrNegativeID, 2},
 		{"three fields", "0 1\n1 2 3\n", ErrFieldCount, 2},
-		{"one field", "0 1\n\n2\n", ErrFieldCount, 3},
-		{"comma separated", "0,1\n", ErrFieldCount, 1},
+		// A single token declares a qubit; one on no coupler is isolated.
+		{"declared isolated", "0 1\n\n2\n", ErrIsolatedQubit, 3},
+		{"declared isolated name", "a b\nc\n", ErrIsolatedQubit, 2},
+		{"declared twice", "a b\na\na\n", ErrDuplicateLabel, 3},
+		{"name self-loop", "a b\nb b\n", ErrSelfLoop, 2},
+		{"name duplicate", "a b\nb a\n", ErrDuplicateEdge, 2},
+		{"numbers with leading zeros", "01 1\n", ErrSelfLoop, 1},
+		{"comma separated", "0,1\n", ErrBadLabel, 1},
+		{"coordinates unknown", "a b\n#@ c 0 0\n", ErrUnknownLabel, 2},
+		{"coordinates twice", "a b\n#@ a 0 0\n#@ a 1 0\n#@ b 1 1\n", ErrDuplicateLabel, 3},
+		{"coordinates missing", "a b\n#@ a 0 0\n", ErrBadCoordinates, 0},
+		{"coordinates not finite", "a b\n#@ a NaN 0\n", ErrBadCoordinates, 2},
+		{"coordinates short", "a b\n#@ a 0\n", ErrBadCoordinates, 2},
+		{"disconnected names", "a b\nc d\n", ErrDisconnected, 0},
 		// Qubit 1 lies below the largest id 2 but is on no edge.
 		{"isolated", "0 2\n", ErrIsolatedQubit, 0},
 		{"isolated among many", "0 1\n1 2\n2 4\n", ErrIsolatedQubit, 0},
@@ -182,7 +193,8 @@ func TestParseGraphErrors(t *testing.T) {
 		spec string
 		want error
 	}{
-		{"torus:3", ErrUnknownFamily},
+		{"hexagon:3", ErrUnknownFamily},
+		{"torus:3", ErrBadSize},
 		{"no-such-file.edges", ErrUnknownFamily},
 		{"line:1", ErrBadSize},
 		{"line:0", ErrBadSize},
@@ -204,7 +216,7 @@ func TestParseGraphErrors(t *testing.T) {
 		wantParseError(t, tc.spec, err, tc.want, 0)
 	}
 	// Family checks the family before the size.
-	_, err := Family("torus", "x")
+	_, err := Family("hexagon", "x")
 	wantParseError(t, "Family(torus, x)", err, ErrUnknownFamily, 0)
 }
 
@@ -248,16 +260,6 @@ func TestDigest(t *testing.T) {
 	}
 }
 
-// writeEdgeList writes g as an edge list that ReadEdgeList accepts.
-func writeEdgeList(g *Graph) []byte {
-	var b bytes.Buffer
-	fmt.Fprintf(&b, "# %d qubits\n", g.Qubits)
-	for _, e := range g.Edges {
-		fmt.Fprintf(&b, "%d %d\n", e.A, e.B)
-	}
-	return b.Bytes()
-}
-
 // FuzzReadEdgeList checks that ReadEdgeList never panics, that every failure
 // is a *ParseError wrapping a sentinel (or a read error), and that a graph it
 // accepts survives write → read unchanged (the round trip of encoding/csv's
@@ -279,11 +281,18 @@ func FuzzReadEdgeList(f *testing.F) {
 		"0 1\n1 9223372036854775807\n",
 		"+1 0\n",
 		"0\t1\n",
+		"Q1 Q2\nQ2 q_3.a:b-c\n",
+		"a b\nc\n",
+		"0 1\n2\n1 2\n",
+		"a b\n#@ a 0 1.5\n#@ b -2 3e2\n",
+		"#@ 0 0 0\n0 1\n#@ 1 1 1\n",
+		"a b\nb 1\n1 01\n",
 	} {
 		f.Add([]byte(seed))
 	}
 	sentinels := []error{ErrFieldCount, ErrNotNumber, ErrNegativeID, ErrSelfLoop, ErrDuplicateEdge,
-		ErrIsolatedQubit, ErrDisconnected, ErrTooFewQubits}
+		ErrIsolatedQubit, ErrDisconnected, ErrTooFewQubits, ErrBadLabel, ErrUnknownLabel,
+		ErrDuplicateLabel, ErrBadCoordinates}
 	f.Fuzz(func(t *testing.T, data []byte) {
 		g, err := ReadEdgeList("fuzz", bytes.NewReader(data))
 		if err != nil {
@@ -302,12 +311,21 @@ func FuzzReadEdgeList(f *testing.F) {
 		if g.Qubits < 2 || len(g.Edges) == 0 {
 			t.Fatalf("accepted a graph with %d qubits and %d edges", g.Qubits, len(g.Edges))
 		}
-		h, err := ReadEdgeList("fuzz", bytes.NewReader(writeEdgeList(g)))
+		var buf bytes.Buffer
+		if err := WriteEdgeList(&buf, g); err != nil {
+			t.Fatal(err)
+		}
+		h, err := ReadEdgeList("fuzz", &buf)
 		if err != nil {
 			t.Fatalf("re-reading the written graph: %v", err)
 		}
-		if h.Qubits != g.Qubits || !reflect.DeepEqual(h.Edges, g.Edges) {
+		if h.Qubits != g.Qubits || !reflect.DeepEqual(h.Edges, g.Edges) || !reflect.DeepEqual(h.Labels, g.Labels) || !reflect.DeepEqual(h.Coords, g.Coords) {
 			t.Fatalf("round trip changed the graph:\n%+v\n%+v", g, h)
+		}
+		// Whatever the strict reader accepts, the lenient one accepts unchanged.
+		p, err := ReadEdgeListWith("fuzz", bytes.NewReader(data), ReadOptions{AllowDisconnected: true})
+		if err != nil || !reflect.DeepEqual(p.Edges, g.Edges) || !reflect.DeepEqual(p.Labels, g.Labels) {
+			t.Fatalf("AllowDisconnected changes an accepted graph: %v", err)
 		}
 		// The graph also passes NewGraph's validation unchanged.
 		if _, err := NewGraph("fuzz", g.Qubits, g.Edges); err != nil {

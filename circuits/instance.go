@@ -45,9 +45,14 @@ func (b *Builder) Steps() int { return b.t }
 // Next appends the gates of the next step to dst and returns it.
 func (b *Builder) Next(dst []Gate) []Gate {
 	b.edges = b.Schedule.Step(b.t, b.rng, b.edges[:0])
+	on, perEdge := b.Ensemble.(EdgeEnsemble)
 	for _, e := range b.edges {
 		g := Gate{A: e.A, B: e.B}
-		b.Ensemble.Gate(b.rng, &g.M)
+		if perEdge {
+			on.GateOn(e, b.rng, &g.M)
+		} else {
+			b.Ensemble.Gate(b.rng, &g.M)
+		}
 		dst = append(dst, g)
 	}
 	b.t++

@@ -1,6 +1,7 @@
 package circuits
 
 import (
+	"bytes"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -147,3 +148,81 @@ func (l *Layout) Check(name string, g *Graph) error {
 
 // Schedule returns the layered schedule that cycles through the layers.
 func (l *Layout) Schedule() *Layered { return &Layered{Classes: l.Layers} }
+
+// ReadLayoutFileFor reads a layout file for the graph g (see ReadLayoutFor).
+func ReadLayoutFileFor(path string, g *Graph) (*Layout, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, fmt.Errorf("circuits: reading layout file: %w", err)
+	}
+	defer f.Close()
+	return ReadLayoutFor(path, f, g)
+}
+
+// ReadLayoutFor reads a layout for the graph g, in which a gate's qubits
+// may be numbers or, as JSON strings, qubit labels of g (Graph.Label):
+//
+//	{"qubits": n, "layers": [[["Q1", "Q2"], …], …]}
+//
+// "qubits" may be left out, and must equal g's qubit count when given. The
+// layout is then read as ReadLayout does and checked against g (Check).
+// Errors are *ParseError values; an unknown label wraps ErrUnknownLabel.
+func ReadLayoutFor(name string, r io.Reader, g *Graph) (*Layout, error) {
+	var lf struct {
+		Qubits *int                  `json:"qubits"`
+		Layers [][][]json.RawMessage `json:"layers"`
+	}
+	data, err := io.ReadAll(r)
+	if err != nil {
+		return nil, fmt.Errorf("circuits: reading %s: %w", name, err)
+	}
+	dec := json.NewDecoder(bytes.NewReader(data))
+	dec.DisallowUnknownFields()
+	if dec.Decode(&lf) != nil {
+		// Not of the labelled form: the numeric reader gives the message.
+		return readNumericFor(name, bytes.NewReader(data), g)
+	}
+	index := make(map[string]int, g.Qubits)
+	for q := 0; q < g.Qubits; q++ {
+		index[g.Label(q)] = q
+	}
+	if lf.Qubits != nil && *lf.Qubits != g.Qubits {
+		return nil, &ParseError{File: name, Err: ErrLayoutMismatch, Detail: fmt.Sprintf("layout has %d qubits but graph %s has %d", *lf.Qubits, g.Name, g.Qubits)}
+	}
+	layers := make([][][2]int, len(lf.Layers))
+	for i, layer := range lf.Layers {
+		for j, gate := range layer {
+			if len(gate) != 2 {
+				return nil, &ParseError{File: name, Err: ErrFieldCount, Detail: fmt.Sprintf("layer %d gate %d has %d qubits; write each gate as [a, b]", i, j, len(gate))}
+			}
+			var ids [2]int
+			for k, raw := range gate {
+				var label string
+				if err := json.Unmarshal(raw, &label); err == nil {
+					q, ok := index[label]
+					if !ok {
+						return nil, &ParseError{File: name, Err: ErrUnknownLabel, Detail: fmt.Sprintf("layer %d gate %d names %q, which is not a qubit of %s", i, j, label, g.Name)}
+					}
+					ids[k] = q
+				} else if err := json.Unmarshal(raw, &ids[k]); err != nil {
+					return nil, &ParseError{File: name, Err: ErrLayoutSyntax, Detail: fmt.Sprintf("layer %d gate %d: %s is neither a qubit number nor a label", i, j, raw)}
+				}
+			}
+			layers[i] = append(layers[i], ids)
+		}
+	}
+	numeric, _ := json.Marshal(map[string]any{"qubits": g.Qubits, "layers": layers})
+	return readNumericFor(name, bytes.NewReader(numeric), g)
+}
+
+// readNumericFor reads a numeric layout and checks it against g.
+func readNumericFor(name string, r io.Reader, g *Graph) (*Layout, error) {
+	l, err := ReadLayout(name, r)
+	if err != nil {
+		return nil, err
+	}
+	if err := l.Check(name, g); err != nil {
+		return nil, err
+	}
+	return l, nil
+}

@@ -94,11 +94,22 @@ func NewSchedule(kind ScheduleKind, g *Graph) (Schedule, error) {
 //     and in a class C of its own when N is odd;
 //   - grid:RxC: horizontal edges with c even, horizontal with c odd, vertical
 //     with r even, vertical with r odd, where qubit (r, c) has id r·C + c;
-//   - every other graph: the colour classes of EdgeColouring, in colour order.
+//   - a graph with its own Classes (the lattice families, a dropped graph):
+//     those;
+//   - every other graph: the colour classes of EdgeColouring, in colour order,
+//     balanced by BalanceClasses.
 //
 // Empty classes are dropped.
 func LayeredClasses(g *Graph) [][]Edge {
 	var classes [][]Edge
+	switch {
+	case g.Classes != nil:
+		classes = make([][]Edge, len(g.Classes))
+		for i, cl := range g.Classes {
+			classes[i] = append([]Edge(nil), cl...)
+		}
+		return nonEmpty(classes)
+	}
 	switch g.Family {
 	case "line", "ring":
 		classes = make([][]Edge, 3)
@@ -130,7 +141,7 @@ func LayeredClasses(g *Graph) [][]Edge {
 			}
 		}
 	default:
-		classes = EdgeColouring(g)
+		classes = BalanceClasses(g, EdgeColouring(g))
 	}
 	out := classes[:0]
 	for _, cl := range classes {

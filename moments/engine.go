@@ -187,6 +187,7 @@ type CollisionOption func(*collisionConfig)
 type collisionConfig struct {
 	progress func(done, total int)
 	final    bool
+	edges    *EdgeTransfers // per-coupler transfers, or nil for t everywhere
 }
 
 // CollisionFinalLayer declares that the circuits end with a layer of Haar
@@ -320,6 +321,10 @@ func CollisionCurve(ctx context.Context, g *circuits.Graph, s circuits.Schedule,
 		return collisionRun(ctx, depths, steps, &cfg, collision, func(d int) {
 			layer = s.Step(d, nil, layer[:0])
 			for _, edge := range layer {
+				if cfg.edges != nil {
+					e.Apply(edge.A, edge.B, cfg.edges.For(edge.A, edge.B))
+					continue
+				}
 				e.Apply(edge.A, edge.B, t)
 			}
 		})
@@ -329,6 +334,9 @@ func CollisionCurve(ctx context.Context, g *circuits.Graph, s circuits.Schedule,
 		}
 		if err := collisionCheckEdges(n, s.Edges); err != nil {
 			return nil, err
+		}
+		if cfg.edges != nil {
+			return nil, errRandomEdgeTransfers
 		}
 		if collisionComplete(n, s.Edges) && t.symmetric(completeSymmetryTol) {
 			return CompleteCollisionCurve(ctx, n, t, depths, opts...)

@@ -81,6 +81,11 @@ type Result struct {
 	Collision, Ratio []float64
 	// HaarCollision is Z_H = 2/(D+1), D = 2^n.
 	HaarCollision float64
+	// Limit is the large-depth value of E[Z] that Ratio divides by:
+	// HaarCollision for a connected graph, PartsLimit for a graph in parts
+	// (Parts > 1), which never reaches HaarCollision.
+	Limit float64
+	Parts int
 	// Frame is the second frame potential F^(2) (Haar value 2), or nil with
 	// FrameNote saying why it was not computed.
 	Frame     []float64
@@ -133,8 +138,10 @@ func ExactCurveOnly() ExactOption {
 
 // Exact computes the exact second moments of the circuits of schedule s on
 // g with gates from e at each of depths (ascending, non-negative): E[Z] by
-// CollisionCurve with the transfer of TransferFor (and the final layer when
-// e has one), the ratio to the Haar value Z_H = 2/(D+1) (stats.HaarCollision),
+// CollisionCurve with the transfer of TransferFor, or of EdgeTransfersFor
+// for a gate set with calibrated couplers (and the final layer when e has
+// one), the ratio to the Haar value Z_H = 2/(D+1) (stats.HaarCollision) —
+// for a graph in parts (circuits.NewGraphParts) to PartsLimit instead —
 // and the anti-concentration depth, the smallest depth with
 // E[Z]/Z_H ≤ 1 + ε (Dalzell, Hunter-Jones, Brandão, PRX Quantum 3, 010333,
 // 2022). Unless ExactCurveOnly is given it adds
@@ -172,11 +179,22 @@ func Exact(ctx context.Context, g *circuits.Graph, s circuits.Schedule, e circui
 	if final {
 		copts = append(copts, CollisionFinalLayer())
 	}
+	et, err := EdgeTransfersFor(e)
+	if err != nil {
+		return nil, err
+	}
+	if et != nil {
+		copts = append(copts, CollisionEdgeTransfers(et))
+	}
 	if cfg.progress != nil {
 		copts = append(copts, CollisionProgress(cfg.progress))
 	}
 	n := g.Qubits
 	r := &Result{Depths: depths, HaarCollision: stats.HaarCollision(math.Ldexp(1, n)), Eps: cfg.eps}
+	r.Limit, r.Parts = r.HaarCollision, len(g.Components())
+	if r.Parts > 1 {
+		r.Limit = PartsLimit(g, final)
+	}
 	for _, d := range depths {
 		r.GateCounts = append(r.GateCounts, s.GateCount(d))
 	}
@@ -184,7 +202,7 @@ func Exact(ctx context.Context, g *circuits.Graph, s circuits.Schedule, e circui
 		return nil, exactMemory(err)
 	}
 	for _, z := range r.Collision {
-		r.Ratio = append(r.Ratio, z/r.HaarCollision)
+		r.Ratio = append(r.Ratio, z/r.Limit)
 	}
 	r.Depth, r.Found = stats.AnticoncentrationDepth(depths, r.Ratio, cfg.eps)
 	if cfg.curveOnly {
@@ -207,6 +225,8 @@ func Exact(ctx context.Context, g *circuits.Graph, s circuits.Schedule, e circui
 		return r, nil
 	}
 	switch {
+	case r.Parts > 1:
+		r.GapNote = "a graph in parts has gap 0: identity on one part and swap on another stay fixed"
 	case kind != circuits.HaarMoments:
 		r.GapNote = "the spectral gap is computed for Haar-equivalent gate sets (haar, clifford) only"
 	case n > GapMaxQubits:
@@ -267,3 +287,20 @@ func (r *Result) CollisionByDepth() map[int]float64 {
 // threshold, E[Z]/Z_H ≤ 1 + Eps (the rule that sets Depth). It panics if i
 // is out of range.
 func (r *Result) Spread(i int) bool { return r.Ratio[i] <= 1+r.Eps }
+
+// PartsLimit is the value E[Z] tends to at large depth on a graph whose
+// connected parts mix separately: the state is a product over the parts, so
+// E[Z] is the product of the parts' collision probabilities, each tending to
+// its Haar value 2/(2^k + 1) for a part of k qubits (design.md §3); an
+// isolated qubit, which no gate touches, keeps 1, or 2/3 (the Haar value of
+// one qubit) when the circuits end with a Haar single-qubit layer (final).
+// For a connected graph it is stats.HaarCollision(2^n).
+func PartsLimit(g *circuits.Graph, final bool) float64 {
+	z := 1.0
+	for _, c := range g.Components() {
+		if len(c) > 1 || final {
+			z *= stats.HaarCollision(math.Ldexp(1, len(c)))
+		}
+	}
+	return z
+}

@@ -18,6 +18,15 @@ const (
 	KeyGateSetDigest = "gate_set_digest"
 )
 
+// Metadata keys of a chip description: the qubit labels in qubit order
+// ("Q1,Q2,…", present when the graph has labels; they enter graph_digest),
+// and the out-of-service qubits and couplers removed by --drop, in the
+// labels of the chip they were removed from.
+const (
+	KeyLabels  = "labels"
+	KeyDropped = "dropped"
+)
+
 // freeKeys are the metadata keys that are not run parameters: they may differ
 // between the tables of one run (its parts, a partial table and its
 // continuation). Every other key is a run parameter.
@@ -31,8 +40,9 @@ func IsParameter(key string) bool { return !slices.Contains(freeKeys, key) }
 // Meta returns the table metadata of the run's circuits, in this order:
 // tool_version, command_line (as given), seed, graph, graph_digest, qubits,
 // schedule, layout, gates, then gate_set and gate_set_digest for a gate set
-// read from a file, edges ("a-b,c-d,…"), and for a layered schedule layers
-// (its classes, "a-b,c-d;e-f;…"). FromMeta rebuilds the Spec from it.
+// read from a file, edges ("a-b,c-d,…"), labels and dropped when the graph
+// has them, and for a layered schedule layers (its classes, "a-b,c-d;e-f;…").
+// FromMeta rebuilds the Spec from it.
 func (s *Spec) Meta(commandLine string) tables.Meta {
 	var m tables.Meta
 	m.Set("tool_version", Tool+" "+Version)
@@ -49,6 +59,12 @@ func (s *Spec) Meta(commandLine string) tables.Meta {
 		m.Set(KeyGateSetDigest, gs.Digest())
 	}
 	m.Set("edges", FormatEdges(s.Graph.Edges))
+	if s.Graph.Labels != nil {
+		m.Set(KeyLabels, strings.Join(s.Graph.Labels, ","))
+	}
+	if len(s.Graph.Dropped) > 0 {
+		m.Set(KeyDropped, strings.Join(s.Graph.Dropped, ","))
+	}
 	if l, ok := s.Schedule.(*circuits.Layered); ok {
 		m.Set("layers", formatLayers(l.Classes))
 	}
@@ -88,6 +104,16 @@ func FromMeta(meta tables.Meta) (*Spec, error) {
 	g, err := circuits.NewGraph(name, qubits, edges)
 	if err != nil {
 		return nil, fmt.Errorf("runs: metadata edges: %w", err)
+	}
+	if v, ok := meta.Get(KeyLabels); ok {
+		labels := strings.Split(v, ",")
+		if len(labels) != g.Qubits {
+			return nil, fmt.Errorf("runs: metadata %s has %d labels for %d qubits", KeyLabels, len(labels), g.Qubits)
+		}
+		g.Labels = labels
+	}
+	if v, ok := meta.Get(KeyDropped); ok && v != "" {
+		g.Dropped = strings.Split(v, ",")
 	}
 	digest, err := get("graph_digest")
 	if err != nil {
@@ -129,6 +155,9 @@ func FromMeta(meta tables.Meta) (*Spec, error) {
 	}
 	if s.Ensemble, err = ensembleFromMeta(meta); err != nil {
 		return nil, err
+	}
+	if s.Ensemble, err = bindCouplers(s.Ensemble, g); err != nil {
+		return nil, fmt.Errorf("runs: metadata %s: %w", KeyGateSet, err)
 	}
 	if s.Seed, err = MetaUint(meta, "seed"); err != nil {
 		return nil, err

@@ -58,6 +58,10 @@ func sameCircuits(t *testing.T, a, b *runs.Spec) {
 // rebuilt from the metadata alone after the file was removed or edited.
 func TestFromMetaRebuildsSpec(t *testing.T) {
 	dir := t.TempDir()
+	labelled := filepath.Join(dir, "chip.edges")
+	if err := os.WriteFile(labelled, []byte("QA QB\nQB QC\nQC QD\nQD QA\nQA QC\nQC QE\nQE QD\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
 	gates := filepath.Join(dir, "gates.json")
 	writeGateFile(t, gates, false)
 	for _, o := range []runs.Options{
@@ -67,6 +71,10 @@ func TestFromMetaRebuildsSpec(t *testing.T) {
 		{Graph: "star:4", Gates: "cz+haar1", Seed: 4},
 		{Graph: "line:5", Gates: gates, Seed: 5},
 		{Seed: 6}, // the demo chip
+		{Graph: "grid:3x3", Drop: "4,0-1", Seed: 8},
+		{Graph: "honeycomb:1x2", Drop: "3-4", Seed: 9},
+		{Graph: labelled, Drop: "QB,QA-QD", Seed: 10},
+		{Graph: labelled, Schedule: "random-edge", Seed: 11},
 	} {
 		s, err := runs.NewSpec(o)
 		if err != nil {
@@ -84,7 +92,24 @@ func TestFromMetaRebuildsSpec(t *testing.T) {
 		if back.Graph.Digest() != s.Graph.Digest() || back.Seed != s.Seed || back.Ensemble.Name() != s.Ensemble.Name() || back.Layout != s.Layout {
 			t.Errorf("%+v: rebuilt %+v", o, back)
 		}
+		if !reflect.DeepEqual(back.Graph.Labels, s.Graph.Labels) || !reflect.DeepEqual(back.Graph.Dropped, s.Graph.Dropped) {
+			t.Errorf("%+v: labels %v dropped %v rebuilt as %v, %v", o, s.Graph.Labels, s.Graph.Dropped, back.Graph.Labels, back.Graph.Dropped)
+		}
+		if (o.Drop != "") != (len(s.Graph.Dropped) > 0) {
+			t.Errorf("%+v: Dropped = %v", o, s.Graph.Dropped)
+		}
 		sameCircuits(t, s, back)
+	}
+
+	// Labels enter the digest: relabelled metadata is refused.
+	ls, err := runs.NewSpec(runs.Options{Graph: labelled, Seed: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	lm := ls.Meta("test")
+	lm.Set(runs.KeyLabels, "QB,QA,QC,QD,QE")
+	if _, err := runs.FromMeta(lm); err == nil || !strings.Contains(err.Error(), "graph_digest") {
+		t.Errorf("relabelled metadata: %v", err)
 	}
 
 	s, err := runs.NewSpec(runs.Options{Graph: "line:5", Gates: gates, Seed: 7})

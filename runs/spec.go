@@ -22,6 +22,16 @@ type Options struct {
 	Gates string
 	// Seed keys the per-instance random streams.
 	Seed uint64
+	// Drop lists out-of-service qubits and couplers (circuits.Drop), or "".
+	Drop string
+	// AllowDisconnected accepts a chip with isolated qubits or several
+	// parts. Only a description of the chip sets it: the run commands
+	// measure R against the Haar value of the whole chip, which such a chip
+	// never reaches.
+	AllowDisconnected bool
+	// Unitarize replaces the matrices of a gate-set file by their nearest
+	// unitaries (circuits.GateOptions).
+	Unitarize bool
 }
 
 // Spec is a run's circuits: what a table must record to rebuild every gate of
@@ -37,6 +47,11 @@ type Spec struct {
 	// its layout.
 	Demo bool
 	Seed uint64
+	// Chip is the graph before Drop removed anything, and Kept maps its
+	// qubits to those of Graph (−1 for a dropped qubit); Chip is Graph and
+	// Kept nil when nothing was dropped.
+	Chip *circuits.Graph
+	Kept []int
 }
 
 // OptionError reports an option that does not select valid circuits. Option
@@ -62,39 +77,51 @@ func (e *OptionError) Unwrap() error { return e.Err }
 // NewSpec builds the graph, schedule and ensemble that o selects: the demo
 // chip with its layout when o names neither a graph nor a layout; a layout
 // file's graph (or the given graph, checked against it); the layered
-// schedule's classes of circuits.LayeredClasses unless a layout gives them.
-// Every failure is an *OptionError.
+// schedule's classes of circuits.LayeredClasses unless a layout gives them;
+// then the elements of Drop removed from the graph and the layout. Every
+// failure is an *OptionError.
 func NewSpec(o Options) (*Spec, error) {
 	s := &Spec{Layout: o.Layout, Seed: o.Seed}
+	ro := circuits.ReadOptions{AllowDisconnected: o.AllowDisconnected}
 	var layout *circuits.Layout
 	switch {
 	case o.Graph == "" && o.Layout == "":
 		s.Demo = true
 		s.Graph, layout = fixtures.DemoChip()
-	case o.Layout != "":
+	case o.Layout != "" && o.Graph == "":
 		l, err := circuits.ReadLayoutFile(o.Layout)
 		if err != nil {
 			return nil, &OptionError{Option: "layout", Err: err}
 		}
 		layout = l
-		if o.Graph == "" {
-			s.Graph = l.Graph(o.Layout)
-		} else {
-			g, err := circuits.ParseGraph(o.Graph)
-			if err != nil {
-				return nil, &OptionError{Option: "graph", Err: err}
-			}
-			if err := l.Check(o.Layout, g); err != nil {
-				return nil, &OptionError{Option: "layout", Err: err}
-			}
-			s.Graph = g
+		s.Graph = l.Graph(o.Layout)
+	case o.Layout != "":
+		g, err := circuits.ParseGraphWith(o.Graph, ro)
+		if err != nil {
+			return nil, &OptionError{Option: "graph", Err: err}
 		}
+		// With a graph the layout may name qubits by their labels.
+		if layout, err = circuits.ReadLayoutFileFor(o.Layout, g); err != nil {
+			return nil, &OptionError{Option: "layout", Err: err}
+		}
+		s.Graph = g
 	default:
-		g, err := circuits.ParseGraph(o.Graph)
+		g, err := circuits.ParseGraphWith(o.Graph, ro)
 		if err != nil {
 			return nil, &OptionError{Option: "graph", Err: err}
 		}
 		s.Graph = g
+	}
+	s.Chip = s.Graph
+	if o.Drop != "" {
+		d, err := circuits.Drop(s.Graph, o.Drop, ro)
+		if err != nil {
+			return nil, &OptionError{Option: "drop", Err: err}
+		}
+		s.Graph, s.Kept = d.Graph, d.New
+		if layout != nil {
+			layout = layout.Drop(d)
+		}
 	}
 	switch o.Schedule {
 	case "layered", "":
@@ -115,8 +142,11 @@ func NewSpec(o Options) (*Spec, error) {
 	if gates == "" {
 		gates = "haar"
 	}
-	e, err := circuits.NewEnsemble(gates)
+	e, err := circuits.NewEnsembleWith(gates, circuits.GateOptions{Unitarize: o.Unitarize})
 	if err != nil {
+		return nil, &OptionError{Option: "gates", Err: err}
+	}
+	if e, err = bindCouplers(e, s.Graph); err != nil {
 		return nil, &OptionError{Option: "gates", Err: err}
 	}
 	s.Ensemble = e
@@ -127,3 +157,12 @@ var (
 	errLayoutRandomEdge = fmt.Errorf("sets explicit layers, which the random-edge schedule does not use: drop one of them")
 	errSchedule         = fmt.Errorf("use layered or random-edge")
 )
+
+// bindCouplers binds a gate set with calibrated couplers to the graph
+// (circuits.GateSet.Bind); other ensembles are returned as they are.
+func bindCouplers(e circuits.Ensemble, g *circuits.Graph) (circuits.Ensemble, error) {
+	if gs, ok := e.(*circuits.GateSet); ok && len(gs.Couplers) > 0 {
+		return gs.Bind(g)
+	}
+	return e, nil
+}

@@ -34,13 +34,15 @@ const circuitConventions = "Start in |0...0> and apply, for each circuit, the st
 //
 //	{"format": "mixdepth-circuits", "version": 1, "conventions": "…",
 //	 "qubits": n, "graph": "…", "graph_digest": "…", "edges": [[a, b], …],
+//	 "labels": ["Q1", …],
 //	 "schedule": "layered", "gates": "haar", "seed": s, "depth": d,
 //	 "part": "K/N", "partial": false,
 //	 "circuits": [{"instance": i,
 //	               "steps": [[{"qubits": [a, b], "matrix": [[[re, im], …4], …4 rows]}, …], …],
 //	               "final": [[[[re, im], [re, im]], [[re, im], [re, im]]], …]}, …]}
 //
-// "final" is omitted when the gate set has no final layer. Numbers are
+// "final" is omitted when the gate set has no final layer, "labels" (the
+// chip's names of qubits 0..n−1) when the graph has none. Numbers are
 // written with the shortest decimal form that reads back to the same
 // float64, so a file round-trips exactly.
 type CircuitFile struct {
@@ -48,13 +50,16 @@ type CircuitFile struct {
 	Graph       string
 	GraphDigest string
 	Edges       []circuits.Edge
-	Schedule    circuits.ScheduleKind
-	Gates       string
-	Seed        uint64
-	Depth       int
-	Part        string
-	Partial     bool
-	Circuits    []*Circuit
+	// Labels names the qubits on the chip, Labels[q] for qubit q, or is nil
+	// (the file then has no "labels" key).
+	Labels   []string
+	Schedule circuits.ScheduleKind
+	Gates    string
+	Seed     uint64
+	Depth    int
+	Part     string
+	Partial  bool
+	Circuits []*Circuit
 }
 
 // Sentinel errors wrapped by *CircuitFileError.
@@ -125,7 +130,18 @@ func WriteCircuits(w io.Writer, f *CircuitFile) error {
 		}
 		fmt.Fprintf(bw, "[%d, %d]", e.A, e.B)
 	}
-	fmt.Fprintf(bw, "],\n  \"schedule\": %s,\n  \"gates\": %s,\n  \"seed\": %d,\n  \"depth\": %d,\n  \"part\": %s,\n  \"partial\": %t,\n  \"circuits\": [",
+	bw.WriteString("],\n")
+	if f.Labels != nil {
+		bw.WriteString("  \"labels\": [")
+		for i, l := range f.Labels {
+			if i > 0 {
+				bw.WriteString(", ")
+			}
+			bw.WriteString(str(l))
+		}
+		bw.WriteString("],\n")
+	}
+	fmt.Fprintf(bw, "  \"schedule\": %s,\n  \"gates\": %s,\n  \"seed\": %d,\n  \"depth\": %d,\n  \"part\": %s,\n  \"partial\": %t,\n  \"circuits\": [",
 		str(string(f.Schedule)), str(f.Gates), f.Seed, f.Depth, str(f.Part), f.Partial)
 	for ci, c := range f.Circuits {
 		if ci > 0 {
@@ -195,6 +211,7 @@ type circuitFileJSON struct {
 	Graph       string                `json:"graph"`
 	GraphDigest string                `json:"graph_digest"`
 	Edges       [][]int               `json:"edges"`
+	Labels      []string              `json:"labels"`
 	Schedule    circuits.ScheduleKind `json:"schedule"`
 	Gates       string                `json:"gates"`
 	Seed        uint64                `json:"seed"`
@@ -273,6 +290,12 @@ func ReadCircuits(name string, r io.Reader) (*CircuitFile, error) {
 	g, err := circuits.NewGraph(name, n, f.Edges)
 	if err != nil {
 		return nil, bad("edges", "%v", err)
+	}
+	if fj.Labels != nil {
+		if len(fj.Labels) != n {
+			return nil, bad("labels", "%d labels for %d qubits", len(fj.Labels), n)
+		}
+		f.Labels, g.Labels = fj.Labels, fj.Labels
 	}
 	seen := map[int]bool{}
 	for ci, cj := range fj.Circuits {
@@ -388,5 +411,6 @@ func (f *CircuitFile) FileGraph(name string) *circuits.Graph {
 	if err != nil {
 		panic("sampling: circuit file edges were not validated: " + err.Error())
 	}
+	g.Labels = f.Labels
 	return g
 }

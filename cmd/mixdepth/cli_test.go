@@ -34,7 +34,7 @@ func TestBadInput(t *testing.T) {
 	dir := t.TempDir()
 	selfLoop := writeFile(t, dir, "self.edges", "0 1\n1 1\n")
 	disconnected := writeFile(t, dir, "two.edges", "0 1\n2 3\n")
-	words := writeFile(t, dir, "words.edges", "0 one\n")
+	words := writeFile(t, dir, "words.edges", "0 one!\n")
 	badJSON := writeFile(t, dir, "bad.json", `{"qubits": 4, "layers": [[[0,1]`)
 	overlap := writeFile(t, dir, "overlap.json", `{"qubits": 3, "layers": [[[0,1],[1,2]]]}`)
 	notInGraph := writeFile(t, dir, "far.json", `{"qubits": 4, "layers": [[[0,3]], [[0,1],[2,3]], [[1,2]]]}`)
@@ -45,14 +45,14 @@ func TestBadInput(t *testing.T) {
 	}{
 		{"unknown command", []string{"frobnicate"}, "unknown command"},
 		{"unknown flag", []string{"scan", "--nope"}, "unknown flag"},
-		{"unknown family", []string{"scan", "--graph", "torus:4"}, "unknown graph family"},
+		{"unknown family", []string{"scan", "--graph", "hexagon:4"}, "unknown graph family"},
 		{"missing file", []string{"scan", "--graph", filepath.Join(dir, "absent.edges")}, "no such file"},
 		{"N < 2", []string{"scan", "--graph", "line:1"}, "line needs N ≥ 2"},
 		{"ring too small", []string{"scan", "--graph", "ring:2"}, "ring needs N ≥ 3"},
 		{"bad grid", []string{"scan", "--graph", "grid:3"}, "RxC"},
 		{"self-loop", []string{"scan", "--graph", selfLoop}, "self.edges:2: self-loop"},
 		{"disconnected", []string{"scan", "--graph", disconnected}, "disconnected"},
-		{"non-numeric", []string{"scan", "--graph", words}, "words.edges:1: not a whole number"},
+		{"bad qubit token", []string{"scan", "--graph", words}, "words.edges:1: not a qubit id or name"},
 		{"malformed layout", []string{"scan", "--layout", badJSON}, "bad.json"},
 		{"missing layout", []string{"scan", "--layout", filepath.Join(dir, "absent.json")}, "layout"},
 		{"overlapping layout", []string{"scan", "--layout", overlap}, "share a qubit"},

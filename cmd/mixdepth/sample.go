@@ -190,7 +190,7 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	}
 	if *circuitsOut != "" {
 		f := &sampling.CircuitFile{
-			Qubits: s.graph.Qubits, Graph: s.graph.Name, GraphDigest: s.graph.Digest(), Edges: s.graph.Edges,
+			Qubits: s.graph.Qubits, Graph: s.graph.Name, GraphDigest: s.graph.Digest(), Edges: s.graph.Edges, Labels: s.graph.Labels,
 			Schedule: s.schedule.Kind(), Gates: s.ensemble.Name(), Seed: cf.seed, Depth: *depth,
 			Part: part.String(), Partial: partial,
 		}
@@ -243,7 +243,11 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		fmt.Fprintf(stdout, " · part %s of %d instances", part, *instances)
 	}
 	fmt.Fprintln(stdout)
-	fmt.Fprintf(stdout, "noise: %s\n\n", describeNoise(noise, usedTrajectories))
+	fmt.Fprintf(stdout, "noise: %s\n", describeNoise(noise, usedTrajectories))
+	if s.graph.Labels != nil {
+		fmt.Fprintf(stdout, "bitstrings list the qubits in the order %s\n", strings.Join(s.graph.Labels, " "))
+	}
+	fmt.Fprintln(stdout)
 	fmt.Fprintf(stdout, "linear XEB of the drawn shots   %s\n", plusMinus(rep.Linear, rep.LinearErr))
 	fmt.Fprintf(stdout, "ideal value D·Z − 1 (mean)      %.4f   (Porter–Thomas: %.4f)\n", rep.Ideal, rep.PorterThomas)
 	fmt.Fprintf(stdout, "normalized F_lin/(D·Z − 1)      %s\n", plusMinus(rep.Normalized, rep.NormalizedErr))

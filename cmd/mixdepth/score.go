@@ -64,7 +64,8 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	fs := newFlags("score", "mixdepth score FILE [flags]\n\n"+
 		"Scores the shots of a sample table (FILE.arrow or FILE.parquet from 'mixdepth sample', or a\n"+
 		"CSV of measured data with a header and at least the columns instance,bitstring; bitstrings list\n"+
-		"qubit 0 first; an optional p_ideal column is checked against the simulation). Reports per instance\n"+
+		"qubit 0 first, or last with --bit-order last; an optional p_ideal column is checked against the\n"+
+		"simulation). Reports per instance\n"+
 		"and over all shots: the linear XEB F_lin = D·mean p − 1 and the logarithmic XEB\n"+
 		"F_log = ln D + γ + mean ln p with their standard errors, the ideal-device value D·Z_U − 1 and the\n"+
 		"normalized estimate F_lin/(D·Z_U − 1), whose error bar over all shots comes twice: from the shots\n"+
@@ -83,11 +84,16 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	workers := fs.Int("workers", defaultWorkers(), "worker goroutines for states of 16 qubits or more")
 	asJSON := fs.Bool("json", false, "print one JSON document instead of the text report")
 	eps := fs.Float64("eps", sampling.DefaultEps, "anti-concentration threshold, as scan's: the circuits are spread when the mean D·Z_U − 1 lies within eps of (D−1)/(D+1), relative")
+	bitOrder := fs.String("bit-order", "first", "which end of a measured bitstring is qubit 0: first or last")
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
 	if err := checkUnit("eps", *eps); err != nil {
 		return err
+	}
+	order, err := sampling.ParseBitOrder(*bitOrder)
+	if err != nil {
+		return badInput("--bit-order %q: use first (qubit 0 is the first character, the tool's order) or last", *bitOrder)
 	}
 	if fs.NArg() != 1 {
 		return badInput("score takes one sample table: mixdepth score FILE [flags] (got %d arguments)", fs.NArg())
@@ -105,6 +111,9 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		sampled = true
 	}
 
+	if sampled && order != sampling.QubitZeroFirst {
+		return badInput("--bit-order %s: %s was written by mixdepth sample, whose bitstrings list qubit 0 first; drop --bit-order", *bitOrder, path)
+	}
 	var qubits int
 	var lookup func(int) *sampling.Circuit
 	var source string
@@ -152,6 +161,7 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		fmt.Fprintf(stderr, "mixdepth: note: %s is partial (an interrupted run); it holds instances %q\n", path, done)
 	}
 
+	recs = sampling.InOrder(recs, order)
 	groups, err := sampling.Collect(ctx, path, recs, qubits, lookup, *workers)
 	switch {
 	case errors.Is(err, context.Canceled):
@@ -171,6 +181,22 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 			w = strings.Replace(w, "misstates", "overstates", 1)
 		}
 		warnings = append(warnings, w)
+	}
+	if sampling.LowScore(rep) {
+		// Bits in the other order score as unrelated outputs; say so when
+		// the other order scores high. A row's p_ideal belongs to its own
+		// order, so the trial ignores it.
+		other := sampling.Reversed(recs)
+		for i := range other {
+			other[i].HasP = false
+		}
+		if g, err := sampling.Collect(ctx, path, other, qubits, lookup, *workers); err == nil {
+			if rev := sampling.Score(qubits, g); sampling.ScoresBetter(rev, rep) {
+				flip := map[sampling.BitOrder]string{sampling.QubitZeroFirst: "last", sampling.QubitZeroLast: "first"}[order]
+				warnings = append(warnings, fmt.Sprintf("the linear XEB %s is low, but with each bitstring reversed it is %s: the data may list qubit 0 %s; score with --bit-order %s",
+					plusMinus(rep.Linear, rep.LinearErr), plusMinus(rev.Linear, rev.LinearErr), flip, flip))
+			}
+		}
 	}
 	for _, w := range warnings {
 		fmt.Fprintln(stderr, "mixdepth: warning: "+w)
@@ -295,7 +321,7 @@ func readCircuitFile(path string) (*sampling.CircuitFile, error) {
 // total is the full run's instance count when the table records it (ids at
 // or above it are unknown), else 0.
 func scoreSetup(changed func(string) bool, cf *circuitFlags, depth int, meta tables.Meta, sampled bool, path string) (s *setup, seed uint64, d, total int, err error) {
-	flagged := changed("graph") || changed("layout") || changed("schedule") || changed("gates")
+	flagged := changed("graph") || changed("layout") || changed("schedule") || changed("gates") || changed("drop")
 	if sampled && !flagged {
 		if s, err = setupFromMeta(meta); err != nil {
 			return nil, 0, 0, 0, badInput("%s: cannot rebuild its circuits: %v; give --circuits FILE.json or the circuit flags", path, err)

@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"os"
 	"runtime"
+	"strconv"
+	"strings"
 
 	"github.com/spf13/pflag"
 	"golang.org/x/term"
@@ -18,16 +20,19 @@ const defaultSeed = 20261201
 
 // circuitFlags are the flags of every command that builds circuits.
 type circuitFlags struct {
-	graph, layout, schedule, gates string
-	seed                           uint64
+	graph, layout, schedule, gates, drop string
+	seed                                 uint64
+	unitarize                            bool
 }
 
 func (c *circuitFlags) add(fs *pflag.FlagSet) {
-	fs.StringVar(&c.graph, "graph", "", "coupling graph: line:N, ring:N, grid:RxC, complete:N, star:N, or an edge-list file (default: the demo chip)")
+	fs.StringVar(&c.graph, "graph", "", "coupling graph: a family ("+strings.Join(circuits.Families, ", ")+") or an edge-list file (default: the demo chip); mixdepth graph shows it")
+	fs.StringVar(&c.drop, "drop", "", "out-of-service qubits and couplers to remove, as Q,Q,A-B,… in the graph's labels")
 	fs.StringVar(&c.layout, "layout", "", "layout file (JSON) with explicit gate layers; overrides the layered schedule's classes")
 	fs.StringVar(&c.schedule, "schedule", "layered", "gate schedule: layered or random-edge")
 	fs.StringVar(&c.gates, "gates", "haar", "two-qubit gate set: haar, clifford, cz+haar1, cnot+haar1, iswap+haar1, sqrt-iswap+haar1, or a gate-set JSON file")
 	fs.Uint64Var(&c.seed, "seed", defaultSeed, "seed of the per-instance random streams")
+	fs.BoolVar(&c.unitarize, "unitarize", false, "replace each matrix of a gate-set file by its nearest unitary (measured matrices are unitary only to the digits written)")
 }
 
 // setup is what the circuit flags resolve to: a view of a runs.Spec with
@@ -48,8 +53,14 @@ func newSetup(sp *runs.Spec) *setup {
 }
 
 // resolve builds the graph, schedule and ensemble; every failure is bad input.
-func (c *circuitFlags) resolve() (*setup, error) {
-	sp, err := runs.NewSpec(runs.Options{Graph: c.graph, Layout: c.layout, Schedule: c.schedule, Gates: c.gates, Seed: c.seed})
+func (c *circuitFlags) resolve() (*setup, error) { return c.resolveWith(func(*runs.Options) {}) }
+
+// resolveWith is resolve with a change to the options before the spec is
+// built.
+func (c *circuitFlags) resolveWith(change func(*runs.Options)) (*setup, error) {
+	o := runs.Options{Graph: c.graph, Layout: c.layout, Schedule: c.schedule, Gates: c.gates, Seed: c.seed, Drop: c.drop, Unitarize: c.unitarize}
+	change(&o)
+	sp, err := runs.NewSpec(o)
 	var oe *runs.OptionError
 	if errors.As(err, &oe) {
 		if oe.Value != "" {
@@ -68,14 +79,31 @@ func (s *setup) describe() string {
 	var sched string
 	switch sc := s.schedule.(type) {
 	case *circuits.Layered:
-		sched = fmt.Sprintf("layered schedule, %d layers per cycle", len(sc.Classes))
+		sizes := make([]string, len(sc.Classes))
+		for i, cl := range sc.Classes {
+			sizes[i] = strconv.Itoa(len(cl))
+		}
+		sched = fmt.Sprintf("layered schedule, %d layers per cycle (%s couplers)", len(sc.Classes), strings.Join(sizes, "+"))
 		if s.layout != "" {
 			sched += " from " + s.layout
 		}
 	default:
 		sched = "random-edge schedule (one gate per step)"
 	}
-	return fmt.Sprintf("%s: %d qubits, %d couplers; %s; %s gates", s.graph.Name, s.graph.Qubits, len(s.graph.Edges), sched, s.ensemble.Name())
+	name := s.graph.Name
+	if d := s.graph.Dropped; len(d) > 0 {
+		name += " without " + strings.Join(d, ",")
+	}
+	gates := s.ensemble.Name() + " gates"
+	if gs, ok := s.ensemble.(*circuits.GateSet); ok {
+		if len(gs.Couplers) > 0 {
+			gates += fmt.Sprintf(" (%d couplers calibrated)", len(gs.EdgeEntanglers())/2)
+		}
+		if gs.Unitarized > 0 {
+			gates += fmt.Sprintf(" (made unitary: largest entry change %.2g)", gs.Unitarized)
+		}
+	}
+	return fmt.Sprintf("%s: %d qubits, %d couplers; %s; %s", name, s.graph.Qubits, len(s.graph.Edges), sched, gates)
 }
 
 // The bounds of --depths and --instances.

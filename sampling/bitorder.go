@@ -1,0 +1,69 @@
+package sampling
+
+import (
+	"fmt"
+	"math"
+)
+
+// BitOrder says which end of a measured bitstring holds qubit 0.
+type BitOrder string
+
+// The bit orders of measured bitstrings.
+const (
+	// QubitZeroFirst is the tool's own order (design.md §2): character q is
+	// qubit q.
+	QubitZeroFirst BitOrder = "first"
+	// QubitZeroLast is the reverse, character n−1−q is qubit q: the order of
+	// software that prints the binary number x = Σ b_q 2^q most significant
+	// bit first.
+	QubitZeroLast BitOrder = "last"
+)
+
+// ParseBitOrder reads "first" or "last".
+func ParseBitOrder(s string) (BitOrder, error) {
+	switch o := BitOrder(s); o {
+	case QubitZeroFirst, QubitZeroLast:
+		return o, nil
+	}
+	return "", fmt.Errorf("sampling: bit order %q: use first (qubit 0 is the first character) or last", s)
+}
+
+// Reversed returns a copy of records with every bitstring reversed, which
+// turns one bit order into the other.
+func Reversed(records []Record) []Record {
+	out := make([]Record, len(records))
+	for i, r := range records {
+		b := []byte(r.Bitstring)
+		for j, k := 0, len(b)-1; j < k; j, k = j+1, k-1 {
+			b[j], b[k] = b[k], b[j]
+		}
+		r.Bitstring = string(b)
+		out[i] = r
+	}
+	return out
+}
+
+// InOrder returns records with their bitstrings in the tool's order
+// (QubitZeroFirst), given that they were written in order o.
+func InOrder(records []Record, o BitOrder) []Record {
+	if o == QubitZeroLast {
+		return Reversed(records)
+	}
+	return records
+}
+
+// LowScore reports whether the normalized linear XEB of r is below 1/2, the
+// score at which score looks at the other bit order: data in the wrong
+// order maps each shot to an unrelated output, which pulls F_lin towards 0
+// (not exactly to 0: the outputs of one circuit at permuted qubits stay
+// correlated).
+func LowScore(r *Report) bool { return r.Shots > 1 && r.Normalized < 0.5 }
+
+// ScoresBetter reports whether other, the score of the same shots with the
+// bitstrings reversed, beats given clearly: by more than 5 combined standard
+// errors of the linear XEB (common practice for a detection) and by a factor
+// above 2.
+func ScoresBetter(other, given *Report) bool {
+	se := math.Hypot(other.LinearErr, given.LinearErr)
+	return se > 0 && other.Linear-given.Linear > 5*se && other.Linear > 2*given.Linear
+}

@@ -22,6 +22,11 @@ type Options struct {
 	Gates string
 	// Seed keys the per-instance random streams.
 	Seed uint64
+	// CheckGraph, when not nil, is called with the graph before the
+	// schedule is built (the edge colouring of a large graph is slow), so
+	// that a command can refuse a graph it cannot simulate before any
+	// costly set-up. Its error becomes an *OptionError for graph.
+	CheckGraph func(*circuits.Graph) error
 }
 
 // Spec is a run's circuits: what a table must record to rebuild every gate of
@@ -95,6 +100,11 @@ func NewSpec(o Options) (*Spec, error) {
 			return nil, &OptionError{Option: "graph", Err: err}
 		}
 		s.Graph = g
+	}
+	if o.CheckGraph != nil {
+		if err := o.CheckGraph(s.Graph); err != nil {
+			return nil, &OptionError{Option: "graph", Err: err}
+		}
 	}
 	switch o.Schedule {
 	case "layered", "":

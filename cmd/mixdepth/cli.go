@@ -16,6 +16,7 @@ import (
 	"mixdepth/sampling"
 	"mixdepth/scan"
 	"mixdepth/sim"
+	"mixdepth/tables"
 )
 
 // version is the tool version recorded in every table.
@@ -51,7 +52,7 @@ var errInterrupted = errors.New("interrupted")
 // status 2): the request cannot be run as given, and the message says why.
 // This is the one place where library errors become exit statuses.
 var badInputErrors = []error{
-	sim.ErrTooLarge,
+	sim.ErrTooLarge, tables.ErrDamaged,
 	moments.ErrTooLarge,
 	moments.ErrNoExactMoments,
 	scan.ErrConfig,
@@ -77,8 +78,21 @@ func exitCode(err error, stderr io.Writer) int {
 	return 1
 }
 
-// run dispatches to a subcommand.
-func run(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+// run dispatches to a subcommand. A panic in the command's goroutine
+// becomes a *panicError (exit status exitPanic), and a failed write of the
+// report to stdout an error (exit status 1) even when the command ignored it.
+func run(ctx context.Context, args []string, stdout, stderr io.Writer) (err error) {
+	defer recovered(&err)
+	out := &reportWriter{w: stdout}
+	err = dispatch(ctx, args, out, stderr)
+	if err == nil && out.err != nil {
+		err = fmt.Errorf("writing the report to standard output: %w", out.err)
+	}
+	return err
+}
+
+// dispatch runs the subcommand named by args[0].
+func dispatch(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	if len(args) == 0 || args[0] == "help" || args[0] == "-h" || args[0] == "--help" {
 		if len(args) > 1 {
 			return run(ctx, []string{args[1], "--help"}, stdout, stderr)
@@ -123,7 +137,9 @@ func newFlags(name, usage, example string, stdout io.Writer) *pflag.FlagSet {
 }
 
 // parseFlags parses args; errors become usage errors, --help prints usage.
+// Numeric flags are read strictly (strictFlags).
 func parseFlags(fs *pflag.FlagSet, args []string) error {
+	strictFlags(fs)
 	if err := fs.Parse(args); err != nil {
 		if errors.Is(err, pflag.ErrHelp) {
 			return err // pflag has printed the usage

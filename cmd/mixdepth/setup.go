@@ -11,6 +11,7 @@ import (
 
 	"mixdepth/circuits"
 	"mixdepth/runs"
+	"mixdepth/sim"
 )
 
 // defaultSeed is the seed used when --seed is not given; it is always printed.
@@ -20,6 +21,9 @@ const defaultSeed = 20261201
 type circuitFlags struct {
 	graph, layout, schedule, gates string
 	seed                           uint64
+	// stateVector makes resolve refuse, before any set-up, a graph whose
+	// state vector cannot fit in memory (commands that simulate states).
+	stateVector bool
 }
 
 func (c *circuitFlags) add(fs *pflag.FlagSet) {
@@ -49,11 +53,15 @@ func newSetup(sp *runs.Spec) *setup {
 
 // resolve builds the graph, schedule and ensemble; every failure is bad input.
 func (c *circuitFlags) resolve() (*setup, error) {
-	sp, err := runs.NewSpec(runs.Options{Graph: c.graph, Layout: c.layout, Schedule: c.schedule, Gates: c.gates, Seed: c.seed})
+	o := runs.Options{Graph: c.graph, Layout: c.layout, Schedule: c.schedule, Gates: c.gates, Seed: c.seed}
+	if c.stateVector {
+		o.CheckGraph = checkStateVector
+	}
+	sp, err := runs.NewSpec(o)
 	var oe *runs.OptionError
 	if errors.As(err, &oe) {
 		if oe.Value != "" {
-			return nil, badInput("--%s %q: %v", oe.Option, oe.Value, oe.Err)
+			return nil, badInput("--%s %q: %v", oe.Option, echo(oe.Value), oe.Err)
 		}
 		return nil, usageError{fmt.Errorf("--%s: %w", oe.Option, oe.Err)}
 	}
@@ -61,6 +69,12 @@ func (c *circuitFlags) resolve() (*setup, error) {
 		return nil, err
 	}
 	return newSetup(sp), nil
+}
+
+// checkStateVector refuses a graph whose smallest state vector (single
+// precision, 8 bytes per amplitude) cannot fit in memory.
+func checkStateVector(g *circuits.Graph) error {
+	return sim.CheckVector(g.Qubits, 8, fmt.Sprintf("a %d-qubit state vector (single precision, the smallest)", g.Qubits))
 }
 
 // describe is the one-line description of the circuits for human output.
@@ -114,7 +128,7 @@ func parseDepths(spec string) ([]int, error) {
 func listInput(flag string, err error) error {
 	var le *runs.ListError
 	if errors.As(err, &le) {
-		return badInput("%s %q: %s", flag, le.List, le.Detail)
+		return badInput("%s %q: %s", flag, echo(le.List), le.Detail)
 	}
 	return usageError{err}
 }

@@ -77,6 +77,13 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if fs.NArg() > 0 {
 		return badInput("exact takes no positional arguments (got %q)", fs.Arg(0))
 	}
+	var files ioCheck
+	files.circuitInputs(&cf)
+	files.output("out", *out)
+	files.output("plot", *plot)
+	if err := files.check(fs); err != nil {
+		return err
+	}
 	s, err := cf.resolve()
 	if err != nil {
 		return err

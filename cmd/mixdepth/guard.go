@@ -7,6 +7,7 @@ import (
 	"math"
 	"os"
 	"runtime/debug"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -63,6 +64,13 @@ func (r *reportWriter) Write(p []byte) (int, error) {
 
 // maxEcho bounds the part of a user-given value that a message repeats.
 const maxEcho = 64
+
+// namedFile is a file given to a command; files are compared by device and
+// inode (os.SameFile), so that a symbolic or hard link to an input is caught.
+type namedFile struct {
+	flag, path string
+	info       os.FileInfo
+}
 
 // echo returns s, or its first maxEcho bytes and an ellipsis with the
 // length, for quoting in a message.
@@ -135,24 +143,26 @@ func (s strictNumber) Set(v string) error {
 	return nil
 }
 
-// namedFile is a file given to a command; files are compared by device and
-// inode (os.SameFile), so that a symbolic or hard link to an input is caught.
-type namedFile struct {
-	flag, path string
-	info       os.FileInfo
-}
 
 // ioCheck collects the input files and output paths of a command, to refuse
 // before any work an output that would replace an input and an output that
 // cannot be written.
 type ioCheck struct {
 	inputs  []namedFile
-	outputs []namedFile
+	outputs []output
 }
 
-// input records an input file of the run (flag names the option or the
-// argument). Empty paths, family specs and files that do not exist are
-// skipped: only an existing file can be overwritten.
+// output is an output flag (a name without dashes) and its path; allowed
+// lists the input flags it may name on purpose (scan writes back to the
+// table it resumes).
+type output struct {
+	namedFile
+	allowed []string
+}
+
+// input records an input file of the run (flag names the option, with its
+// dashes, or the argument). Empty paths, family specs and files that do not
+// exist are skipped: only an existing file can be overwritten.
 func (c *ioCheck) input(flag, path string) {
 	if path == "" {
 		return
@@ -162,43 +172,45 @@ func (c *ioCheck) input(flag, path string) {
 	}
 }
 
-// output records an output path; "" (not requested) is skipped.
-func (c *ioCheck) output(flag, path string) {
-	if path == "" {
-		return
-	}
-	info, _ := os.Stat(path)
-	c.outputs = append(c.outputs, namedFile{flag: flag, path: path, info: info})
+// circuitInputs records the files that the circuit flags read.
+func (c *ioCheck) circuitInputs(cf *circuitFlags) {
+	c.input("--graph", cf.graph)
+	c.input("--layout", cf.layout)
+	c.input("--gates", cf.gates)
 }
 
-// check refuses an output that is the same file as an input or as another
-// output, and an output that cannot be created; errors are bad input.
-func (c *ioCheck) check() error {
+// output records the output flag name (without dashes) with its path.
+func (c *ioCheck) output(name, path string, allowed ...string) {
+	info, _ := os.Stat(path)
+	c.outputs = append(c.outputs, output{namedFile{flag: name, path: path, info: info}, allowed})
+}
+
+// check refuses, as bad input: an output flag given an empty name, an
+// output that is the same file as an input or as another output, and an
+// output that cannot be created.
+func (c *ioCheck) check(fs *pflag.FlagSet) error {
 	for i, o := range c.outputs {
+		flag := "--" + o.flag
+		if o.path == "" {
+			if f := fs.Lookup(o.flag); f != nil && f.Changed {
+				return badInput("%s '': give a file name", flag)
+			}
+			continue
+		}
 		if o.info != nil {
 			for _, in := range c.inputs {
-				if os.SameFile(o.info, in.info) {
-					return badInput("%s %q is the same file as the input %s %q: write the output to another file", o.flag, echo(o.path), in.flag, echo(in.path))
+				if os.SameFile(o.info, in.info) && !slices.Contains(o.allowed, in.flag) {
+					return badInput("%s %q is the same file as the input %s %q: write the output to another file", flag, echo(o.path), in.flag, echo(in.path))
 				}
 			}
 			for _, p := range c.outputs[:i] {
 				if p.info != nil && os.SameFile(o.info, p.info) {
-					return badInput("%s and %s name the same file %q: give each output its own file", p.flag, o.flag, echo(o.path))
+					return badInput("--%s and %s name the same file %q: give each output its own file", p.flag, flag, echo(o.path))
 				}
 			}
 		}
 		if err := atomicfile.CheckWritable(o.path); err != nil {
-			return badInput("%s %q: cannot write there (%v)", o.flag, echo(o.path), err)
-		}
-	}
-	return nil
-}
-
-// emptyOutput refuses an output flag that was given an empty value.
-func emptyOutput(fs *pflag.FlagSet, names ...string) error {
-	for _, n := range names {
-		if f := fs.Lookup(n); f != nil && f.Changed && f.Value.String() == "" {
-			return badInput("--%s '': give a file name", n)
+			return badInput("%s %q: cannot write there (%v)", flag, echo(o.path), err)
 		}
 	}
 	return nil

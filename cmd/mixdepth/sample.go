@@ -96,6 +96,13 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	if fs.NArg() > 0 {
 		return badInput("sample takes no positional arguments (got %q)", fs.Arg(0))
 	}
+	var files ioCheck
+	files.circuitInputs(&cf)
+	files.output("out", *out)
+	files.output("circuits", *circuitsOut)
+	if err := files.check(fs); err != nil {
+		return err
+	}
 	s, err := cf.resolve()
 	if err != nil {
 		return err

@@ -115,6 +115,14 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if *resume != "" && *out == "" {
 		*out = *resume
 	}
+	var files ioCheck
+	files.circuitInputs(&cf)
+	files.input("--resume", *resume)
+	files.output("out", *out, "--resume")
+	files.output("plot", *plot)
+	if err := files.check(fs); err != nil {
+		return err
+	}
 
 	sr := &runs.ScanRun{Spec: s.spec, Depths: depths, Instances: *instances, Eps: *eps, Confidence: *conf,
 		Part: part, Precision: scan.Precision(*precision), Exact: *withExact}

@@ -61,7 +61,8 @@ var badInputErrors = []error{
 
 // exitCode prints err on one line and returns the exit status: 0 success,
 // 1 a failure while running, 2 bad usage or input (a usageError or one of
-// badInputErrors), 130 interrupted.
+// badInputErrors), 130 interrupted, exitPanic (70) a crash inside the tool,
+// printed with its stack after the message.
 func exitCode(err error, stderr io.Writer) int {
 	if err == nil || errors.Is(err, pflag.ErrHelp) {
 		return 0
@@ -69,7 +70,11 @@ func exitCode(err error, stderr io.Writer) int {
 	msg := strings.ReplaceAll(err.Error(), "\n", " ")
 	fmt.Fprintln(stderr, "mixdepth: "+msg)
 	var ue usageError
+	var pe *panicError
 	switch {
+	case errors.As(err, &pe):
+		stderr.Write(pe.stack) // for the bug report
+		return exitPanic
 	case errors.As(err, &ue), slices.ContainsFunc(badInputErrors, func(s error) bool { return errors.Is(err, s) }):
 		return 2
 	case errors.Is(err, errInterrupted), errors.Is(err, context.Canceled):

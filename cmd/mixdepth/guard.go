@@ -134,15 +134,27 @@ func (s strictNumber) Set(v string) error {
 	if strings.HasPrefix(v, "-") {
 		trimmed = "-" + trimmed
 	}
-	if err := s.Value.Set(trimmed); err != nil {
-		if strings.Contains(err.Error(), "range") {
-			return errors.New("out of range")
-		}
-		return errors.New("not a whole number")
+	var err error
+	if strings.HasPrefix(t, "uint") {
+		_, err = strconv.ParseUint(trimmed, 10, bitSize(t))
+	} else {
+		_, err = strconv.ParseInt(trimmed, 10, bitSize(t))
 	}
-	return nil
+	if errors.Is(err, strconv.ErrRange) {
+		return errors.New("out of range")
+	}
+	if err != nil {
+		return errors.New("write a whole number in decimal digits")
+	}
+	return s.Value.Set(trimmed)
 }
 
+// bitSize returns the bits of a pflag integer type name (0 for int and
+// uint: the platform size, for strconv).
+func bitSize(t string) int {
+	n, _ := strconv.Atoi(strings.TrimLeft(t, "uint"))
+	return n
+}
 
 // ioCheck collects the input files and output paths of a command, to refuse
 // before any work an output that would replace an input and an output that

@@ -108,3 +108,39 @@ func TestParquetChecksumNotInMeta(t *testing.T) {
 		}
 	}
 }
+
+// FuzzRead feeds arbitrary bytes to Read as an Arrow IPC and as a Parquet
+// file: it must return a table or an error wrapping ErrDamaged, never panic
+// (the seed corpus is the sample table in both formats).
+func FuzzRead(f *testing.F) {
+	dir := f.TempDir()
+	for _, name := range []string{"seed.arrow", "seed.parquet"} {
+		path := filepath.Join(dir, name)
+		w, err := Create(path, sampleFields, sampleMeta())
+		if err != nil {
+			f.Fatal(err)
+		}
+		for _, r := range sampleRows {
+			w.Append(r...)
+		}
+		if err := w.Close(); err != nil {
+			f.Fatal(err)
+		}
+		data, err := os.ReadFile(path)
+		if err != nil {
+			f.Fatal(err)
+		}
+		f.Add(data)
+	}
+	f.Fuzz(func(t *testing.T, data []byte) {
+		for _, name := range []string{"f.arrow", "f.parquet"} {
+			path := filepath.Join(t.TempDir(), name)
+			if err := os.WriteFile(path, data, 0o644); err != nil {
+				t.Fatal(err)
+			}
+			if _, err := Read(path); err != nil && !errors.Is(err, ErrDamaged) {
+				t.Errorf("%s: error %v does not wrap ErrDamaged", name, err)
+			}
+		}
+	})
+}

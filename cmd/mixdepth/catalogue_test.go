@@ -58,9 +58,8 @@ var catalogue = []catalogueCase{
 		args: []string{"scan", "--graph", "line:3", "--plot", "{dir}/f/p.png"}, code: 2, frag: "--plot", intact: []string{"f"}},
 	// 3. Work is bounded before it starts.
 	{name: "scan complete:2048", args: []string{"scan", "--graph", "complete:2048"}, code: 2, frag: "needs 2^2051 bytes"},
-	{name: "sample complete:2048", args: []string{"sample", "--graph", "complete:2048"}, code: 2, frag: "needs 2^2051 bytes"},
-	{name: "score complete:2048", files: map[string]string{"s.csv": "instance,bitstring\n0,01\n"},
-		args: []string{"score", "{dir}/s.csv", "--graph", "complete:2048"}, code: 2, frag: "needs 2^2051 bytes", intact: []string{"s.csv"}},
+	{name: "scan random-edge complete:2048", args: []string{"scan", "--graph", "complete:2048", "--schedule", "random-edge"}, code: 2, frag: "needs 2^2051 bytes"},
+	{name: "scan line:100", args: []string{"scan", "--graph", "line:100"}, code: 2, frag: "needs 2^103 bytes"},
 	// 4. Numbers mean what they say.
 	{name: "--instances 0x10", args: []string{"scan", "--graph", "line:3", "--instances", "0x10"}, code: 2, frag: "decimal"},
 	{name: "--instances 1e3", args: []string{"scan", "--graph", "line:3", "--instances", "1e3"}, code: 2, frag: "decimal"},
@@ -167,5 +166,40 @@ func TestPanicExitStatus(t *testing.T) {
 	_, stderr, code := runCLI(t, "panic-for-test")
 	if code != exitPanic || !strings.Contains(stderr, "please report it") {
 		t.Errorf("exit %d, stderr %q; want %d and a bug-report request", code, stderr, exitPanic)
+	}
+}
+
+// TestTableByteFlips writes a small scan table in both formats and shows it
+// once with every byte flipped in turn (XOR 0xff): no flip may crash, and
+// every failure must be exit status 2 with one line (issue 14's damage
+// sweep through the CLI).
+func TestTableByteFlips(t *testing.T) {
+	dir := t.TempDir()
+	for _, name := range []string{"s.arrow", "s.parquet"} {
+		path := filepath.Join(dir, name)
+		if _, stderr, code := runCLI(t, "scan", "--graph", "line:3", "--depths", "2", "--instances", "2", "--out", path); code != 0 {
+			t.Fatalf("scan: exit %d: %s", code, stderr)
+		}
+		orig, err := os.ReadFile(path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		failed := 0
+		for i := range orig {
+			data := bytes.Clone(orig)
+			data[i] ^= 0xff
+			if err := os.WriteFile(path, data, 0o644); err != nil {
+				t.Fatal(err)
+			}
+			_, stderr, code := runCLI(t, "show", path, "--format", "csv")
+			switch {
+			case code == 0:
+			case code != 2 || strings.Count(stderr, "\n") != 1:
+				t.Errorf("%s byte %d: exit %d, stderr %q; want 0, or 2 with one line", name, i, code, stderr)
+			default:
+				failed++
+			}
+		}
+		t.Logf("%s: %d bytes, %d flips refused with exit 2", name, len(orig), failed)
 	}
 }

@@ -76,7 +76,6 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		"With no --graph it samples the demo chip.",
 		"mixdepth sample --depth 16 --instances 10 --shots 2000 --gate-error 0.005 --readout-error 0.01,0.03 --out samples.parquet --circuits circuits.json", stdout)
 	var cf circuitFlags
-	cf.stateVector = true
 	cf.add(fs)
 	depth := fs.Int("depth", defaultSampleDepth, "circuit depth (layers, or gates for random-edge)")
 	instances := fs.Int("instances", 10, "number of random circuit instances")

@@ -66,7 +66,6 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		"--depth given overrides them); for a CSV, from those flags and their defaults, as sample uses them.",
 		"mixdepth score samples.parquet --circuits circuits.json", stdout)
 	var cf circuitFlags
-	cf.stateVector = true
 	cf.add(fs)
 	depth := fs.Int("depth", defaultSampleDepth, "circuit depth when rebuilding the circuits; a table that records its depth overrides this fallback")
 	circuitsIn := fs.String("circuits", "", "read the circuits from FILE.json, as written by 'mixdepth sample --circuits'")

@@ -130,6 +130,9 @@ func ParseIDs(s string) ([]int, error) {
 		if a < next {
 			return nil, bad("%q is out of order or overlaps the item before it", part)
 		}
+		if b >= MaxInstances { // ids lie below the instance cap; this also keeps i++ from overflowing
+			return nil, bad("instance id %d is beyond the largest, %d", b, MaxInstances-1)
+		}
 		if len(ids)+(b-a) >= MaxInstances {
 			return nil, bad("more than %d instances", MaxInstances)
 		}

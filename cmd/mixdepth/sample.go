@@ -112,8 +112,8 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	switch {
 	case *depth < 1:
 		return badInput("--depth %d: must be at least 1", *depth)
-	case *instances < 1:
-		return badInput("--instances %d: must be at least 1", *instances)
+	case *instances < 1 || *instances > maxInstances:
+		return badInput("--instances %d: must be between 1 and %d", *instances, maxInstances)
 	case *shots < 1:
 		return badInput("--shots %d: must be at least 1", *shots)
 	case *trajectories < 1:

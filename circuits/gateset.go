@@ -14,6 +14,8 @@ import (
 	"os"
 	"strconv"
 	"strings"
+
+	"mixdepth/internal/inputfile"
 )
 
 // Sentinel errors of gate-set specs and files, wrapped by *ParseError.
@@ -216,7 +218,7 @@ type gateSetFile struct {
 
 // ReadGateSetFile reads the gate-set file at path (see ReadGateSet).
 func ReadGateSetFile(path string) (*GateSet, error) {
-	data, err := os.ReadFile(path)
+	data, err := inputfile.ReadFile(path, inputfile.SmallLimit)
 	if err != nil {
 		return nil, fmt.Errorf("circuits: reading gate-set file: %w", err)
 	}

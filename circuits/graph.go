@@ -12,6 +12,8 @@ import (
 	"slices"
 	"strconv"
 	"strings"
+
+	"mixdepth/internal/inputfile"
 )
 
 // Edge is an unordered coupling between qubits A and B, stored as given.
@@ -52,7 +54,12 @@ var (
 	ErrNotInGraph     = errors.New("edge not in the graph")
 	ErrLayoutMismatch = errors.New("layout does not match the graph")
 	ErrLayoutSyntax   = errors.New("malformed layout")
+	ErrLineTooLong    = errors.New("line too long")
 )
+
+// maxLineBytes is the longest line of an edge-list file (bufio's default
+// token limit).
+const maxLineBytes = bufio.MaxScanTokenSize
 
 // ParseError is an error in a graph or layout file, or in a graph spec.
 // Line is 1-based; 0 means the error concerns the whole input.
@@ -272,7 +279,7 @@ func ParseGraph(spec string) (*Graph, error) {
 			return Family(fam, arg)
 		}
 	}
-	f, err := os.Open(spec)
+	f, err := inputfile.Open(spec, inputfile.SmallLimit)
 	if err != nil {
 		if errors.Is(err, os.ErrNotExist) {
 			return nil, &ParseError{File: spec, Err: ErrUnknownFamily, Detail: fmt.Sprintf("no such file, and not one of %s", strings.Join(Families, ", "))}
@@ -389,7 +396,8 @@ func ReadEdgeList(name string, r io.Reader) (*Graph, error) {
 	var lines []int
 	maxID := -1
 	seen := map[[2]int]int{}
-	for ln := 1; sc.Scan(); ln++ {
+	ln := 1
+	for ; sc.Scan(); ln++ {
 		text := sc.Text()
 		if i := strings.IndexByte(text, '#'); i >= 0 {
 			text = text[:i]
@@ -427,7 +435,9 @@ func ReadEdgeList(name string, r io.Reader) (*Graph, error) {
 		lines = append(lines, ln)
 		maxID = max(maxID, e.A, e.B)
 	}
-	if err := sc.Err(); err != nil {
+	if err := sc.Err(); errors.Is(err, bufio.ErrTooLong) {
+		return nil, &ParseError{File: name, Line: ln, Err: ErrLineTooLong, Detail: fmt.Sprintf("longer than %d bytes; write one \"a b\" pair per line", maxLineBytes)}
+	} else if err != nil {
 		return nil, fmt.Errorf("circuits: reading %s: %w", name, err)
 	}
 	if len(edges) == 0 {

@@ -5,7 +5,8 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"os"
+
+	"mixdepth/internal/inputfile"
 )
 
 // Layout is an explicit layered schedule read from a JSON file of the form
@@ -25,7 +26,7 @@ type layoutFile struct {
 
 // ReadLayoutFile reads and checks a layout file.
 func ReadLayoutFile(path string) (*Layout, error) {
-	f, err := os.Open(path)
+	f, err := inputfile.Open(path, inputfile.SmallLimit)
 	if err != nil {
 		return nil, fmt.Errorf("circuits: reading layout file: %w", err)
 	}

@@ -205,13 +205,13 @@ type circuitFileJSON struct {
 }
 
 type circuitJSON struct {
-	Instance *int            `json:"instance"`
-	Steps    [][]gateJSON    `json:"steps"`
+	Instance *int           `json:"instance"`
+	Steps    [][]gateJSON   `json:"steps"`
 	Final    [][][][]number `json:"final"`
 }
 
 type gateJSON struct {
-	Qubits []int         `json:"qubits"`
+	Qubits []int        `json:"qubits"`
 	Matrix [][][]number `json:"matrix"`
 }
 

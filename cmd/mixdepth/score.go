@@ -6,13 +6,14 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"os"
 	"strings"
 	"unicode/utf8"
 
 	"mixdepth/runs"
 	"mixdepth/sampling"
 	"mixdepth/tables"
+
+	"mixdepth/internal/inputfile"
 )
 
 func init() {
@@ -252,7 +253,7 @@ func readSamples(path string) ([]sampling.Record, tables.Meta, error) {
 
 // readCircuitFile reads and checks a circuit file; every failure is bad input.
 func readCircuitFile(path string) (*sampling.CircuitFile, error) {
-	f, err := os.Open(path)
+	f, err := inputfile.Open(path, inputfile.DataLimit)
 	if err != nil {
 		return nil, usageError{fmt.Errorf("--circuits: %w", err)}
 	}

@@ -58,6 +58,9 @@ var catalogue = []catalogueCase{
 		args: []string{"scan", "--graph", "line:3", "--plot", "{dir}/f/p.png"}, code: 2, frag: "--plot", intact: []string{"f"}},
 	// 3. Work is bounded before it starts.
 	{name: "scan complete:2048", args: []string{"scan", "--graph", "complete:2048"}, code: 2, frag: "needs 2^2051 bytes"},
+	{name: "sample complete:2048", args: []string{"sample", "--graph", "complete:2048"}, code: 2, frag: "2048 qubits: sampling takes 2 to 32"},
+	{name: "score complete:2048", files: map[string]string{"s.csv": "instance,bitstring\n0,01\n"},
+		args: []string{"score", "{dir}/s.csv", "--graph", "complete:2048"}, code: 2, frag: "2048 qubits: scoring takes 2 to 32", intact: []string{"s.csv"}},
 	{name: "scan random-edge complete:2048", args: []string{"scan", "--graph", "complete:2048", "--schedule", "random-edge"}, code: 2, frag: "needs 2^2051 bytes"},
 	{name: "scan line:100", args: []string{"scan", "--graph", "line:100"}, code: 2, frag: "needs 2^103 bytes"},
 	// 4. Numbers mean what they say.
@@ -113,7 +116,7 @@ func TestCatalogue(t *testing.T) {
 			if !strings.Contains(stderr, c.frag) {
 				t.Errorf("stderr %q does not contain %q", stderr, c.frag)
 			}
-			if strings.HasPrefix(c.name, "scan complete") && time.Since(start) > 5*time.Second {
+			if strings.HasSuffix(c.name, "complete:2048") && time.Since(start) > 5*time.Second {
 				// The check must come before the edge colouring (minutes);
 				// 5 s leaves room for a loaded CI machine above the second
 				// it takes alone.

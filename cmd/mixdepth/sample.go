@@ -14,6 +14,7 @@ import (
 
 	"github.com/schollz/progressbar/v3"
 
+	"mixdepth/circuits"
 	"mixdepth/runs"
 	"mixdepth/sampling"
 	"mixdepth/tables"
@@ -75,7 +76,7 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		"                      and 1→0 with probability p10 (one value sets both)\n"+
 		"With no --graph it samples the demo chip.",
 		"mixdepth sample --depth 16 --instances 10 --shots 2000 --gate-error 0.005 --readout-error 0.01,0.03 --out samples.parquet --circuits circuits.json", stdout)
-	var cf circuitFlags
+	cf := circuitFlags{checkGraph: func(g *circuits.Graph) error { return sampling.CheckQubits(g.Qubits, "sampling") }}
 	cf.add(fs)
 	depth := fs.Int("depth", defaultSampleDepth, "circuit depth (layers, or gates for random-edge)")
 	instances := fs.Int("instances", 10, "number of random circuit instances")

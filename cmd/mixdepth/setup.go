@@ -21,9 +21,9 @@ const defaultSeed = 20261201
 type circuitFlags struct {
 	graph, layout, schedule, gates string
 	seed                           uint64
-	// stateVector makes resolve refuse, before any set-up, a graph whose
-	// state vector cannot fit in memory (commands that simulate states).
-	stateVector bool
+	// checkGraph, when not nil, lets resolve refuse a graph before any
+	// costly set-up (the edge colouring of a large graph).
+	checkGraph func(*circuits.Graph) error
 }
 
 func (c *circuitFlags) add(fs *pflag.FlagSet) {
@@ -54,9 +54,7 @@ func newSetup(sp *runs.Spec) *setup {
 // resolve builds the graph, schedule and ensemble; every failure is bad input.
 func (c *circuitFlags) resolve() (*setup, error) {
 	o := runs.Options{Graph: c.graph, Layout: c.layout, Schedule: c.schedule, Gates: c.gates, Seed: c.seed}
-	if c.stateVector {
-		o.CheckGraph = checkStateVector
-	}
+	o.CheckGraph = c.checkGraph
 	sp, err := runs.NewSpec(o)
 	var oe *runs.OptionError
 	if errors.As(err, &oe) {

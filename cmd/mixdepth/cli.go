@@ -52,7 +52,7 @@ var errInterrupted = errors.New("interrupted")
 // status 2): the request cannot be run as given, and the message says why.
 // This is the one place where library errors become exit statuses.
 var badInputErrors = []error{
-	sim.ErrTooLarge, tables.ErrDamaged,
+	sim.ErrTooLarge, tables.ErrDamaged, runs.ErrValue,
 	moments.ErrTooLarge,
 	moments.ErrNoExactMoments,
 	scan.ErrConfig,

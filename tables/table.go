@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"strings"
 
 	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/arrow/array"
@@ -215,8 +216,20 @@ func readError(path string, err error) error {
 	if errors.As(err, &oe) {
 		return fmt.Errorf("tables: read %q: %w", path, oe.err)
 	}
-	return fmt.Errorf("tables: read %q: %w: %w", path, ErrDamaged, err)
+	return &damagedError{path: path, err: err}
 }
+
+// damagedError is the error of Read and ReadMeta for a damaged file: it
+// matches ErrDamaged and wraps the reader's cause.
+type damagedError struct {
+	path string
+	err  error
+}
+
+func (e *damagedError) Error() string {
+	return fmt.Sprintf("tables: read %q: %s: %v", e.path, strings.TrimPrefix(ErrDamaged.Error(), "tables: "), e.err)
+}
+func (e *damagedError) Unwrap() []error { return []error{ErrDamaged, e.err} }
 
 // withFile opens the regular file at path and calls read with it. A panic in
 // read (inside arrow-go, on bytes it did not expect) is recovered and

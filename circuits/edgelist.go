@@ -54,7 +54,8 @@ func ReadEdgeListWith(name string, r io.Reader, o ReadOptions) (*Graph, error) {
 	var coords []coord
 	named := false
 	sc := bufio.NewScanner(r)
-	for ln := 1; sc.Scan(); ln++ {
+	ln := 1
+	for ; sc.Scan(); ln++ {
 		text := sc.Text()
 		perr := func(err error, detail string) error {
 			return &ParseError{File: name, Line: ln, Err: err, Detail: detail}
@@ -97,7 +98,9 @@ func ReadEdgeListWith(name string, r io.Reader, o ReadOptions) (*Graph, error) {
 		}
 		lines = append(lines, line{ln, fields})
 	}
-	if err := sc.Err(); err != nil {
+	if err := sc.Err(); errors.Is(err, bufio.ErrTooLong) {
+		return nil, &ParseError{File: name, Line: ln, Err: ErrLineTooLong, Detail: fmt.Sprintf("longer than %d bytes; write one qubit pair or one qubit per line", maxLineBytes)}
+	} else if err != nil {
 		return nil, fmt.Errorf("circuits: reading %s: %w", name, err)
 	}
 

@@ -14,6 +14,8 @@ import (
 	"os"
 	"strconv"
 	"strings"
+
+	"mixdepth/internal/inputfile"
 )
 
 // Sentinel errors of gate-set specs and files, wrapped by *ParseError.
@@ -341,7 +343,7 @@ func ReadGateSetFile(path string) (*GateSet, error) {
 // ReadGateSetFileWith reads the gate-set file at path with options (see
 // ReadGateSetWith).
 func ReadGateSetFileWith(path string, o GateOptions) (*GateSet, error) {
-	data, err := os.ReadFile(path)
+	data, err := inputfile.ReadFile(path, inputfile.SmallLimit)
 	if err != nil {
 		return nil, fmt.Errorf("circuits: reading gate-set file: %w", err)
 	}
@@ -517,14 +519,22 @@ func readMatrix(raw json.RawMessage, d int, dst []complex128, what string) error
 			return fmt.Errorf("%s row %d has %d entries, want %d", what, i+1, len(entries), d)
 		}
 		for j, eraw := range entries {
-			var p []float64
-			if err := json.Unmarshal(eraw, &p); err != nil || len(p) != 2 {
-				return fmt.Errorf("%s row %d entry %d is %s, want a [re, im] pair of numbers", what, i+1, j+1, eraw)
+			var p []*float64 // a pointer tells null from 0
+			if err := json.Unmarshal(eraw, &p); err != nil || len(p) != 2 || p[0] == nil || p[1] == nil {
+				return fmt.Errorf("%s row %d entry %d is %s, want a [re, im] pair of numbers", what, i+1, j+1, echoJSON(eraw))
 			}
-			dst[i*d+j] = complex(p[0], p[1])
+			dst[i*d+j] = complex(*p[0], *p[1])
 		}
 	}
 	return nil
+}
+
+// echoJSON returns raw for a message, cut to 64 bytes.
+func echoJSON(raw json.RawMessage) string {
+	if len(raw) > 64 {
+		return string(raw[:64]) + "…"
+	}
+	return string(raw)
 }
 
 func isNull(raw json.RawMessage) bool {

@@ -1,14 +1,19 @@
 package circuits
 
 import (
+	"bufio"
+	"cmp"
 	"crypto/sha256"
 	"encoding/hex"
 	"errors"
 	"fmt"
 	"math"
 	"os"
+	"slices"
 	"strconv"
 	"strings"
+
+	"mixdepth/internal/inputfile"
 )
 
 // Edge is an unordered coupling between qubits A and B, stored as given.
@@ -79,7 +84,12 @@ var (
 	ErrNotInGraph     = errors.New("edge not in the graph")
 	ErrLayoutMismatch = errors.New("layout does not match the graph")
 	ErrLayoutSyntax   = errors.New("malformed layout")
+	ErrLineTooLong    = errors.New("line too long")
 )
+
+// maxLineBytes is the longest line of an edge-list file (bufio's default
+// token limit).
+const maxLineBytes = bufio.MaxScanTokenSize
 
 // ParseError is an error in a graph or layout file, or in a graph spec.
 // Line is 1-based; 0 means the error concerns the whole input.
@@ -133,8 +143,11 @@ func newGraph(name string, n int, edges []Edge, parts bool) (*Graph, error) {
 	if len(edges) == 0 {
 		return nil, &ParseError{File: name, Err: ErrTooFewQubits, Detail: "no edges; a coupling graph needs at least one"}
 	}
-	seen := make(map[[2]int]int, len(edges))
+	dupAt, dupOf := firstDuplicate(edges)
 	for i, e := range edges {
+		if i == dupAt {
+			return nil, &ParseError{File: name, Line: i + 1, Err: ErrDuplicateEdge, Detail: fmt.Sprintf("edge %d %d repeats edge %d", e.A, e.B, dupOf+1)}
+		}
 		if e.A < 0 || e.B < 0 {
 			return nil, &ParseError{File: name, Line: i + 1, Err: ErrNegativeID, Detail: fmt.Sprintf("edge %d %d", e.A, e.B)}
 		}
@@ -144,11 +157,6 @@ func newGraph(name string, n int, edges []Edge, parts bool) (*Graph, error) {
 		if e.A == e.B {
 			return nil, &ParseError{File: name, Line: i + 1, Err: ErrSelfLoop, Detail: fmt.Sprintf("edge %d %d", e.A, e.B)}
 		}
-		k := key(e)
-		if j, dup := seen[k]; dup {
-			return nil, &ParseError{File: name, Line: i + 1, Err: ErrDuplicateEdge, Detail: fmt.Sprintf("edge %d %d repeats edge %d", e.A, e.B, j)}
-		}
-		seen[k] = i + 1
 	}
 	g := &Graph{Name: name, Qubits: n, Edges: append([]Edge(nil), edges...)}
 	if parts {
@@ -164,6 +172,33 @@ func newGraph(name string, n int, edges []Edge, parts bool) (*Graph, error) {
 		return nil, &ParseError{File: name, Err: ErrDisconnected, Detail: fmt.Sprintf("%d separate parts; random circuits on it never mix between them (graph and exact accept it with --allow-disconnected)", comps)}
 	}
 	return g, nil
+}
+
+// firstDuplicate returns the index of the first edge that repeats an earlier
+// one (either orientation) and the index of that earlier edge, or -1, -1. It
+// sorts indices instead of filling a map, so that the two million edges of
+// complete:2048 take a fraction of a second.
+func firstDuplicate(edges []Edge) (at, of int) {
+	idx := make([]int, len(edges))
+	for i := range idx {
+		idx[i] = i
+	}
+	slices.SortFunc(idx, func(i, j int) int {
+		a, b := key(edges[i]), key(edges[j])
+		return cmp.Or(cmp.Compare(a[0], b[0]), cmp.Compare(a[1], b[1]), cmp.Compare(i, j))
+	})
+	at, of = -1, -1
+	for k := 1; k < len(idx); k++ {
+		if key(edges[idx[k]]) == key(edges[idx[k-1]]) && (at < 0 || idx[k] < at) {
+			// idx[k-1] is not necessarily the first occurrence; find it.
+			first := k - 1
+			for first > 0 && key(edges[idx[first-1]]) == key(edges[idx[k]]) {
+				first--
+			}
+			at, of = idx[k], idx[first]
+		}
+	}
+	return at, of
 }
 
 // firstIsolated returns the smallest qubit in 0..n-1 on no edge of edges, or
@@ -299,7 +334,7 @@ func ParseGraphWith(spec string, o ReadOptions) (*Graph, error) {
 	if isFamily && isFamilyName(fam) {
 		return Family(fam, arg)
 	}
-	f, err := os.Open(spec)
+	f, err := inputfile.Open(spec, inputfile.SmallLimit)
 	if err != nil {
 		if errors.Is(err, os.ErrNotExist) {
 			return nil, &ParseError{File: spec, Err: ErrUnknownFamily, Detail: fmt.Sprintf("no such file, and not one of %s", strings.Join(Families, ", "))}

@@ -6,7 +6,8 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"os"
+
+	"mixdepth/internal/inputfile"
 )
 
 // Layout is an explicit layered schedule read from a JSON file of the form
@@ -26,7 +27,7 @@ type layoutFile struct {
 
 // ReadLayoutFile reads and checks a layout file.
 func ReadLayoutFile(path string) (*Layout, error) {
-	f, err := os.Open(path)
+	f, err := inputfile.Open(path, inputfile.SmallLimit)
 	if err != nil {
 		return nil, fmt.Errorf("circuits: reading layout file: %w", err)
 	}
@@ -151,7 +152,7 @@ func (l *Layout) Schedule() *Layered { return &Layered{Classes: l.Layers} }
 
 // ReadLayoutFileFor reads a layout file for the graph g (see ReadLayoutFor).
 func ReadLayoutFileFor(path string, g *Graph) (*Layout, error) {
-	f, err := os.Open(path)
+	f, err := inputfile.Open(path, inputfile.SmallLimit)
 	if err != nil {
 		return nil, fmt.Errorf("circuits: reading layout file: %w", err)
 	}

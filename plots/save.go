@@ -130,7 +130,7 @@ func CheckPath(path string) error {
 	if _, err := FormatOf(path); err != nil {
 		return err
 	}
-	if err := atomicfile.CheckDir(path); err != nil {
+	if err := atomicfile.CheckWritable(path); err != nil {
 		return fmt.Errorf("plots: cannot write %q: %w", path, err)
 	}
 	return nil

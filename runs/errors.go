@@ -66,6 +66,11 @@ func (e *DuplicateError) Error() string {
 // ErrColumns marks tables whose columns differ, which no run writes.
 var ErrColumns = errors.New("runs: different columns")
 
+// ErrValue is wrapped by the error for a scan table row whose values cannot
+// come from a scan (a collision probability outside [1/D, 1], a negative
+// depth, a non-finite statistic): a damaged table.
+var ErrValue = errors.New("runs: impossible value in a scan table")
+
 // difference returns the first run parameter in which b differs from a, in
 // the order of a's keys and then b's, skipping the keys for which skip is
 // true. The gates key of two tables that both record a gate_set is a label

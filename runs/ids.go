@@ -67,11 +67,14 @@ func ParseDepths(spec string) ([]int, error) {
 		if len(out)+(to-from)/step >= MaxDepthCount {
 			return nil, bad("more than %d depths; use a step (FROM:TO:STEP)", MaxDepthCount)
 		}
+		if from <= 0 {
+			return nil, bad("depth %d is not positive; depths start at 1", from)
+		}
 		for d := from; d <= to; d += step {
-			if d <= 0 {
-				return nil, bad("depth %d is not positive; depths start at 1", d)
-			}
 			out = append(out, d)
+			if step > to-d { // d+step would pass to, or overflow
+				break
+			}
 		}
 	}
 	slices.Sort(out)
@@ -126,6 +129,9 @@ func ParseIDs(s string) ([]int, error) {
 		}
 		if a < next {
 			return nil, bad("%q is out of order or overlaps the item before it", part)
+		}
+		if b >= MaxInstances { // ids lie below the instance cap; this also keeps i++ from overflowing
+			return nil, bad("instance id %d is beyond the largest, %d", b, MaxInstances-1)
 		}
 		if len(ids)+(b-a) >= MaxInstances {
 			return nil, bad("more than %d instances", MaxInstances)

@@ -139,10 +139,33 @@ func scanRecords(t *tables.Table) ([]scan.Record, error) {
 	if err := errors.Join(err1, err2, err3, err4, err5, err6, err7); err != nil {
 		return nil, err
 	}
+	// Z = Σ p² lies in [1/D, 1] for a normalized state (Cauchy–Schwarz);
+	// collisionSlack allows the rounding of single-precision runs (about
+	// 1e-6 relative, see --precision) with a margin.
+	const collisionSlack = 1e-5
+	lo := 0.0
+	if n, err := MetaInt(t.Meta, "qubits"); err == nil && n >= 1 && n <= 1000 {
+		lo = math.Ldexp(1, -n) * (1 - collisionSlack)
+	}
 	recs := make([]scan.Record, t.Len())
 	for i := range recs {
-		recs[i] = scan.Record{Depth: int(depth[i]), GateCount: int(gates[i]), Instance: int(inst[i]),
+		r := scan.Record{Depth: int(depth[i]), GateCount: int(gates[i]), Instance: int(inst[i]),
 			Collision: z[i], Ratio: ratio[i], KS: ks[i], XEBIdeal: xeb[i]}
+		var bad string
+		switch {
+		case r.Depth < 1 || r.Depth > MaxDepth || r.GateCount < 0 || r.Instance < 0 || r.Instance >= MaxInstances:
+			bad = fmt.Sprintf("depth %d, gate_count %d, instance %d out of range", r.Depth, r.GateCount, r.Instance)
+		case !(r.Collision >= lo && r.Collision <= 1+collisionSlack):
+			bad = fmt.Sprintf("collision %v outside [1/D, 1]", r.Collision)
+		case !(r.KS >= 0 && r.KS <= 1):
+			bad = fmt.Sprintf("pt_ks %v outside [0, 1]", r.KS)
+		case math.IsNaN(r.Ratio) || math.IsInf(r.Ratio, 0) || math.IsNaN(r.XEBIdeal) || math.IsInf(r.XEBIdeal, 0):
+			bad = "collision_ratio or xeb_ideal not finite"
+		}
+		if bad != "" {
+			return nil, fmt.Errorf("%w: row %d: %s", ErrValue, i+1, bad)
+		}
+		recs[i] = r
 	}
 	return recs, nil
 }
@@ -229,8 +252,18 @@ func Resume(path string, want tables.Meta, ids []int) (previous []scan.Record, t
 	if err != nil {
 		return nil, nil, fmt.Errorf("runs: %s is not a per-instance scan table: %w", path, err)
 	}
+	// Refuse what summarize and merge refuse: an instance list in the
+	// metadata that disagrees with the rows, or a depth without a record of
+	// every finished instance.
+	done, err := TableInstances(t)
+	if err != nil {
+		return nil, nil, fmt.Errorf("%s: %w", path, err)
+	}
+	if err := CheckComplete(recs, len(done)); err != nil {
+		return nil, nil, fmt.Errorf("runs: %s: %w", path, err)
+	}
 	have := map[int]bool{}
-	for _, id := range RecordInstances(recs) {
+	for _, id := range done {
 		have[id] = true
 	}
 	for _, id := range ids {

@@ -32,6 +32,11 @@ type Options struct {
 	// Unitarize replaces the matrices of a gate-set file by their nearest
 	// unitaries (circuits.GateOptions).
 	Unitarize bool
+	// CheckGraph, when not nil, is called with the graph before the
+	// schedule is built (the edge colouring of a large graph is slow), so
+	// that a command can refuse a graph it cannot simulate before any
+	// costly set-up. Its error becomes an *OptionError for graph.
+	CheckGraph func(*circuits.Graph) error
 }
 
 // Spec is a run's circuits: what a table must record to rebuild every gate of
@@ -121,6 +126,11 @@ func NewSpec(o Options) (*Spec, error) {
 		s.Graph, s.Kept = d.Graph, d.New
 		if layout != nil {
 			layout = layout.Drop(d)
+		}
+	}
+	if o.CheckGraph != nil {
+		if err := o.CheckGraph(s.Graph); err != nil {
+			return nil, &OptionError{Option: "graph", Err: err}
 		}
 	}
 	switch o.Schedule {

@@ -222,15 +222,29 @@ type circuitFileJSON struct {
 }
 
 type circuitJSON struct {
-	Instance *int            `json:"instance"`
-	Steps    [][]gateJSON    `json:"steps"`
-	Final    [][][][]float64 `json:"final"`
+	Instance *int           `json:"instance"`
+	Steps    [][]gateJSON   `json:"steps"`
+	Final    [][][][]number `json:"final"`
 }
 
 type gateJSON struct {
-	Qubits []int         `json:"qubits"`
-	Matrix [][][]float64 `json:"matrix"`
+	Qubits []int        `json:"qubits"`
+	Matrix [][][]number `json:"matrix"`
 }
+
+// number is a matrix entry part. encoding/json leaves a float64 as 0 when it
+// reads null, without an error; a number refuses null, so that [-1, null]
+// is reported rather than read as −1+0i.
+type number float64
+
+func (n *number) UnmarshalJSON(b []byte) error {
+	if string(b) == "null" {
+		return errNullNumber
+	}
+	return json.Unmarshal(b, (*float64)(n))
+}
+
+var errNullNumber = errors.New("null where a number is needed")
 
 // ReadCircuits reads a circuit file from r; name labels errors. It checks
 // the format and version, the shape of every matrix and that it is unitary
@@ -360,7 +374,7 @@ func ReadCircuits(name string, r io.Reader) (*CircuitFile, error) {
 
 // readMatrix copies a d×d matrix of [re, im] pairs into dst and checks that
 // it is unitary.
-func readMatrix(rows [][][]float64, d int, dst []complex128) error {
+func readMatrix(rows [][][]number, d int, dst []complex128) error {
 	if len(rows) != d {
 		return fmt.Errorf("has %d rows, want %d rows of %d [re, im] pairs", len(rows), d, d)
 	}
@@ -372,7 +386,7 @@ func readMatrix(rows [][][]float64, d int, dst []complex128) error {
 			if len(p) != 2 {
 				return fmt.Errorf("row %d entry %d has %d numbers, want [re, im]", i, j, len(p))
 			}
-			dst[i*d+j] = complex(p[0], p[1])
+			dst[i*d+j] = complex(float64(p[0]), float64(p[1]))
 		}
 	}
 	if dev := circuits.UnitaryDeviation(dst, d); !(dev <= circuits.UnitaryTolerance) {

@@ -9,7 +9,7 @@ import (
 	"mixdepth/circuits"
 )
 
-func sampleFile(t *testing.T, gates, schedule string) (*CircuitFile, *circuits.Graph) {
+func sampleFile(t testing.TB, gates, schedule string) (*CircuitFile, *circuits.Graph) {
 	t.Helper()
 	g, err := circuits.ParseGraph("ring:5")
 	if err != nil {

@@ -80,6 +80,17 @@ func qubitRange(n int, what string) string {
 	return fmt.Sprintf("%d qubits: %s takes 2 to %d; use a smaller graph", n, what, MaxQubits)
 }
 
+// CheckQubits returns the error that Config.Validate (what "sampling") or
+// Collect (what "scoring") gives for n qubits outside 2 to MaxQubits, and
+// nil for a count they take, so that a caller can refuse a graph before
+// building its schedule.
+func CheckQubits(n int, what string) error {
+	if n < 2 || n > MaxQubits {
+		return fmt.Errorf("sampling: %s: %w", qubitRange(n, what), ErrConfig)
+	}
+	return nil
+}
+
 // ErrConfig is wrapped by the errors of Config.Validate and by Collect's
 // error for a qubit count it cannot score.
 var ErrConfig = errors.New("invalid sampling configuration")

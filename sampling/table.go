@@ -3,12 +3,13 @@ package sampling
 import (
 	"errors"
 	"fmt"
-	"os"
 	"path/filepath"
 	"slices"
 	"strings"
 
 	"mixdepth/tables"
+
+	"mixdepth/internal/inputfile"
 )
 
 // Sentinel errors of ReadSampleTable, wrapped by *RowError, besides
@@ -64,7 +65,7 @@ func WriteSampleTable(path string, meta tables.Meta, qubits int, results []*Resu
 // tables.Read.
 func ReadSampleTable(path string) ([]Record, tables.Meta, error) {
 	if strings.EqualFold(filepath.Ext(path), ".csv") {
-		f, err := os.Open(path)
+		f, err := inputfile.Open(path, inputfile.DataLimit)
 		if err != nil {
 			return nil, tables.Meta{}, fmt.Errorf("sampling: reading %s: %w", path, err)
 		}

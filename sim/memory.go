@@ -47,6 +47,23 @@ func CheckMemory(need float64, what string) error {
 		what, GiB(need), GiB(float64(avail)), ErrTooLarge)
 }
 
+// CheckVector returns an error wrapping ErrTooLarge when a vector of 2^n
+// elements of bytesPerElement bytes each (what names it) does not fit in the
+// memory available now. Unlike CheckMemory it names sizes beyond 2^60 bytes
+// as powers of two, so that a request of thousands of qubits is refused with
+// the size it would need. It panics if bytesPerElement is not a power of two.
+func CheckVector(n int, bytesPerElement float64, what string) error {
+	frac, exp := math.Frexp(bytesPerElement)
+	if frac != 0.5 {
+		panic(fmt.Sprintf("sim: CheckVector with %v bytes per element, not a power of two", bytesPerElement))
+	}
+	if log2 := n + exp - 1; log2 > 60 {
+		return fmt.Errorf("sim: %s needs 2^%d bytes, far beyond any machine (this one has %s available): %w; use fewer qubits",
+			what, log2, GiB(float64(AvailableMemory())), ErrTooLarge)
+	}
+	return CheckMemory(math.Ldexp(bytesPerElement, n), what)
+}
+
 // StateBytes returns the bytes of an n-qubit complex128 state vector.
 func StateBytes(n int) float64 {
 	return math.Ldexp(16, n)

@@ -2,10 +2,12 @@ package tables
 
 import (
 	"context"
+	"encoding/base64"
 	"errors"
 	"fmt"
 	"io"
 	"os"
+	"strings"
 
 	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/arrow/array"
@@ -129,62 +131,160 @@ func (t *Table) check() int {
 	return n
 }
 
+// ErrDamaged is wrapped by the errors of Read and ReadMeta for a file that
+// opens but cannot be read as a table of this tool: a damaged, truncated or
+// unfinished file, another format under a table name, a column of a type
+// that tables do not hold, a null in a column that cannot be null, or rows
+// whose content checksum disagrees with the one recorded at writing.
+var ErrDamaged = errors.New("tables: not a complete table of this tool (a damaged or unfinished file, or another format with this name)")
+
 // Read reads the whole table at path; the extension chooses the format as in
-// Create. Errors name the file.
+// Create. Errors name the file; a file that opens but does not read as a
+// table gives an error wrapping ErrDamaged. Every record batch is validated
+// before its values are used, a panic inside the Arrow or Parquet readers is
+// recovered and reported as damage, and a Parquet table written by Create is
+// checked against the content checksum in its footer.
 func Read(path string) (*Table, error) {
 	form, err := formatOf(path)
 	if err != nil {
 		return nil, err
 	}
 	var t *Table
-	switch form {
-	case arrowFormat:
-		t, err = readArrow(path)
-	case parquetFormat:
-		t, err = readParquet(path)
-	}
+	err = withFile(path, func(f *os.File) error {
+		var err error
+		switch form {
+		case arrowFormat:
+			t, err = readArrow(f)
+		case parquetFormat:
+			t, err = readParquet(f)
+		}
+		return err
+	})
 	if err != nil {
-		return nil, fmt.Errorf("tables: read %q: %w (not a complete Arrow IPC or Parquet table: a damaged or unfinished file, or another format with this name)", path, err)
+		return nil, readError(path, err)
 	}
 	return t, nil
 }
 
 // ReadMeta reads the run metadata and the fields of the table at path
-// without reading its rows.
+// without reading its rows. Its errors are those of Read.
 func ReadMeta(path string) (Meta, []Field, error) {
 	form, err := formatOf(path)
 	if err != nil {
 		return Meta{}, nil, err
 	}
 	var t *Table
-	switch form {
-	case arrowFormat:
-		err = withArrowReader(path, func(r *ipc.FileReader) error {
-			t, err = newTable(r.Schema())
-			return err
-		})
-	case parquetFormat:
-		err = withParquetReader(path, func(r *pqarrow.FileReader) error {
-			s, err := r.Schema()
-			if err == nil {
-				t, err = newTable(s)
+	err = withFile(path, func(fd *os.File) error {
+		switch form {
+		case arrowFormat:
+			if err := checkArrowFile(fd, fileSize(fd)); err != nil {
+				return err
 			}
-			return err
-		})
-	}
+			return withArrowReader(fd, func(r *ipc.FileReader) error {
+				var err error
+				t, err = newTable(r.Schema())
+				return err
+			})
+		case parquetFormat:
+			return withParquetReader(fd, func(r *pqarrow.FileReader) error {
+				s, err := r.Schema()
+				if err == nil {
+					t, err = newTable(s)
+				}
+				return err
+			})
+		}
+		return nil
+	})
 	if err != nil {
-		return Meta{}, nil, fmt.Errorf("tables: read %q: %w", path, err)
+		return Meta{}, nil, readError(path, err)
 	}
 	return t.Meta, t.Fields, nil
 }
 
-// withArrowReader opens the Arrow IPC file at path and calls f with a reader.
-func withArrowReader(path string, f func(*ipc.FileReader) error) error {
+// openError marks a failure to open or stat the file itself, which is not
+// damage.
+type openError struct{ err error }
+
+func (e openError) Error() string { return e.err.Error() }
+func (e openError) Unwrap() error { return e.err }
+
+// readError names path in err; every error but a failure to open the file
+// wraps ErrDamaged.
+func readError(path string, err error) error {
+	var oe openError
+	if errors.As(err, &oe) {
+		return fmt.Errorf("tables: read %q: %w", path, oe.err)
+	}
+	return &damagedError{path: path, err: err}
+}
+
+// damagedError is the error of Read and ReadMeta for a damaged file: it
+// matches ErrDamaged and wraps the reader's cause.
+type damagedError struct {
+	path string
+	err  error
+}
+
+func (e *damagedError) Error() string {
+	return fmt.Sprintf("tables: read %q: %s: %v", e.path, strings.TrimPrefix(ErrDamaged.Error(), "tables: "), e.err)
+}
+func (e *damagedError) Unwrap() []error { return []error{ErrDamaged, e.err} }
+
+// withFile opens the regular file at path and calls read with it. A panic in
+// read (inside arrow-go, on bytes it did not expect) is recovered and
+// returned as an error: a damaged file must never crash the caller.
+func withFile(path string, read func(*os.File) error) (err error) {
 	fd, err := os.Open(path)
 	if err != nil {
-		return err
+		return openError{err}
 	}
 	defer fd.Close()
+	if fi, err := fd.Stat(); err != nil {
+		return openError{err}
+	} else if !fi.Mode().IsRegular() {
+		return openError{fmt.Errorf("%s is not a regular file", path)}
+	}
+	defer func() {
+		if p := recover(); p != nil {
+			err = fmt.Errorf("the reader failed on its bytes (%v)", p)
+		}
+	}()
+	return read(fd)
+}
+
+// checkParquetSchema verifies the Arrow schema that pqarrow stores in the
+// footer of pf before pqarrow decodes it (see checkArrowFile for why).
+func checkParquetSchema(pf *file.Reader) error {
+	v := pf.MetaData().KeyValueMetadata().FindValue("ARROW:schema")
+	if v == nil {
+		return nil
+	}
+	data, err := base64.StdEncoding.DecodeString(*v)
+	if err != nil {
+		data, err = base64.RawStdEncoding.DecodeString(*v)
+	}
+	if err != nil {
+		return fmt.Errorf("stored Arrow schema: %w", err)
+	}
+	if err := checkSchemaMessage(data); err != nil {
+		return fmt.Errorf("stored Arrow schema: %w", err)
+	}
+	return nil
+}
+
+// fileSize returns the size of the open file fd, or 0 if it cannot be
+// read (the readers then fail on it).
+func fileSize(fd *os.File) int64 {
+	fi, err := fd.Stat()
+	if err != nil {
+		return 0
+	}
+	return fi.Size()
+}
+
+// withArrowReader calls f with an Arrow IPC file reader of fd.
+func withArrowReader(fd *os.File, f func(*ipc.FileReader) error) error {
 	r, err := ipc.NewFileReader(fd, ipc.WithAllocator(allocator()))
 	if err != nil {
 		return err
@@ -193,14 +293,17 @@ func withArrowReader(path string, f func(*ipc.FileReader) error) error {
 	return f(r)
 }
 
-// withParquetReader opens the Parquet file at path and calls f with a reader.
-func withParquetReader(path string, f func(*pqarrow.FileReader) error) error {
+// withParquetReader calls f with a Parquet file reader of fd.
+func withParquetReader(fd *os.File, f func(*pqarrow.FileReader) error) error {
 	mem := allocator()
-	pf, err := file.OpenParquetFile(path, false, file.WithReadProps(parquet.NewReaderProperties(mem)))
+	pf, err := file.NewParquetReader(fd, file.WithReadProps(parquet.NewReaderProperties(mem)))
 	if err != nil {
 		return err
 	}
 	defer pf.Close()
+	if err := checkParquetSchema(pf); err != nil {
+		return err
+	}
 	r, err := pqarrow.NewFileReader(pf, pqarrow.ArrowReadProperties{BatchSize: DefaultBatchRows}, mem)
 	if err != nil {
 		return err
@@ -208,9 +311,12 @@ func withParquetReader(path string, f func(*pqarrow.FileReader) error) error {
 	return f(r)
 }
 
-func readArrow(path string) (*Table, error) {
+func readArrow(fd *os.File) (*Table, error) {
+	if err := checkArrowFile(fd, fileSize(fd)); err != nil {
+		return nil, err
+	}
 	var t *Table
-	err := withArrowReader(path, func(r *ipc.FileReader) error {
+	err := withArrowReader(fd, func(r *ipc.FileReader) error {
 		var err error
 		if t, err = newTable(r.Schema()); err != nil {
 			return err
@@ -229,9 +335,9 @@ func readArrow(path string) (*Table, error) {
 	return t, err
 }
 
-func readParquet(path string) (*Table, error) {
+func readParquet(fd *os.File) (*Table, error) {
 	var t *Table
-	err := withParquetReader(path, func(r *pqarrow.FileReader) error {
+	err := withParquetReader(fd, func(r *pqarrow.FileReader) error {
 		s, err := r.Schema()
 		if err != nil {
 			return err
@@ -251,6 +357,11 @@ func readParquet(path string) (*Table, error) {
 		}
 		if err := rr.Err(); err != nil && !errors.Is(err, io.EOF) {
 			return err
+		}
+		if want := r.ParquetReader().MetaData().KeyValueMetadata().FindValue(checksumKey); want != nil {
+			if got := t.checksum(); got != *want {
+				return fmt.Errorf("content checksum %s, not the %s recorded when the table was written", got, *want)
+			}
 		}
 		return nil
 	})
@@ -288,6 +399,9 @@ func (t *Table) appendBatch(rec arrow.RecordBatch) error {
 	if int(rec.NumCols()) != len(t.Fields) {
 		return fmt.Errorf("record batch has %d columns for %d fields", rec.NumCols(), len(t.Fields))
 	}
+	if err := array.ValidateRecordFull(rec); err != nil {
+		return err
+	}
 	n := t.Len() // rows before this batch
 	for j, arr := range rec.Columns() {
 		switch col := t.Columns[j].(type) {
@@ -323,6 +437,9 @@ func (t *Table) appendBatch(rec arrow.RecordBatch) error {
 				return fmt.Errorf("column %q holds %s, not utf8", t.Fields[j].Name, arr.DataType())
 			}
 			t.Columns[j] = appendStrings(col, a)
+		}
+		if arr.NullN() > 0 && !t.Fields[j].Nullable {
+			return fmt.Errorf("column %q cannot hold nulls but has %d", t.Fields[j].Name, arr.NullN())
 		}
 		t.Valid[j] = appendValid(t.Valid[j], n, arr)
 	}

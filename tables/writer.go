@@ -46,10 +46,11 @@ type Writer struct {
 	out     batchWriter
 	builder *array.RecordBuilder
 	columns []array.Builder
-	pending int   // rows in the builders
-	rows    int   // rows appended
-	err     error // first error while writing a batch
-	done    bool  // Close or Abort was called
+	sum     *rowHash // content checksum of the rows appended (see checksumKey)
+	pending int      // rows in the builders
+	rows    int      // rows appended
+	err     error    // first error while writing a batch
+	done    bool     // Close or Abort was called
 }
 
 // Create starts a table at path with the given columns and run metadata. The
@@ -76,6 +77,7 @@ func Create(path string, fields []Field, meta Meta) (*Writer, error) {
 		fields:    append([]Field(nil), fields...),
 		file:      file,
 		buf:       bufio.NewWriterSize(file, bufferSize),
+		sum:       newRowHash(),
 	}
 
 	afs := make([]arrow.Field, len(fields))
@@ -143,6 +145,7 @@ func (w *Writer) Append(values ...any) {
 		checkValue(w.fields[i], v)
 	}
 	for i, v := range values {
+		w.sum.add(v)
 		switch v := v.(type) {
 		case nil:
 			w.columns[i].AppendNull()
@@ -218,6 +221,9 @@ func (w *Writer) Close() error {
 	w.flush()
 	w.builder.Release()
 	err := w.err
+	if pw, ok := w.out.(*pqarrow.FileWriter); ok && err == nil {
+		err = pw.AppendKeyValueMetadata(checksumKey, w.sum.String())
+	}
 	if e := w.out.Close(); err == nil { // always called: it releases memory
 		err = e
 	}

@@ -16,6 +16,7 @@ import (
 	"mixdepth/sampling"
 	"mixdepth/scan"
 	"mixdepth/sim"
+	"mixdepth/tables"
 )
 
 // version is the tool version recorded in every table.
@@ -51,7 +52,7 @@ var errInterrupted = errors.New("interrupted")
 // status 2): the request cannot be run as given, and the message says why.
 // This is the one place where library errors become exit statuses.
 var badInputErrors = []error{
-	sim.ErrTooLarge,
+	sim.ErrTooLarge, tables.ErrDamaged, runs.ErrValue,
 	moments.ErrTooLarge,
 	moments.ErrNoExactMoments,
 	scan.ErrConfig,
@@ -60,7 +61,8 @@ var badInputErrors = []error{
 
 // exitCode prints err on one line and returns the exit status: 0 success,
 // 1 a failure while running, 2 bad usage or input (a usageError or one of
-// badInputErrors), 130 interrupted.
+// badInputErrors), 130 interrupted, exitPanic (70) a crash inside the tool,
+// printed with its stack after the message.
 func exitCode(err error, stderr io.Writer) int {
 	if err == nil || errors.Is(err, pflag.ErrHelp) {
 		return 0
@@ -68,7 +70,11 @@ func exitCode(err error, stderr io.Writer) int {
 	msg := strings.ReplaceAll(err.Error(), "\n", " ")
 	fmt.Fprintln(stderr, "mixdepth: "+msg)
 	var ue usageError
+	var pe *panicError
 	switch {
+	case errors.As(err, &pe):
+		stderr.Write(pe.stack) // for the bug report
+		return exitPanic
 	case errors.As(err, &ue), slices.ContainsFunc(badInputErrors, func(s error) bool { return errors.Is(err, s) }):
 		return 2
 	case errors.Is(err, errInterrupted), errors.Is(err, context.Canceled):
@@ -77,8 +83,21 @@ func exitCode(err error, stderr io.Writer) int {
 	return 1
 }
 
-// run dispatches to a subcommand.
-func run(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+// run dispatches to a subcommand. A panic in the command's goroutine
+// becomes a *panicError (exit status exitPanic), and a failed write of the
+// report to stdout an error (exit status 1) even when the command ignored it.
+func run(ctx context.Context, args []string, stdout, stderr io.Writer) (err error) {
+	defer recovered(&err)
+	out := &reportWriter{w: stdout}
+	err = dispatch(ctx, args, out, stderr)
+	if err == nil && out.err != nil {
+		err = fmt.Errorf("writing the report to standard output: %w", out.err)
+	}
+	return err
+}
+
+// dispatch runs the subcommand named by args[0].
+func dispatch(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	if len(args) == 0 || args[0] == "help" || args[0] == "-h" || args[0] == "--help" {
 		if len(args) > 1 {
 			return run(ctx, []string{args[1], "--help"}, stdout, stderr)
@@ -123,7 +142,9 @@ func newFlags(name, usage, example string, stdout io.Writer) *pflag.FlagSet {
 }
 
 // parseFlags parses args; errors become usage errors, --help prints usage.
+// Numeric flags are read strictly (strictFlags).
 func parseFlags(fs *pflag.FlagSet, args []string) error {
+	strictFlags(fs)
 	if err := fs.Parse(args); err != nil {
 		if errors.Is(err, pflag.ErrHelp) {
 			return err // pflag has printed the usage

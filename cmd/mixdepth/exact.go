@@ -81,6 +81,13 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if fs.NArg() > 0 {
 		return badInput("exact takes no positional arguments (got %q)", fs.Arg(0))
 	}
+	var files ioCheck
+	files.circuitInputs(&cf)
+	files.output("out", *out)
+	files.output("plot", *plot)
+	if err := files.check(fs); err != nil {
+		return err
+	}
 	s, err := cf.resolveWith(func(o *runs.Options) { o.AllowDisconnected = *allow })
 	if err != nil {
 		return err

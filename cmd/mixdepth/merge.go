@@ -30,6 +30,14 @@ func runMerge(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if fs.NArg() == 0 {
 		return badInput("merge: name the part tables to merge: mixdepth merge --out FILE PART...")
 	}
+	var files ioCheck
+	for _, p := range fs.Args() {
+		files.input("part", p)
+	}
+	files.output("out", *out)
+	if err := files.check(fs); err != nil {
+		return err
+	}
 	run, err := readRun(fs.Args())
 	if err != nil {
 		return err

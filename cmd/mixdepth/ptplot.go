@@ -33,13 +33,19 @@ func runPTPlot(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	if *out == "" {
 		return badInput("pt-plot: --out PLOT.png or --out PLOT.svg is required")
 	}
+	var files ioCheck
+	files.input("table", fs.Arg(0))
+	files.output("out", *out)
+	if err := files.check(fs); err != nil {
+		return err
+	}
 	if err := plots.CheckPath(*out); err != nil {
 		return usageError{fmt.Errorf("--out: %w", err)}
 	}
 	if *instances < 1 {
 		return badInput("--instances %d: must be at least 1", *instances)
 	}
-	if *depth < 0 {
+	if *depth < 0 || *depth == 0 && fs.Changed("depth") {
 		return badInput("--depth %d: must be positive", *depth)
 	}
 	if *workers < 1 {

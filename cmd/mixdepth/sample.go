@@ -12,6 +12,7 @@ import (
 	"strconv"
 	"strings"
 
+	"mixdepth/circuits"
 	"mixdepth/runs"
 	"mixdepth/sampling"
 	"mixdepth/tables"
@@ -73,7 +74,7 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		"                      and 1→0 with probability p10 (one value sets both)\n"+
 		"With no --graph it samples the demo chip.",
 		"mixdepth sample --depth 16 --instances 10 --shots 2000 --gate-error 0.005 --readout-error 0.01,0.03 --out samples.parquet --circuits circuits.json", stdout)
-	var cf circuitFlags
+	cf := circuitFlags{checkGraph: func(g *circuits.Graph) error { return sampling.CheckQubits(g.Qubits, "sampling") }}
 	cf.add(fs)
 	depth := fs.Int("depth", defaultSampleDepth, "circuit depth (layers, or gates for random-edge)")
 	instances := fs.Int("instances", 10, "number of random circuit instances")
@@ -94,6 +95,13 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	if fs.NArg() > 0 {
 		return badInput("sample takes no positional arguments (got %q)", fs.Arg(0))
 	}
+	var files ioCheck
+	files.circuitInputs(&cf)
+	files.output("out", *out)
+	files.output("circuits", *circuitsOut)
+	if err := files.check(fs); err != nil {
+		return err
+	}
 	s, err := cf.resolve()
 	if err != nil {
 		return err
@@ -104,8 +112,8 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	switch {
 	case *depth < 1:
 		return badInput("--depth %d: must be at least 1", *depth)
-	case *instances < 1:
-		return badInput("--instances %d: must be at least 1", *instances)
+	case *instances < 1 || *instances > maxInstances:
+		return badInput("--instances %d: must be between 1 and %d", *instances, maxInstances)
 	case *shots < 1:
 		return badInput("--shots %d: must be at least 1", *shots)
 	case *trajectories < 1:

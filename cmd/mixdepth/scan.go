@@ -69,6 +69,7 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	fs := newFlags("scan", "Simulates random circuit instances exactly and reports, per depth, the collision probability\nagainst the Haar value 2/(D+1) with a confidence interval, the Porter–Thomas distance, and the\nsmallest depth that anti-concentrates. With no flags it runs the demo chip.",
 		"mixdepth scan --graph grid:3x4 --depths 1:16 --instances 400 --out scan.parquet", stdout)
 	var cf circuitFlags
+	cf.checkGraph = checkStateVector
 	cf.add(fs)
 	depthSpec := fs.String("depths", "", "depths to report: 2,4,8 or FROM:TO or FROM:TO:STEP (default 1:20; demo 2:24:2)")
 	instances := fs.Int("instances", 200, "number of random circuit instances")
@@ -125,6 +126,14 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	}
 	if *resume != "" && *out == "" {
 		*out = *resume
+	}
+	var files ioCheck
+	files.circuitInputs(&cf)
+	files.input("--resume", *resume)
+	files.output("out", *out, "--resume")
+	files.output("plot", *plot)
+	if err := files.check(fs); err != nil {
+		return err
 	}
 
 	sr := &runs.ScanRun{Spec: s.spec, Depths: depths, Instances: *instances, Eps: *eps, Confidence: *conf, Rule: crit.Rule, PTMargin: crit.PTMargin,

@@ -6,14 +6,16 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"os"
 	"strings"
 	"unicode/utf8"
 
+	"mixdepth/circuits"
 	"mixdepth/runs"
 	"mixdepth/sampling"
 	"mixdepth/stats"
 	"mixdepth/tables"
+
+	"mixdepth/internal/inputfile"
 )
 
 func init() {
@@ -77,7 +79,7 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		"from its recorded run parameters (any of --graph, --layout, --schedule, --gates, --seed and\n"+
 		"--depth given overrides them); for a CSV, from those flags and their defaults, as sample uses them.",
 		"mixdepth score samples.parquet --circuits circuits.json", stdout)
-	var cf circuitFlags
+	cf := circuitFlags{checkGraph: func(g *circuits.Graph) error { return sampling.CheckQubits(g.Qubits, "scoring") }}
 	cf.add(fs)
 	depth := fs.Int("depth", defaultSampleDepth, "circuit depth when rebuilding the circuits; a table that records its depth overrides this fallback")
 	circuitsIn := fs.String("circuits", "", "read the circuits from FILE.json, as written by 'mixdepth sample --circuits'")
@@ -303,7 +305,7 @@ func readSamples(path string) ([]sampling.Record, tables.Meta, error) {
 
 // readCircuitFile reads and checks a circuit file; every failure is bad input.
 func readCircuitFile(path string) (*sampling.CircuitFile, error) {
-	f, err := os.Open(path)
+	f, err := inputfile.Open(path, inputfile.DataLimit)
 	if err != nil {
 		return nil, usageError{fmt.Errorf("--circuits: %w", err)}
 	}

@@ -13,6 +13,7 @@ import (
 
 	"mixdepth/circuits"
 	"mixdepth/runs"
+	"mixdepth/sim"
 )
 
 // defaultSeed is the seed used when --seed is not given; it is always printed.
@@ -23,6 +24,9 @@ type circuitFlags struct {
 	graph, layout, schedule, gates, drop string
 	seed                                 uint64
 	unitarize                            bool
+	// checkGraph, when not nil, lets resolve refuse a graph before any
+	// costly set-up (the edge colouring of a large graph).
+	checkGraph func(*circuits.Graph) error
 }
 
 func (c *circuitFlags) add(fs *pflag.FlagSet) {
@@ -59,12 +63,13 @@ func (c *circuitFlags) resolve() (*setup, error) { return c.resolveWith(func(*ru
 // built.
 func (c *circuitFlags) resolveWith(change func(*runs.Options)) (*setup, error) {
 	o := runs.Options{Graph: c.graph, Layout: c.layout, Schedule: c.schedule, Gates: c.gates, Seed: c.seed, Drop: c.drop, Unitarize: c.unitarize}
+	o.CheckGraph = c.checkGraph
 	change(&o)
 	sp, err := runs.NewSpec(o)
 	var oe *runs.OptionError
 	if errors.As(err, &oe) {
 		if oe.Value != "" {
-			return nil, badInput("--%s %q: %v", oe.Option, oe.Value, oe.Err)
+			return nil, badInput("--%s %q: %v", oe.Option, echo(oe.Value), oe.Err)
 		}
 		return nil, usageError{fmt.Errorf("--%s: %w", oe.Option, oe.Err)}
 	}
@@ -72,6 +77,12 @@ func (c *circuitFlags) resolveWith(change func(*runs.Options)) (*setup, error) {
 		return nil, err
 	}
 	return newSetup(sp), nil
+}
+
+// checkStateVector refuses a graph whose smallest state vector (single
+// precision, 8 bytes per amplitude) cannot fit in memory.
+func checkStateVector(g *circuits.Graph) error {
+	return sim.CheckVector(g.Qubits, 8, fmt.Sprintf("a %d-qubit state vector (single precision, the smallest)", g.Qubits))
 }
 
 // describe is the one-line description of the circuits for human output.
@@ -142,7 +153,7 @@ func parseDepths(spec string) ([]int, error) {
 func listInput(flag string, err error) error {
 	var le *runs.ListError
 	if errors.As(err, &le) {
-		return badInput("%s %q: %s", flag, le.List, le.Detail)
+		return badInput("%s %q: %s", flag, echo(le.List), le.Detail)
 	}
 	return usageError{err}
 }

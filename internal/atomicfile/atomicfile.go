@@ -17,7 +17,38 @@ import (
 	"os"
 	"path/filepath"
 	"strconv"
+	"sync"
 )
+
+// pending holds the names of the temporary files not yet committed or
+// aborted, so that RemovePending can clean up when the process must exit at
+// once (a second interrupt).
+var pending sync.Map
+
+// RemovePending removes every temporary file of this process that is not yet
+// committed or aborted. It is meant for a process about to exit without
+// unwinding (cmd/mixdepth calls it on a second signal); a File whose
+// temporary file it removed fails to Commit.
+func RemovePending() {
+	pending.Range(func(name, _ any) bool {
+		os.Remove(name.(string))
+		pending.Delete(name)
+		return true
+	})
+}
+
+// CheckWritable returns an error unless a file can be created at path: the
+// directory passes CheckDir and a temporary file can be created in it (it is
+// removed at once). A caller checks its destinations with it before a long
+// computation, so that a read-only directory is refused before any work.
+func CheckWritable(path string) error {
+	f, err := Create(path)
+	if err != nil {
+		return err
+	}
+	f.Abort()
+	return nil
+}
 
 // File is a temporary file that Commit renames onto its destination. It
 // embeds the open *os.File; write to it, then call Commit or Abort once.
@@ -65,6 +96,7 @@ func Create(path string) (*File, error) {
 			// The temporary name would only confuse; keep the cause.
 			return nil, fmt.Errorf("cannot write in directory %q: %w", dir, pathCause(err))
 		}
+		pending.Store(name, true)
 		return &File{File: f, path: path}, nil
 	}
 	return nil, fmt.Errorf("no free temporary name in %q", dir)
@@ -80,6 +112,7 @@ func (f *File) Commit() error {
 		return fs.ErrClosed
 	}
 	f.done = true
+	defer pending.Delete(f.Name())
 	err := f.Sync()
 	if e := f.Close(); err == nil {
 		err = e
@@ -105,6 +138,7 @@ func (f *File) Abort() {
 	f.done = true
 	f.Close()
 	os.Remove(f.Name())
+	pending.Delete(f.Name())
 }
 
 // Write creates path atomically with the data that write puts into the

@@ -89,3 +89,19 @@ func TestCommitTwice(t *testing.T) {
 		t.Errorf("the committed file is gone: %v", err)
 	}
 }
+
+// TestRemovePending: RemovePending removes a temporary file not yet
+// committed (what a second signal does), and the File then fails to Commit.
+func TestRemovePending(t *testing.T) {
+	dir := t.TempDir()
+	f, err := Create(filepath.Join(dir, "out.arrow"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	RemovePending()
+	noTemp(t, dir)
+	if err := f.Commit(); err == nil {
+		t.Error("Commit after RemovePending succeeded")
+	}
+	noTemp(t, dir)
+}

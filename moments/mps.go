@@ -1,10 +1,13 @@
 package moments
 
 import (
+	"context"
 	"fmt"
 	"math"
 
 	"gonum.org/v1/gonum/mat"
+
+	"mixdepth/circuits"
 )
 
 // The MPS engine stores the identity/swap coefficients u(σ) of the package
@@ -406,34 +409,222 @@ func mpsData(d *mat.Dense) []float64 {
 	return mat.DenseCopyOf(d).RawMatrix().Data
 }
 
-// LogCollision returns ln E[Z] = ln Σ_σ u(σ) for the gates applied so far;
-// with final true every untouched qubit reads out 2/3 instead of 1 (see
-// CollisionFinalLayer). It is −Inf or NaN only if the truncated state has
-// lost the positive sum of the exact one.
-func (m *MPS) LogCollision(final bool) float64 {
+// mpsContract returns ln|⟨f, ψ⟩| and the sign of ⟨f, ψ⟩ for the product
+// functional f(q) per qubit, including the scale of the stored state. The
+// environment is renormalised at every site, so no intermediate overflows.
+func (m *MPS) mpsContract(f func(q int) [2]float64) (logAbs, sign float64) {
 	env := []float64{1}
+	logAbs = m.logScale
 	for k := range m.n {
 		r := m.bond[k+1]
 		next := make([]float64, r)
 		ak := m.a[k]
+		fk := f(m.order[k])
 		for l, e := range env {
 			for s := range 2 {
-				w := e * mpsReadout[s]
+				w := e * fk[s]
+				if w == 0 {
+					continue
+				}
 				row := ak[(l*2+s)*r : (l*2+s+1)*r]
 				for j, v := range row {
 					next[j] += w * v
 				}
 			}
 		}
+		big := 0.0
+		for _, v := range next {
+			big = max(big, math.Abs(v))
+		}
+		if big == 0 {
+			return math.Inf(-1), 0
+		}
+		for j := range next {
+			next[j] /= big
+		}
+		logAbs += math.Log(big)
 		env = next
 	}
-	z := math.Log(env[0]) + m.logScale
-	if final {
-		for q := range m.n {
-			if !m.touched[q] {
-				z += math.Log(2.0 / 3)
-			}
+	return logAbs, math.Copysign(1, env[0])
+}
+
+// mpsValue returns ⟨f, ψ⟩ as a float64 (it may underflow to 0 or
+// overflow to ±Inf only when the value itself is beyond float64).
+func (m *MPS) mpsValue(f func(q int) [2]float64) float64 {
+	l, s := m.mpsContract(f)
+	return s * math.Exp(l)
+}
+
+// Invariants returns the two conserved quantities of the stored state,
+// Tr X and Tr(S X) for the two-copy operator X it represents (S the swap of
+// the two copies of all n qubits). Every unitary gate keeps both (U⊗U
+// commutes with S), and both are 1 for |0…0⟩^⊗2, so the difference from 1 is
+// what truncation has removed from them. Per qubit, Tr reads (2, 1) and
+// Tr(S·) reads (1, 2) on the readout-weighted (u_I, u_S), and 1 on an
+// untouched qubit; in the gauge of mps.go these are (2, 0) and (1, √3): the
+// identity pattern and the total mass of the Pauli-support chain.
+func (m *MPS) Invariants() (tr, trS float64) {
+	tr = m.mpsValue(func(q int) [2]float64 {
+		if m.touched[q] {
+			return [2]float64{2, 0}
+		}
+		return [2]float64{1, 0}
+	})
+	trS = m.mpsValue(func(q int) [2]float64 {
+		if m.touched[q] {
+			return [2]float64{1, math.Sqrt(3)}
+		}
+		return [2]float64{1, 0}
+	})
+	return tr, trS
+}
+
+// Ratio returns E[Z]/Z_H, Z_H = 2/(2^n+1), for the gates applied so far,
+// with the weights truncation removed from the two conserved quantities
+// restored on the two states every gate fixes: X = Y + α·I^⊗n + β·S^⊗n,
+// Y the stored state, with α, β chosen so that Tr X = Tr(S X) = 1 (see
+// Invariants). A piece removed by truncation relaxes, under later mixing
+// gates, to exactly this combination of I^⊗n and S^⊗n, so the restored
+// weights are what the removed pieces would have contributed once they
+// relaxed; without them a truncation at shallow depth moves the Haar limit
+// itself. With final true every untouched qubit reads out 2/3 instead of 1
+// (see CollisionFinalLayer).
+func (m *MPS) Ratio(final bool) float64 {
+	n := m.n
+	lz, sz := m.mpsContract(func(q int) [2]float64 {
+		if final && !m.touched[q] {
+			return [2]float64{2.0 / 3, 0}
+		}
+		return mpsReadout
+	})
+	tr, trS := m.Invariants()
+	// With A = α·4^n, B = β·4^n: A + 2^−n·B = 1 − Tr Y, 2^−n·A + B = 1 − Tr(S Y);
+	// I^⊗n and S^⊗n read out 2^n each, and 2^−n/Z_H = (1 + 2^−n)/2.
+	h := math.Ldexp(1, -n)
+	d1, d2 := 1-tr, 1-trS
+	det := 1 - h*h
+	a := (d1 - h*d2) / det
+	b := (d2 - h*d1) / det
+	lzh := math.Log(2) - math.Log1p(math.Ldexp(1, n)) // ln Z_H, exact enough for n ≤ 1000
+	if n < 60 {
+		lzh = math.Log(2 / (math.Ldexp(1, n) + 1))
+	} else {
+		lzh = math.Log(2) - float64(n)*math.Ln2 - math.Log1p(h)
+	}
+	return sz*math.Exp(lz-lzh) + (a+b)*(1+h)/2
+}
+
+// MPSMaxBond is the largest bond dimension the MPS engine accepts: its
+// two-site SVD is (2χ)×(2χ), about 1 s per update at χ = 2048 on one core.
+const MPSMaxBond = 2048
+
+// mpsSecondsPerFlop is the time per (2χ)³ of one two-site update, measured
+// on the 2-core machine this was written on (grid:5x5, χ = 128: 8.6 ms per
+// update at 2χ = 256); it scales the run-time estimate of MPSEstimate.
+const mpsSecondsPerFlop = 5e-10
+
+// MPSEstimate returns the bytes and seconds that a run of the MPS engine
+// needs at most on g with schedule s up to depth steps and bond dimension
+// bond, over order: n·2·bond² coefficients (three copies: the state, the
+// two-site block and its SVD), and (2·bond)³ work per two-site update,
+// 2·(distance)−1 updates per gate, for the run at bond and the one at
+// bond/2 that gives the error estimate. Both are upper bounds: the bonds
+// stay below the cap when the state needs less.
+func MPSEstimate(g *circuits.Graph, s *circuits.Layered, order []int, steps, bond int) (bytes, seconds float64) {
+	site := make([]int, g.Qubits)
+	for k, q := range order {
+		site[q] = k
+	}
+	updates := 0.0
+	var layer []circuits.Edge
+	for d := range min(steps, len(s.Classes)) {
+		layer = s.Step(d, nil, layer[:0])
+		for _, e := range layer {
+			updates += float64(2*abs(site[e.A]-site[e.B]) - 1)
 		}
 	}
-	return z
+	if len(s.Classes) > 0 {
+		updates *= float64(steps) / float64(min(steps, len(s.Classes)))
+	}
+	c := 2 * float64(bond)
+	bytes = 3 * 8 * 2 * float64(g.Qubits) * float64(bond) * float64(bond)
+	seconds = updates * mpsSecondsPerFlop * (c*c*c + c*c*c/8)
+	return bytes, seconds
+}
+
+// mpsCurve runs the layered schedule s on an MPS over order with bond cap
+// bond and returns E[Z]/Z_H (see MPS.Ratio) and the largest bond reached up
+// to each of depths.
+func mpsCurve(ctx context.Context, n int, s *circuits.Layered, t *Transfer, depths []int, order []int, bond int, cfg *collisionConfig, progress func(done int)) (ratio []float64, used []int, err error) {
+	m := NewMPS(n, order, bond)
+	var layer []circuits.Edge
+	steps := depths[len(depths)-1]
+	out, err := collisionRun(ctx, depths, steps, &collisionConfig{}, func() float64 {
+		used = append(used, m.MaxBondUsed())
+		return m.Ratio(cfg.final)
+	}, func(d int) {
+		layer = s.Step(d, nil, layer[:0])
+		for _, e := range layer {
+			m.Apply(e.A, e.B, t)
+		}
+		if progress != nil {
+			progress(d + 1)
+		}
+	})
+	return out, used, err
+}
+
+// MPSCurve is the MPS engine's CollisionCurve for a layered schedule: it
+// returns E[Z]/Z_H at each of depths (ascending) on an MPS over order
+// with bonds capped at bond, the error estimate for each ratio, and the
+// largest bond reached up to each depth. The estimate is the difference to
+// the same run at bond/2 (at least 1), plus the rounding of the
+// contraction, 64·n·2^−52 times the ratio: the error shrinks with the bond
+// (TestMPSTruncation measures by how much), so the difference bounds the
+// error of the larger bond. Options as for CollisionCurve. It panics if g,
+// s or t is nil or order is not a permutation of g's qubits.
+func MPSCurve(ctx context.Context, g *circuits.Graph, s *circuits.Layered, t *Transfer, depths []int, order []int, bond int, opts ...CollisionOption) (ratio, errEst []float64, used []int, err error) {
+	if g == nil || s == nil || t == nil {
+		panic("moments: MPSCurve with a nil graph, schedule or transfer")
+	}
+	if err := CheckOrder(g, order); err != nil {
+		panic(err.Error())
+	}
+	if bond < 1 {
+		panic(fmt.Sprintf("moments: MPSCurve with bond dimension %d", bond))
+	}
+	if err := collisionCheckDepths(depths); err != nil {
+		return nil, nil, nil, err
+	}
+	if len(depths) == 0 {
+		return []float64{}, []float64{}, []int{}, nil
+	}
+	if len(s.Classes) == 0 {
+		return nil, nil, nil, fmt.Errorf("moments: the layered schedule has no layers")
+	}
+	for _, cl := range s.Classes {
+		if err := collisionCheckEdges(g.Qubits, cl); err != nil {
+			return nil, nil, nil, err
+		}
+	}
+	cfg := collisionConfigure(opts)
+	steps := depths[len(depths)-1]
+	half := max(bond/2, 1)
+	// Progress counts the steps of both runs; the half-bond run costs about
+	// an eighth, so it is counted as such.
+	total := steps + (steps+7)/8
+	var coarse []float64
+	coarse, _, err = mpsCurve(ctx, g.Qubits, s, t, depths, order, half, &cfg, func(d int) { cfg.report((d+7)/8, total) })
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	ratio, used, err = mpsCurve(ctx, g.Qubits, s, t, depths, order, bond, &cfg, func(d int) { cfg.report((steps+7)/8+d, total) })
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	errEst = make([]float64, len(ratio))
+	for i, r := range ratio {
+		errEst[i] = math.Abs(r-coarse[i]) + 64*float64(g.Qubits)*0x1p-52*math.Abs(r)
+	}
+	return ratio, errEst, used, nil
 }

@@ -137,15 +137,22 @@ var Engines = []string{EngineAuto, EngineVector, EngineMPS}
 // AutoVectorMaxQubits is the largest qubit count for which EngineAuto takes
 // the vector engine on a layered schedule: 2^26 coefficients are 512 MiB
 // and a depth-40 curve on 26 qubits takes about a minute on two cores,
-// while the MPS at DefaultBondDim answers in seconds with an error estimate
+// while the MPS at its default bond answers in seconds with an error estimate
 // well below 1e-3·(R−1) on the lattices checked (TestMPSDefaultBond).
 const AutoVectorMaxQubits = 26
 
-// DefaultBondDim is the bond cap of the MPS engine unless ExactBondDim sets
-// another: on grid:5x5 it keeps |R − R_exact| below 1e-3·(R−1) at every
-// depth up to R − 1 < 1e-4 (TestMPSDefaultBond), and a 100-qubit grid runs
-// in minutes.
-const DefaultBondDim = 64
+// DefaultBondDim returns the bond cap of the MPS engine for an order of the
+// given bandwidth unless ExactBondDim sets another: 16 for chains and rings
+// (bandwidth ≤ 2), where it keeps line:26 within 1e-7 of the vector engine
+// and line:1000 at depth 60 takes seconds, and 64 otherwise, which keeps
+// grid:5x5 within 1e-3·(R−1) at every depth up to R − 1 < 1e-4
+// (TestMPSDefaultBond).
+func DefaultBondDim(bandwidth int) int {
+	if bandwidth <= 2 {
+		return 16
+	}
+	return 64
+}
 
 // ExactWorkers bounds the goroutines of Exact (values below 1 mean 1); the
 // default is runtime.GOMAXPROCS(0). The result does not depend on it.
@@ -175,8 +182,9 @@ func ExactEngine(name string) ExactOption {
 	return func(c *exactConfig) { c.engine = name }
 }
 
-// ExactBondDim sets the bond cap of the MPS engine, 2 ≤ bond ≤ MPSMaxBond;
-// the default is DefaultBondDim. Exact panics for other values.
+// ExactBondDim sets the bond cap of the MPS engine, 2 ≤ bond ≤ MPSMaxBond,
+// or 0 for the default, DefaultBondDim of the order's bandwidth. Exact
+// panics for other values.
 func ExactBondDim(bond int) ExactOption {
 	return func(c *exactConfig) { c.bond = bond }
 }
@@ -217,7 +225,7 @@ func Exact(ctx context.Context, g *circuits.Graph, s circuits.Schedule, e circui
 	if g == nil || s == nil {
 		panic("moments: Exact with a nil graph or schedule")
 	}
-	cfg := exactConfig{workers: runtime.GOMAXPROCS(0), eps: DefaultExactEps, engine: EngineAuto, bond: DefaultBondDim}
+	cfg := exactConfig{workers: runtime.GOMAXPROCS(0), eps: DefaultExactEps, engine: EngineAuto}
 	for _, o := range opts {
 		o(&cfg)
 	}
@@ -227,7 +235,7 @@ func Exact(ctx context.Context, g *circuits.Graph, s circuits.Schedule, e circui
 	if !slices.Contains(Engines, cfg.engine) {
 		panic(fmt.Sprintf("moments: Exact with engine %q: need one of %v", cfg.engine, Engines))
 	}
-	if cfg.bond < 2 || cfg.bond > MPSMaxBond {
+	if cfg.bond != 0 && (cfg.bond < 2 || cfg.bond > MPSMaxBond) {
 		panic(fmt.Sprintf("moments: Exact with bond dimension %d: need 2..%d", cfg.bond, MPSMaxBond))
 	}
 	t, kind, final, err := transferFor(e)
@@ -309,8 +317,8 @@ func Exact(ctx context.Context, g *circuits.Graph, s circuits.Schedule, e circui
 var ErrEngine = errors.New("engine cannot run this")
 
 // MPSMaxSeconds is the estimated run time (MPSEstimate) beyond which Exact
-// refuses an MPS run before starting: a day.
-const MPSMaxSeconds = 24 * 3600
+// refuses an MPS run before starting: four hours.
+const MPSMaxSeconds = 4 * 3600
 
 // exactMPS fills the curve of r by MPSCurve, after checking the order and
 // the estimated cost.
@@ -321,10 +329,14 @@ func exactMPS(ctx context.Context, r *Result, g *circuits.Graph, s *circuits.Lay
 	} else if err := CheckOrder(g, order); err != nil {
 		return err
 	}
-	r.Engine, r.BondDim, r.Order, r.Bandwidth = EngineMPS, cfg.bond, order, Bandwidth(g, order)
+	r.Engine, r.Order, r.Bandwidth = EngineMPS, order, Bandwidth(g, order)
+	r.BondDim = cfg.bond
+	if r.BondDim == 0 {
+		r.BondDim = DefaultBondDim(r.Bandwidth)
+	}
 	if len(depths) > 0 {
-		bytes, secs := MPSEstimate(g, s, order, depths[len(depths)-1], cfg.bond)
-		what := fmt.Sprintf("the MPS of %s at bond dimension %d (order bandwidth %d)", g.Name, cfg.bond, r.Bandwidth)
+		bytes, secs := MPSEstimate(g, s, order, depths[len(depths)-1], r.BondDim)
+		what := fmt.Sprintf("the MPS of %s at bond dimension %d (order bandwidth %d)", g.Name, r.BondDim, r.Bandwidth)
 		if secs > MPSMaxSeconds {
 			return fmt.Errorf("moments: %s would take up to %.0f hours (estimate: %s, %s): %w; lower --bond-dim, give an order with a smaller bandwidth, or ask for fewer depths",
 				what, secs/3600, sim.GiB(bytes), mpsDuration(secs), ErrEngine)
@@ -334,7 +346,7 @@ func exactMPS(ctx context.Context, r *Result, g *circuits.Graph, s *circuits.Lay
 		}
 	}
 	var err error
-	r.Ratio, r.TruncationError, r.BondDimUsed, err = MPSCurve(ctx, g, s, t, depths, order, cfg.bond, copts...)
+	r.Ratio, r.TruncationError, r.BondDimUsed, err = MPSCurve(ctx, g, s, t, depths, order, r.BondDim, copts...)
 	if err != nil {
 		return err
 	}

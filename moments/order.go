@@ -62,7 +62,7 @@ func orderCost(g *circuits.Graph, order []int) (width, total int) {
 // bandwidth, then the smallest total edge distance, among the reverse
 // Cuthill–McKee order (Cuthill, McKee, "Reducing the bandwidth of sparse
 // symmetric matrices", ACM 1969; George 1971 for the reversal) started from
-// each qubit of minimum degree, and, for grid:RxC, the rows (or columns)
+// each of the first orderStarts qubits of minimum degree, and, for grid:RxC, the rows (or columns)
 // in turn along the shorter side. The row-by-row order has bandwidth
 // min(R, C), while the snake (boustrophedon) order has 2·min(R, C)−1 at the
 // turns, so the row order is the one kept for grids.
@@ -85,9 +85,11 @@ func QubitOrder(g *circuits.Graph) []int {
 	}
 	deg := g.Degrees()
 	dmin := slices.Min(deg)
+	starts := 0
 	for q, d := range deg {
-		if d == dmin {
+		if d == dmin && starts < orderStarts {
 			cands = append(cands, reverseCuthillMcKee(g, q, deg))
+			starts++
 		}
 	}
 	best := cands[0]
@@ -100,6 +102,10 @@ func QubitOrder(g *circuits.Graph) []int {
 	}
 	return best
 }
+
+// orderStarts bounds the starting qubits QubitOrder tries, so that dense
+// graphs do not pay |V| searches.
+const orderStarts = 8
 
 // reverseCuthillMcKee returns the reverse Cuthill–McKee order of g from
 // start: a breadth-first search that visits the neighbours of each qubit

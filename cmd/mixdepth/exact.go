@@ -81,7 +81,7 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	plot := fs.String("plot", "", "draw the exact E[Z]/Z_H − 1 against depth to FILE.png or FILE.svg")
 	explain := fs.Bool("explain", false, "print the gate set's 4×4 transfer matrix on {I,S}² and its eigenvalues, then stop")
 	engine := fs.String("engine", moments.EngineAuto, fmt.Sprintf("engine for E[Z]: auto (the 2^n vector up to %d qubits, a matrix product state beyond), vector or mps", moments.AutoVectorMaxQubits))
-	bondDim := fs.Int("bond-dim", moments.DefaultBondDim, "bond dimension cap of the mps engine; the error estimate reruns at half of it")
+	bondFlag := fs.String("bond-dim", "auto", fmt.Sprintf("bond dimension cap of the mps engine, 2..%d; auto: %d for chains and rings (order bandwidth ≤ 2), %d otherwise; the error estimate reruns at half of it", moments.MPSMaxBond, moments.DefaultBondDim(1), moments.DefaultBondDim(3)))
 	orderFlag := fs.String("order", "auto", "qubit order of the mps engine: auto, or FILE listing the qubit ids in order")
 	asJSON := fs.Bool("json", false, "print one JSON document instead of the text report")
 	if err := parseFlags(fs, args); err != nil {
@@ -93,8 +93,13 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if !slices.Contains(moments.Engines, *engine) {
 		return badInput("--engine %q: give one of %s", *engine, strings.Join(moments.Engines, ", "))
 	}
-	if *bondDim < 2 || *bondDim > moments.MPSMaxBond {
-		return badInput("--bond-dim %d: give 2..%d (the SVD of one update is (2χ)×(2χ))", *bondDim, moments.MPSMaxBond)
+	bondDim := 0
+	if *bondFlag != "auto" {
+		b, err := strconv.Atoi(*bondFlag)
+		if err != nil || b < 2 || b > moments.MPSMaxBond {
+			return badInput("--bond-dim %s: give auto or a whole number 2..%d (each update takes an SVD of size 2·bond)", *bondFlag, moments.MPSMaxBond)
+		}
+		bondDim = b
 	}
 	s, err := cf.resolve()
 	if err != nil {
@@ -155,7 +160,7 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	}
 	r, err := moments.Exact(ctx, s.graph, s.schedule, s.ensemble, depths,
 		moments.ExactWorkers(*workers), moments.ExactEps(*eps), moments.ExactProgress(progress),
-		moments.ExactEngine(*engine), moments.ExactBondDim(*bondDim), moments.ExactOrder(order))
+		moments.ExactEngine(*engine), moments.ExactBondDim(bondDim), moments.ExactOrder(order))
 	if err != nil {
 		return gatesHint(err)
 	}

@@ -32,6 +32,7 @@
 //     a layered schedule or a layout file, with a mask of the touched qubits;
 //     an untouched qubit sits at σ_q = I with weight 1, meaning F. It needs
 //     8·2^n bytes: about 30 qubits on a 24 GiB machine.
+//
 //   - The random-edge schedule is averaged exactly over the edge drawn at
 //     each step, M = mean_e M_e. The set of untouched qubits is then random
 //     and correlated with the rest of the state. Writing an untouched qubit
@@ -45,6 +46,7 @@
 //     CollisionRandomEdgeMaxQubits = 20 and in practice to about 14 qubits at depths of
 //     thousands of gates (grid:3x4 takes about 2 ms per gate on two cores,
 //     and each added qubit multiplies that by about 3).
+//
 //   - On the complete graph the random-edge average commutes with every
 //     permutation of the qubits (for a transfer symmetric under exchanging
 //     the two qubits of a gate), so the state reduces to the numbers
@@ -54,7 +56,15 @@
 //     average is permutation symmetric; among the graphs here only the
 //     complete graph is.
 //
-// CollisionCurve picks the engine from the schedule.
+//   - MPS holds the same coefficients as a matrix product state over a
+//     linear order of the qubits (QubitOrder), in the Pauli-support gauge
+//     where a Haar gate is an orthogonal projector, with SVD truncation to a
+//     bond cap and the two conserved traces restored after truncation (see
+//     mps.go). MPSCurve runs it on layered schedules of hundreds of qubits,
+//     with an error estimate from a rerun at half the bond.
+//
+// CollisionCurve picks the engine from the schedule; Exact picks between
+// the vector and the MPS engine by ExactEngine.
 //
 // # Assumptions
 //

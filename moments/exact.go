@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"math"
 	"runtime"
+	"slices"
 
 	"mixdepth/circuits"
 	"mixdepth/sim"
@@ -100,6 +101,19 @@ type Result struct {
 	Eps   float64
 	Depth int
 	Found bool
+	// Engine is the engine that computed E[Z]: EngineVector or EngineMPS
+	// (random-edge schedules and the complete-graph reduction report
+	// EngineVector). For EngineMPS, BondDim is the bond cap, Order the
+	// qubit at each site and Bandwidth its bandwidth (see QubitOrder);
+	// TruncationError holds the error estimate of each ratio (see
+	// MPSCurve) and BondDimUsed the largest bond reached up to each depth.
+	// For EngineVector TruncationError is all zero and the others are empty.
+	Engine          string
+	BondDim         int
+	Order           []int
+	Bandwidth       int
+	TruncationError []float64
+	BondDimUsed     []int
 }
 
 // ExactOption sets an optional parameter of Exact.
@@ -110,6 +124,39 @@ type exactConfig struct {
 	eps       float64
 	progress  func(done, total int)
 	curveOnly bool
+	engine    string
+	bond      int
+	order     []int
+}
+
+// The engines of Exact (see ExactEngine).
+const (
+	EngineAuto   = "auto"
+	EngineVector = "vector"
+	EngineMPS    = "mps"
+)
+
+// Engines lists the values ExactEngine accepts.
+var Engines = []string{EngineAuto, EngineVector, EngineMPS}
+
+// AutoVectorMaxQubits is the largest qubit count for which EngineAuto takes
+// the vector engine on a layered schedule: 2^26 coefficients are 512 MiB
+// and a depth-40 curve on 26 qubits takes about a minute on two cores,
+// while the MPS at its default bond answers in seconds with an error estimate
+// well below 1e-3·(R−1) on the lattices checked (TestMPSDefaultBond).
+const AutoVectorMaxQubits = 26
+
+// DefaultBondDim returns the bond cap of the MPS engine for an order of the
+// given bandwidth unless ExactBondDim sets another: 16 for chains and rings
+// (bandwidth ≤ 2), where it keeps line:26 within 1e-7 of the vector engine
+// and line:1000 at depth 60 takes seconds, and 64 otherwise, which keeps
+// grid:5x5 within 1e-3·(R−1) at every depth up to R − 1 < 1e-4
+// (TestMPSDefaultBond).
+func DefaultBondDim(bandwidth int) int {
+	if bandwidth <= 2 {
+		return 16
+	}
+	return 64
 }
 
 // ExactWorkers bounds the goroutines of Exact (values below 1 mean 1); the
@@ -128,6 +175,30 @@ func ExactEps(eps float64) ExactOption {
 // does; the default is no report.
 func ExactProgress(f func(done, total int)) ExactOption {
 	return func(c *exactConfig) { c.progress = f }
+}
+
+// ExactEngine chooses the engine for E[Z]: EngineVector (the 2^n vector,
+// or the random-edge and complete-graph methods), EngineMPS (a matrix
+// product state, layered schedules only, see MPS) or EngineAuto (the
+// default): the vector engine for random-edge schedules and for layered
+// schedules on at most AutoVectorMaxQubits qubits, the MPS beyond. Exact
+// panics for other values.
+func ExactEngine(name string) ExactOption {
+	return func(c *exactConfig) { c.engine = name }
+}
+
+// ExactBondDim sets the bond cap of the MPS engine, 2 ≤ bond ≤ MPSMaxBond,
+// or 0 for the default, DefaultBondDim of the order's bandwidth. Exact
+// panics for other values.
+func ExactBondDim(bond int) ExactOption {
+	return func(c *exactConfig) { c.bond = bond }
+}
+
+// ExactOrder sets the qubit order of the MPS engine (order[k] is the qubit
+// at site k); the default is QubitOrder(g). Exact returns an error
+// wrapping ErrOrder when it is not a permutation of g's qubits.
+func ExactOrder(order []int) ExactOption {
+	return func(c *exactConfig) { c.order = order }
 }
 
 // ExactCurveOnly makes Exact compute E[Z] only, with no frame potential and
@@ -161,12 +232,18 @@ func Exact(ctx context.Context, g *circuits.Graph, s circuits.Schedule, e circui
 	if g == nil || s == nil {
 		panic("moments: Exact with a nil graph or schedule")
 	}
-	cfg := exactConfig{workers: runtime.GOMAXPROCS(0), eps: DefaultExactEps}
+	cfg := exactConfig{workers: runtime.GOMAXPROCS(0), eps: DefaultExactEps, engine: EngineAuto}
 	for _, o := range opts {
 		o(&cfg)
 	}
 	if !(cfg.eps > 0 && cfg.eps < 1) {
 		panic(fmt.Sprintf("moments: Exact with eps %g: need 0 < eps < 1", cfg.eps))
+	}
+	if !slices.Contains(Engines, cfg.engine) {
+		panic(fmt.Sprintf("moments: Exact with engine %q: need one of %v", cfg.engine, Engines))
+	}
+	if cfg.bond != 0 && (cfg.bond < 2 || cfg.bond > MPSMaxBond) {
+		panic(fmt.Sprintf("moments: Exact with bond dimension %d: need 2..%d", cfg.bond, MPSMaxBond))
 	}
 	t, kind, final, err := transferFor(e)
 	if err != nil {
@@ -198,11 +275,39 @@ func Exact(ctx context.Context, g *circuits.Graph, s circuits.Schedule, e circui
 	for _, d := range depths {
 		r.GateCounts = append(r.GateCounts, s.GateCount(d))
 	}
-	if r.Collision, err = CollisionCurve(ctx, g, s, &t, depths, cfg.workers, copts...); err != nil {
-		return nil, exactMemory(err)
+	layered, _ := s.(*circuits.Layered)
+	useMPS := layered != nil && (cfg.engine == EngineMPS || cfg.engine == EngineAuto && n > AutoVectorMaxQubits)
+	if cfg.engine == EngineMPS && layered == nil {
+		return nil, fmt.Errorf("moments: the MPS engine runs layered schedules (and layout files) only, not %s: %w", s.Kind(), ErrEngine)
 	}
-	for _, z := range r.Collision {
-		r.Ratio = append(r.Ratio, z/r.Limit)
+	if et != nil && useMPS {
+		if cfg.engine == EngineMPS {
+			return nil, fmt.Errorf("moments: the MPS engine takes one transfer for every coupler; a gate file with per-coupler matrices runs on the vector engine: %w", ErrEngine)
+		}
+		useMPS = false
+	}
+	if useMPS {
+		if err := exactMPS(ctx, r, g, layered, &t, depths, &cfg, copts); err != nil {
+			return nil, err
+		}
+		if r.Parts > 1 {
+			// The MPS reads out E[Z]/Z_H; a chip in parts is measured against
+			// the product of its parts' Haar values instead.
+			scale := r.HaarCollision / r.Limit
+			for i := range r.Ratio {
+				r.Ratio[i] *= scale
+				r.TruncationError[i] *= scale
+			}
+		}
+	} else {
+		r.Engine = EngineVector
+		if r.Collision, err = CollisionCurve(ctx, g, s, &t, depths, cfg.workers, copts...); err != nil {
+			return nil, exactMemory(err)
+		}
+		for _, z := range r.Collision {
+			r.Ratio = append(r.Ratio, z/r.Limit)
+		}
+		r.TruncationError = make([]float64, len(depths))
 	}
 	r.Depth, r.Found = stats.AnticoncentrationDepth(depths, r.Ratio, cfg.eps)
 	if cfg.curveOnly {
@@ -239,6 +344,85 @@ func Exact(ctx context.Context, g *circuits.Graph, s circuits.Schedule, e circui
 		r.Gap = &gap
 	}
 	return r, nil
+}
+
+// ErrEngine is wrapped by Exact for an engine that cannot run the request:
+// the MPS engine on a random-edge schedule, or an MPS run whose estimated
+// memory or time is beyond MPSMaxSeconds or the machine's memory.
+var ErrEngine = errors.New("engine cannot run this")
+
+// MPSMaxSeconds is the estimated run time (MPSEstimate) beyond which Exact
+// refuses an MPS run before starting: four hours.
+const MPSMaxSeconds = 4 * 3600
+
+// exactMPS fills the curve of r by MPSCurve, after checking the order and
+// the estimated cost.
+func exactMPS(ctx context.Context, r *Result, g *circuits.Graph, s *circuits.Layered, t *Transfer, depths []int, cfg *exactConfig, copts []CollisionOption) error {
+	order := cfg.order
+	if order == nil {
+		order = QubitOrder(g)
+	} else if err := CheckOrder(g, order); err != nil {
+		return err
+	}
+	r.Engine, r.Order, r.Bandwidth = EngineMPS, order, Bandwidth(g, order)
+	r.BondDim = cfg.bond
+	if r.BondDim == 0 {
+		r.BondDim = DefaultBondDim(r.Bandwidth)
+	}
+	if len(depths) > 0 {
+		bytes, secs := MPSEstimate(g, s, order, depths[len(depths)-1], r.BondDim)
+		what := fmt.Sprintf("the MPS of %s at bond dimension %d (order bandwidth %d)", g.Name, r.BondDim, r.Bandwidth)
+		if secs > MPSMaxSeconds {
+			return fmt.Errorf("moments: %s would take up to %.0f hours (estimate: %s, %s): %w; lower --bond-dim, give an order with a smaller bandwidth, or ask for fewer depths",
+				what, secs/3600, sim.GiB(bytes), mpsDuration(secs), ErrEngine)
+		}
+		if err := sim.CheckMemory(bytes, what); err != nil {
+			return exactMemory(fmt.Errorf("moments: %w", err))
+		}
+	}
+	var err error
+	r.Ratio, r.TruncationError, r.BondDimUsed, err = MPSCurve(ctx, g, s, t, depths, order, r.BondDim, copts...)
+	if err != nil {
+		return err
+	}
+	for _, x := range r.Ratio {
+		r.Collision = append(r.Collision, x*r.HaarCollision)
+	}
+	return nil
+}
+
+// mpsDuration formats an estimated number of seconds.
+func mpsDuration(secs float64) string {
+	switch {
+	case secs < 120:
+		return fmt.Sprintf("%.0f s", secs)
+	case secs < 7200:
+		return fmt.Sprintf("%.0f min", secs/60)
+	}
+	return fmt.Sprintf("%.1f h", secs/3600)
+}
+
+// Uncertain reports whether the truncation error of depth r.Depths[i] is at
+// least the distance of its ratio to 1 + Eps, so that the truncation could
+// have moved it across the threshold. It panics if i is out of range.
+func (r *Result) Uncertain(i int) bool {
+	return r.TruncationError[i] >= math.Abs(r.Ratio[i]-(1+r.Eps))
+}
+
+// DepthUncertain reports whether the anti-concentration depth (or its
+// absence) rests on a ratio the truncation could have moved across the
+// threshold: some depth up to Depth (every depth when none is found) is
+// Uncertain.
+func (r *Result) DepthUncertain() bool {
+	for i, d := range r.Depths {
+		if r.Found && d > r.Depth {
+			break
+		}
+		if r.Uncertain(i) {
+			return true
+		}
+	}
+	return false
 }
 
 // exactCheckSize returns an error wrapping ErrTooLarge for the sizes Exact

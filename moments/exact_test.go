@@ -274,7 +274,9 @@ func TestTransferFor(t *testing.T) {
 }
 
 // TestExactTooLarge: the size rules give errors wrapping ErrTooLarge before
-// any work, and a memory failure wraps both ErrTooLarge and sim.ErrTooLarge.
+// any work, and a memory failure of the vector engine (chosen explicitly:
+// auto takes the MPS beyond AutoVectorMaxQubits) wraps both ErrTooLarge and
+// sim.ErrTooLarge.
 func TestExactTooLarge(t *testing.T) {
 	ctx := context.Background()
 	for _, c := range []struct {
@@ -287,7 +289,7 @@ func TestExactTooLarge(t *testing.T) {
 		{"line:" + strconv.Itoa(moments.EngineMaxQubits+1), circuits.KindLayered, true}, // beyond the engine's index range
 	} {
 		g, s, e := exactInputs(t, c.graph, c.schedule, "haar")
-		_, err := moments.Exact(ctx, g, s, e, []int{1})
+		_, err := moments.Exact(ctx, g, s, e, []int{1}, moments.ExactEngine(moments.EngineVector))
 		if !errors.Is(err, moments.ErrTooLarge) || errors.Is(err, sim.ErrTooLarge) != c.memory {
 			t.Errorf("%s %s: error %v; want ErrTooLarge (and sim.ErrTooLarge: %v)", c.graph, c.schedule, err, c.memory)
 		}

@@ -26,6 +26,7 @@ import (
 type benchConfig struct {
 	from, to         int    // state sizes of the gate benchmark
 	moments          string // comma-separated qubit counts of the moment engine
+	mpsBonds         string // comma-separated bond dimensions of the MPS update
 	grid             string // RxC of the end-to-end scan
 	depth, instances int    // of the end-to-end scan
 	numpy            bool   // run the numpy baseline when python3 has numpy
@@ -97,6 +98,16 @@ func measure(ctx context.Context, log io.Writer, cfg benchConfig) (*report, erro
 		}
 		note(row.Triad)
 		r.Moments = append(r.Moments, row)
+	}
+	for _, f := range strings.Split(cfg.mpsBonds, ",") {
+		var b int
+		if _, err := fmt.Sscan(f, &b); err != nil || b < 2 || b > moments.MPSMaxBond {
+			continue
+		}
+		if err := begin("MPS update at bond %d…", b); err != nil {
+			return nil, err
+		}
+		r.MPS = append(r.MPS, mpsUpdate(b))
 	}
 	var rows, cols int
 	if _, err := fmt.Sscanf(cfg.grid, "%dx%d", &rows, &cols); err != nil || cfg.depth <= 0 || cfg.instances <= 0 {
@@ -360,6 +371,39 @@ func momentEngine(n, workers int) (momentRow, error) {
 	t := meanOf(best)
 	eff := 16 * math.Ldexp(1, n) / t / 1e9
 	return momentRow{Qubits: n, MsPerUpdate: t * 1e3, Effective: eff, Triad: bw, Fraction: eff / bw, Pairs: millis(best)}, nil
+}
+
+// mpsUpdate times one two-site update of the MPS engine (a gate between
+// neighbours in the order: a contraction, an SVD of a 2χ×2χ block and the
+// split) at bond dimension bond, on a 2·log2(bond)+8-qubit brickwork line
+// whose bonds have saturated.
+func mpsUpdate(bond int) mpsRow {
+	n := 8
+	for b := 1; b < bond; b *= 2 {
+		n += 2
+	}
+	order := make([]int, n)
+	for i := range order {
+		order[i] = i
+	}
+	m := moments.NewMPS(n, order, bond)
+	layer := func(p int) {
+		for q := p; q+1 < n; q += 2 {
+			m.Apply(q, q+1, &moments.HaarTransfer)
+		}
+	}
+	for d := range n {
+		layer(d % 2)
+	}
+	const rounds = 4
+	start := time.Now()
+	updates := 0
+	for d := range rounds {
+		layer(d % 2)
+		updates += (n - d%2) / 2
+	}
+	ms := time.Since(start).Seconds() * 1e3 / float64(updates)
+	return mpsRow{Bond: bond, BondUsed: m.MaxBondUsed(), MsPerUpdate: ms}
 }
 
 // haarScan is the configuration of a layered Haar scan of the graph spec

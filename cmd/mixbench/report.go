@@ -3,6 +3,7 @@ package main
 import (
 	"fmt"
 	"io"
+	"math"
 )
 
 // report is the --json document. Field names are an interface.
@@ -14,6 +15,7 @@ type report struct {
 	Load      string      `json:"load_average"`
 	Gates     []gateRow   `json:"gates"`
 	Moments   []momentRow `json:"moments"`
+	MPS       []mpsRow    `json:"mps_updates"`
 	Scan      *scanResult `json:"scan,omitempty"`
 	Ratio     *float64    `json:"numpy_ratio"`
 	Notes     []string    `json:"notes,omitempty"`
@@ -40,6 +42,13 @@ type fusedRow struct {
 	Gates     int     `json:"gates"`
 	MsPerGate float64 `json:"ms_per_gate"`
 	Speedup   float64 `json:"speedup_over_one_by_one"`
+}
+
+// mpsRow is the time of one two-site update of the MPS engine.
+type mpsRow struct {
+	Bond        int     `json:"bond_dim"`
+	BondUsed    int     `json:"bond_dim_used"`
+	MsPerUpdate float64 `json:"ms_per_update"`
 }
 
 type momentRow struct {
@@ -87,6 +96,14 @@ func printTable(w io.Writer, r *report) {
 	fmt.Fprintf(w, "%4s %10s %8s %8s %9s\n", "n", "ms/update", "GB/s", "triad", "fraction")
 	for _, m := range r.Moments {
 		fmt.Fprintf(w, "%4d %10.3f %8.1f %8.1f %9.2f\n", m.Qubits, m.MsPerUpdate, m.Effective, m.Triad, m.Fraction)
+	}
+	if len(r.MPS) > 0 {
+		fmt.Fprintf(w, "\nMPS two-site update (SVD of a 2χ×2χ block); ratio = time / (χ/χ_first)³ time of the first row\n")
+		fmt.Fprintf(w, "%6s %6s %10s %8s\n", "bond", "used", "ms/update", "ratio")
+		for _, m := range r.MPS {
+			scale := math.Pow(float64(m.BondUsed)/float64(r.MPS[0].BondUsed), 3)
+			fmt.Fprintf(w, "%6d %6d %10.3f %8.2f\n", m.Bond, m.BondUsed, m.MsPerUpdate, m.MsPerUpdate/(scale*r.MPS[0].MsPerUpdate))
+		}
 	}
 	if s := r.Scan; s != nil {
 		fmt.Fprintf(w, "\nscan %s, depths 1..%d, %d instances, haar: Go %.2f s (R at the last depth %.3f)\n", s.Graph, s.Depths, s.Instances, s.GoSeconds, s.GoRatio)

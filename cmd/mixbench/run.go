@@ -43,6 +43,7 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	instances := fs.Int("scan-instances", 2, "instances of the scan")
 	numpy := fs.String("numpy", "auto", "auto: run the numpy baseline when python3 has numpy; off: skip it")
 	momentN := fs.String("moments", "24,26", "qubit counts for the moment engine")
+	mpsBonds := fs.String("mps-bonds", "16,32,64,128", "bond dimensions for the MPS two-site update")
 	workers := fs.Int("workers", runtime.NumCPU(), "goroutines for every measurement")
 	large := fs.String("large", "", "only run a one-instance scan of GRAPH (e.g. grid:5x6, line:31) at --large-depths and report its time")
 	largeDepths := fs.String("large-depths", "1", "depths of the --large scan: a list like 1,2,4")
@@ -89,7 +90,7 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 		return largeScan(ctx, stdout, *large, depths, prec, *workers)
 	}
 	r, err := measure(ctx, stderr, benchConfig{
-		from: *from, to: *to, moments: *momentN, grid: *grid, depth: *depth, instances: *instances,
+		from: *from, to: *to, moments: *momentN, mpsBonds: *mpsBonds, grid: *grid, depth: *depth, instances: *instances,
 		numpy: *numpy != "off", workers: *workers,
 	})
 	if err != nil {

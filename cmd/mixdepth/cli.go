@@ -54,7 +54,7 @@ var errInterrupted = errors.New("interrupted")
 var badInputErrors = []error{
 	sim.ErrTooLarge, tables.ErrDamaged, runs.ErrValue,
 	moments.ErrTooLarge,
-	moments.ErrNoExactMoments,
+	moments.ErrNoExactMoments, moments.ErrEngine, moments.ErrOrder,
 	scan.ErrConfig,
 	sampling.ErrConfig, sampling.ErrNoiseRange, sampling.ErrCircuitFile, sampling.ErrCircuitMismatch, sampling.ErrEmpty, sampling.ErrColumn, sampling.ErrColumnType, sampling.ErrNull, sampling.ErrNotNumber, sampling.ErrBitstring, sampling.ErrInstance, sampling.ErrProbability, sampling.ErrMismatch,
 }

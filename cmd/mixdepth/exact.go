@@ -7,7 +7,10 @@ import (
 	"io"
 	"math"
 	"math/cmplx"
+	"os"
+	"slices"
 	"strconv"
+	"strings"
 
 	"github.com/schollz/progressbar/v3"
 
@@ -29,6 +32,11 @@ type exactJSON struct {
 	CollisionLimit         *float64       `json:"collision_limit,omitempty"`
 	Eps                    float64        `json:"eps"`
 	AnticoncentrationDepth *int           `json:"anticoncentration_depth"`
+	DepthUncertain         bool           `json:"depth_uncertain,omitempty"`
+	Engine                 string         `json:"engine"`
+	BondDim                int            `json:"bond_dim,omitempty"`
+	QubitOrder             []int          `json:"qubit_order,omitempty"`
+	OrderBandwidth         int            `json:"order_bandwidth,omitempty"`
 	FrameNote              string         `json:"frame_potential_note,omitempty"`
 	GapNote                string         `json:"gap_note,omitempty"`
 	Rows                   []exactJSONRow `json:"rows"`
@@ -42,6 +50,8 @@ type exactJSONRow struct {
 	CollisionRatio float64  `json:"collision_ratio"`
 	FramePotential *float64 `json:"frame_potential"`
 	Spread         bool     `json:"spread"`
+	TruncationErr  float64  `json:"truncation_error"`
+	BondDimUsed    int      `json:"bond_dim_used,omitempty"`
 }
 
 type exactJSONGap struct {
@@ -73,6 +83,9 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	out := fs.String("out", "", "write the per-depth table to FILE.arrow or FILE.parquet")
 	plot := fs.String("plot", "", "draw the exact E[Z]/Z_H − 1 against depth to FILE.png or FILE.svg")
 	explain := fs.Bool("explain", false, "print the gate set's 4×4 transfer matrix on {I,S}² and its eigenvalues, then stop")
+	engine := fs.String("engine", moments.EngineAuto, fmt.Sprintf("engine for E[Z]: auto (the 2^n vector up to %d qubits, a matrix product state beyond), vector or mps", moments.AutoVectorMaxQubits))
+	bondFlag := fs.String("bond-dim", "auto", fmt.Sprintf("bond dimension cap of the mps engine, 2..%d; auto: %d for chains and rings (order bandwidth ≤ 2), %d otherwise; the error estimate reruns at half of it", moments.MPSMaxBond, moments.DefaultBondDim(1), moments.DefaultBondDim(3)))
+	orderFlag := fs.String("order", "auto", "qubit order of the mps engine: auto, or FILE listing the qubit ids in order")
 	asJSON := fs.Bool("json", false, "print one JSON document instead of the text report")
 	allow := fs.Bool("allow-disconnected", false, "accept a chip in parts; E[Z] is then measured against the product of the parts' Haar values, which it tends to")
 	if err := parseFlags(fs, args); err != nil {
@@ -80,6 +93,17 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	}
 	if fs.NArg() > 0 {
 		return badInput("exact takes no positional arguments (got %q)", fs.Arg(0))
+	}
+	if !slices.Contains(moments.Engines, *engine) {
+		return badInput("--engine %q: give one of %s", *engine, strings.Join(moments.Engines, ", "))
+	}
+	bondDim := 0
+	if *bondFlag != "auto" {
+		b, err := strconv.Atoi(*bondFlag)
+		if err != nil || b < 2 || b > moments.MPSMaxBond {
+			return badInput("--bond-dim %s: give auto or a whole number 2..%d (each update takes an SVD of size 2·bond)", *bondFlag, moments.MPSMaxBond)
+		}
+		bondDim = b
 	}
 	var files ioCheck
 	files.circuitInputs(&cf)
@@ -91,6 +115,12 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	s, err := cf.resolveWith(func(o *runs.Options) { o.AllowDisconnected = *allow })
 	if err != nil {
 		return err
+	}
+	var order []int
+	if *orderFlag != "auto" {
+		if order, err = readOrderFile(*orderFlag, s.graph); err != nil {
+			return err
+		}
 	}
 	if *explain {
 		return explainTransfer(stdout, s.ensemble)
@@ -140,7 +170,8 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		}
 	}
 	r, err := moments.Exact(ctx, s.graph, s.schedule, s.ensemble, depths,
-		moments.ExactWorkers(*workers), moments.ExactEps(*eps), moments.ExactProgress(progress))
+		moments.ExactWorkers(*workers), moments.ExactEps(*eps), moments.ExactProgress(progress),
+		moments.ExactEngine(*engine), moments.ExactBondDim(bondDim), moments.ExactOrder(order))
 	if err != nil {
 		return gatesHint(err)
 	}
@@ -162,7 +193,8 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		}
 	}
 	if *asJSON {
-		doc := exactJSON{Header: s.spec.Header(), HaarCollision: r.HaarCollision, Eps: *eps, FrameNote: r.FrameNote, GapNote: r.GapNote, Gap: gap}
+		doc := exactJSON{Header: s.spec.Header(), HaarCollision: r.HaarCollision, Eps: *eps, FrameNote: r.FrameNote, GapNote: r.GapNote, Gap: gap,
+			Engine: r.Engine, BondDim: r.BondDim, QubitOrder: r.Order, OrderBandwidth: r.Bandwidth, DepthUncertain: r.DepthUncertain()}
 		if found {
 			doc.AnticoncentrationDepth = &depth
 		}
@@ -170,7 +202,11 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 			doc.CollisionLimit = &r.Limit
 		}
 		for i, d := range r.Depths {
-			row := exactJSONRow{Depth: d, GateCount: r.GateCounts[i], Collision: r.Collision[i], CollisionRatio: r.Ratio[i], Spread: r.Spread(i)}
+			row := exactJSONRow{Depth: d, GateCount: r.GateCounts[i], Collision: r.Collision[i], CollisionRatio: r.Ratio[i], Spread: r.Spread(i),
+				TruncationErr: r.TruncationError[i]}
+			if r.BondDimUsed != nil {
+				row.BondDimUsed = r.BondDimUsed[i]
+			}
 			if r.Frame != nil {
 				row.FramePotential = &r.Frame[i]
 			}
@@ -183,23 +219,46 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if r.Parts > 1 {
 		fmt.Fprintf(stdout, "The chip is in %d parts and never reaches that value: E[Z] tends to the product of the parts' Haar values, %.6g;\nthe E[Z]/Z_H column below divides by that limit instead (and F2 tends to the product of the parts' values, not 2).\n", r.Parts, r.Limit)
 	}
+	mps := r.Engine == moments.EngineMPS
+	if mps {
+		fmt.Fprintf(stdout, "engine: matrix product state, bond dimension %d (error from a rerun at %d), qubit order bandwidth %d\n",
+			r.BondDim, max(r.BondDim/2, 1), r.Bandwidth)
+	}
 	fmt.Fprintln(stdout)
-	fmt.Fprintf(stdout, "%6s %7s %14s %12s\n", "depth", "gates", "E[Z]/Z_H", "F2")
+	if mps {
+		fmt.Fprintf(stdout, "%6s %7s %14s %10s %5s %12s\n", "depth", "gates", "E[Z]/Z_H", "± error", "bond", "F2")
+	} else {
+		fmt.Fprintf(stdout, "%6s %7s %14s %12s\n", "depth", "gates", "E[Z]/Z_H", "F2")
+	}
 	for i, d := range r.Depths {
 		f := "—"
 		if r.Frame != nil {
 			f = strconv.FormatFloat(r.Frame[i], 'f', 6, 64)
 		}
-		fmt.Fprintf(stdout, "%6d %7d %14s %12s\n", d, r.GateCounts[i], formatRatio(r.Ratio[i]), f)
+		if mps {
+			mark := ""
+			if r.Uncertain(i) {
+				mark = " ?"
+			}
+			fmt.Fprintf(stdout, "%6d %7d %14s %10.1e %5d %12s%s\n", d, r.GateCounts[i], formatRatio(r.Ratio[i]), r.TruncationError[i], r.BondDimUsed[i], f, mark)
+		} else {
+			fmt.Fprintf(stdout, "%6d %7d %14s %12s\n", d, r.GateCounts[i], formatRatio(r.Ratio[i]), f)
+		}
 	}
 	fmt.Fprintln(stdout)
+	if mps && slices.ContainsFunc(r.Depths, func(d int) bool { return r.Uncertain(indexOf(r.Depths, d)) }) {
+		fmt.Fprintln(stdout, "?: the error estimate is at least the distance of E[Z]/Z_H to 1+eps, so the truncation could move this depth across the threshold.")
+	}
 	if r.FrameNote != "" {
 		fmt.Fprintf(stdout, "F2 not shown: %s.\n", r.FrameNote)
 	}
-	if found {
+	switch {
+	case r.DepthUncertain():
+		fmt.Fprintf(stdout, "No verdict: at bond dimension %d the truncation error reaches the distance to 1+eps = %.4f at a depth marked '?'; raise --bond-dim.\n", r.BondDim, 1+*eps)
+	case found:
 		fmt.Fprintf(stdout, "Anti-concentration depth (exact): %d (%d gates), where E[Z]/Z_H = %.6f ≤ 1+eps = %.4f.\n",
 			depth, s.schedule.GateCount(depth), r.Ratio[indexOf(r.Depths, depth)], 1+*eps)
-	} else {
+	default:
 		last := len(r.Depths) - 1
 		fmt.Fprintf(stdout, "No requested depth anti-concentrates: at depth %d E[Z]/Z_H = %.6f > 1+eps = %.4f; ask for larger depths.\n",
 			r.Depths[last], r.Ratio[last], 1+*eps)
@@ -226,6 +285,20 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		fmt.Fprintf(stdout, "Plot: %s\n", *plot)
 	}
 	return nil
+}
+
+// readOrderFile reads the --order file for g.
+func readOrderFile(path string, g *circuits.Graph) ([]int, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, badInput("--order %s: %v; give auto or a file listing the qubit ids in order", path, err)
+	}
+	defer f.Close()
+	order, err := moments.ReadOrder(path, f, g)
+	if err != nil {
+		return nil, fmt.Errorf("--order: %w; list each qubit 0..%d exactly once", err, g.Qubits-1)
+	}
+	return order, nil
 }
 
 // formatRatio prints E[Z]/Z_H with 8 decimals, or in exponent form when it

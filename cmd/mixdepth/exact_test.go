@@ -4,6 +4,7 @@ import (
 	"context"
 	"encoding/json"
 	"math"
+	"os"
 	"strings"
 	"testing"
 
@@ -107,6 +108,55 @@ func TestExactTooLarge(t *testing.T) {
 		_, stderr, code := runCLI(t, args...)
 		if code != 2 || !strings.Contains(stderr, "too large for exact second moments") {
 			t.Errorf("%v: exit %d, %q; want 2 and the size limit", args, code, stderr)
+		}
+	}
+}
+
+// TestExactEngineFlags: the MPS engine's JSON fields (engine, bond_dim,
+// qubit_order, per-row truncation_error and bond_dim_used), the vector
+// engine's zero truncation error, and one line with exit status 2 for each
+// bad request of the issue: an order file that is not a permutation, a bond
+// dimension below 2 or absurdly large, and a run whose estimated time is
+// beyond the limit.
+func TestExactEngineFlags(t *testing.T) {
+	doc := exactJSONOf(t, "--graph", "grid:2x3", "--depths", "1:4", "--engine", "mps", "--bond-dim", "8")
+	if doc.Engine != "mps" || doc.BondDim != 8 || len(doc.QubitOrder) != 6 || doc.OrderBandwidth != 2 {
+		t.Errorf("mps header: engine %q, bond %d, order %v, bandwidth %d", doc.Engine, doc.BondDim, doc.QubitOrder, doc.OrderBandwidth)
+	}
+	vec := exactJSONOf(t, "--graph", "grid:2x3", "--depths", "1:4", "--engine", "vector")
+	for i, row := range doc.Rows {
+		if row.BondDimUsed < 1 || row.BondDimUsed > 8 {
+			t.Errorf("depth %d: bond_dim_used %d", row.Depth, row.BondDimUsed)
+		}
+		// grid:2x3 needs bond 8 at most, so the MPS is exact: 1e-12 leaves room for rounding.
+		if d := math.Abs(row.CollisionRatio - vec.Rows[i].CollisionRatio); d > 1e-12*row.CollisionRatio || row.TruncationErr < d {
+			t.Errorf("depth %d: mps %g ± %g, vector %g", row.Depth, row.CollisionRatio, row.TruncationErr, vec.Rows[i].CollisionRatio)
+		}
+		if vec.Rows[i].TruncationErr != 0 {
+			t.Errorf("vector engine depth %d: truncation_error %g, want 0", row.Depth, vec.Rows[i].TruncationErr)
+		}
+	}
+	if vec.Engine != "vector" || vec.BondDim != 0 || vec.QubitOrder != nil {
+		t.Errorf("vector header: engine %q, bond %d, order %v", vec.Engine, vec.BondDim, vec.QubitOrder)
+	}
+	dir := t.TempDir()
+	notPerm := dir + "/order.txt"
+	if err := os.WriteFile(notPerm, []byte("0 1 2 2\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct {
+		args []string
+		want string
+	}{
+		{[]string{"--graph", "line:4", "--engine", "mps", "--order", notPerm}, "twice"},
+		{[]string{"--graph", "line:4", "--engine", "mps", "--bond-dim", "1"}, "--bond-dim 1"},
+		{[]string{"--graph", "line:4", "--engine", "mps", "--bond-dim", "100000"}, "--bond-dim 100000"},
+		{[]string{"--graph", "line:4", "--engine", "tensor"}, "--engine"},
+		{[]string{"--graph", "complete:200", "--engine", "mps", "--depths", "1000"}, "hours"},
+	} {
+		_, stderr, code := runCLI(t, append([]string{"exact"}, c.args...)...)
+		if code != 2 || !strings.Contains(stderr, c.want) || strings.Count(strings.TrimSpace(stderr), "\n") != 0 {
+			t.Errorf("exact %v: exit %d, %q; want 2 and one line with %q", c.args, code, stderr, c.want)
 		}
 	}
 }

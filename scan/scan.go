@@ -443,3 +443,28 @@ func Estimate(qubits int, records []Record, conf, eps float64) *Curve {
 	s.Depth, s.Found = stats.AnticoncentrationDepth(depths, upper, eps)
 	return s
 }
+
+// Reader reads the statistics of a scan's records off states of one size,
+// with the buffers and bins of the scan's readout kept from state to state.
+// A Reader is used by one goroutine at a time.
+type Reader struct{ r *readout }
+
+// NewReader returns a Reader for n-qubit states whose passes run on workers
+// goroutines. It panics if n < 1 or n > sim.MaxQubits.
+func NewReader(n, workers int) *Reader {
+	if n < 1 || n > sim.MaxQubits {
+		panic(fmt.Sprintf("scan: NewReader for %d qubits", n))
+	}
+	return &Reader{newReadout(n, max(workers, 1))}
+}
+
+// Read returns the collision probability Σ|a|⁴ of st and its Porter–Thomas
+// distance (the Kolmogorov–Smirnov distance of its probabilities to
+// Beta(1, D−1)), the Collision and KS of a Record. It panics if st does not
+// have the Reader's qubit count.
+func (r *Reader) Read(st *sim.State) (collision, ks float64) {
+	if st.Qubits != r.r.n {
+		panic(fmt.Sprintf("scan: Reader for %d qubits given a %d-qubit state", r.r.n, st.Qubits))
+	}
+	return r.r.read(st)
+}

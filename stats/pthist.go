@@ -227,12 +227,14 @@ type ksRefiner struct {
 const ksSlack = 1e-12 // candidates keep U_j ≥ L − slack, so rounding in the bounds never drops the supremum's bin
 
 // ksBinBits returns the number of bits b of 2^b level-0 bins per octave for
-// dim values: about dim/2^9 bins per octave, from 2^4 to 2^14, so that a bin
-// near the mode of the Porter–Thomas law holds some hundreds of values and
-// holds less mass (≲ e^−1·ln 2·2^−b) than the statistic's typical size
-// 1/√D: few bins then remain candidates after the first pass.
+// dim values: about dim/2^7 bins per octave, from 2^4 to 2^14, so that a bin
+// near the mode of the Porter–Thomas law holds some tens of values (some
+// hundreds from 2^22 values on) and much less mass (≲ e^−1·ln 2·2^−b) than
+// the statistic's typical size 1/√D: few bins then remain candidates after
+// the first pass. (Tuned on the demo scan: dim/2^9 and dim/2^5 bins per
+// octave were both slower.)
 func ksBinBits(dim int) uint {
-	return uint(min(ksMaxBinBits, max(4, bits.Len(uint(dim))-10)))
+	return uint(min(ksMaxBinBits, max(4, bits.Len(uint(dim))-8)))
 }
 
 func newKSRefiner(dim, workers int) *ksRefiner {

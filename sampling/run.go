@@ -44,6 +44,12 @@ type Config struct {
 	// Noise.GateError > 0: T = min(Shots, Trajectories), and 0 means
 	// DefaultTrajectories. See TrajectoryShots for the split of the shots.
 	Trajectories int
+	// SavedStateBytes bounds the memory of the ideal states an instance
+	// with gate errors keeps at step boundaries, so that each trajectory
+	// starts from the last one before its first error instead of from
+	// |0…0⟩ (the output is the same bit for bit either way): 0 means
+	// DefaultSavedStateBytes, a negative value keeps none.
+	SavedStateBytes int64
 	// Workers bounds the goroutines; 0 or less means 1.
 	Workers int
 	// Progress, when non-nil, is called once per finished instance, from one
@@ -191,15 +197,14 @@ func (c *Config) bytesPerInstance() float64 {
 	return need + 16*float64(c.Shots)
 }
 
-// checkpointBytes bounds the memory of the ideal states an instance with
-// gate errors keeps for its trajectories: 256 MiB (tests set 0 to run
-// every trajectory from the start).
-var checkpointBytes = 256 << 20
+// DefaultSavedStateBytes is the memory for saved ideal states of an
+// instance with gate errors when Config.SavedStateBytes is 0: 256 MiB.
+const DefaultSavedStateBytes = 256 << 20
 
 // checkpoints returns the step counts after which an instance with gate
 // errors keeps a copy of its ideal state, ascending: every step boundary
-// when they fit in checkpointBytes, else as many as fit, evenly spaced
-// (none for states above 256 MiB). A trajectory agrees with the ideal
+// when they fit in SavedStateBytes, else as many as fit, evenly spaced
+// (none for states larger than the budget). A trajectory agrees with the ideal
 // circuit up to its first error, so it starts from the last copy before
 // that error instead of from |0…0⟩, with the same gates applied in the same
 // order to the same amplitudes: its state, and so the output, is the same
@@ -208,7 +213,14 @@ func (c *Config) checkpoints() []int {
 	if c.Noise.GateError == 0 || c.Depth < 2 {
 		return nil
 	}
-	m := min(c.Depth-1, int(float64(checkpointBytes)/sim.StateBytes(c.Qubits)))
+	budget := c.SavedStateBytes
+	switch {
+	case budget < 0:
+		return nil
+	case budget == 0:
+		budget = DefaultSavedStateBytes
+	}
+	m := min(c.Depth-1, int(float64(budget)/sim.StateBytes(c.Qubits)))
 	pos := make([]int, 0, m)
 	for j := range m {
 		p := (j + 1) * c.Depth / (m + 1)

@@ -516,17 +516,16 @@ func TestScoreByHand(t *testing.T) {
 // final single-qubit layer, and at a high error rate so that first errors
 // fall in every step, including the first.
 func TestTrajectoryCheckpoints(t *testing.T) {
-	defer func(b int) { checkpointBytes = b }(checkpointBytes)
 	for _, gates := range []string{"haar", "cz+haar1"} {
 		c := testConfig(t, "grid:3x3", gates, 9, 3, 120, Noise{Fidelity: 1, GateError: 0.03})
 		c.Trajectories = 60
-		checkpointBytes = 0
+		c.SavedStateBytes = -1
 		if len(c.checkpoints()) != 0 {
 			t.Fatalf("checkpoints with no budget: %v", c.checkpoints())
 		}
 		want := runAll(t, c)
 		for _, budget := range []float64{2, 100} {
-			checkpointBytes = int(budget * sim.StateBytes(c.Qubits))
+			c.SavedStateBytes = int64(budget * sim.StateBytes(c.Qubits))
 			if got := len(c.checkpoints()); got != min(int(budget), c.Depth-1) {
 				t.Fatalf("budget of %g states: %d checkpoints", budget, got)
 			}

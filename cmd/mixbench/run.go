@@ -47,7 +47,7 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	large := fs.String("large", "", "only run a one-instance scan of GRAPH (e.g. grid:5x6, line:31) at --large-depths and report its time")
 	largeDepths := fs.String("large-depths", "1", "depths of the --large scan: a list like 1,2,4")
 	precision := fs.String("precision", "double", "precision of the --large scan: double or single")
-	targets := fs.Int("targets", 3, "rounds of each performance target (scan depths, read-out, fused brickwork, demo); 0 skips them")
+	targets := fs.Int("targets", 3, "rounds of each performance target (scan depths, read-out, fused brickwork, demo, noisy sampling), each a ratio of two timings alternated in one run; 0 skips them")
 	profile := fs.String("cpuprofile", "", "write a CPU profile (go tool pprof) of the whole run to FILE")
 	if err := fs.Parse(args); err != nil {
 		if errors.Is(err, pflag.ErrHelp) {

@@ -332,18 +332,18 @@ func fused(ctx context.Context, n, workers int) (fusedRow, error) {
 			ops = append(ops, op)
 		}
 	}
-	return timeFused(ctx, n, ops, workers)
+	return timeFused(ctx, n, ops, workers, 2)
 }
 
 // timeFused times ops on a random n-qubit state as one fused sequence
-// (sim.State.Run) and gate by gate (Apply2), in alternating rounds.
-func timeFused(ctx context.Context, n int, ops []sim.Op, workers int) (fusedRow, error) {
+// (sim.State.Run) and gate by gate (Apply2), in rounds alternating the two.
+func timeFused(ctx context.Context, n int, ops []sim.Op, workers, rounds int) (fusedRow, error) {
 	s, err := sim.NewState(n, 0)
 	if err != nil {
 		return fusedRow{}, err
 	}
 	randomFill(s.Amp, workers)
-	_, best := interleaved(workers, 2, 1, map[string]func(){
+	_, best := interleaved(workers, rounds, 1, map[string]func(){
 		"fused": func() { _ = s.Run(ctx, ops, workers) },
 		"one-by-one": func() {
 			for i := range ops {

@@ -215,5 +215,5 @@ func fusedOn(ctx context.Context, spec string, workers int) (fusedRow, error) {
 			ops = append(ops, op)
 		}
 	}
-	return timeFused(ctx, g.Qubits, ops, workers)
+	return timeFused(ctx, g.Qubits, ops, workers, 1) // the target's own rounds repeat it
 }

@@ -69,30 +69,35 @@ func (a *Alias) Reset(w []float64) {
 	a.prob, a.alias, a.work = a.prob[:n], a.alias[:n], a.work[:n]
 	// prob[i] holds the scaled weight n·w_i/Σw until column i is finished.
 	scale := float64(n) / sum
+	prob, alias, work := a.prob, a.alias, a.work
 	small, large := 0, n // small grows up from 0, large down from n
 	for i, v := range w {
-		a.prob[i] = v * scale
-		a.alias[i] = uint32(i)
-		if a.prob[i] < 1 {
-			a.work[small] = uint32(i)
-			small++
-		} else {
-			large--
-			a.work[large] = uint32(i)
+		p := v * scale
+		prob[i] = p
+		alias[i] = uint32(i)
+		// Without a branch (the comparison is a coin flip for Porter–Thomas
+		// weights): a small i goes to slot small, a large one to large−1.
+		s := 0
+		if p < 1 {
+			s = 1
 		}
+		work[large-1+s*(small-large+1)] = uint32(i)
+		small += s
+		large -= 1 - s
 	}
 	for small > 0 && large < n {
 		small--
-		s := a.work[small]
-		l := a.work[large]
+		s := work[small]
+		l := work[large]
 		// Column s is finished: it keeps s with prob[s] and gives l otherwise.
-		a.alias[s] = l
-		a.prob[l] -= 1 - a.prob[s]
-		if a.prob[l] < 1 {
+		alias[s] = l
+		pl := prob[l] - (1 - prob[s])
+		prob[l] = pl
+		if pl < 1 {
 			// l moves from the large stack to the small one. The slot it
 			// leaves is the lowest large slot, so the stacks never meet.
 			large++
-			a.work[small] = l
+			work[small] = l
 			small++
 		}
 	}

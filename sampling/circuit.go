@@ -77,6 +77,13 @@ func (c *Circuit) ApplyWithErrors(st *sim.State, paulis []uint8, workers int) {
 // run is ApplyWithErrors that checks ctx before every step; it returns false,
 // leaving st part-way, when ctx is cancelled.
 func (c *Circuit) run(ctx context.Context, st *sim.State, paulis []uint8, workers int) bool {
+	return c.runFrom(ctx, st, 0, paulis, workers, nil)
+}
+
+// runFrom is run from step from on, st holding the state after the steps
+// before it; paulis still covers every gate of the circuit. after, when
+// non-nil, is called after each step t with t+1, the number of steps done.
+func (c *Circuit) runFrom(ctx context.Context, st *sim.State, from int, paulis []uint8, workers int, after func(done int)) bool {
 	if st.Qubits != c.Qubits {
 		panic(fmt.Sprintf("sampling: %d-qubit circuit on a %d-qubit state", c.Qubits, st.Qubits))
 	}
@@ -84,7 +91,10 @@ func (c *Circuit) run(ctx context.Context, st *sim.State, paulis []uint8, worker
 		panic(fmt.Sprintf("sampling: %d Pauli errors for %d gates", len(paulis), c.GateCount()))
 	}
 	k := 0
-	for _, step := range c.Steps {
+	for _, step := range c.Steps[:from] {
+		k += len(step)
+	}
+	for t, step := range c.Steps[from:] {
 		if ctx.Err() != nil {
 			return false
 		}
@@ -95,6 +105,9 @@ func (c *Circuit) run(ctx context.Context, st *sim.State, paulis []uint8, worker
 				st.Apply2(g.A, g.B, &pauliMatrices[paulis[k]], workers)
 			}
 			k++
+		}
+		if after != nil {
+			after(from + t + 1)
 		}
 	}
 	for q := range c.Final {

@@ -44,6 +44,12 @@ type Config struct {
 	// Noise.GateError > 0: T = min(Shots, Trajectories), and 0 means
 	// DefaultTrajectories. See TrajectoryShots for the split of the shots.
 	Trajectories int
+	// SavedStateBytes bounds the memory of the ideal states an instance
+	// with gate errors keeps at step boundaries, so that each trajectory
+	// starts from the last one before its first error instead of from
+	// |0…0⟩ (the output is the same bit for bit either way): 0 means
+	// DefaultSavedStateBytes, a negative value keeps none.
+	SavedStateBytes int64
 	// Workers bounds the goroutines; 0 or less means 1.
 	Workers int
 	// Progress, when non-nil, is called once per finished instance, from one
@@ -198,7 +204,42 @@ func (c *Config) bytesPerInstance() float64 {
 	if c.Noise.GateError > 0 {
 		need += 8*dim + 16*dim
 	}
+	need += float64(len(c.checkpoints())) * sim.StateBytes(c.Qubits)
 	return need + 16*float64(c.Shots)
+}
+
+// DefaultSavedStateBytes is the memory for saved ideal states of an
+// instance with gate errors when Config.SavedStateBytes is 0: 256 MiB.
+const DefaultSavedStateBytes = 256 << 20
+
+// checkpoints returns the step counts after which an instance with gate
+// errors keeps a copy of its ideal state, ascending: every step boundary
+// when they fit in SavedStateBytes, else as many as fit, evenly spaced
+// (none for states larger than the budget). A trajectory agrees with the ideal
+// circuit up to its first error, so it starts from the last copy before
+// that error instead of from |0…0⟩, with the same gates applied in the same
+// order to the same amplitudes: its state, and so the output, is the same
+// bit for bit.
+func (c *Config) checkpoints() []int {
+	if c.Noise.GateError == 0 || c.Depth < 2 {
+		return nil
+	}
+	budget := c.SavedStateBytes
+	switch {
+	case budget < 0:
+		return nil
+	case budget == 0:
+		budget = DefaultSavedStateBytes
+	}
+	m := min(c.Depth-1, int(float64(budget)/sim.StateBytes(c.Qubits)))
+	pos := make([]int, 0, m)
+	for j := range m {
+		p := (j + 1) * c.Depth / (m + 1)
+		if p >= 1 && (len(pos) == 0 || p > pos[len(pos)-1]) {
+			pos = append(pos, p)
+		}
+	}
+	return pos
 }
 
 // Run simulates and samples the instances of c. It calls emit with each
@@ -307,6 +348,9 @@ type worker struct {
 	ideal, noisy []float64
 	idealTable   Alias
 	noisyTable   Alias
+	// saved[j] is the ideal state after at[j] steps (Config.checkpoints).
+	at    []int
+	saved [][]complex128
 }
 
 func newWorker(c *Config, workers int) (*worker, error) {
@@ -314,11 +358,44 @@ func newWorker(c *Config, workers int) (*worker, error) {
 	if err != nil {
 		return nil, err
 	}
-	w := &worker{c: c, workers: workers, st: st, ideal: make([]float64, len(st.Amp))}
+	w := &worker{c: c, workers: workers, st: st, ideal: make([]float64, len(st.Amp)), at: c.checkpoints()}
 	if c.Noise.GateError > 0 {
 		w.noisy = make([]float64, len(st.Amp))
 	}
+	for range w.at {
+		w.saved = append(w.saved, make([]complex128, len(st.Amp)))
+	}
 	return w, nil
+}
+
+// save is called by the ideal run after each step: it copies the state at
+// the checkpoints.
+func (w *worker) save(done int) {
+	if j, ok := slices.BinarySearch(w.at, done); ok {
+		copy(w.saved[j], w.st.Amp)
+	}
+}
+
+// restore sets w.st to the latest saved ideal state before the step that
+// holds gate first (in circuit order) and returns its step count, or
+// resets it to |0…0⟩ and returns 0 when none is saved that early.
+func (w *worker) restore(circ *Circuit, first int) int {
+	step := 0
+	for k := first; k >= len(circ.Steps[step]); step++ {
+		k -= len(circ.Steps[step])
+	}
+	// The last checkpoint at or before step: the steps before it hold no
+	// error.
+	j, found := slices.BinarySearch(w.at, step)
+	if !found {
+		j--
+	}
+	if j < 0 {
+		w.st.Reset()
+		return 0
+	}
+	copy(w.st.Amp, w.saved[j])
+	return w.at[j]
 }
 
 // instance runs instance id; ok is false when ctx was cancelled first.
@@ -326,7 +403,11 @@ func (w *worker) instance(ctx context.Context, id int) (r *Result, ok bool) {
 	c := w.c
 	circ := Build(c.Schedule, c.Ensemble, c.Qubits, c.Seed, id, c.Depth)
 	w.st.Reset()
-	if !circ.run(ctx, w.st, nil, w.workers) {
+	var save func(int)
+	if len(w.at) > 0 {
+		save = w.save
+	}
+	if !circ.runFrom(ctx, w.st, 0, nil, w.workers, save) {
 		return nil, false
 	}
 	w.ideal = w.st.Probabilities(w.ideal, w.workers)
@@ -343,15 +424,17 @@ func (w *worker) instance(ctx context.Context, id int) (r *Result, ok bool) {
 			if ctx.Err() != nil {
 				return nil, false
 			}
-			hit := false
+			first := -1 // the first gate with an error
 			for i := range paulis {
 				paulis[i] = uint8(drawPauli(errs, c.Noise.GateError))
-				hit = hit || paulis[i] != 0
+				if first < 0 && paulis[i] != 0 {
+					first = i
+				}
 			}
 			table := &w.idealTable
-			if hit { // a trajectory without errors is the ideal circuit
-				w.st.Reset()
-				if !circ.run(ctx, w.st, paulis, w.workers) {
+			if first >= 0 { // a trajectory without errors is the ideal circuit
+				from := w.restore(circ, first)
+				if !circ.runFrom(ctx, w.st, from, paulis, w.workers, nil) {
 					return nil, false
 				}
 				w.noisy = w.st.Probabilities(w.noisy, w.workers)

@@ -507,3 +507,34 @@ func TestScoreByHand(t *testing.T) {
 		t.Error("Spread with D·Z − 1 = 0.2 against 0.6")
 	}
 }
+
+// TestTrajectoryCheckpoints: trajectories that start from a saved ideal
+// state (Config.checkpoints) give the same outcomes bit for bit as
+// trajectories run from |0…0⟩, the definition: both apply the same gates in
+// the same order to the same amplitudes. Checked with a checkpoint at every
+// step, with two checkpoints (a budget of two states), on a gate set with a
+// final single-qubit layer, and at a high error rate so that first errors
+// fall in every step, including the first.
+func TestTrajectoryCheckpoints(t *testing.T) {
+	for _, gates := range []string{"haar", "cz+haar1"} {
+		c := testConfig(t, "grid:3x3", gates, 9, 3, 120, Noise{Fidelity: 1, GateError: 0.03})
+		c.Trajectories = 60
+		c.SavedStateBytes = -1
+		if len(c.checkpoints()) != 0 {
+			t.Fatalf("checkpoints with no budget: %v", c.checkpoints())
+		}
+		want := runAll(t, c)
+		for _, budget := range []float64{2, 100} {
+			c.SavedStateBytes = int64(budget * sim.StateBytes(c.Qubits))
+			if got := len(c.checkpoints()); got != min(int(budget), c.Depth-1) {
+				t.Fatalf("budget of %g states: %d checkpoints", budget, got)
+			}
+			got := runAll(t, c)
+			for i := range want {
+				if !slices.Equal(got[i].Outcomes, want[i].Outcomes) || !slices.Equal(got[i].PIdeal, want[i].PIdeal) {
+					t.Errorf("%s, budget %g states, instance %d: outcomes differ from trajectories run from the start", gates, budget, i)
+				}
+			}
+		}
+	}
+}

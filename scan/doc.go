@@ -7,9 +7,10 @@
 // the statistics are read off at every requested depth on the way. The gates
 // between two readouts, with the final single-qubit layer and its undo, run
 // as one fused sequence (sim.State.Run), so a pass over memory applies many
-// gates. Up to ExactKSQubits qubits the readout uses the array of
-// probabilities; above, it keeps none: the collision probability and the
-// Porter–Thomas histogram come from one pass over the amplitudes and
-// stats.KSHaarPasses finishes the same statistic. Config.Precision PrecisionSingle
+// gates. The Porter–Thomas distance comes from stats.HaarKS: a histogram
+// and usually one more pass that collects the few bins that can hold the
+// supremum. Up to ExactKSQubits qubits the passes run over the array of
+// probabilities; above, the readout keeps none: the collision probability
+// and the histogram come from one pass over the amplitudes. Config.Precision PrecisionSingle
 // keeps complex64 amplitudes (31 qubits in 16 GiB).
 package scan

@@ -39,12 +39,12 @@ type Config struct {
 	Precision Precision
 }
 
-// ExactKSQubits is the largest qubit count whose Porter–Thomas distance is
-// computed from the array of all probabilities with a sort (stats.KSHaar).
-// Above it the scan keeps no probability array: the collision probability
-// and a histogram come from one pass over the amplitudes, and
-// stats.KSHaarPasses finishes the same statistic (equal to rounding) in a
-// few more passes.
+// ExactKSQubits is the largest qubit count whose readout keeps the array of
+// all probabilities (the collision probability is stats.Collision of it,
+// and stats.HaarKS passes over it). Above it the scan keeps no probability
+// array: the collision probability and the histogram of stats.HaarKS come
+// from one pass over the amplitudes, and HaarKS finishes the same statistic
+// (equal to the sort of stats.KSHaar to rounding) in usually one more.
 const ExactKSQubits = 20
 
 // maxWindow bounds the gates collected between two readouts before they are
@@ -292,16 +292,16 @@ func runInstance(ctx context.Context, c *Config, id, n int, st vector, ro *reado
 
 // readout holds one worker's buffers for the statistics of a state.
 type readout struct {
-	n, workers     int
-	probs, scratch []float64 // n ≤ ExactKSQubits
-	partial        []float64 // n > ExactKSQubits: Σp² per chunk
+	n, workers int
+	ks         *stats.HaarKS // bins and counters, kept from state to state
+	probs      []float64     // n ≤ ExactKSQubits
+	partial    []float64     // n > ExactKSQubits: Σp² per chunk
 }
 
 func newReadout(n, workers int) *readout {
-	r := &readout{n: n, workers: workers}
+	r := &readout{n: n, workers: workers, ks: stats.NewHaarKS(1<<n, workers, 0)}
 	if n <= ExactKSQubits {
 		r.probs = make([]float64, 1<<n)
-		r.scratch = make([]float64, 1<<n)
 	} else {
 		r.partial = make([]float64, (1<<n+sim.ProbabilityChunk-1)/sim.ProbabilityChunk)
 	}
@@ -309,28 +309,58 @@ func newReadout(n, workers int) *readout {
 }
 
 // read returns the collision probability and the Porter–Thomas distance of
-// st. Up to ExactKSQubits both come from the array of probabilities (the
-// sort of stats.KSHaar); above, the first pass over the amplitudes adds
-// Σp² per chunk of sim.ProbabilityChunk values (pairwise within a chunk,
-// then pairwise over the chunks, so the sum does not depend on the worker
-// count) and feeds the histogram of stats.KSHaarPasses.
+// st. The distance is stats.HaarKS's: a histogram pass, then usually one
+// pass that collects the values of the few bins that can hold the
+// supremum (equal to the sort of stats.KSHaar to rounding). Up to
+// ExactKSQubits the passes run over the array of probabilities and the
+// collision probability is stats.Collision of it; above, the first pass
+// over the amplitudes adds Σp² per chunk of sim.ProbabilityChunk values
+// (pairwise within a chunk, then pairwise over the chunks, so the sum does
+// not depend on the worker count) while it fills the histogram.
 func (r *readout) read(st vector) (z, ks float64) {
 	if r.probs != nil {
 		r.probs = st.Probabilities(r.probs, r.workers)
-		return stats.Collision(r.probs), stats.KSHaar(r.probs, r.scratch)
+		pass := func(visit func(w int, p []float64)) { arrayPass(r.probs, r.workers, r.n, visit) }
+		pass(r.ks.Count)
+		ks, _ = r.ks.Finish(pass)
+		return stats.Collision(r.probs), ks
 	}
-	first := true
-	pass := func(visit func(w int, p []float64)) {
-		st.ProbabilityBlocks(r.workers, func(w, off int, p []float64) {
-			if first {
-				r.partial[off/sim.ProbabilityChunk] = stats.Collision(p)
-			}
-			visit(w, p)
-		})
-		first = false
-	}
-	ks, _ = stats.KSHaarPasses(1<<r.n, r.workers, 0, pass)
+	st.ProbabilityBlocks(r.workers, func(w, off int, p []float64) {
+		r.partial[off/sim.ProbabilityChunk] = stats.Collision(p)
+		r.ks.Count(w, p)
+	})
+	ks, _ = r.ks.Finish(func(visit func(w int, p []float64)) {
+		st.ProbabilityBlocks(r.workers, func(w, _ int, p []float64) { visit(w, p) })
+	})
 	return pairwiseSum(r.partial), ks
+}
+
+// arrayPass hands p to visit in sim.ProbabilityChunk blocks, split into
+// contiguous ranges across workers goroutines for states of at least
+// sim.ParallelQubits qubits, as sim's ProbabilityBlocks splits a state.
+func arrayPass(p []float64, workers, n int, visit func(w int, p []float64)) {
+	chunks := (len(p) + sim.ProbabilityChunk - 1) / sim.ProbabilityChunk
+	if n < sim.ParallelQubits {
+		workers = 1
+	}
+	workers = min(workers, chunks)
+	per := (chunks + workers - 1) / workers
+	var wg sync.WaitGroup
+	for w := 0; w < workers; w++ {
+		lo, hi := min(w*per*sim.ProbabilityChunk, len(p)), min((w+1)*per*sim.ProbabilityChunk, len(p))
+		body := func() {
+			for off := lo; off < hi; off += sim.ProbabilityChunk {
+				visit(w, p[off:min(off+sim.ProbabilityChunk, hi)])
+			}
+		}
+		if workers == 1 {
+			body()
+			continue
+		}
+		wg.Add(1)
+		go func() { defer wg.Done(); body() }()
+	}
+	wg.Wait()
 }
 
 // pairwiseSum adds x pairwise: rounding error O(log len(x)·ε).
@@ -438,4 +468,29 @@ func Estimate(qubits int, records []Record, c stats.Criteria) *Curve {
 	}
 	s.Depth, s.Found = stats.RecommendedDepth(depths, verdicts)
 	return s
+}
+
+// Reader reads the statistics of a scan's records off states of one size,
+// with the buffers and bins of the scan's readout kept from state to state.
+// A Reader is used by one goroutine at a time.
+type Reader struct{ r *readout }
+
+// NewReader returns a Reader for n-qubit states whose passes run on workers
+// goroutines. It panics if n < 1 or n > sim.MaxQubits.
+func NewReader(n, workers int) *Reader {
+	if n < 1 || n > sim.MaxQubits {
+		panic(fmt.Sprintf("scan: NewReader for %d qubits", n))
+	}
+	return &Reader{newReadout(n, max(workers, 1))}
+}
+
+// Read returns the collision probability Σ|a|⁴ of st and its Porter–Thomas
+// distance (the Kolmogorov–Smirnov distance of its probabilities to
+// Beta(1, D−1)), the Collision and KS of a Record. It panics if st does not
+// have the Reader's qubit count.
+func (r *Reader) Read(st *sim.State) (collision, ks float64) {
+	if st.Qubits != r.r.n {
+		panic(fmt.Sprintf("scan: Reader for %d qubits given a %d-qubit state", r.r.n, st.Qubits))
+	}
+	return r.r.read(st)
 }

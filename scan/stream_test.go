@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"mixdepth/sim"
+	"mixdepth/stats"
 )
 
 // TestStreamedReadout: above ExactKSQubits the scan reads the collision
@@ -27,11 +28,12 @@ func TestStreamedReadout(t *testing.T) {
 		t.Skip(err)
 	}
 	streamed := newReadout(n, 2)
-	exact := &readout{n: n, workers: 2, probs: make([]float64, 1<<n), scratch: make([]float64, 1<<n)}
+	probs := make([]float64, 1<<n)
 	var got [][2]float64
 	check := &checkingVector{vector: st, read: func() {
 		zs, kss := streamed.read(st)
-		ze, kse := exact.read(st)
+		probs = st.Probabilities(probs, 2)
+		ze, kse := stats.Collision(probs), stats.KSHaar(probs, nil)
 		got = append(got, [2]float64{zs, kss})
 		if math.Abs(zs-ze) > 1e-14*ze || math.Abs(kss-kse) > 1e-15 {
 			t.Errorf("streamed Z %.17g KS %.17g, array Z %.17g KS %.17g", zs, kss, ze, kse)

@@ -15,6 +15,9 @@ import tempfile
 root = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 work = tempfile.mkdtemp(prefix="mixdepth-readme-")
 binary = os.path.join(work, "mixdepth")
+# Examples name the project's fixtures by relative path, as a user in a
+# checkout would; everything else they write stays in the scratch directory.
+os.symlink(os.path.join(root, "fixtures"), os.path.join(work, "fixtures"))
 subprocess.run(["go", "build", "-o", binary, "./cmd/mixdepth"], cwd=root, check=True)
 
 readme = open(os.path.join(root, "README.md")).read()
@@ -35,4 +38,10 @@ def rerun(match):
     return "```\n" + "\n".join(out) + "```\n"
 
 
-open(os.path.join(root, "README.md"), "w").write(fence.sub(rerun, readme))
+# Every example runs before the README is touched, and the new text replaces
+# it atomically, so a failing example leaves the README as it was.
+text = fence.sub(rerun, readme)
+tmp = os.path.join(root, ".README.md.tmp")
+with open(tmp, "w") as f:
+    f.write(text)
+os.replace(tmp, os.path.join(root, "README.md"))

@@ -21,8 +21,10 @@
 // (equal to rounding, no approximation) from repeated passes over
 // probabilities that a simulator recomputes from its amplitudes: a
 // histogram, refinement of the few bins that can hold the supremum, and a
-// sort of their values, in O(D) time per pass and bounded memory, for states
-// too large for an array of probabilities.
+// sort of their values, in O(D) time per pass and bounded memory; HaarKS
+// does the same for one state after another, its first pass fed by the
+// caller (the scan's collision pass), and costs less than the sort at any
+// size.
 //
 // Ensemble summaries: Summarize gives the mean, the unbiased standard
 // deviation and the standard error. With fewer than two values the spread is

@@ -18,16 +18,19 @@ type ProbabilityPass func(visit func(w int, p []float64))
 // values, 32 MiB.
 const DefaultKSBudget = 1 << 22
 
-// ksBinBits sets the number of level-0 bins per octave of probability (2^12):
-// each holds at most about e^−1·2^−12 ≈ 9e−5 of the Porter–Thomas mass.
-const ksBinBits = 12
+// ksMaxBinBits caps the number of level-0 bins per octave of probability
+// (2^14, 18·2^14 counters, 1.2 MiB per worker): each holds at most about
+// e^−1·ln 2·2^−14 ≈ 1.6e−5 of the Porter–Thomas mass.
+const ksMaxBinBits = 14
 
 // ksMinCollect is the number of candidate values always small enough to
 // collect and sort at once.
-const ksMinCollect = 1 << 16
+const ksMinCollect = 1 << 10
 
 // ksMaxLeaves bounds the bins counted in one refinement pass (2^18, 1 MiB
-// of counters per worker, which stays in a second-level cache).
+// of counters per worker, which stays in a second-level cache); small
+// states take D/32 of them, so that their CDF values cost less than the
+// pass.
 const ksMaxLeaves = 1 << 18
 
 // KSHaarPasses returns the Kolmogorov–Smirnov statistic of D probabilities
@@ -36,7 +39,8 @@ const ksMaxLeaves = 1 << 18
 // over the few bins that can hold the supremum, and a sort of the values of
 // those bins. It needs O(D) time per pass and O(budget + 2^18) memory
 // instead of O(D log D) time and 2·8·D bytes. passes reports how many times
-// pass was called (2 to 4 for Porter–Thomas-like outputs).
+// pass was called (2 for Porter–Thomas-like outputs, rarely 3 or 4). It is
+// HaarKS used once: Count in the first pass, then Finish.
 //
 // The bounds: with the values grouped in bins by value, C_j the number of
 // values in bins up to j and F the Haar CDF, the terms of the statistic
@@ -54,6 +58,36 @@ const ksMaxLeaves = 1 << 18
 // HaarProb.CDF); a NaN probability gives NaN. budget ≤ 0 means
 // DefaultKSBudget. It panics if dim < 1 or workers < 1.
 func KSHaarPasses(dim, workers, budget int, pass ProbabilityPass) (ks float64, passes int) {
+	h := NewHaarKS(dim, workers, budget)
+	pass(h.Count)
+	ks, passes = h.Finish(pass)
+	return ks, passes + 1
+}
+
+// HaarKS computes the statistic of KSHaarPasses for one state after
+// another of the same dimension, keeping its bins, their CDF values and its
+// counters between states. The first pass over a state's probabilities is
+// the caller's: it hands every probability to Count once, typically while
+// it computes them for another purpose (a collision sum, or the last gates
+// of a circuit). Finish then runs the refinement passes and makes the
+// HaarKS ready for the next state.
+//
+// The level-0 bins are fixed by D: uniform in the bits of the float64
+// value, 2^b bins per octave of D·p over [2^−24, 2^8), with b from 4 to 12
+// growing with D (at most about e^−1·2^−b of the Porter–Thomas mass in a
+// bin), so a value is binned by integer operations on its bits and the
+// CDF at every bin edge is evaluated once, in NewHaarKS.
+type HaarKS struct {
+	r      *ksRefiner
+	counts [][]uint32 // level-0 counts per worker
+	nans   []bool
+	budget int
+}
+
+// NewHaarKS returns a HaarKS for states of dim probabilities whose passes
+// use worker indices in [0, workers). budget is as for KSHaarPasses (≤ 0
+// means DefaultKSBudget). It panics if dim < 1 or workers < 1.
+func NewHaarKS(dim, workers, budget int) *HaarKS {
 	if dim < 1 {
 		panic("stats: Kolmogorov–Smirnov statistic of no values")
 	}
@@ -64,15 +98,42 @@ func KSHaarPasses(dim, workers, budget int, pass ProbabilityPass) (ks float64, p
 		budget = DefaultKSBudget
 	}
 	r := newKSRefiner(dim, workers)
-	r.countLevel0(pass)
-	passes = 1
-	if r.nan {
-		return math.NaN(), passes
+	h := &HaarKS{r: r, counts: make([][]uint32, workers), nans: make([]bool, workers), budget: budget}
+	for w := range h.counts {
+		h.counts[w] = make([]uint32, r.n0)
 	}
-	// Sorting m values costs about m·log2(m) comparisons on one core, a pass
-	// about D cheap steps on every worker: collect once the candidates are
-	// few enough that their sort costs less than another pass.
-	limit := int64(min(budget, max(ksMinCollect, dim/256)))
+	return h
+}
+
+// Count adds the probabilities p to the first-pass histogram; calls with
+// distinct w may run concurrently. It panics if w is outside [0, workers).
+func (h *HaarKS) Count(w int, p []float64) {
+	r, c := h.r, h.counts[w]
+	for _, v := range p {
+		if v != v {
+			h.nans[w] = true
+			continue
+		}
+		c[r.bin0(ksKey(v))]++
+	}
+}
+
+// Finish returns the statistic of the probabilities counted since the last
+// Finish, calling pass for the refinement passes (passes reports how
+// many: usually one); pass must hand out the same probabilities as the
+// counted pass. The HaarKS is then ready for another state.
+func (h *HaarKS) Finish(pass ProbabilityPass) (ks float64, passes int) {
+	r := h.r
+	defer h.reset()
+	r.gather(h.counts, h.nans)
+	if r.nan {
+		return math.NaN(), 0
+	}
+	// Sorting m values costs about m·log2(m) comparisons on one core (some
+	// 50 ns per value at m = 2^18), a pass a few ns per value: collect once
+	// the candidates are few enough that their sort costs less than another
+	// pass.
+	limit := int64(min(h.budget, max(ksMinCollect, r.dim/16)))
 	for {
 		cands, total := r.select_()
 		switch {
@@ -85,6 +146,21 @@ func KSHaarPasses(dim, workers, budget int, pass ProbabilityPass) (ks float64, p
 		r.split(pass, cands)
 		passes++
 	}
+}
+
+// reset returns h to the state before the first pass of a state.
+func (h *HaarKS) reset() {
+	r := h.r
+	for w := range h.counts {
+		clear(h.counts[w])
+		h.nans[w] = false
+	}
+	r.nodes = r.nodes[:r.n0]
+	r.state = r.state[:r.n0]
+	for i := range r.nodes {
+		r.nodes[i].count, r.nodes[i].below = 0, 0
+	}
+	r.lower, r.best, r.nan = 0, 0, false
 }
 
 // ksKey maps a float64 to a uint64 in the same order (for non-NaN values).
@@ -131,41 +207,65 @@ type ksRefiner struct {
 	state   []uint8
 	// Level-0 bins: node 0 negative values, 1 exact zeros, 2 positive values
 	// below lo0, 3…3+nb0−1 the uniform bins of width 2^shift from lo0, and
-	// the last one everything above.
+	// the last one everything above; n0 = nb0+4 of them. f0[i] holds the
+	// CDF at the smallest and the largest value of level-0 node i.
 	lo0, kzero uint64
 	shift      uint
-	nb0        int
+	nb0, n0    int
+	f0         [][2]float64
 	// lower is L, the running lower bound; best the largest exact term found.
 	lower, best float64
 	nan         bool
 	// active has bit b set when level-0 node b is not idle: a pass rejects
-	// most values with this 16 KiB table, before touching any node.
+	// most values with this table, before touching any node.
 	active []uint64
+	// vals and all are the collect pass's buffers, kept for the next state.
+	vals [][]float64
+	all  []float64
 }
 
 const ksSlack = 1e-12 // candidates keep U_j ≥ L − slack, so rounding in the bounds never drops the supremum's bin
 
+// ksBinBits returns the number of bits b of 2^b level-0 bins per octave for
+// dim values: about dim/2^7 bins per octave, from 2^4 to 2^14, so that a bin
+// near the mode of the Porter–Thomas law holds some tens of values (some
+// hundreds from 2^22 values on) and much less mass (≲ e^−1·ln 2·2^−b) than
+// the statistic's typical size 1/√D: few bins then remain candidates after
+// the first pass. (Tuned on the demo scan: dim/2^9 and dim/2^5 bins per
+// octave were both slower.)
+func ksBinBits(dim int) uint {
+	return uint(min(ksMaxBinBits, max(4, bits.Len(uint(dim))-8)))
+}
+
 func newKSRefiner(dim, workers int) *ksRefiner {
 	h := HaarProb{Dim: float64(dim)}
-	r := &ksRefiner{dim: dim, workers: workers, cdf: h.CDF, shift: 52 - ksBinBits}
-	// Uniform bins over D·p in [2^−24, 2^8): 32 octaves, 2^12 bins each.
-	lo := ksKey(math.Ldexp(1, -24) / float64(dim))
-	hi := ksKey(math.Ldexp(1, 8) / float64(dim))
+	r := &ksRefiner{dim: dim, workers: workers, cdf: h.CDF, shift: 52 - ksBinBits(dim)}
+	// Uniform bins over D·p in [2^−12, 2^6): 18 octaves, which hold all but
+	// about 2^−12 of the Porter–Thomas mass; the rest falls in the two
+	// outer bins, refined like any other when they can hold the supremum.
+	lo := ksKey(math.Ldexp(1, -12) / float64(dim))
+	hi := ksKey(math.Ldexp(1, 6) / float64(dim))
 	r.lo0 = lo &^ (1<<r.shift - 1)
 	r.nb0 = int((hi-r.lo0)>>r.shift) + 1
+	r.n0 = r.nb0 + 4
 	r.kzero = ksKey(0)
 	top := r.lo0 + uint64(r.nb0)<<r.shift
-	r.nodes = []ksNode{
-		{lo: ksKey(math.Inf(-1)), hi: r.kzero},
-		{lo: r.kzero, hi: r.kzero + 1},
-		{lo: r.kzero + 1, hi: r.lo0},
-	}
+	r.nodes = make([]ksNode, 0, r.n0)
+	r.nodes = append(r.nodes,
+		ksNode{lo: ksKey(math.Inf(-1)), hi: r.kzero},
+		ksNode{lo: r.kzero, hi: r.kzero + 1},
+		ksNode{lo: r.kzero + 1, hi: r.lo0},
+	)
 	for i := 0; i < r.nb0; i++ {
 		l := r.lo0 + uint64(i)<<r.shift
 		r.nodes = append(r.nodes, ksNode{lo: l, hi: l + 1<<r.shift})
 	}
 	r.nodes = append(r.nodes, ksNode{lo: top, hi: ksKey(math.Inf(1)) + 1})
 	r.state = make([]uint8, len(r.nodes))
+	r.f0 = make([][2]float64, r.n0)
+	for i := range r.nodes {
+		r.f0[i] = [2]float64{r.cdf(ksValue(r.nodes[i].lo)), r.cdf(ksValue(r.nodes[i].hi - 1))}
+	}
 	return r
 }
 
@@ -183,25 +283,9 @@ func (r *ksRefiner) bin0(k uint64) int {
 	return 3 + min(int((k-r.lo0)>>r.shift), r.nb0)
 }
 
-// countLevel0 runs the first pass: the level-0 histogram.
-func (r *ksRefiner) countLevel0(pass ProbabilityPass) {
-	nb := len(r.nodes)
-	counts := make([][]uint32, r.workers)
-	nans := make([]bool, r.workers)
-	pass(func(w int, p []float64) {
-		c := counts[w]
-		if c == nil {
-			c = make([]uint32, nb)
-			counts[w] = c
-		}
-		for _, v := range p {
-			if v != v {
-				nans[w] = true
-				continue
-			}
-			c[r.bin0(ksKey(v))]++
-		}
-	})
+// gather adds the level-0 counts of the workers into the nodes and makes
+// every level-0 node a counted leaf.
+func (r *ksRefiner) gather(counts [][]uint32, nans []bool) {
 	for w := range counts {
 		r.nan = r.nan || nans[w]
 		for i, v := range counts[w] {
@@ -216,10 +300,16 @@ func (r *ksRefiner) countLevel0(pass ProbabilityPass) {
 	}
 }
 
-// bounds returns L_j and U_j of a non-empty node.
-func (r *ksRefiner) bounds(nd *ksNode) (lower, upper float64) {
+// bounds returns L_j and U_j of non-empty node i.
+func (r *ksRefiner) bounds(i int) (lower, upper float64) {
+	nd := &r.nodes[i]
 	d := float64(r.dim)
-	ft, fu := r.cdf(ksValue(nd.lo)), r.cdf(ksValue(nd.hi-1))
+	var ft, fu float64
+	if i < r.n0 {
+		ft, fu = r.f0[i][0], r.f0[i][1]
+	} else {
+		ft, fu = r.cdf(ksValue(nd.lo)), r.cdf(ksValue(nd.hi-1))
+	}
 	after, before := float64(nd.below+nd.count)/d, float64(nd.below)/d
 	return max(after-fu, ft-before), max(after-ft, fu-before)
 }
@@ -232,7 +322,7 @@ func (r *ksRefiner) select_() (cands []int32, total int64) {
 		if r.state[i] != ksCount || nd.count == 0 {
 			continue
 		}
-		l, _ := r.bounds(nd)
+		l, _ := r.bounds(i)
 		if nd.hi-nd.lo == 1 {
 			r.best = max(r.best, l) // one distinct value: the bound is a term
 		}
@@ -247,7 +337,7 @@ func (r *ksRefiner) select_() (cands []int32, total int64) {
 		if nd.count == 0 || nd.hi-nd.lo == 1 {
 			continue
 		}
-		if _, u := r.bounds(nd); u >= r.lower-ksSlack {
+		if _, u := r.bounds(i); u >= r.lower-ksSlack {
 			cands = append(cands, int32(i))
 			total += nd.count
 		}
@@ -257,7 +347,7 @@ func (r *ksRefiner) select_() (cands []int32, total int64) {
 
 // markActive rebuilds the table of level-0 nodes that are not idle.
 func (r *ksRefiner) markActive() {
-	n0 := r.nb0 + 4
+	n0 := r.n0
 	if r.active == nil {
 		r.active = make([]uint64, (n0+63)/64)
 	}
@@ -286,7 +376,7 @@ func (r *ksRefiner) leaf(k uint64) int {
 // split divides each candidate into at most per children of 2^shift keys
 // and counts them in one pass.
 func (r *ksRefiner) split(pass ProbabilityPass, cands []int32) {
-	per := uint64(max(2, ksMaxLeaves/len(cands)))
+	per := uint64(max(2, min(ksMaxLeaves, max(256, r.dim/32))/len(cands)))
 	first := len(r.nodes)
 	for _, ci := range cands {
 		lo, hi := r.nodes[ci].lo, r.nodes[ci].hi
@@ -344,20 +434,26 @@ func (r *ksRefiner) collect(pass ProbabilityPass, cands []int32) {
 		r.state[ci] = ksCollect
 	}
 	r.markActive()
-	vals := make([][]float64, r.workers) // worker w alone touches vals[w]
+	if r.vals == nil {
+		r.vals = make([][]float64, r.workers) // worker w alone touches vals[w]
+	}
+	for w := range r.vals {
+		r.vals[w] = r.vals[w][:0]
+	}
 	pass(func(w int, p []float64) {
-		buf := vals[w]
+		buf := r.vals[w]
 		for _, v := range p {
 			if i := r.leaf(ksKey(v)); i >= 0 && r.state[i] == ksCollect {
 				buf = append(buf, v)
 			}
 		}
-		vals[w] = buf
+		r.vals[w] = buf
 	})
-	var all []float64
-	for _, v := range vals {
+	all := r.all[:0]
+	for _, v := range r.vals {
 		all = append(all, v...)
 	}
+	r.all = all
 	slices.Sort(all)
 	// The candidates in key order, with their rank offsets.
 	leaves := make([]*ksNode, len(cands))

@@ -137,3 +137,51 @@ func TestKSKeyOrder(t *testing.T) {
 		}
 	}
 }
+
+// TestHaarKSReuse runs one HaarKS per dimension over several states in a
+// row, as the scan does at each read-out depth, and compares every result
+// with the sort of KSHaar to 1e−15 (the same terms; see
+// TestKSHaarPassesExact): Haar states of 2^10 to 2^20 outputs, a uniform
+// superposition over a quarter of the basis (a stabiliser state's output:
+// many equal probabilities), a state whose small probabilities underflow to
+// subnormals and zeros, and a Haar state again (the counters of the earlier
+// states must be gone). It also checks that a Porter–Thomas state needs one
+// refinement pass after the counting pass (two passes in all) at 2^20: the
+// bins near the mode then hold about 2^−10 of the mass each, against a
+// statistic of order 2^−10, so only some hundreds of bins (≲ D/16 values)
+// can hold the supremum.
+func TestHaarKSReuse(t *testing.T) {
+	rng := rand.New(rand.NewPCG(45, 46))
+	for _, d := range []int{1 << 10, 1 << 14, 1 << 20} {
+		h := NewHaarKS(d, 2, 0)
+		subset := make([]float64, d)
+		for i := 0; i < d; i += 4 {
+			subset[i] = 4 / float64(d)
+		}
+		under := haarProbs(rng, d)
+		for i := range under {
+			if i%3 == 0 {
+				under[i] *= 1e-310 // subnormal, or 0 once squared away
+			}
+			if i%7 == 0 {
+				under[i] = 0
+			}
+		}
+		for k, p := range [][]float64{haarProbs(rng, d), subset, under, haarProbs(rng, d)} {
+			want := KSHaar(p, nil)
+			calls := 0
+			pass := blockPass(p, 4096, 2, &calls)
+			pass(h.Count)
+			got, more := h.Finish(pass)
+			if math.Abs(got-want) > 1e-15 {
+				t.Errorf("D=%d state %d: HaarKS %.17g, KSHaar %.17g", d, k, got, want)
+			}
+			if more != calls-1 {
+				t.Errorf("D=%d state %d: Finish reported %d passes, pass was called %d times after the count", d, k, more, calls-1)
+			}
+			if d == 1<<20 && (k == 0 || k == 3) && more != 1 {
+				t.Errorf("D=%d Haar state: %d refinement passes, want 1", d, more)
+			}
+		}
+	}
+}

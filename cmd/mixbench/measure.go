@@ -30,6 +30,7 @@ type benchConfig struct {
 	grid             string // RxC of the end-to-end scan
 	depth, instances int    // of the end-to-end scan
 	numpy            bool   // run the numpy baseline when python3 has numpy
+	targets          int    // rounds of each target of measureTargets; 0 skips them
 	workers          int
 }
 
@@ -108,6 +109,13 @@ func measure(ctx context.Context, log io.Writer, cfg benchConfig) (*report, erro
 			return nil, err
 		}
 		r.MPS = append(r.MPS, mpsUpdate(b))
+	}
+	if cfg.targets > 0 {
+		t, err := measureTargets(ctx, logf, workers, cfg.targets)
+		if err != nil {
+			return nil, err
+		}
+		r.Targets = t
 	}
 	var rows, cols int
 	if _, err := fmt.Sscanf(cfg.grid, "%dx%d", &rows, &cols); err != nil || cfg.depth <= 0 || cfg.instances <= 0 {
@@ -327,11 +335,6 @@ func gates(n, workers int, single bool) (gateRow, error) {
 // sequence (sim.State.Run) and gate by gate (Apply2), per gate, in
 // alternating rounds.
 func fused(ctx context.Context, n, workers int) (fusedRow, error) {
-	s, err := sim.NewState(n, 0)
-	if err != nil {
-		return fusedRow{}, err
-	}
-	randomFill(s.Amp, workers)
 	rng := rand.New(rand.NewPCG(4, 5))
 	var ops []sim.Op
 	for layer := 0; layer < 20; layer++ {
@@ -341,7 +344,18 @@ func fused(ctx context.Context, n, workers int) (fusedRow, error) {
 			ops = append(ops, op)
 		}
 	}
-	_, best := interleaved(workers, 2, 1, map[string]func(){
+	return timeFused(ctx, n, ops, workers, 2)
+}
+
+// timeFused times ops on a random n-qubit state as one fused sequence
+// (sim.State.Run) and gate by gate (Apply2), in rounds alternating the two.
+func timeFused(ctx context.Context, n int, ops []sim.Op, workers, rounds int) (fusedRow, error) {
+	s, err := sim.NewState(n, 0)
+	if err != nil {
+		return fusedRow{}, err
+	}
+	randomFill(s.Amp, workers)
+	_, best := interleaved(workers, rounds, 1, map[string]func(){
 		"fused": func() { _ = s.Run(ctx, ops, workers) },
 		"one-by-one": func() {
 			for i := range ops {

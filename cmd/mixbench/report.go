@@ -21,6 +21,9 @@ type report struct {
 	Notes     []string    `json:"notes,omitempty"`
 	Single    []gateRow   `json:"single_precision,omitempty"`
 	Fused     []fusedRow  `json:"fused,omitempty"`
+	// Targets are the performance targets of issue 16, each a ratio
+	// measured in this run.
+	Targets []target `json:"targets,omitempty"`
 }
 
 // gateRow is one state size of the gate benchmark, in double precision
@@ -73,6 +76,18 @@ type scanResult struct {
 	NumpyRatio   *float64 `json:"numpy_collision_ratio_last"`
 }
 
+// roundList formats the ratios of a target's rounds.
+func roundList(r []float64) string {
+	s := ""
+	for i, v := range r {
+		if i > 0 {
+			s += ", "
+		}
+		s += fmt.Sprintf("%.2f", v)
+	}
+	return s
+}
+
 // printTable writes r as the human-readable table.
 func printTable(w io.Writer, r *report) {
 	fmt.Fprintf(w, "machine: %s, %d cores, %s\n", r.Machine, r.Cores, r.GoVersion)
@@ -109,6 +124,19 @@ func printTable(w io.Writer, r *report) {
 		fmt.Fprintf(w, "\nscan %s, depths 1..%d, %d instances, haar: Go %.2f s (R at the last depth %.3f)\n", s.Graph, s.Depths, s.Instances, s.GoSeconds, s.GoRatio)
 		if s.NumpySeconds != nil {
 			fmt.Fprintf(w, "numpy (%s; %s): %.2f s (R %.3f); ratio %.1f×\n", s.Python, s.NumpyBLAS, *s.NumpySeconds, *s.NumpyRatio, *r.Ratio)
+		}
+	}
+	if len(r.Targets) > 0 {
+		fmt.Fprintf(w, "\ntargets (ratios measured in this run; median of the rounds)\n")
+		for _, t := range r.Targets {
+			rel, verdict := "≤", "met"
+			if !t.Below {
+				rel = "≥"
+			}
+			if !t.Met {
+				verdict = "not met"
+			}
+			fmt.Fprintf(w, "  %-30s %6.2f (rounds %s; goal %s %g, %s): %s\n", t.Name, t.Ratio, roundList(t.Ratios), rel, t.Goal, verdict, t.Detail)
 		}
 	}
 	for _, n := range r.Notes {

@@ -48,6 +48,7 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	large := fs.String("large", "", "only run a one-instance scan of GRAPH (e.g. grid:5x6, line:31) at --large-depths and report its time")
 	largeDepths := fs.String("large-depths", "1", "depths of the --large scan: a list like 1,2,4")
 	precision := fs.String("precision", "double", "precision of the --large scan: double or single")
+	targets := fs.Int("targets", 3, "rounds of each performance target (scan depths, read-out, fused brickwork, demo, noisy sampling), each a ratio of two timings alternated in one run; 0 skips them")
 	profile := fs.String("cpuprofile", "", "write a CPU profile (go tool pprof) of the whole run to FILE")
 	if err := fs.Parse(args); err != nil {
 		if errors.Is(err, pflag.ErrHelp) {
@@ -60,6 +61,9 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	}
 	if *workers < 1 {
 		return usageError{fmt.Errorf("--workers %d: give at least 1", *workers)}
+	}
+	if *targets < 0 {
+		return usageError{fmt.Errorf("--targets %d: give 0 (skip) or more rounds", *targets)}
 	}
 	if *numpy != "auto" && *numpy != "off" {
 		return usageError{fmt.Errorf("--numpy %q: give auto or off", *numpy)}
@@ -91,7 +95,7 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	}
 	r, err := measure(ctx, stderr, benchConfig{
 		from: *from, to: *to, moments: *momentN, mpsBonds: *mpsBonds, grid: *grid, depth: *depth, instances: *instances,
-		numpy: *numpy != "off", workers: *workers,
+		numpy: *numpy != "off", workers: *workers, targets: *targets,
 	})
 	if err != nil {
 		return err

@@ -100,14 +100,8 @@ func compareFigure(curves []Labelled, eps float64, opts []Option) (*figure, erro
 		ymax = math.Max(ymax, v)
 		return v
 	}
-	fig := newFigure()
+	fig := newRatioFigure(o.title, o.depthUnit)
 	p := fig.plot
-	p.Title.Text = o.title
-	p.X.Label.Text = "depth (" + o.depthUnit + ")"
-	p.Y.Label.Text = "R − 1,  R = E[Z] / Z_H  (dimensionless, log scale)"
-	p.Y.Tick.Marker = log10Ticks{}
-	p.X.Tick.Marker = integerTicks{}
-	p.Add(plotter.NewGrid())
 	for k, c := range curves {
 		s := c.Series
 		ratio := s.Ratio

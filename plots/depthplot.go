@@ -230,14 +230,8 @@ func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
 
 // depthPlot lays out the plot of s.
 func depthPlot(s *depthPoints, ds *DepthSeries, eps float64, o depthOptions) (*figure, error) {
-	fig := newFigure()
+	fig := newRatioFigure(o.title, o.depthUnit)
 	p := fig.plot
-	p.Title.Text = o.title
-	p.X.Label.Text = "depth (" + o.depthUnit + ")"
-	p.Y.Label.Text = "R − 1,  R = E[Z] / Z_H  (dimensionless, log scale)"
-	p.Y.Tick.Marker = log10Ticks{}
-	p.X.Tick.Marker = integerTicks{}
-	p.Add(plotter.NewGrid())
 
 	xmin, xmax := float64(ds.Depths[0]), float64(ds.Depths[len(ds.Depths)-1])
 	if xmax == xmin {
@@ -351,3 +345,17 @@ func depthPlot(s *depthPoints, ds *DepthSeries, eps float64, o depthOptions) (*f
 
 // formatFloor writes a power of ten briefly: 0.001, 1e-05.
 func formatFloor(v float64) string { return strconv.FormatFloat(v, 'g', 3, 64) }
+
+// newRatioFigure returns a figure with the axes of an R − 1 against depth
+// plot: integer depths, a log-scale R − 1 and a grid.
+func newRatioFigure(title, depthUnit string) *figure {
+	fig := newFigure()
+	p := fig.plot
+	p.Title.Text = title
+	p.X.Label.Text = "depth (" + depthUnit + ")"
+	p.Y.Label.Text = "R − 1,  R = E[Z] / Z_H  (dimensionless, log scale)"
+	p.Y.Tick.Marker = log10Ticks{}
+	p.X.Tick.Marker = integerTicks{}
+	p.Add(plotter.NewGrid())
+	return fig
+}

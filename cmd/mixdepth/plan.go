@@ -210,10 +210,10 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		"the formulas count shots only, so use at least %d instances, more when circuits differ in fidelity: the\n"+
 		"variance of the estimate is σ_b²/M + (1 + 2F − F²)/(M·m) for M instances of m shots, σ_b² the\n"+
 		"circuit-to-circuit variance (two-stage sampling, Cochran 1977, Sampling Techniques, ch. 10), which\n"+
-		"score's error over instances includes\n",
+		"score's error over instances includes.\n",
 		doc.Shots, doc.Instances, doc.ShotsPerInstance, stats.MinIntervalValues)
 	if doc.AnticoncentrationDepth != nil {
-		fmt.Fprintf(stdout, "anti-concentration depth of the chip (eps %g, %s): %d; --depth %d %s\n", *eps, doc.DepthSource,
+		fmt.Fprintf(stdout, "anti-concentration depth of the chip (eps %g, %s): %d; --depth %d %s.\n", *eps, doc.DepthSource,
 			*doc.AnticoncentrationDepth, *depth, map[bool]string{true: "reaches it", false: "is below it (see the warning)"}[*doc.Spread])
 	}
 	return nil

@@ -209,7 +209,7 @@ func TestScoreWarnsWithoutAnticoncentration(t *testing.T) {
 	if !strings.Contains(stderr, "warning: the circuits have not anti-concentrated") || !strings.Contains(stderr, "overstates") {
 		t.Errorf("no warning on stderr: %q", stderr)
 	}
-	if !strings.Contains(stdout, "do NOT anti-concentrate") {
+	if !strings.Contains(stdout, "are NOT spread") {
 		t.Errorf("report does not say so: %s", stdout)
 	}
 	doc := scoreDoc(t, out)

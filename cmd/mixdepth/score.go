@@ -234,9 +234,9 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	}
 	fmt.Fprintf(stdout, "\nPorter–Thomas value of D·Z − 1: (D−1)/(D+1) = %.4f", rep.PorterThomas)
 	if rep.Spread {
-		fmt.Fprintf(stdout, "; the circuits anti-concentrate, spread (mean within eps = %g).\n", rep.Eps)
+		fmt.Fprintf(stdout, "; the circuits are spread: their mean lies within eps = %g of it (relative).\n", rep.Eps)
 	} else {
-		fmt.Fprintf(stdout, "; the circuits do NOT anti-concentrate, not spread (mean more than eps = %g away): read the normalized column.\n", rep.Eps)
+		fmt.Fprintf(stdout, "; the circuits are NOT spread: their mean lies more than eps = %g from it (relative), so read the normalized column.\n", rep.Eps)
 	}
 	fmt.Fprintf(stdout, "Fidelity estimate (normalized linear XEB over all shots): %.4f\n", rep.Normalized)
 	fmt.Fprintf(stdout, "  standard error from the shots alone: %.4f\n", rep.NormalizedErr)

@@ -162,7 +162,11 @@ func chipFigure(c *ChipDrawing) (*figure, error) {
 	for l := 0; l < c.Layers; l++ {
 		text := "layer " + strconv.Itoa(l)
 		if c.LayerSizes != nil {
-			text += " (" + strconv.Itoa(c.LayerSizes[l]) + " couplers)"
+			unit := " couplers)"
+			if c.LayerSizes[l] == 1 {
+				unit = " coupler)"
+			}
+			text += " (" + strconv.Itoa(c.LayerSizes[l]) + unit
 		}
 		thumb, _ := plotter.NewLine(plotter.XYs{{X: 0, Y: 0}, {X: 1, Y: 0}})
 		thumb.LineStyle = lineStyle(l)

@@ -82,12 +82,14 @@ func runGraph(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		if err := plots.SaveChipPlot(*plot, chipDrawing(sp, layers)); err != nil {
 			return err
 		}
-		fmt.Fprintf(stderr, "wrote %s\n", *plot)
 	}
 	if *asJSON {
 		return writeJSON(stdout, graphDoc(sp, r))
 	}
 	printGraph(stdout, sp, r)
+	if *plot != "" {
+		fmt.Fprintf(stdout, "Plot: %s\n", *plot)
+	}
 	return nil
 }
 

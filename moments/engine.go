@@ -3,6 +3,7 @@ package moments
 import (
 	"context"
 	"fmt"
+	"mixdepth/internal/crash"
 
 	"golang.org/x/sync/errgroup"
 
@@ -172,12 +173,14 @@ func engineParallel(n, workers int, parallel bool, body func(lo, hi int)) {
 		return
 	}
 	var g errgroup.Group
+	var carry crash.Carrier
 	chunk := (n + workers - 1) / workers
 	for lo := 0; lo < n; lo += chunk {
 		hi := min(lo+chunk, n)
-		g.Go(func() error { body(lo, hi); return nil })
+		g.Go(func() error { defer carry.Catch(); body(lo, hi); return nil })
 	}
 	_ = g.Wait()
+	carry.Rethrow()
 }
 
 // CollisionOption sets an optional parameter of CollisionCurve and

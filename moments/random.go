@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"math/bits"
+	"mixdepth/internal/crash"
 	"sync"
 
 	"golang.org/x/sync/errgroup"
@@ -84,7 +85,8 @@ func randomEdgeCurve(ctx context.Context, n int, edges []circuits.Edge, t *Trans
 	next, done := 0, 0
 	g, gctx := errgroup.WithContext(ctx)
 	for range min(workers, nchunks) {
-		g.Go(func() error {
+		g.Go(func() (err error) {
+			defer crash.Recover(&err)
 			w := randomWorker{n: n, edges: edges, m: &m, depths: depths, steps: steps}
 			for {
 				mu.Lock()

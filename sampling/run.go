@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"math/rand/v2"
+	"mixdepth/internal/crash"
 	"slices"
 	"sync"
 
@@ -286,7 +287,8 @@ func Run(ctx context.Context, c *Config, emit func(*Result) error) (done []int, 
 
 	g, gctx := errgroup.WithContext(ctx)
 	jobs := make(chan int)
-	g.Go(func() error {
+	g.Go(func() (err error) {
+		defer crash.Recover(&err)
 		defer close(jobs)
 		for j := range ids {
 			select {
@@ -298,7 +300,8 @@ func Run(ctx context.Context, c *Config, emit func(*Result) error) (done []int, 
 		return nil
 	})
 	for range concurrent {
-		g.Go(func() error {
+		g.Go(func() (err error) {
+			defer crash.Recover(&err)
 			w, err := newWorker(c, gateWorkers)
 			if err != nil {
 				return err

@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
+	"mixdepth/internal/crash"
 	"slices"
 	"sync"
 
@@ -177,7 +178,8 @@ func Run(ctx context.Context, c *Config) (records []Record, done []int, err erro
 	var mu sync.Mutex
 	g, gctx := errgroup.WithContext(ctx)
 	jobs := make(chan int)
-	g.Go(func() error {
+	g.Go(func() (err error) {
+		defer crash.Recover(&err)
 		defer close(jobs)
 		for _, id := range c.Instances {
 			select {
@@ -189,7 +191,8 @@ func Run(ctx context.Context, c *Config) (records []Record, done []int, err erro
 		return nil
 	})
 	for w := 0; w < concurrent; w++ {
-		g.Go(func() error {
+		g.Go(func() (err error) {
+			defer crash.Recover(&err)
 			st, err := c.newVector(n)
 			if err != nil {
 				return err

@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math/bits"
+	"mixdepth/internal/crash"
 	"slices"
 
 	"golang.org/x/sync/errgroup"
@@ -439,10 +440,12 @@ func runPass[T amplitude](n int, amp []T, p *pass, kops []localOp, bufs [][]T) {
 		return
 	}
 	var g errgroup.Group
+	var carry crash.Carrier
 	chunk := (blocks + workers - 1) / workers
 	for w := 0; w*chunk < blocks; w++ {
 		lo, hi := w*chunk, min((w+1)*chunk, blocks)
-		g.Go(func() error { body(w, lo, hi); return nil })
+		g.Go(func() error { defer carry.Catch(); body(w, lo, hi); return nil })
 	}
 	_ = g.Wait()
+	carry.Rethrow()
 }

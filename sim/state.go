@@ -2,6 +2,7 @@ package sim
 
 import (
 	"fmt"
+	"mixdepth/internal/crash"
 
 	"golang.org/x/sync/errgroup"
 )
@@ -99,13 +100,15 @@ func parallelFor(n, workers int, parallel bool, body func(lo, hi int)) {
 		return
 	}
 	var g errgroup.Group
+	var carry crash.Carrier
 	chunk := (n + workers - 1) / workers
 	chunk = (chunk + parallelAlign - 1) &^ (parallelAlign - 1)
 	for lo := 0; lo < n; lo += chunk {
 		hi := min(lo+chunk, n)
-		g.Go(func() error { body(lo, hi); return nil })
+		g.Go(func() error { defer carry.Catch(); body(lo, hi); return nil })
 	}
 	_ = g.Wait()
+	carry.Rethrow()
 }
 
 // parallelAlign is the granularity of parallelFor's blocks: 64 items, so

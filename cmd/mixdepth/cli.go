@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"mixdepth/internal/crash"
 	"os"
 	"slices"
 	"strings"
@@ -70,10 +71,10 @@ func exitCode(err error, stderr io.Writer) int {
 	msg := strings.ReplaceAll(err.Error(), "\n", " ")
 	fmt.Fprintln(stderr, "mixdepth: "+msg)
 	var ue usageError
-	var pe *panicError
+	var pe *crash.Error
 	switch {
 	case errors.As(err, &pe):
-		stderr.Write(pe.stack) // for the bug report
+		stderr.Write(pe.Stack) // for the bug report
 		return exitPanic
 	case errors.As(err, &ue), slices.ContainsFunc(badInputErrors, func(s error) bool { return errors.Is(err, s) }):
 		return 2
@@ -84,7 +85,7 @@ func exitCode(err error, stderr io.Writer) int {
 }
 
 // run dispatches to a subcommand. A panic in the command's goroutine
-// becomes a *panicError (exit status exitPanic), and a failed write of the
+// becomes a *crash.Error (exit status exitPanic), and a failed write of the
 // report to stdout an error (exit status 1) even when the command ignored it.
 func run(ctx context.Context, args []string, stdout, stderr io.Writer) (err error) {
 	defer recovered(&err)

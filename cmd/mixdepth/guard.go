@@ -6,7 +6,6 @@ import (
 	"io"
 	"math"
 	"os"
-	"runtime/debug"
 	"slices"
 	"strconv"
 	"strings"
@@ -14,6 +13,7 @@ import (
 	"github.com/spf13/pflag"
 
 	"mixdepth/internal/atomicfile"
+	"mixdepth/internal/crash"
 )
 
 // exitPanic is the exit status of a crash inside the tool: a recovered panic
@@ -21,25 +21,12 @@ import (
 // input. 70 is EX_SOFTWARE, "internal software error", of BSD sysexits.h.
 const exitPanic = 70
 
-// errPanic marks a recovered panic: exit status exitPanic.
-var errPanic = errors.New("internal error")
-
-// panicError is a recovered panic with its stack, printed on stderr.
-type panicError struct {
-	value any
-	stack []byte
-}
-
-func (e *panicError) Error() string {
-	return fmt.Sprintf("internal error (%v); this is a bug in mixdepth, please report it with the command line", e.value)
-}
-func (e *panicError) Unwrap() error { return errPanic }
-
-// recovered turns a panic of the calling goroutine into a *panicError in
-// *err; deferred at the top of run.
+// recovered turns a panic of the calling goroutine into a *crash.Error in
+// *err (exit status exitPanic); deferred at the top of run. Panics of the
+// library's worker goroutines arrive as *crash.Error values already.
 func recovered(err *error) {
-	if p := recover(); p != nil {
-		*err = &panicError{value: p, stack: debug.Stack()}
+	if p := recover(); p != nil { // recover works only in the deferred function itself
+		*err = crash.From(p)
 	}
 }
 

@@ -6,6 +6,7 @@ import (
 	"math"
 	"math/bits"
 	"math/rand/v2"
+	"mixdepth/internal/crash"
 	"slices"
 	"sync"
 
@@ -256,10 +257,12 @@ func (o *gapOperator) apply(y, x []float64) {
 			continue
 		}
 		var wg sync.WaitGroup
+		var carry crash.Carrier
 		for i := range w {
-			wg.Go(func() { body(tiles*i/w, tiles*(i+1)/w) })
+			wg.Go(func() { defer carry.Catch(); body(tiles*i/w, tiles*(i+1)/w) })
 		}
 		wg.Wait()
+		carry.Rethrow()
 	}
 }
 
@@ -341,14 +344,17 @@ func (g *gapOrtho) parallel(chunks int, f func(c int)) {
 		return
 	}
 	var wg sync.WaitGroup
+	var carry crash.Carrier
 	for i := range w {
 		wg.Go(func() {
+			defer carry.Catch()
 			for c := chunks * i / w; c < chunks*(i+1)/w; c++ {
 				f(c)
 			}
 		})
 	}
 	wg.Wait()
+	carry.Rethrow()
 }
 
 // gapLanczos returns the largest eigenvalue of the symmetric operator apply

@@ -349,6 +349,7 @@ func arrayPass(p []float64, workers, n int, visit func(w int, p []float64)) {
 	workers = min(workers, chunks)
 	per := (chunks + workers - 1) / workers
 	var wg sync.WaitGroup
+	var carry crash.Carrier
 	for w := 0; w < workers; w++ {
 		lo, hi := min(w*per*sim.ProbabilityChunk, len(p)), min((w+1)*per*sim.ProbabilityChunk, len(p))
 		body := func() {
@@ -361,9 +362,10 @@ func arrayPass(p []float64, workers, n int, visit func(w int, p []float64)) {
 			continue
 		}
 		wg.Add(1)
-		go func() { defer wg.Done(); body() }()
+		go func() { defer wg.Done(); defer carry.Catch(); body() }()
 	}
 	wg.Wait()
+	carry.Rethrow()
 }
 
 // pairwiseSum adds x pairwise: rounding error O(log len(x)·ε).

@@ -499,3 +499,25 @@ func (r *Reader) Read(st *sim.State) (collision, ks float64) {
 	}
 	return r.r.read(st)
 }
+
+// ExactAgreementSigmas is the deviation, in standard errors, beyond which a
+// Monte Carlo mean disagrees with the exact E[Z] of its depth: with a correct
+// simulator a two-sided 4σ excursion has probability about 6e-5 per depth
+// (normal tail), so a flag is a defect to report, not noise to hide.
+const ExactAgreementSigmas = 4
+
+// ExactDeviations returns, for each row of c, (mean Z − exact[k]) over the
+// row's standard error: how many standard errors the Monte Carlo mean lies
+// from the exact value exact[k] of the same depth. It is ±Inf or NaN for a
+// row with no spread (one instance, or identical values). It panics unless
+// len(exact) == len(c.Rows).
+func (c *Curve) ExactDeviations(exact []float64) []float64 {
+	if len(exact) != len(c.Rows) {
+		panic("scan: ExactDeviations needs one exact value per row")
+	}
+	dev := make([]float64, len(c.Rows))
+	for k, r := range c.Rows {
+		dev[k] = (r.Collision.Mean - exact[k]) / r.Collision.StdErr
+	}
+	return dev
+}

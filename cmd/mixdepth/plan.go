@@ -2,9 +2,11 @@ package main
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"io"
 	"math"
+	"strings"
 
 	"github.com/spf13/pflag"
 
@@ -149,34 +151,26 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if rates {
 		doc.ErrorModelFidelity = &model
 	}
-	// ceilShots rounds a sample count up; beyond 10^15 shots (years of any
-	// device's time) the plan is refused rather than overflowing int64.
-	ceilShots := func(x float64) (int64, error) {
-		if !(x <= 1e15) {
-			return 0, badInput("the plan needs %.3g shots at predicted fidelity %g: beyond any experiment; raise the fidelity (fewer gates, lower error rates) or relax --sigmas/--rel-precision", x, f)
-		}
-		return int64(math.Ceil(x)), nil
-	}
+	var z, r float64
 	if useSigmas {
-		z := *sigmas
-		v, err := ceilShots(stats.XEBSamples(f, z))
-		if err != nil {
-			return err
-		}
-		doc.Sigmas, doc.ShotsSigmas = &z, &v
-		doc.Shots = v
+		z = *sigmas
 	}
 	if useRel {
-		r := *rel
-		v, err := ceilShots(stats.XEBSamplesRelative(f, r))
-		if err != nil {
-			return err
-		}
-		doc.RelPrecision, doc.ShotsRelPrecision = &r, &v
-		doc.Shots = max(doc.Shots, v)
+		r = *rel
 	}
-	doc.Instances = stats.MinIntervalValues
-	doc.ShotsPerInstance = (doc.Shots + int64(doc.Instances) - 1) / int64(doc.Instances)
+	sp, err := sampling.PlanShots(f, z, r)
+	if errors.Is(err, sampling.ErrTooManyShots) {
+		return badInput("the plan needs %s; raise the fidelity (fewer gates, lower error rates) or relax --sigmas/--rel-precision", strings.TrimPrefix(err.Error(), "sampling: "))
+	} else if err != nil {
+		return err
+	}
+	if useSigmas {
+		doc.Sigmas, doc.ShotsSigmas = &z, &sp.ForSigmas
+	}
+	if useRel {
+		doc.RelPrecision, doc.ShotsRelPrecision = &r, &sp.ForRelative
+	}
+	doc.Shots, doc.Instances, doc.ShotsPerInstance = sp.Shots, sp.Instances, sp.PerInstance
 	doc.Eps, doc.Warnings = *eps, []string{}
 	if err := planDepthCheck(ctx, fs, s, *depth, *eps, *from, &doc); err != nil {
 		return err

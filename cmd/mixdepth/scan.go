@@ -224,9 +224,10 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if *asJSON {
 		doc := scanDocument(s, cf.seed, len(doneAll), sum)
 		if exact != nil {
+			devs := sum.ExactDeviations(exact.Collision)
 			for k := range doc.Rows {
-				z, dev := exact.Collision[k], (sum.Rows[k].Collision.Mean-exact.Collision[k])/sum.Rows[k].Collision.StdErr
-				doc.Rows[k].CollisionExact, doc.Rows[k].ExactDeviation = &z, finiteOrNull(dev)
+				z := exact.Collision[k]
+				doc.Rows[k].CollisionExact, doc.Rows[k].ExactDeviation = &z, finiteOrNull(devs[k])
 			}
 		}
 		return writeJSON(stdout, doc)
@@ -314,16 +315,16 @@ func resumeInput(err error) error {
 }
 
 // printExactCheck compares the Monte Carlo means with the exact values and
-// reports every depth more than 4 standard errors away: with a correct
-// simulator that happens with probability about 6e-5 per depth, so a flag
-// is a defect to report, not noise to hide.
+// reports every depth more than scan.ExactAgreementSigmas standard errors
+// away.
 func printExactCheck(w io.Writer, sum *scan.Curve, exact *moments.Result) {
 	fmt.Fprintf(w, "\n%6s %12s %12s %10s\n", "depth", "R (MC)", "R (exact)", "MC−exact")
 	var bad []string
+	devs := sum.ExactDeviations(exact.Collision)
 	for k, r := range sum.Rows {
-		dev := (r.Collision.Mean - exact.Collision[k]) / r.Collision.StdErr
+		dev := devs[k]
 		mark := ""
-		if math.Abs(dev) > 4 {
+		if math.Abs(dev) > scan.ExactAgreementSigmas {
 			mark = "  ← more than 4 s.e.: please report this"
 			bad = append(bad, strconv.Itoa(r.Depth))
 		}

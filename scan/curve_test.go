@@ -3,6 +3,7 @@ package scan
 import (
 	"context"
 	"errors"
+	"math"
 	"math/rand/v2"
 	"testing"
 
@@ -30,5 +31,18 @@ func TestWorkerPanic(t *testing.T) {
 		if !errors.Is(err, crash.ErrPanic) {
 			t.Errorf("workers %d: Run returned %v, want a crash.ErrPanic", workers, err)
 		}
+	}
+}
+
+// TestExactDeviations: (mean − exact)/stderr per row, worked by hand:
+// (0.30 − 0.25)/0.02 = 2.5 and (0.10 − 0.16)/0.03 = −2.
+func TestExactDeviations(t *testing.T) {
+	c := &Curve{Rows: []Row{{}, {}}}
+	c.Rows[0].Collision.Mean, c.Rows[0].Collision.StdErr = 0.30, 0.02
+	c.Rows[1].Collision.Mean, c.Rows[1].Collision.StdErr = 0.10, 0.03
+	got := c.ExactDeviations([]float64{0.25, 0.16})
+	// Rounding of three decimal inputs: a few ulps.
+	if math.Abs(got[0]-2.5) > 1e-12 || math.Abs(got[1]+2) > 1e-12 {
+		t.Errorf("deviations %v, want [2.5 -2]", got)
 	}
 }

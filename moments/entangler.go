@@ -101,6 +101,19 @@ func copyPermute(sigma, i int) int {
 	return 4*x1 + x2
 }
 
+// WallDecay returns the largest modulus among the eigenvalues of t other
+// than the two fixed ones, II and SS (eigenvalue 1 for every unitary
+// ensemble): the factor by which one gate shrinks a domain wall between I and
+// S regions at worst. It is 0 for Haar U(4) gates. The two fixed eigenvalues
+// come first in Eigenvalues' order of decreasing modulus.
+func (t *Transfer) WallDecay() float64 {
+	sub := 0.0
+	for _, v := range t.Eigenvalues()[2:] {
+		sub = max(sub, cmplx.Abs(v))
+	}
+	return sub
+}
+
 // Eigenvalues returns the four eigenvalues of t, computed by gonum's
 // mat.Eigen, in decreasing order of modulus (ties: real part, then
 // imaginary part, decreasing). Complex eigenvalues come in conjugate

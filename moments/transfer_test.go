@@ -65,3 +65,17 @@ func TestTransferFreshQubit(t *testing.T) {
 		t.Errorf("three-state FF column sums to %.17g, want 2/5", sum)
 	}
 }
+
+// TestWallDecay: a Haar U(4) gate erases a domain wall in one gate
+// (IS → (2/5)(II+SS), so every non-fixed eigenvalue is 0; Hunter-Jones 2019,
+// arXiv:1905.12053), while a swap moves it unchanged (eigenvalue −1 on
+// IS − SI), so its wall decay is 1.
+func TestWallDecay(t *testing.T) {
+	if d := HaarTransfer.WallDecay(); d > 1e-12 {
+		t.Errorf("Haar wall decay %g, want 0", d)
+	}
+	swap := Transfer{{1, 0, 0, 0}, {0, 0, 1, 0}, {0, 1, 0, 0}, {0, 0, 0, 1}}
+	if d := swap.WallDecay(); d < 1-1e-12 || d > 1+1e-12 {
+		t.Errorf("swap wall decay %g, want 1", d)
+	}
+}

@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"math/cmplx"
 	"os"
 	"slices"
 	"strconv"
@@ -359,16 +358,11 @@ func explainTransfer(w io.Writer, e circuits.Ensemble) error {
 		}
 	}
 	fmt.Fprintln(w)
-	ev := t.Eigenvalues()
-	sub := 0.0
-	for _, v := range ev[2:] {
-		sub = max(sub, cmplx.Abs(v))
-	}
 	fmt.Fprintf(w, "\nII and SS are fixed (eigenvalue 1): they are the two Haar-invariant states. A domain wall\n"+
 		"between I and S regions (the states IS, SI) decays by the other eigenvalues, the largest\n"+
 		"in modulus here %.5f (Haar U(4): 0); the closer to 0, the faster one gate erases it. A\n"+
 		"negative eigenvalue means the gate also moves the wall to the other qubit, as a swap does,\n"+
-		"which on a brickwork carries it further per layer. Compare gate sets with 'mixdepth exact'.\n", sub)
+		"which on a brickwork carries it further per layer. Compare gate sets with 'mixdepth exact'.\n", t.WallDecay())
 	if final {
 		fmt.Fprintln(w, "Circuits of this gate set end with a layer of single-qubit gates on every qubit.")
 	}

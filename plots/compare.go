@@ -150,13 +150,10 @@ func compareFigure(curves []Labelled, eps float64, opts []Option) (*figure, erro
 		}
 		fig.key(label, l, sc)
 	}
-	epsLine, err := plotter.NewLine(log10XYs(plotter.XYs{{X: xmin, Y: eps}, {X: xmax, Y: eps}}))
+	epsLine, err := addEpsLine(p, xmin, xmax, eps)
 	if err != nil {
 		return nil, err
 	}
-	epsLine.Color, epsLine.Width = colourEps, vg.Points(1.2)
-	epsLine.Dashes = []vg.Length{vg.Points(6), vg.Points(3)}
-	p.Add(epsLine)
 	band := "confidence bounds"
 	if o.confidence > 0 {
 		band = strconv.FormatFloat(100*o.confidence, 'g', 4, 64) + "% " + band

@@ -294,13 +294,10 @@ func depthPlot(s *depthPoints, ds *DepthSeries, eps float64, o depthOptions) (*f
 		fig.key("estimate ≤ "+formatFloor(s.floor)+" (at or below the Haar value)", sc)
 	}
 
-	epsLine, err := plotter.NewLine(log10XYs(plotter.XYs{{X: xmin, Y: eps}, {X: xmax, Y: eps}}))
+	epsLine, err := addEpsLine(p, xmin, xmax, eps)
 	if err != nil {
 		return nil, err
 	}
-	epsLine.Color, epsLine.Width = colourEps, vg.Points(1.2)
-	epsLine.Dashes = []vg.Length{vg.Points(6), vg.Points(3)}
-	p.Add(epsLine)
 	rule := "the upper bound of R ≤ 1 + ε"
 	if len(s.bands) == 0 && len(s.line) == 0 {
 		rule = "R ≤ 1 + ε" // the exact curve alone
@@ -358,4 +355,17 @@ func newRatioFigure(title, depthUnit string) *figure {
 	p.X.Tick.Marker = integerTicks{}
 	p.Add(plotter.NewGrid())
 	return fig
+}
+
+// addEpsLine draws the dashed threshold line R − 1 = eps across [xmin, xmax]
+// and returns it for the legend.
+func addEpsLine(p *plot.Plot, xmin, xmax, eps float64) (*plotter.Line, error) {
+	l, err := plotter.NewLine(log10XYs(plotter.XYs{{X: xmin, Y: eps}, {X: xmax, Y: eps}}))
+	if err != nil {
+		return nil, err
+	}
+	l.Color, l.Width = colourEps, vg.Points(1.2)
+	l.Dashes = []vg.Length{vg.Points(6), vg.Points(3)}
+	p.Add(l)
+	return l, nil
 }

@@ -3,6 +3,7 @@ package circuits
 import (
 	"errors"
 	"fmt"
+	"math"
 )
 
 // ChipNoise is the error model of a chip, element by element: one rate per
@@ -135,4 +136,58 @@ func (c *ChipNoise) Validate(g *Graph) error {
 		}
 	}
 	return nil
+}
+
+// DigitalFidelity returns the fidelity that the digital error model
+// predicts for a circuit of depth steps of schedule s and ensemble e under
+// the noise c: the product of the fidelities of its operations (Arute et
+// al. 2019, "Quantum supremacy using a programmable superconducting
+// processor", Nature 574, 505),
+//
+//	F = f · Π_gates (1 − Pair_e) · Π_single-qubit gates (1 − Single_q) · Π_q (1 − (Readout01_q + Readout10_q)/2).
+//
+// The single-qubit gates are those the sampler applies: two per two-qubit
+// gate for a gate set G·(u_a ⊗ u_b) (*GateSet), one per qubit in the final
+// layer of a Finisher, none for Haar and Clifford two-qubit gates. A
+// deterministic schedule's gates are its own; for a random-edge schedule,
+// whose edges are independent uniform draws, F is the expectation over the
+// draws, each step contributing the mean over the edges of its factor. With
+// uniform rates this is sampling's ErrorModel.Predict of CountGates. It
+// panics if depth < 1.
+func (c *ChipNoise) DigitalFidelity(s Schedule, e Ensemble, depth int) float64 {
+	if depth < 1 {
+		panic(fmt.Sprintf("circuits: DigitalFidelity at depth %d", depth))
+	}
+	_, dressed := e.(*GateSet)
+	gate := func(ed Edge) float64 {
+		f := 1 - c.PairError(ed.A, ed.B)
+		if dressed {
+			f *= (1 - c.Single[ed.A]) * (1 - c.Single[ed.B])
+		}
+		return f
+	}
+	f := c.Fidelity
+	if r, ok := s.(*RandomEdge); ok {
+		var mean float64
+		for _, ed := range r.Edges {
+			mean += gate(ed)
+		}
+		f *= math.Pow(mean/float64(len(r.Edges)), float64(depth))
+	} else {
+		var step []Edge
+		for t := range depth {
+			step = s.Step(t, nil, step[:0])
+			for _, ed := range step {
+				f *= gate(ed)
+			}
+		}
+	}
+	_, final := e.(Finisher)
+	for q := range c.Qubits() {
+		if final {
+			f *= 1 - c.Single[q]
+		}
+		f *= 1 - (c.Readout01[q]+c.Readout10[q])/2
+	}
+	return f
 }

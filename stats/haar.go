@@ -180,3 +180,21 @@ func (PorterThomas) Mean() float64 { return 1 }
 
 // Variance returns 1.
 func (PorterThomas) Variance() float64 { return 1 }
+
+// HaarCollisionVariance returns the variance of the collision probability
+// Z = Σ_x p(x)² over Haar-random states of dimension dim,
+//
+//	Var Z = 4(D − 1)/((D + 1)²(D + 2)(D + 3)),
+//
+// from the moments of the uniform law on the probability simplex, the
+// Dirichlet(1, …, 1) law of a Haar state's output probabilities:
+// E[p_x⁴] = 24/(D(D+1)(D+2)(D+3)) and E[p_x² p_y²] = 4/(D(D+1)(D+2)(D+3))
+// for x ≠ y (Dirichlet moments; e.g. Kotz, Balakrishnan, Johnson,
+// Continuous Multivariate Distributions, 2000, ch. 49), so that
+// E[Z²] = (4D + 20)/((D+1)(D+2)(D+3)). For large D it is about 4/D³: the
+// floor of the circuit-to-circuit spread of D·Z, about 2/√D. It panics if
+// dim < 1.
+func HaarCollisionVariance(dim float64) float64 {
+	checkDim(dim)
+	return 4 * (dim - 1) / ((dim + 1) * (dim + 1) * (dim + 2) * (dim + 3))
+}

@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"runtime"
 	"testing"
 
 	"mixdepth/circuits"
@@ -400,4 +401,48 @@ func TestXEBCompleteAgainstRandomEdge(t *testing.T) {
 			}
 		}
 	}
+}
+
+// BenchmarkXEBCurve compares the vector engine's noiseless curve
+// (CollisionCurve) with the noisy one (XEBCurve, a heterogeneous chip) on
+// line:24, three layers (69 gates) and a readout at each depth, on all
+// cores: the noise changes the 4×4 matrices and the readout sum only, so
+// the target is at most 10% extra. Run with
+// go test -run '^$' -bench XEBCurve -benchtime 3x ./moments/
+func BenchmarkXEBCurve(b *testing.B) {
+	g, err := circuits.ParseGraph("line:24")
+	if err != nil {
+		b.Fatal(err)
+	}
+	s := &circuits.Layered{Classes: circuits.LayeredClasses(g)}
+	depths := []int{1, 2, 3}
+	nz := heteroNoise3(g)
+	workers := runtime.GOMAXPROCS(0)
+	b.Run("noiseless", func(b *testing.B) {
+		for b.Loop() {
+			if _, err := CollisionCurve(context.Background(), g, s, &HaarTransfer, depths, workers); err != nil {
+				b.Fatal(err)
+			}
+		}
+	})
+	b.Run("noisy", func(b *testing.B) {
+		for b.Loop() {
+			if _, err := XEBCurve(context.Background(), g, s, circuits.Haar{}, nz, depths, workers); err != nil {
+				b.Fatal(err)
+			}
+		}
+	})
+}
+
+// heteroNoise3 is a heterogeneous chip with small rates for any graph.
+func heteroNoise3(g *circuits.Graph) *circuits.ChipNoise {
+	c := circuits.UniformNoise(g, 0, 0, 0, 0, 0.99)
+	for i := range c.Pair {
+		c.Pair[i] = 0.003 + 0.0005*float64(i%5)
+	}
+	for q := range c.Single {
+		c.Readout01[q] = 0.01 + 0.001*float64(q%3)
+		c.Readout10[q] = 0.02
+	}
+	return c
 }

@@ -85,7 +85,7 @@ func gatesHint(err error) error {
 }
 
 func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("exact", "Computes the ensemble averages that decide anti-concentration exactly, with no sampling:\nE[Z]/Z_H and the second frame potential F2 at each depth, and for the random-edge schedule\nthe spectral gap of the second-moment operator and the design-depth bound it implies.",
+	fs := newFlags("exact", "Computes the ensemble averages that decide anti-concentration exactly, with no sampling:\nE[Z]/Z_H and the second frame potential F2 at each depth, and for the random-edge schedule\nthe spectral gap of the second-moment operator and the design-depth bound it implies.\nWith a noise flag (--gate-error, --single-qubit-error, --readout-error, --fidelity) it also\npredicts the expected cross-entropy benchmark at each depth and compares it with the digital error model.",
 		"mixdepth exact --graph grid:3x4 --depths 1:16 --json", stdout)
 	var cf circuitFlags
 	cf.add(fs)
@@ -501,7 +501,11 @@ func (nf *noiseFlags) parse() error {
 
 // setMeta records the noise in the table metadata.
 func (nf *noiseFlags) setMeta(meta tables.Meta) {
-	meta.Set("gate_errors", nf.gateSpec)
+	rates := make([]string, len(nf.gateErrors))
+	for i, r := range nf.gateErrors {
+		rates[i] = formatFloat(r)
+	}
+	meta.Set("gate_error", strings.Join(rates, ","))
 	meta.Set("single_qubit_error", formatFloat(nf.single))
 	meta.Set("readout_error", formatFloat(nf.p01)+","+formatFloat(nf.p10))
 	meta.Set("fidelity", formatFloat(nf.fidelity))

@@ -6,6 +6,7 @@ import (
 	"math"
 
 	"mixdepth/circuits"
+	"mixdepth/sim"
 )
 
 // The expected cross-entropy benchmark under noise is a two-copy average
@@ -234,7 +235,7 @@ func (e *Engine) weightedCollision(r []qubitReadout) float64 {
 			w0[q] = r[q].i
 		}
 	}
-	return readoutSum(e.u, w0, w1, e.workers, e.n >= 20)
+	return readoutSum(e.u, w0, w1, e.workers, e.n >= sim.ParallelQubits)
 }
 
 // XEBCurve returns the exact expected linear cross-entropy benchmark

@@ -2,6 +2,7 @@ package moments
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"math"
 	"runtime"
@@ -445,4 +446,38 @@ func heteroNoise3(g *circuits.Graph) *circuits.ChipNoise {
 		c.Readout10[q] = 0.02
 	}
 	return c
+}
+
+// TestXEBCompleteHeterogeneous: heterogeneous noise on a complete graph
+// cannot use the permutation-symmetric reduction; it falls back to the
+// random-edge average, checked against the dense brute force over every
+// edge sequence on complete:4 (tolerance as in TestXEBCurveBruteForce),
+// and beyond CollisionRandomEdgeMaxQubits it is refused with ErrTooLarge.
+func TestXEBCompleteHeterogeneous(t *testing.T) {
+	ctx := context.Background()
+	g, err := circuits.ParseGraph("complete:4")
+	if err != nil {
+		t.Fatal(err)
+	}
+	nz := heteroNoise(g)
+	re := &circuits.RandomEdge{Edges: g.Edges}
+	depths := []int{0, 1, 2}
+	got, err := XEBCurve(ctx, g, re, circuits.Haar{}, nz, depths, 2)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i, d := range depths {
+		if want := bruteNoisyRandom(g, circuits.Haar{}, nz, d); math.Abs(got[i]-want) > 1e-12 {
+			t.Errorf("complete:4 depth %d: engine %.15g, dense %.15g", d, got[i], want)
+		}
+	}
+	big, err := circuits.ParseGraph(fmt.Sprintf("complete:%d", CollisionRandomEdgeMaxQubits+1))
+	if err != nil {
+		t.Fatal(err)
+	}
+	hn := circuits.UniformNoise(big, 0.01, 0, 0, 0, 1)
+	hn.Pair[0] = 0.02
+	if _, err := XEBCurve(ctx, big, &circuits.RandomEdge{Edges: big.Edges}, circuits.Haar{}, hn, []int{5}, 1); !errors.Is(err, ErrTooLarge) {
+		t.Errorf("heterogeneous noise on %s: %v, want ErrTooLarge", big.Name, err)
+	}
 }

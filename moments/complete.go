@@ -55,6 +55,26 @@ func CompleteCollisionCurve(ctx context.Context, n int, t *Transfer, depths []in
 // rescaled by their largest magnitude after every gate and the scale kept
 // as a logarithm, so nothing overflows or underflows for any n.
 func CompleteLogCollisionCurve(ctx context.Context, n int, t *Transfer, depths []int, opts ...CollisionOption) ([]float64, error) {
+	cfg := collisionConfigure(opts)
+	return completeLogCurve(ctx, n, t, depths, &cfg)
+}
+
+// completeCurve is CompleteCollisionCurve with its configuration built.
+func completeCurve(ctx context.Context, n int, t *Transfer, depths []int, cfg *collisionConfig) ([]float64, error) {
+	logs, err := completeLogCurve(ctx, n, t, depths, cfg)
+	if err != nil {
+		return nil, err
+	}
+	for i, v := range logs {
+		logs[i] = math.Exp(v)
+	}
+	return logs, nil
+}
+
+// completeLogCurve is CompleteLogCollisionCurve with its configuration
+// built. With cfg.noise it reads out the noisy weighted sum, which needs the
+// same readout weights on every qubit (uniform noise).
+func completeLogCurve(ctx context.Context, n int, t *Transfer, depths []int, cfg *collisionConfig) ([]float64, error) {
 	if t == nil {
 		panic("moments: CompleteLogCollisionCurve with a nil Transfer")
 	}
@@ -71,7 +91,6 @@ func CompleteLogCollisionCurve(ctx context.Context, n int, t *Transfer, depths [
 	if err := sim.CheckMemory(need, fmt.Sprintf("the complete-graph reduction on %d qubits", n)); err != nil {
 		return nil, fmt.Errorf("moments: %w", err)
 	}
-	cfg := collisionConfigure(opts)
 	sym := t.swapped()
 	for r := range 4 {
 		for c := range 4 {
@@ -80,6 +99,15 @@ func CompleteLogCollisionCurve(ctx context.Context, n int, t *Transfer, depths [
 	}
 	c := newCompleteChain(n, &sym)
 	c.final = cfg.final
+	if cfg.noise != nil {
+		r := cfg.noise.read[0]
+		for _, x := range cfg.noise.read {
+			if x != r {
+				return nil, fmt.Errorf("moments: the complete-graph reduction needs the same readout errors on every qubit")
+			}
+		}
+		c.read = &r
+	}
 	out := make([]float64, 0, len(depths))
 	steps := 0
 	if len(depths) > 0 {
@@ -120,6 +148,9 @@ type completeChain struct {
 	// final: circuits end with a single-qubit Haar layer, so an untouched
 	// qubit reads out 2/3 instead of 1 (CollisionFinalLayer).
 	final bool
+	// read, when not nil, holds the noisy readout weights of every qubit
+	// (XEBCurve).
+	read *qubitReadout
 }
 
 func newCompleteChain(n int, t *Transfer) *completeChain {
@@ -249,6 +280,20 @@ func (c *completeChain) step() {
 // logCollision returns ln E[Z] = logScale + ln Σ W.
 func (c *completeChain) logCollision() float64 {
 	var sum float64
+	row := c.n + 1
+	if c.read != nil {
+		// Class (n_I, n_S, n_F) at n_F·(n+1) + n_S reads w_I^n_I·w_S^n_S·w_F^n_F.
+		for nF := 0; nF <= c.n; nF++ {
+			for nS, v := range c.w[nF*row : (nF+1)*row-nF] {
+				if v == 0 {
+					continue
+				}
+				nI := c.n - nS - nF
+				sum += v * math.Pow(c.read.i, float64(nI)) * math.Pow(c.read.s, float64(nS)) * math.Pow(c.read.f, float64(nF))
+			}
+		}
+		return c.logScale + math.Log(sum)
+	}
 	if !c.final {
 		for _, v := range c.w {
 			sum += v
@@ -257,7 +302,6 @@ func (c *completeChain) logCollision() float64 {
 	}
 	// Class weights sit at n_F·(n+1) + n_S; each untouched qubit reads 2/3.
 	// Factor the largest power out so that 300 untouched qubits stay finite.
-	row := c.n + 1
 	for nF := 0; nF <= c.n; nF++ {
 		f := math.Pow(2.0/3, float64(nF))
 		for _, v := range c.w[nF*row : (nF+1)*row] {

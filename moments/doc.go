@@ -63,6 +63,20 @@
 //     mps.go). MPSCurve runs it on layered schedules of hundreds of qubits,
 //     with an error estimate from a rerun at half the bond.
 //
+// # Noise
+//
+// XEBCurve and ExactNoise compute the expected linear cross-entropy
+// benchmark under a circuits.ChipNoise: the same two-copy average with the
+// noise on copy 1 only. Each channel keeps span{I, S}: a Pauli error after a
+// gate is PairNoise(e)·T, single-qubit errors before a gate set's entangler
+// are T·(SingleNoise ⊗ SingleNoise), and the readout becomes the weighted
+// sum Σ_σ u(σ) Π_q w_q(σ_q) (the rules are derived in noise.go). Per-coupler
+// rates make per-coupler transfers (EdgeTransfers), which every engine
+// takes: the layered engine and the MPS per gate, the random-edge average
+// per edge, and the complete-graph reduction when every coupler has the
+// same one. Under noise the MPS restores only the total trace after
+// truncation, the one invariant left.
+//
 // CollisionCurve picks the engine from the schedule; Exact picks between
 // the vector and the MPS engine by ExactEngine.
 //

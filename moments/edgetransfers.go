@@ -1,8 +1,6 @@
 package moments
 
 import (
-	"fmt"
-
 	"mixdepth/circuits"
 )
 
@@ -52,14 +50,12 @@ func (et *EdgeTransfers) For(a, b int) *Transfer {
 	return &et.Default
 }
 
-// CollisionEdgeTransfers makes a layered CollisionCurve take the transfer of
-// each gate from et (the t argument is then unused); a random-edge curve
-// refuses it with an error wrapping ErrNoExactMoments, since its exact
-// average over edges assumes one transfer for every coupler.
+// CollisionEdgeTransfers makes a CollisionCurve take the transfer of each
+// gate from et (the t argument is then unused): the layered engine per gate,
+// the random-edge average per edge of its mean Σ_e M_e/|E|, and the
+// complete-graph reduction only when every coupler has the same symmetric
+// transfer (otherwise the random-edge average, up to
+// CollisionRandomEdgeMaxQubits qubits).
 func CollisionEdgeTransfers(et *EdgeTransfers) CollisionOption {
 	return func(c *collisionConfig) { c.edges = et }
 }
-
-// errRandomEdgeTransfers is the error of a random-edge curve with
-// per-coupler transfers.
-var errRandomEdgeTransfers = fmt.Errorf("moments: per-coupler gates under the random-edge schedule have %w here: the exact average over edges takes one transfer for every coupler; use the layered schedule", ErrNoExactMoments)

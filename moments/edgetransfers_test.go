@@ -2,7 +2,6 @@ package moments
 
 import (
 	"context"
-	"errors"
 	"math"
 	"testing"
 
@@ -87,8 +86,20 @@ func TestEdgeTransfersBruteForce(t *testing.T) {
 			t.Errorf("depth %d: per-coupler copies of one gate %.17g, one gate %.17g", depths[i], a[i], b[i])
 		}
 	}
+	// The random-edge average takes each edge's own transfer: against the
+	// brute force over all |E|^t edge sequences (same source, same
+	// tolerance; ring:4 lists its edges as (i, i+1) and (3, 0), so gateOf
+	// sees each coupler in its schedule orientation).
 	re := &circuits.RandomEdge{Edges: g.Edges}
-	if _, err := CollisionCurve(context.Background(), g, re, &et.Default, []int{3}, 1, CollisionEdgeTransfers(et)); !errors.Is(err, ErrNoExactMoments) {
-		t.Errorf("random-edge with per-coupler transfers: %v", err)
+	rdepths := []int{0, 1, 2, 3}
+	rgot, err := CollisionCurve(context.Background(), g, re, &et.Default, rdepths, 1, CollisionEdgeTransfers(et))
+	if err != nil {
+		t.Fatalf("random-edge with per-coupler transfers: %v", err)
+	}
+	gate := func(r *bruteRho, a, b int) { r.dressed(gateOf(a, b), a, b) }
+	for i, d := range rdepths {
+		if want := bruteRandomEdge(g.Qubits, g.Edges, gate, d); math.Abs(rgot[i]-want) > 1e-12 {
+			t.Errorf("random-edge depth %d: engine %.15g, brute force %.15g", d, rgot[i], want)
+		}
 	}
 }

@@ -191,6 +191,10 @@ type collisionConfig struct {
 	progress func(done, total int)
 	final    bool
 	edges    *EdgeTransfers // per-coupler transfers, or nil for t everywhere
+	// noise, when not nil, makes the curve read out the noisy weighted sum
+	// Σ_σ u(σ) Π_q w_q(σ_q) of XEBCurve instead of E[Z]; edges then hold
+	// the noisy transfers.
+	noise *xebNoise
 }
 
 // CollisionFinalLayer declares that the circuits end with a layer of Haar
@@ -310,7 +314,10 @@ func CollisionCurve(ctx context.Context, g *circuits.Graph, s circuits.Schedule,
 		}
 		var layer []circuits.Edge
 		collision := e.Collision
-		if cfg.final {
+		switch {
+		case cfg.noise != nil:
+			collision = func() float64 { return e.weightedCollision(cfg.noise.read) }
+		case cfg.final:
 			collision = func() float64 {
 				z := e.Collision()
 				for q := 0; q < n; q++ {
@@ -338,11 +345,13 @@ func CollisionCurve(ctx context.Context, g *circuits.Graph, s circuits.Schedule,
 		if err := collisionCheckEdges(n, s.Edges); err != nil {
 			return nil, err
 		}
-		if cfg.edges != nil {
-			return nil, errRandomEdgeTransfers
-		}
-		if collisionComplete(n, s.Edges) && t.symmetric(completeSymmetryTol) {
-			return CompleteCollisionCurve(ctx, n, t, depths, opts...)
+		if collisionComplete(n, s.Edges) {
+			if tc, ok := cfg.sameTransfer(t, s.Edges); ok && tc.symmetric(completeSymmetryTol) {
+				return completeCurve(ctx, n, tc, depths, &cfg)
+			}
+			if n > CollisionRandomEdgeMaxQubits {
+				return nil, fmt.Errorf("moments: the complete-graph reduction on %d qubits needs the same transfer, symmetric, on every coupler (uniform noise); per-coupler gates or noise on a complete graph run on the random-edge engine, which handles at most %d qubits: %w", n, CollisionRandomEdgeMaxQubits, ErrTooLarge)
+			}
 		}
 		return randomEdgeCurve(ctx, n, s.Edges, t, depths, workers, &cfg)
 	case nil:
@@ -350,6 +359,21 @@ func CollisionCurve(ctx context.Context, g *circuits.Graph, s circuits.Schedule,
 	default:
 		return nil, fmt.Errorf("moments: no exact second-moment method for schedule kind %q (%T)", s.Kind(), s)
 	}
+}
+
+// sameTransfer returns the transfer every edge takes, and whether they all
+// take the same one (always, without per-coupler transfers).
+func (c *collisionConfig) sameTransfer(t *Transfer, edges []circuits.Edge) (*Transfer, bool) {
+	if c.edges == nil {
+		return t, true
+	}
+	first := c.edges.For(edges[0].A, edges[0].B)
+	for _, e := range edges {
+		if *c.edges.For(e.A, e.B) != *first || *c.edges.For(e.B, e.A) != *first {
+			return nil, false
+		}
+	}
+	return first, true
 }
 
 // collisionRun applies steps 0..steps−1 with step and records collision()

@@ -114,6 +114,18 @@ type Result struct {
 	Bandwidth       int
 	TruncationError []float64
 	BondDimUsed     []int
+	// With ExactNoise, the expected cross-entropy benchmark at each depth
+	// (nil otherwise): XEBExpected is the exact E[F_lin] under the noise
+	// (XEBCurve), XEBIdeal = D·E[Z] − 1 the noiseless value of the same
+	// circuits, XEBNormalized their ratio, DigitalFidelity the digital
+	// error model of the gates applied up to that depth
+	// (circuits.ChipNoise.DigitalFidelity) and XEBOverDigital =
+	// XEBNormalized/DigitalFidelity, which tends to 1 when local noise
+	// has become global white noise. XEBTruncationError is the MPS error
+	// estimate of XEBExpected (zero for the vector engine).
+	XEBExpected, XEBIdeal, XEBNormalized []float64
+	DigitalFidelity, XEBOverDigital      []float64
+	XEBTruncationError                   []float64
 }
 
 // ExactOption sets an optional parameter of Exact.
@@ -124,6 +136,7 @@ type exactConfig struct {
 	eps       float64
 	progress  func(done, total int)
 	curveOnly bool
+	noise     *circuits.ChipNoise // ExactNoise, or nil
 	engine    string
 	bond      int
 	order     []int
@@ -280,12 +293,6 @@ func Exact(ctx context.Context, g *circuits.Graph, s circuits.Schedule, e circui
 	if cfg.engine == EngineMPS && layered == nil {
 		return nil, fmt.Errorf("moments: the MPS engine runs layered schedules (and layout files) only, not %s: %w", s.Kind(), ErrEngine)
 	}
-	if et != nil && useMPS {
-		if cfg.engine == EngineMPS {
-			return nil, fmt.Errorf("moments: the MPS engine takes one transfer for every coupler; a gate file with per-coupler matrices runs on the vector engine: %w", ErrEngine)
-		}
-		useMPS = false
-	}
 	if useMPS {
 		if err := exactMPS(ctx, r, g, layered, &t, depths, &cfg, copts); err != nil {
 			return nil, err
@@ -308,6 +315,11 @@ func Exact(ctx context.Context, g *circuits.Graph, s circuits.Schedule, e circui
 			r.Ratio = append(r.Ratio, z/r.Limit)
 		}
 		r.TruncationError = make([]float64, len(depths))
+	}
+	if cfg.noise != nil {
+		if err := exactXEB(ctx, r, g, s, e, useMPS, &t, et, &cfg, copts); err != nil {
+			return nil, err
+		}
 	}
 	r.Depth, r.Found = stats.AnticoncentrationDepth(depths, r.Ratio, cfg.eps)
 	if cfg.curveOnly {

@@ -514,6 +514,29 @@ func (m *MPS) Ratio(final bool) float64 {
 	return sz*math.Exp(lz-lzh) + (a+b)*(1+h)/2
 }
 
+// xebSum returns D·Σ_σ u(σ) Π_q w_q(σ_q), the noisy readout of XEBCurve
+// (X in the comment at the top of noise.go), for the gates applied so far,
+// with the trace that truncation removed restored on I^⊗n. Under noise only
+// the total trace Tr X is conserved: every gate and every channel on copy 1
+// is trace preserving, but Tr(S X) = Tr(ρ_noisy ρ_ideal) decays, and S^⊗n
+// is no longer fixed (SS → λ·SS + ((1−λ)/4)·II). The one state every noisy
+// gate fixes is I^⊗n, so X = Y + α·I^⊗n with α·4^n = 1 − Tr Y; I^⊗n reads
+// out w_I = 1 per qubit, that is 2^n, and D·α·2^n = 1 − Tr Y. A removed
+// piece relaxes under later noisy gates to that multiple of I^⊗n, which is
+// the analogue of Ratio's restoration.
+func (m *MPS) xebSum(r []qubitReadout) float64 {
+	lz, sz := m.mpsContract(func(q int) [2]float64 {
+		w := r[q]
+		if !m.touched[q] {
+			return [2]float64{w.f, 0}
+		}
+		// (w_I, w_S)·G⁻¹ in the gauge of mps.go.
+		return [2]float64{w.i * mpsGaugeInv[0][0], w.i*mpsGaugeInv[0][1] + w.s*mpsGaugeInv[1][1]}
+	})
+	tr, _ := m.Invariants()
+	return sz*math.Exp(lz+float64(m.n)*math.Ln2) + (1 - tr)
+}
+
 // MPSMaxBond is the largest bond dimension the MPS engine accepts: its
 // two-site SVD is (2χ)×(2χ), about 1 s per update at χ = 2048 on one core.
 const MPSMaxBond = 2048
@@ -556,16 +579,27 @@ func MPSEstimate(g *circuits.Graph, s *circuits.Layered, order []int, steps, bon
 // mpsCurve runs the layered schedule s on an MPS over order with bond cap
 // bond and returns E[Z]/Z_H (see MPS.Ratio) and the largest bond reached up
 // to each of depths.
+//
+// With cfg.edges each gate takes its coupler's transfer, and with cfg.noise
+// the curve holds the noisy readout D·Σ u·w (see MPS.xebSum) instead of the
+// ratio.
 func mpsCurve(ctx context.Context, n int, s *circuits.Layered, t *Transfer, depths []int, order []int, bond int, cfg *collisionConfig, progress func(done int)) (ratio []float64, used []int, err error) {
 	m := NewMPS(n, order, bond)
 	var layer []circuits.Edge
 	steps := depths[len(depths)-1]
 	out, err := collisionRun(ctx, depths, steps, &collisionConfig{}, func() float64 {
 		used = append(used, m.MaxBondUsed())
+		if cfg.noise != nil {
+			return m.xebSum(cfg.noise.read)
+		}
 		return m.Ratio(cfg.final)
 	}, func(d int) {
 		layer = s.Step(d, nil, layer[:0])
 		for _, e := range layer {
+			if cfg.edges != nil {
+				m.Apply(e.A, e.B, cfg.edges.For(e.A, e.B))
+				continue
+			}
 			m.Apply(e.A, e.B, t)
 		}
 		if progress != nil {
@@ -582,7 +616,8 @@ func mpsCurve(ctx context.Context, n int, s *circuits.Layered, t *Transfer, dept
 // the same run at bond/2 (at least 1), plus the rounding of the
 // contraction, 64·n·2^−52 times the ratio: the error shrinks with the bond
 // (TestMPSTruncation measures by how much), so the difference bounds the
-// error of the larger bond. Options as for CollisionCurve. It panics if g,
+// error of the larger bond. Options as for CollisionCurve; with
+// CollisionEdgeTransfers each gate takes its coupler's transfer. It panics if g,
 // s or t is nil or order is not a permutation of g's qubits.
 func MPSCurve(ctx context.Context, g *circuits.Graph, s *circuits.Layered, t *Transfer, depths []int, order []int, bond int, opts ...CollisionOption) (ratio, errEst []float64, used []int, err error) {
 	if g == nil || s == nil || t == nil {
@@ -609,26 +644,29 @@ func MPSCurve(ctx context.Context, g *circuits.Graph, s *circuits.Layered, t *Tr
 		}
 	}
 	cfg := collisionConfigure(opts)
-	if cfg.edges != nil {
-		return nil, nil, nil, fmt.Errorf("moments: the MPS engine takes one transfer for every coupler, not per-coupler transfers: %w", ErrEngine)
-	}
+	return mpsEstimate(ctx, g.Qubits, s, t, depths, order, bond, &cfg)
+}
+
+// mpsEstimate is MPSCurve after its checks: the run at bond and the error
+// estimate from the run at bond/2.
+func mpsEstimate(ctx context.Context, n int, s *circuits.Layered, t *Transfer, depths []int, order []int, bond int, cfg *collisionConfig) (ratio, errEst []float64, used []int, err error) {
 	steps := depths[len(depths)-1]
 	half := max(bond/2, 1)
 	// Progress counts the steps of both runs; the half-bond run costs about
 	// an eighth, so it is counted as such.
 	total := steps + (steps+7)/8
 	var coarse []float64
-	coarse, _, err = mpsCurve(ctx, g.Qubits, s, t, depths, order, half, &cfg, func(d int) { cfg.report((d+7)/8, total) })
+	coarse, _, err = mpsCurve(ctx, n, s, t, depths, order, half, cfg, func(d int) { cfg.report((d+7)/8, total) })
 	if err != nil {
 		return nil, nil, nil, err
 	}
-	ratio, used, err = mpsCurve(ctx, g.Qubits, s, t, depths, order, bond, &cfg, func(d int) { cfg.report((steps+7)/8+d, total) })
+	ratio, used, err = mpsCurve(ctx, n, s, t, depths, order, bond, cfg, func(d int) { cfg.report((steps+7)/8+d, total) })
 	if err != nil {
 		return nil, nil, nil, err
 	}
 	errEst = make([]float64, len(ratio))
 	for i, r := range ratio {
-		errEst[i] = math.Abs(r-coarse[i]) + 64*float64(g.Qubits)*0x1p-52*math.Abs(r)
+		errEst[i] = math.Abs(r-coarse[i]) + 64*float64(n)*0x1p-52*math.Abs(r)
 	}
 	return ratio, errEst, used, nil
 }

@@ -4,7 +4,6 @@ import (
 	"context"
 	"fmt"
 	"math"
-	"math/bits"
 	"mixdepth/internal/crash"
 	"sync"
 
@@ -27,7 +26,15 @@ const randomChunks = 4096
 // randomEdgeCurve returns the exact E[Z] at each of depths (ascending) for
 // the random-edge schedule on edges of an n-qubit graph: each gate acts on
 // an edge drawn uniformly from edges (duplicates count twice), drawn from
-// the ensemble with transfer t.
+// the ensemble with transfer t, or with the edge's own transfer
+// cfg.edges.For(a, b) (per-coupler gates, or noise: see XEBCurve). The
+// average over the edge is then M = (1/|E|) Σ_e M_e with each edge's own
+// M_e; the derivation below uses only that every M_e is a gate invariant
+// under single-qubit unitaries on its inputs (so it kills Δ) followed by
+// maps that keep span{I, S}², which holds for the noisy transfers too (the
+// noise acts after the input twirl). With cfg.noise the readout of each
+// chain is the weighted sum of XEBCurve, and Δ and the idle qubits read
+// out w_F − (w_I+w_S)/3 and (w_I+w_S)/3 instead of 1/3 and 2/3.
 //
 // The set of untouched qubits is random and correlated with the rest of the
 // state, so an untouched qubit cannot simply be put in span{I, S}. Instead
@@ -73,12 +80,26 @@ func randomEdgeCurve(ctx context.Context, n int, edges []circuits.Edge, t *Trans
 	chunk := max(1, subsets/randomChunks)
 	nchunks := subsets / chunk
 	partial := make([]float64, nchunks*len(depths)) // chunk-major
+	// Each edge's own transfer (per-coupler gates or noise), divided by |E|.
 	scale := 1 / float64(len(edges))
-	var m Transfer
-	for r := range 4 {
-		for c := range 4 {
-			m[r][c] = scale * t[r][c]
+	ms := make([]Transfer, len(edges))
+	for i, e := range edges {
+		te := t
+		if cfg.edges != nil {
+			te = cfg.edges.For(e.A, e.B)
 		}
+		for r := range 4 {
+			for c := range 4 {
+				ms[i][r][c] = scale * te[r][c]
+			}
+		}
+	}
+	read := make([]qubitReadout, n)
+	for q := range read {
+		read[q] = qubitReadout{1, 1, 1}
+	}
+	if cfg.noise != nil {
+		read = cfg.noise.read
 	}
 
 	var mu sync.Mutex
@@ -87,7 +108,7 @@ func randomEdgeCurve(ctx context.Context, n int, edges []circuits.Edge, t *Trans
 	for range min(workers, nchunks) {
 		g.Go(func() (err error) {
 			defer crash.Recover(&err)
-			w := randomWorker{n: n, edges: edges, m: &m, depths: depths, steps: steps}
+			w := randomWorker{n: n, edges: edges, m: ms, read: read, noisy: cfg.noise != nil, depths: depths, steps: steps}
 			for {
 				mu.Lock()
 				c := next
@@ -127,12 +148,16 @@ func randomEdgeCurve(ctx context.Context, n int, edges []circuits.Edge, t *Trans
 type randomWorker struct {
 	n       int
 	edges   []circuits.Edge
-	m       *Transfer // the transfer divided by |E|
+	m       []Transfer // the transfer of each edge divided by |E|
+	read    []qubitReadout
+	noisy   bool // read differs from 1 somewhere: use the weighted sum
 	depths  []int
 	steps   int
 	u, next []float64
 	local   []int // qubit → index among the active qubits, or −1
 	avoid   []circuits.Edge
+	avoidM  []*Transfer
+	w0, w1  []float64 // readout weights of the active qubits
 }
 
 // run adds 3^(−|A|)·Σ_σ (M_A^t u_A)(σ) for the subset with mask a to out at
@@ -149,8 +174,9 @@ func (w *randomWorker) run(ctx context.Context, a uint64, out []float64) error {
 		w.local[q] = -1
 	}
 	active := 0
-	w.avoid = w.avoid[:0]
-	for _, e := range w.edges {
+	w.avoid, w.avoidM = w.avoid[:0], w.avoidM[:0]
+	w.w0, w.w1 = w.w0[:0], w.w1[:0]
+	for i, e := range w.edges {
 		if a>>e.A&1 == 1 || a>>e.B&1 == 1 {
 			continue
 		}
@@ -158,14 +184,26 @@ func (w *randomWorker) run(ctx context.Context, a uint64, out []float64) error {
 			if w.local[q] < 0 {
 				w.local[q] = active
 				active++
+				w.w0 = append(w.w0, w.read[q].i)
+				w.w1 = append(w.w1, w.read[q].s)
 			}
 		}
 		w.avoid = append(w.avoid, circuits.Edge{A: w.local[e.A], B: w.local[e.B]})
+		w.avoidM = append(w.avoidM, &w.m[i])
 	}
-	inA := bits.OnesCount64(a)
-	idle := n - inA - active
-	// 3^(−|A|)·(2/3)^idle, and each active qubit at (I+S)/3.
-	weight := math.Pow(3, -float64(inA)) * math.Pow(2.0/3, float64(idle))
+	// Each qubit of A reads out Δ = F − (I+S)/6: w_F − (w_I + w_S)/3, 1/3
+	// without noise; each idle qubit (I+S)/3: (w_I + w_S)/3, 2/3 without
+	// noise; and each active qubit starts at (I+S)/3.
+	weight := 1.0
+	for q := range n {
+		r := w.read[q]
+		switch {
+		case a>>q&1 == 1:
+			weight *= r.f - (r.i+r.s)/3
+		case w.local[q] < 0:
+			weight *= (r.i + r.s) / 3
+		}
+	}
 	if len(w.avoid) == 0 {
 		// Every gate touches A: only depth 0 survives, where u_A has
 		// readout (2/3)^(n−|A|).
@@ -185,7 +223,7 @@ func (w *randomWorker) run(ctx context.Context, a uint64, out []float64) error {
 	di := 0
 	for d := 0; ; d++ {
 		for di < len(w.depths) && w.depths[di] == d {
-			out[di] += randomSum(u)
+			out[di] += w.sum(u)
 			di++
 		}
 		if d == w.steps {
@@ -195,11 +233,20 @@ func (w *randomWorker) run(ctx context.Context, a uint64, out []float64) error {
 			return err
 		}
 		clear(next)
-		for _, e := range w.avoid {
-			engineAccumulateRange(u, next, e.A, e.B, w.m, 0, len(u)/4)
+		for k, e := range w.avoid {
+			engineAccumulateRange(u, next, e.A, e.B, w.avoidM[k], 0, len(u)/4)
 		}
 		u, next = next, u
 	}
+}
+
+// sum returns the readout of a chain's vector u: Σ u without noise (as
+// randomSum), the weighted sum of the active qubits' weights with it.
+func (w *randomWorker) sum(u []float64) float64 {
+	if w.noisy {
+		return readoutSum(u, w.w0, w.w1, 1, false)
+	}
+	return randomSum(u)
 }
 
 // randomSum returns Σ u in blocks of engineSumBlock, like Engine.Collision.

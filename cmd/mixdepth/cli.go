@@ -12,6 +12,7 @@ import (
 
 	"github.com/spf13/pflag"
 
+	"mixdepth/circuits"
 	"mixdepth/moments"
 	"mixdepth/runs"
 	"mixdepth/sampling"
@@ -55,7 +56,7 @@ var errInterrupted = errors.New("interrupted")
 var badInputErrors = []error{
 	sim.ErrTooLarge, tables.ErrDamaged, runs.ErrValue,
 	moments.ErrTooLarge,
-	moments.ErrNoExactMoments, moments.ErrEngine, moments.ErrOrder,
+	moments.ErrNoExactMoments, moments.ErrEngine, moments.ErrOrder, circuits.ErrNoiseRate,
 	scan.ErrConfig,
 	sampling.ErrConfig, sampling.ErrNoiseRange, sampling.ErrCircuitFile, sampling.ErrCircuitMismatch, sampling.ErrEmpty, sampling.ErrColumn, sampling.ErrColumnType, sampling.ErrNull, sampling.ErrNotNumber, sampling.ErrBitstring, sampling.ErrInstance, sampling.ErrProbability, sampling.ErrMismatch,
 }

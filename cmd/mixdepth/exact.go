@@ -12,11 +12,13 @@ import (
 	"strings"
 
 	"github.com/schollz/progressbar/v3"
+	"github.com/spf13/pflag"
 
 	"mixdepth/circuits"
 	"mixdepth/moments"
 	"mixdepth/plots"
 	"mixdepth/runs"
+	"mixdepth/tables"
 )
 
 func init() {
@@ -40,6 +42,9 @@ type exactJSON struct {
 	GapNote                string         `json:"gap_note,omitempty"`
 	Rows                   []exactJSONRow `json:"rows"`
 	Gap                    *exactJSONGap  `json:"gap,omitempty"`
+	// Noise and XEBAgreement are present with any noise flag.
+	Noise        *exactJSONNoise     `json:"noise,omitempty"`
+	XEBAgreement []exactXEBAgreement `json:"xeb_agreement,omitempty"`
 }
 
 type exactJSONRow struct {
@@ -51,6 +56,15 @@ type exactJSONRow struct {
 	Spread         bool     `json:"spread"`
 	TruncationErr  float64  `json:"truncation_error"`
 	BondDimUsed    int      `json:"bond_dim_used,omitempty"`
+	// GateError is the row's rate with a list of --gate-error values.
+	GateError *float64 `json:"gate_error,omitempty"`
+	// The benchmark fields, present with any noise flag.
+	XEBExpected     *float64 `json:"xeb_expected,omitempty"`
+	XEBIdeal        *float64 `json:"xeb_ideal,omitempty"`
+	XEBNormalized   *float64 `json:"xeb_normalized,omitempty"`
+	DigitalFidelity *float64 `json:"digital_fidelity,omitempty"`
+	XEBOverDigital  *float64 `json:"xeb_over_digital,omitempty"`
+	XEBTruncation   *float64 `json:"xeb_truncation_error,omitempty"`
 }
 
 type exactJSONGap struct {
@@ -71,7 +85,7 @@ func gatesHint(err error) error {
 }
 
 func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("exact", "Computes the ensemble averages that decide anti-concentration exactly, with no sampling:\nE[Z]/Z_H and the second frame potential F2 at each depth, and for the random-edge schedule\nthe spectral gap of the second-moment operator and the design-depth bound it implies.",
+	fs := newFlags("exact", "Computes the ensemble averages that decide anti-concentration exactly, with no sampling:\nE[Z]/Z_H and the second frame potential F2 at each depth, and for the random-edge schedule\nthe spectral gap of the second-moment operator and the design-depth bound it implies.\nWith a noise flag (--gate-error, --single-qubit-error, --readout-error, --fidelity) it also\npredicts the expected cross-entropy benchmark at each depth and compares it with the digital error model.",
 		"mixdepth exact --graph grid:3x4 --depths 1:16 --json", stdout)
 	var cf circuitFlags
 	cf.add(fs)
@@ -87,6 +101,8 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	orderFlag := fs.String("order", "auto", "qubit order of the mps engine: auto, or FILE listing the qubit ids in order")
 	asJSON := fs.Bool("json", false, "print one JSON document instead of the text report")
 	allow := fs.Bool("allow-disconnected", false, "accept a chip in parts; E[Z] is then measured against the product of the parts' Haar values, which it tends to")
+	var nf noiseFlags
+	nf.add(fs)
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
@@ -143,12 +159,23 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if *workers <= 0 {
 		return badInput("--workers %d: must be at least 1", *workers)
 	}
+	noisy := nf.given(fs)
+	if err := nf.parse(); err != nil {
+		return err
+	}
 	meta := runMeta(s, &cf)
 	meta.Set("command", "exact")
 	meta.Set("depths", joinInts(depths))
 	meta.Set("eps", strconv.FormatFloat(*eps, 'g', -1, 64))
+	if noisy {
+		nf.setMeta(meta)
+	}
 	if *out != "" {
-		if err := checkWritable(*out, runs.ExactFields(), meta, "--out"); err != nil {
+		fields := runs.ExactFields()
+		if noisy {
+			fields = runs.ExactXEBFields()
+		}
+		if err := checkWritable(*out, fields, meta, "--out"); err != nil {
 			return err
 		}
 	}
@@ -168,14 +195,42 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 			_ = bar.Set(done)
 		}
 	}
-	r, err := moments.Exact(ctx, s.graph, s.schedule, s.ensemble, depths,
-		moments.ExactWorkers(*workers), moments.ExactEps(*eps), moments.ExactProgress(progress),
-		moments.ExactEngine(*engine), moments.ExactBondDim(bondDim), moments.ExactOrder(order))
-	if err != nil {
-		return gatesHint(err)
+	exactOpts := []moments.ExactOption{moments.ExactWorkers(*workers), moments.ExactEps(*eps), moments.ExactProgress(progress),
+		moments.ExactEngine(*engine), moments.ExactBondDim(bondDim), moments.ExactOrder(order)}
+	// Without noise one run; with it, one run per gate error rate, the
+	// first also computing the frame potential and gap.
+	rates := []float64{0}
+	if noisy {
+		rates = nf.gateErrors
 	}
+	var results []*moments.Result
+	for k, rate := range rates {
+		opts := exactOpts
+		if noisy {
+			nz, err := exactNoise(s.graph, &nf, rate)
+			if err != nil {
+				return err
+			}
+			opts = append(slices.Clone(exactOpts), moments.ExactNoise(nz))
+			if k > 0 {
+				opts = append(opts, moments.ExactCurveOnly())
+			}
+		}
+		r, err := moments.Exact(ctx, s.graph, s.schedule, s.ensemble, depths, opts...)
+		if err != nil {
+			return gatesHint(err)
+		}
+		results = append(results, r)
+	}
+	r := results[0]
 	if *plot != "" {
-		if err := plotExact(*plot, s, r); err != nil {
+		var err error
+		if noisy {
+			err = plotXEB(*plot, s, rates, results)
+		} else {
+			err = plotExact(*plot, s, r)
+		}
+		if err != nil {
 			return err
 		}
 	}
@@ -187,7 +242,13 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	depth, found := r.Depth, r.Found
 
 	if *out != "" {
-		if err := runs.WriteExactTable(*out, meta, r); err != nil {
+		var err error
+		if noisy {
+			err = runs.WriteExactXEBTable(*out, meta, rates, results)
+		} else {
+			err = runs.WriteExactTable(*out, meta, r)
+		}
+		if err != nil {
 			return err
 		}
 	}
@@ -210,6 +271,30 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 				row.FramePotential = &r.Frame[i]
 			}
 			doc.Rows = append(doc.Rows, row)
+		}
+		if noisy {
+			doc.Noise = nf.json()
+			doc.Rows = doc.Rows[:0]
+			for k, rk := range results {
+				for i, d := range rk.Depths {
+					row := exactJSONRow{Depth: d, GateCount: rk.GateCounts[i], Collision: rk.Collision[i], CollisionRatio: rk.Ratio[i], Spread: rk.Spread(i),
+						TruncationErr: rk.TruncationError[i]}
+					row.setXEB(rk, i)
+					if rk.BondDimUsed != nil {
+						row.BondDimUsed = rk.BondDimUsed[i]
+					}
+					if r.Frame != nil {
+						row.FramePotential = &r.Frame[i]
+					}
+					if len(rates) > 1 {
+						row.GateError = &rates[k]
+					}
+					doc.Rows = append(doc.Rows, row)
+				}
+				a := xebAgreementOf(rk)
+				a.GateError = rates[k]
+				doc.XEBAgreement = append(doc.XEBAgreement, a)
+			}
 		}
 		return writeJSON(stdout, doc)
 	}
@@ -277,8 +362,11 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		}
 		fmt.Fprintln(stdout, sentence)
 	}
+	if noisy {
+		printXEB(stdout, &nf, rates, results)
+	}
 	if *out != "" {
-		fmt.Fprintf(stdout, "Per-depth table: %s (%d rows)\n", *out, len(r.Depths))
+		fmt.Fprintf(stdout, "Per-depth table: %s (%d rows)\n", *out, len(r.Depths)*len(results))
 	}
 	if *plot != "" {
 		fmt.Fprintf(stdout, "Plot: %s\n", *plot)
@@ -367,4 +455,202 @@ func explainTransfer(w io.Writer, e circuits.Ensemble) error {
 		fmt.Fprintln(w, "Circuits of this gate set end with a layer of single-qubit gates on every qubit.")
 	}
 	return nil
+}
+
+// noiseFlags are the noise flags of exact: with any of them given, exact
+// also predicts the cross-entropy benchmark.
+type noiseFlags struct {
+	gateSpec, readoutSpec string
+	single, fidelity      float64
+	// Parsed by parse.
+	gateErrors []float64
+	p01, p10   float64
+}
+
+// exactNoiseFlags are the flag names that switch the noisy benchmark on.
+var exactNoiseFlags = []string{"gate-error", "single-qubit-error", "readout-error", "fidelity"}
+
+func (nf *noiseFlags) add(fs *pflag.FlagSet) {
+	fs.StringVar(&nf.gateSpec, "gate-error", "0", "Pauli error rate in [0, 1] after every two-qubit gate (one of the 15 non-identity Paulis); a list or range as for --depths, e.g. 0.001:0.02:0.001, gives one block of rows per rate")
+	fs.Float64Var(&nf.single, "single-qubit-error", 0, "Pauli error rate in [0, 1] after every single-qubit gate (gate sets G·(u⊗u) and their final layer; Haar and Clifford gates have none)")
+	fs.StringVar(&nf.readoutSpec, "readout-error", "0,0", "readout flip probabilities p01,p10 (0→1, 1→0), or one value for both")
+	fs.Float64Var(&nf.fidelity, "fidelity", 1, "global depolarizing fidelity f in [0, 1]: the output law is f·q + (1−f)/D before the readout flips")
+}
+
+// given reports whether any noise flag was set on the command line.
+func (nf *noiseFlags) given(fs *pflag.FlagSet) bool {
+	return slices.ContainsFunc(exactNoiseFlags, fs.Changed)
+}
+
+// parse checks the noise flags; every rate must lie in [0, 1].
+func (nf *noiseFlags) parse() error {
+	rates, err := parseRates("--gate-error", nf.gateSpec)
+	if err != nil {
+		return err
+	}
+	nf.gateErrors = rates
+	if err := checkProbability("single-qubit-error", nf.single); err != nil {
+		return err
+	}
+	if err := checkProbability("fidelity", nf.fidelity); err != nil {
+		return err
+	}
+	nf.p01, nf.p10, err = parseReadout(nf.readoutSpec)
+	return err
+}
+
+// setMeta records the noise in the table metadata.
+func (nf *noiseFlags) setMeta(meta tables.Meta) {
+	rates := make([]string, len(nf.gateErrors))
+	for i, r := range nf.gateErrors {
+		rates[i] = formatFloat(r)
+	}
+	meta.Set("gate_error", strings.Join(rates, ","))
+	meta.Set("single_qubit_error", formatFloat(nf.single))
+	meta.Set("readout_error", formatFloat(nf.p01)+","+formatFloat(nf.p10))
+	meta.Set("fidelity", formatFloat(nf.fidelity))
+}
+
+// exactNoise returns the chip noise of g for one gate error rate and the
+// other noise flags: the same rates on every coupler and qubit.
+func exactNoise(g *circuits.Graph, nf *noiseFlags, gateError float64) (*circuits.ChipNoise, error) {
+	nz := circuits.UniformNoise(g, gateError, nf.single, nf.p01, nf.p10, nf.fidelity)
+	if err := nz.Validate(g); err != nil {
+		return nil, badInput("%v; every rate must lie in [0, 1]", err)
+	}
+	return nz, nil
+}
+
+// exactMaxRates bounds the --gate-error list: each rate is one exact run.
+const exactMaxRates = 1000
+
+// parseRates reads a list of rates in [0, 1] with the syntax of the depth
+// lists: items separated by commas, each a value or a range FROM:TO:STEP
+// (FROM:TO alone is refused: a rate range needs its step). Range values are
+// FROM + k·STEP, so no rounding accumulates, up to TO within 1e-9·STEP.
+func parseRates(flag, spec string) ([]float64, error) {
+	bad := func(format string, args ...any) error {
+		return badInput("%s %q: %s", flag, echo(spec), fmt.Sprintf(format, args...))
+	}
+	var out []float64
+	for _, item := range strings.Split(spec, ",") {
+		item = strings.TrimSpace(item)
+		parts := strings.Split(item, ":")
+		if item == "" || len(parts) == 2 || len(parts) > 3 {
+			return nil, bad("write rates as a list like 0.001,0.005 or ranges FROM:TO:STEP")
+		}
+		nums := make([]float64, len(parts))
+		for i, p := range parts {
+			v, err := strconv.ParseFloat(strings.TrimSpace(p), 64)
+			if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
+				return nil, bad("%q is not a number", p)
+			}
+			nums[i] = v
+		}
+		from, to, step := nums[0], nums[0], 1.0
+		if len(nums) == 3 {
+			to, step = nums[1], nums[2]
+		}
+		if !(step > 0) || to < from {
+			return nil, bad("a range FROM:TO:STEP needs FROM ≤ TO and STEP > 0")
+		}
+		if from < 0 || to > 1 {
+			return nil, bad("rates must lie in [0, 1]")
+		}
+		count := math.Floor((to-from)/step+1e-9) + 1
+		if float64(len(out))+count > exactMaxRates {
+			return nil, bad("more than %d rates; use a larger step", exactMaxRates)
+		}
+		for k := range int(count) {
+			out = append(out, min(from+float64(k)*step, to))
+		}
+	}
+	slices.Sort(out)
+	return slices.Compact(out), nil
+}
+
+// exactJSONNoise is the noise of the run in the JSON document.
+type exactJSONNoise struct {
+	GateErrors       []float64 `json:"gate_errors"`
+	SingleQubitError float64   `json:"single_qubit_error"`
+	Readout01        float64   `json:"readout_error_01"`
+	Readout10        float64   `json:"readout_error_10"`
+	Fidelity         float64   `json:"fidelity"`
+}
+
+func (nf *noiseFlags) json() *exactJSONNoise {
+	return &exactJSONNoise{GateErrors: nf.gateErrors, SingleQubitError: nf.single, Readout01: nf.p01, Readout10: nf.p10, Fidelity: nf.fidelity}
+}
+
+// setXEB fills the benchmark fields of row from depth index i of r.
+func (row *exactJSONRow) setXEB(r *moments.Result, i int) {
+	row.XEBExpected, row.XEBIdeal, row.XEBNormalized = &r.XEBExpected[i], &r.XEBIdeal[i], &r.XEBNormalized[i]
+	row.DigitalFidelity, row.XEBOverDigital, row.XEBTruncation = &r.DigitalFidelity[i], &r.XEBOverDigital[i], &r.XEBTruncationError[i]
+}
+
+// exactXEBAgreement says from which depth on the digital model stays within
+// 1% and 5% of the exact value, for one gate error rate (null: at no
+// requested depth onwards).
+type exactXEBAgreement struct {
+	GateError float64 `json:"gate_error"`
+	Within1   *int    `json:"digital_within_1pct_from_depth"`
+	Within5   *int    `json:"digital_within_5pct_from_depth"`
+}
+
+// xebStaysWithin returns the first depth from which every later requested
+// depth has |XEBOverDigital − 1| ≤ tol.
+func xebStaysWithin(r *moments.Result, tol float64) (int, bool) {
+	first := -1
+	for i := len(r.Depths) - 1; i >= 0; i-- {
+		if !(math.Abs(r.XEBOverDigital[i]-1) <= tol) {
+			break
+		}
+		first = i
+	}
+	if first < 0 {
+		return 0, false
+	}
+	return r.Depths[first], true
+}
+
+func xebAgreementOf(r *moments.Result) exactXEBAgreement {
+	var a exactXEBAgreement
+	if d, ok := xebStaysWithin(r, 0.01); ok {
+		a.Within1 = &d
+	}
+	if d, ok := xebStaysWithin(r, 0.05); ok {
+		a.Within5 = &d
+	}
+	return a
+}
+
+// printXEB prints the benchmark blocks of the text report, one per rate.
+func printXEB(w io.Writer, nf *noiseFlags, rates []float64, results []*moments.Result) {
+	for k, r := range results {
+		fmt.Fprintln(w)
+		fmt.Fprintf(w, "Expected cross-entropy benchmark · gate error %g · single-qubit error %g · readout %g,%g · fidelity %g\n",
+			rates[k], nf.single, nf.p01, nf.p10, nf.fidelity)
+		fmt.Fprintf(w, "%6s %7s %13s %13s %15s %17s %17s\n", "depth", "gates", "xeb_expected", "xeb_ideal", "xeb_normalized", "digital_fidelity", "xeb_over_digital")
+		for i, d := range r.Depths {
+			fmt.Fprintf(w, "%6d %7d %13.6g %13.6g %15.6f %17.6f %17.6f\n", d, r.GateCounts[i], r.XEBExpected[i], r.XEBIdeal[i],
+				r.XEBNormalized[i], r.DigitalFidelity[i], r.XEBOverDigital[i])
+		}
+		say := func(tol float64) string {
+			if d, ok := xebStaysWithin(r, tol); ok {
+				return fmt.Sprintf("from depth %d on", d)
+			}
+			return fmt.Sprintf("not yet at depth %d, the last requested", r.Depths[len(r.Depths)-1])
+		}
+		fmt.Fprintf(w, "Digital model against the exact benchmark: within 1%% %s; within 5%% %s.\n", say(0.01), say(0.05))
+	}
+}
+
+// plotXEB draws XEB/digital against depth, one curve per gate error rate.
+func plotXEB(path string, s *setup, rates []float64, results []*moments.Result) error {
+	var curves []plots.XEBCurve
+	for k, r := range results {
+		curves = append(curves, plots.XEBCurve{Label: "gate error " + formatFloat(rates[k]), Depths: r.Depths, OverDigital: r.XEBOverDigital})
+	}
+	return plots.SaveXEBPlot(path, curves, plots.WithDepthUnit(depthUnit(s)),
+		plots.WithTitle(s.graph.Name+", "+s.ensemble.Name()+" gates: exact XEB over the digital model"))
 }

@@ -60,9 +60,14 @@ type Report struct {
 	LinearErrInstances                                       float64
 	HasInstanceErr                                           bool
 	Confidence                                               float64
-	// PorterThomas is (D−1)/(D+1), the value of Ideal for Haar-random
-	// outputs (Boixo et al. 2018).
+	// PorterThomas is D·Limit − 1, the value Ideal tends to at large
+	// depth: (D−1)/(D+1) for Haar-random outputs of a connected chip
+	// (Limit = 2/(D+1); Boixo et al. 2018), D times the product of the
+	// parts' Haar values, minus 1, for a chip in parts (SetLimit).
 	PorterThomas float64
+	// Limit is the E[Z] the circuits tend to: 2/(D+1) unless SetLimit
+	// changed it.
+	Limit float64
 	// Spread is true when Ideal lies within Eps of PorterThomas
 	// (relative). Otherwise the raw F_lin misstates the fidelity (it
 	// overstates it when Ideal > 1): read Normalized instead, and prefer
@@ -82,7 +87,7 @@ func Score(qubits int, groups []InstanceSamples) *Report {
 		panic("sampling: Score needs at least 1 qubit")
 	}
 	dim := math.Ldexp(1, qubits)
-	r := &Report{Qubits: qubits, PorterThomas: (dim - 1) / (dim + 1)}
+	r := &Report{Qubits: qubits, PorterThomas: (dim - 1) / (dim + 1), Limit: stats.HaarCollision(dim)}
 	var all []float64
 	var idealSum float64
 	for _, g := range groups {
@@ -115,6 +120,19 @@ func Score(qubits int, groups []InstanceSamples) *Report {
 	r.LinearErrInstances, _, _, _ = stats.ClusterBootstrap(num, shots, r.Confidence)
 	r.SetEps(DefaultEps)
 	return r
+}
+
+// SetLimit sets Limit, the E[Z] the circuits tend to (moments.PartsLimit
+// for a chip in parts, whose parts' states are independent, so that E[Z]
+// is the product of their Haar values), and with it PorterThomas =
+// D·limit − 1 and Spread. It panics unless 0 < limit ≤ 1.
+func (r *Report) SetLimit(limit float64) {
+	if !(limit > 0 && limit <= 1) {
+		panic("sampling: limit must lie in (0, 1]")
+	}
+	r.Limit = limit
+	r.PorterThomas = math.Ldexp(limit, r.Qubits) - 1
+	r.SetEps(r.Eps)
 }
 
 // SetEps sets the threshold Eps and Spread = |Ideal/PorterThomas − 1| ≤ eps.

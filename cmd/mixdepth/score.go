@@ -209,21 +209,16 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		}
 		warnings = append(warnings, w)
 	}
-	if sampling.LowScore(rep) {
-		// Bits in the other order score as unrelated outputs; say so when
-		// the other order scores high. A row's p_ideal belongs to its own
-		// order, so the trial ignores it.
-		other := sampling.Reversed(recs)
-		for i := range other {
-			other[i].HasP = false
-		}
-		if g, err := sampling.Collect(ctx, path, other, qubits, lookup, *workers); err == nil {
-			if rev := sampling.Score(qubits, g); sampling.ScoresBetter(rev, rep) {
-				flip := map[sampling.BitOrder]string{sampling.QubitZeroFirst: "last", sampling.QubitZeroLast: "first"}[order]
-				warnings = append(warnings, fmt.Sprintf("the linear XEB %s is low, but with each bitstring reversed it is %s: the data may list qubit 0 %s; score with --bit-order %s",
-					plusMinus(rep.Linear, rep.LinearErr), plusMinus(rev.Linear, rev.LinearErr), flip, flip))
-			}
-		}
+	bits, err := sampling.CheckBitOrder(ctx, path, recs, qubits, lookup, *workers, rep)
+	if errors.Is(err, context.Canceled) {
+		return errInterrupted
+	}
+	// Any other failure would have stopped the first Collect: reversing
+	// a bitstring keeps its length and characters.
+	if err == nil && bits.Suggest {
+		flip := map[sampling.BitOrder]string{sampling.QubitZeroFirst: "last", sampling.QubitZeroLast: "first"}[order]
+		warnings = append(warnings, fmt.Sprintf("the linear XEB %s is near 0 (within %d standard errors), but with each bitstring reversed it is %s: the data may list qubit 0 %s; score with --bit-order %s",
+			plusMinus(rep.Linear, rep.LinearErr), sampling.BitOrderSigmas, plusMinus(bits.Reversed.Linear, bits.Reversed.LinearErr), flip, flip))
 	}
 	for _, w := range warnings {
 		fmt.Fprintln(stderr, "mixdepth: warning: "+w)

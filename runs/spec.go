@@ -1,6 +1,7 @@
 package runs
 
 import (
+	"context"
 	"fmt"
 
 	"mixdepth/circuits"
@@ -102,7 +103,12 @@ func (e *OptionError) Unwrap() error { return e.Err }
 // schedule's classes of circuits.LayeredClasses unless a layout gives them;
 // then the elements of Drop removed from the graph and the layout. Every
 // failure is an *OptionError.
-func NewSpec(o Options) (*Spec, error) {
+func NewSpec(o Options) (*Spec, error) { return NewSpecContext(context.Background(), o) }
+
+// NewSpecContext is NewSpec that stops when ctx is done, returning an error
+// wrapping ctx.Err() (not an *OptionError): the edge colouring of a large
+// graph's layered classes takes minutes.
+func NewSpecContext(ctx context.Context, o Options) (*Spec, error) {
 	s := &Spec{Layout: o.Layout, Seed: o.Seed}
 	ro := circuits.ReadOptions{AllowDisconnected: o.AllowDisconnected}
 	var layout *circuits.Layout
@@ -158,7 +164,11 @@ func NewSpec(o Options) (*Spec, error) {
 		if layout != nil {
 			s.Schedule = layout.Schedule()
 		} else {
-			s.Schedule = &circuits.Layered{Classes: circuits.LayeredClasses(s.Graph)}
+			classes, err := circuits.LayeredClassesContext(ctx, s.Graph)
+			if err != nil {
+				return nil, fmt.Errorf("runs: colouring the couplers of %s into layers: %w", s.Graph.Name, err)
+			}
+			s.Schedule = &circuits.Layered{Classes: classes}
 		}
 	case "random-edge":
 		if o.Layout != "" {

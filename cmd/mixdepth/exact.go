@@ -110,7 +110,7 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if err := files.check(fs); err != nil {
 		return err
 	}
-	s, err := cf.resolve()
+	s, err := cf.resolve(ctx)
 	if err != nil {
 		return err
 	}

@@ -1,6 +1,8 @@
 package main
 
 import (
+	"bytes"
+	"context"
 	"encoding/json"
 	"math"
 	"path/filepath"
@@ -118,5 +120,25 @@ func TestScorePartsLimit(t *testing.T) {
 	sm := stats.Summarize(ideal)
 	if dev := (sm.Mean - want) / sm.StdErr; math.Abs(dev) > 4 {
 		t.Errorf("mean ideal XEB %.4f ± %.4f is %.1f s.e. from %.4f", sm.Mean, sm.StdErr, dev, want)
+	}
+}
+
+// TestSetupCancelled: a signal during the edge colouring of a large graph
+// (complete:300: seconds of colouring before exact or graph can start) stops
+// the command, which exits 130 as for any interruption; the context is
+// cancelled from another goroutine as the command starts.
+func TestSetupCancelled(t *testing.T) {
+	for _, args := range [][]string{
+		{"exact", "--graph", "complete:300", "--depths", "1"},
+		{"graph", "complete:300"},
+	} {
+		ctx, cancel := context.WithCancel(context.Background())
+		go cancel()
+		var out, errb bytes.Buffer
+		code := exitCode(run(ctx, args, &out, &errb), &errb)
+		t.Logf("%s: %s", args[0], strings.TrimSpace(errb.String()))
+		if code != 130 {
+			t.Errorf("%s cancelled during set-up: exit %d, stderr %q; want 130", args[0], code, errb.String())
+		}
 	}
 }

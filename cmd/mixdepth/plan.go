@@ -88,7 +88,7 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if fs.NArg() > 0 {
 		return badInput("plan takes no positional arguments (got %q)", fs.Arg(0))
 	}
-	s, err := cf.resolve()
+	s, err := cf.resolve(ctx)
 	if err != nil {
 		return err
 	}

@@ -102,7 +102,7 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	if err := files.check(fs); err != nil {
 		return err
 	}
-	s, err := cf.resolve()
+	s, err := cf.resolve(ctx)
 	if err != nil {
 		return err
 	}

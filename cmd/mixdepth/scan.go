@@ -94,7 +94,7 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if fs.NArg() > 0 {
 		return badInput("scan takes no positional arguments (got %q)", fs.Arg(0))
 	}
-	s, err := cf.resolve()
+	s, err := cf.resolve(ctx)
 	if err != nil {
 		return err
 	}

@@ -140,7 +140,7 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 			return err
 		}
 		if fs.Changed("graph") || fs.Changed("layout") {
-			s, err := cf.resolve()
+			s, err := cf.resolve(ctx)
 			if err != nil {
 				return err
 			}
@@ -162,7 +162,7 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 			parts, limit = len(g.Components()), moments.PartsLimit(g, final)
 		}
 	} else {
-		s, seed, d, total, err := scoreSetup(fs.Changed, &cf, *depth, meta, sampled, path)
+		s, seed, d, total, err := scoreSetup(ctx, fs.Changed, &cf, *depth, meta, sampled, path)
 		if err != nil {
 			return err
 		}
@@ -349,14 +349,14 @@ func readCircuitFile(path string) (*sampling.CircuitFile, error) {
 // given, else from the flags; --seed and --depth override the table's.
 // total is the full run's instance count when the table records it (ids at
 // or above it are unknown), else 0.
-func scoreSetup(changed func(string) bool, cf *circuitFlags, depth int, meta tables.Meta, sampled bool, path string) (s *setup, seed uint64, d, total int, err error) {
+func scoreSetup(ctx context.Context, changed func(string) bool, cf *circuitFlags, depth int, meta tables.Meta, sampled bool, path string) (s *setup, seed uint64, d, total int, err error) {
 	flagged := changed("graph") || changed("layout") || changed("schedule") || changed("gates") || changed("drop")
 	if sampled && !flagged {
 		if s, err = setupFromMeta(meta); err != nil {
 			return nil, 0, 0, 0, badInput("%s: cannot rebuild its circuits: %v; give --circuits FILE.json or the circuit flags", path, err)
 		}
 	} else {
-		if s, err = cf.resolve(); err != nil {
+		if s, err = cf.resolve(ctx); err != nil {
 			return nil, 0, 0, 0, err
 		}
 		if digest, ok := meta.Get("graph_digest"); ok && sampled && digest != s.graph.Digest() {

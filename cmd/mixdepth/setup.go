@@ -1,6 +1,7 @@
 package main
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"os"
@@ -61,17 +62,21 @@ func newSetup(sp *runs.Spec) *setup {
 	return &setup{spec: sp, graph: sp.Graph, schedule: sp.Schedule, ensemble: sp.Ensemble, layout: sp.Layout, demo: sp.Demo}
 }
 
-// resolve builds the graph, schedule and ensemble; every failure is bad input.
-func (c *circuitFlags) resolve() (*setup, error) { return c.resolveWith(func(*runs.Options) {}) }
+// resolve builds the graph, schedule and ensemble; every failure is bad
+// input, except an interruption (ctx done during the colouring of a large
+// graph), which wraps ctx.Err().
+func (c *circuitFlags) resolve(ctx context.Context) (*setup, error) {
+	return c.resolveWith(ctx, func(*runs.Options) {})
+}
 
 // resolveWith is resolve with a change to the options before the spec is
 // built.
-func (c *circuitFlags) resolveWith(change func(*runs.Options)) (*setup, error) {
+func (c *circuitFlags) resolveWith(ctx context.Context, change func(*runs.Options)) (*setup, error) {
 	o := runs.Options{Graph: c.graph, Layout: c.layout, Schedule: c.schedule, Gates: c.gates, Seed: c.seed, Drop: c.drop, Unitarize: c.unitarize,
 		AllowDisconnected: c.allowDisconnected}
 	o.CheckGraph = c.checkGraph
 	change(&o)
-	sp, err := runs.NewSpec(o)
+	sp, err := runs.NewSpecContext(ctx, o)
 	var oe *runs.OptionError
 	if errors.As(err, &oe) {
 		if oe.Value != "" {

@@ -1,5 +1,7 @@
 package circuits
 
+import "context"
+
 // BalanceClasses evens out the sizes of the classes of a proper edge
 // colouring, in place, so that any two classes differ by at most one edge,
 // and returns classes. Each class must be a set of disjoint edges, and stays
@@ -13,14 +15,25 @@ package circuits
 // edges in the order of g.Edges, the edges the classes cover. Choices are
 // deterministic.
 func BalanceClasses(g *Graph, classes [][]Edge) [][]Edge {
+	out, _ := BalanceClassesContext(context.Background(), g, classes)
+	return out
+}
+
+// BalanceClassesContext is BalanceClasses that stops when ctx is done,
+// returning nil and ctx.Err() (classes is then partly balanced, still a
+// proper colouring).
+func BalanceClassesContext(ctx context.Context, g *Graph, classes [][]Edge) ([][]Edge, error) {
 	if len(classes) < 2 {
-		return classes
+		return classes, nil
 	}
 	order := make(map[[2]int]int, len(g.Edges))
 	for i, e := range g.Edges {
 		order[key(e)] = i
 	}
-	for {
+	for k := 0; ; k++ {
+		if k%ctxStride == 0 && ctx.Err() != nil {
+			return nil, ctx.Err()
+		}
 		big, small := 0, 0
 		for i, cl := range classes {
 			if len(cl) > len(classes[big]) {
@@ -31,7 +44,7 @@ func BalanceClasses(g *Graph, classes [][]Edge) [][]Edge {
 			}
 		}
 		if len(classes[big])-len(classes[small]) <= 1 {
-			return classes
+			return classes, nil
 		}
 		classes[big], classes[small] = kempeMove(classes[big], classes[small], order)
 	}

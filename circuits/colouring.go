@@ -1,5 +1,7 @@
 package circuits
 
+import "context"
+
 // EdgeColouring returns a proper edge colouring of g with at most Δ+1 colours,
 // as classes of edges in colour order, each class listing its edges in the
 // order of g.Edges. It follows the constructive proof of Vizing's theorem by
@@ -9,6 +11,19 @@ package circuits
 // fan. Every choice takes the smallest candidate, so the result depends only
 // on g.
 func EdgeColouring(g *Graph) [][]Edge {
+	classes, _ := EdgeColouringContext(context.Background(), g)
+	return classes
+}
+
+// ctxStride is the number of edges (or class moves) between two checks of
+// the context in the colouring loops: often enough to stop within a
+// fraction of a second, rarely enough to cost nothing.
+const ctxStride = 256
+
+// EdgeColouringContext is EdgeColouring that stops when ctx is done,
+// returning nil and ctx.Err(): the colouring of a graph with millions of
+// edges takes minutes.
+func EdgeColouringContext(ctx context.Context, g *Graph) ([][]Edge, error) {
 	n := g.Qubits
 	ncol := g.MaxDegree() + 1
 	// at[u*ncol+c] is the neighbour joined to u by an edge of colour c, or -1.
@@ -43,7 +58,10 @@ func EdgeColouring(g *Graph) [][]Edge {
 		panic("circuits: no free colour; the colouring invariant is broken")
 	}
 
-	for _, e := range g.Edges {
+	for k, e := range g.Edges {
+		if k%ctxStride == 0 && ctx.Err() != nil {
+			return nil, ctx.Err()
+		}
 		u := e.A
 		// A maximal fan of u starting at the uncoloured edge (u, e.B).
 		fan := []int{e.B}
@@ -134,5 +152,5 @@ func EdgeColouring(g *Graph) [][]Edge {
 			out = append(out, cl)
 		}
 	}
-	return out
+	return out, nil
 }

@@ -144,11 +144,11 @@ func dropDetail(err error, labels []string) string {
 		// "qubit N is on no edge …": name it by label.
 		var q int
 		if _, e := fmt.Sscanf(d, "qubit %d", &q); e == nil && q < len(labels) {
-			return "qubit " + labels[q] + " would be left on no coupler; drop it too (graph and exact accept a chip in parts with --allow-disconnected)"
+			return "qubit " + labels[q] + " would be left on no coupler; drop it too (--allow-disconnected accepts a chip in parts)"
 		}
 	}
 	if pe.Err == ErrDisconnected {
-		return "it falls into parts; drop less (graph and exact accept a chip in parts with --allow-disconnected)"
+		return "it falls into parts; drop less (--allow-disconnected accepts a chip in parts)"
 	}
 	return d
 }

@@ -170,7 +170,7 @@ func ReadEdgeListWith(name string, r io.Reader, o ReadOptions) (*Graph, error) {
 				if named {
 					label = labels[q]
 				}
-				return nil, &ParseError{File: name, Line: declared[q], Err: ErrIsolatedQubit, Detail: fmt.Sprintf("qubit %s is on no coupler; couple it (graph and exact accept it with --allow-disconnected)", label)}
+				return nil, &ParseError{File: name, Line: declared[q], Err: ErrIsolatedQubit, Detail: fmt.Sprintf("qubit %s is on no coupler; couple it (--allow-disconnected accepts it)", label)}
 			}
 		}
 		return nil, err

@@ -169,7 +169,7 @@ func newGraph(name string, n int, edges []Edge, parts bool) (*Graph, error) {
 		return nil, isolatedError(name, q, n-1)
 	}
 	if comps := len(g.Components()); comps > 1 {
-		return nil, &ParseError{File: name, Err: ErrDisconnected, Detail: fmt.Sprintf("%d separate parts; random circuits on it never mix between them (graph and exact accept it with --allow-disconnected)", comps)}
+		return nil, &ParseError{File: name, Err: ErrDisconnected, Detail: fmt.Sprintf("%d separate parts; random circuits on it never mix between them (--allow-disconnected accepts it)", comps)}
 	}
 	return g, nil
 }
@@ -207,7 +207,7 @@ func firstDuplicate(edges []Edge) (at, of int) {
 func firstIsolated(n int, edges []Edge) int { return firstUnlisted(n-1, edges, nil) }
 
 func isolatedError(name string, q, maxID int) error {
-	return &ParseError{File: name, Err: ErrIsolatedQubit, Detail: fmt.Sprintf("qubit %d is on no edge (qubits are 0..%d); couple it or renumber the qubits (graph and exact accept it with --allow-disconnected)", q, maxID)}
+	return &ParseError{File: name, Err: ErrIsolatedQubit, Detail: fmt.Sprintf("qubit %d is on no edge (qubits are 0..%d); couple it or renumber the qubits (--allow-disconnected accepts it)", q, maxID)}
 }
 
 func key(e Edge) [2]int {

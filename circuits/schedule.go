@@ -1,6 +1,7 @@
 package circuits
 
 import (
+	"context"
 	"fmt"
 	"math/rand/v2"
 )
@@ -101,6 +102,14 @@ func NewSchedule(kind ScheduleKind, g *Graph) (Schedule, error) {
 //
 // Empty classes are dropped.
 func LayeredClasses(g *Graph) [][]Edge {
+	classes, _ := LayeredClassesContext(context.Background(), g)
+	return classes
+}
+
+// LayeredClassesContext is LayeredClasses that stops when ctx is done,
+// returning nil and ctx.Err(): the colouring of a large graph
+// (EdgeColouringContext, BalanceClassesContext) takes minutes.
+func LayeredClassesContext(ctx context.Context, g *Graph) ([][]Edge, error) {
 	var classes [][]Edge
 	switch {
 	case g.Classes != nil:
@@ -108,7 +117,7 @@ func LayeredClasses(g *Graph) [][]Edge {
 		for i, cl := range g.Classes {
 			classes[i] = append([]Edge(nil), cl...)
 		}
-		return nonEmpty(classes)
+		return nonEmpty(classes), nil
 	}
 	switch g.Family {
 	case "line", "ring":
@@ -141,7 +150,13 @@ func LayeredClasses(g *Graph) [][]Edge {
 			}
 		}
 	default:
-		classes = BalanceClasses(g, EdgeColouring(g))
+		var err error
+		if classes, err = EdgeColouringContext(ctx, g); err != nil {
+			return nil, err
+		}
+		if classes, err = BalanceClassesContext(ctx, g, classes); err != nil {
+			return nil, err
+		}
 	}
 	out := classes[:0]
 	for _, cl := range classes {
@@ -149,5 +164,5 @@ func LayeredClasses(g *Graph) [][]Edge {
 			out = append(out, cl)
 		}
 	}
-	return out
+	return out, nil
 }

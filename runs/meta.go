@@ -27,6 +27,14 @@ const (
 	KeyDropped = "dropped"
 )
 
+// KeyParts is the metadata key of a chip in parts (accepted with
+// --allow-disconnected): the number of its connected parts, present only
+// when it is more than one. It is a run parameter, so merge and resume
+// refuse to mix a run on a chip in parts with one on a connected chip, and
+// it tells FromMeta to accept the graph and the commands to measure R
+// against Spec.Limit. Tables without it are of connected chips.
+const KeyParts = "parts"
+
 // freeKeys are the metadata keys that are not run parameters: they may differ
 // between the tables of one run (its parts, a partial table and its
 // continuation). Every other key is a run parameter.
@@ -41,7 +49,7 @@ func IsParameter(key string) bool { return !slices.Contains(freeKeys, key) }
 // tool_version, command_line (as given), seed, graph, graph_digest, qubits,
 // schedule, layout, gates, then gate_set and gate_set_digest for a gate set
 // read from a file, edges ("a-b,c-d,…"), labels and dropped when the graph
-// has them, and for a layered schedule layers (its classes, "a-b,c-d;e-f;…").
+// has them, parts for a chip in parts, and for a layered schedule layers (its classes, "a-b,c-d;e-f;…").
 // FromMeta rebuilds the Spec from it.
 func (s *Spec) Meta(commandLine string) tables.Meta {
 	var m tables.Meta
@@ -64,6 +72,9 @@ func (s *Spec) Meta(commandLine string) tables.Meta {
 	}
 	if len(s.Graph.Dropped) > 0 {
 		m.Set(KeyDropped, strings.Join(s.Graph.Dropped, ","))
+	}
+	if s.Parts > 1 {
+		m.Set(KeyParts, strconv.Itoa(s.Parts))
 	}
 	if l, ok := s.Schedule.(*circuits.Layered); ok {
 		m.Set("layers", formatLayers(l.Classes))
@@ -101,9 +112,22 @@ func FromMeta(meta tables.Meta) (*Spec, error) {
 	if err != nil {
 		return nil, fmt.Errorf("runs: metadata edges: %w", err)
 	}
-	g, err := circuits.NewGraph(name, qubits, edges)
+	parts := 0
+	if _, ok := meta.Get(KeyParts); ok {
+		if parts, err = MetaInt(meta, KeyParts); err != nil {
+			return nil, err
+		}
+	}
+	newGraph := circuits.NewGraph
+	if parts > 1 {
+		newGraph = circuits.NewGraphParts
+	}
+	g, err := newGraph(name, qubits, edges)
 	if err != nil {
 		return nil, fmt.Errorf("runs: metadata edges: %w", err)
+	}
+	if c := len(g.Components()); parts > 1 && c != parts {
+		return nil, fmt.Errorf("runs: metadata %s is %d but the edges form %d part(s): the metadata was altered", KeyParts, parts, c)
 	}
 	if v, ok := meta.Get(KeyLabels); ok {
 		labels := strings.Split(v, ",")
@@ -123,6 +147,9 @@ func FromMeta(meta tables.Meta) (*Spec, error) {
 		return nil, fmt.Errorf("runs: metadata edges give graph digest %s but graph_digest is %s: the metadata was altered", g.Digest(), digest)
 	}
 	s := &Spec{Graph: g}
+	if parts > 1 {
+		s.Parts = parts
+	}
 	s.Layout, _ = meta.Get("layout")
 	kind, err := get("schedule")
 	if err != nil {

@@ -278,7 +278,7 @@ func Resume(path string, want tables.Meta, ids []int) (previous []scan.Record, t
 // order, from the collision_exact column that scan --exact writes, or nil
 // when the tables carry none (so a plot of the merged tables shows what scan
 // --plot showed). qubits gives Z_H = 2/(D+1).
-func (s *Set) ExactRatios(qubits int) []float64 {
+func (s *Set) ExactRatios(limit float64) []float64 {
 	byDepth := map[int]float64{}
 	for _, m := range s.Members {
 		z, err := m.Table.Float64s(scanExactField.Name)
@@ -294,10 +294,9 @@ func (s *Set) ExactRatios(qubits int) []float64 {
 		}
 	}
 	depths := slices.Sorted(maps.Keys(byDepth))
-	zh := stats.HaarCollision(math.Ldexp(1, qubits))
 	out := make([]float64, len(depths))
 	for i, d := range depths {
-		out[i] = byDepth[d] / zh
+		out[i] = byDepth[d] / limit
 	}
 	return out
 }

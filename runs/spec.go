@@ -1,10 +1,14 @@
 package runs
 
 import (
+	"context"
 	"fmt"
 
 	"mixdepth/circuits"
 	"mixdepth/fixtures"
+	"mixdepth/moments"
+	"mixdepth/scan"
+	"mixdepth/stats"
 )
 
 // Options are the string options that select a run's circuits, as a user
@@ -25,9 +29,9 @@ type Options struct {
 	// Drop lists out-of-service qubits and couplers (circuits.Drop), or "".
 	Drop string
 	// AllowDisconnected accepts a chip with isolated qubits or several
-	// parts. Only a description of the chip sets it: the run commands
-	// measure R against the Haar value of the whole chip, which such a chip
-	// never reaches.
+	// parts. Such a chip never reaches the Haar value of the whole chip:
+	// its E[Z] tends to Spec.Limit, the product of the parts' Haar values,
+	// against which the commands then measure R.
 	AllowDisconnected bool
 	// Unitarize replaces the matrices of a gate-set file by their nearest
 	// unitaries (circuits.GateOptions).
@@ -57,6 +61,20 @@ type Spec struct {
 	// Kept nil when nothing was dropped.
 	Chip *circuits.Graph
 	Kept []int
+	// Parts is the number of connected parts of Graph (an isolated qubit is
+	// a part) when it has more than one, which only
+	// Options.AllowDisconnected accepts; 0 for a connected graph. Meta
+	// records it (key parts), so that FromMeta accepts the graph again.
+	Parts int
+}
+
+// Limit is the value E[Z] tends to at large depth: the Haar value 2/(D+1)
+// of the whole chip for a connected graph, the product of the parts' Haar
+// values for a chip in parts (moments.PartsLimit: the parts' states are
+// independent). The commands measure R = E[Z]/Limit.
+func (s *Spec) Limit() float64 {
+	_, final := s.Ensemble.(circuits.Finisher)
+	return moments.PartsLimit(s.Graph, final)
 }
 
 // OptionError reports an option that does not select valid circuits. Option
@@ -85,7 +103,12 @@ func (e *OptionError) Unwrap() error { return e.Err }
 // schedule's classes of circuits.LayeredClasses unless a layout gives them;
 // then the elements of Drop removed from the graph and the layout. Every
 // failure is an *OptionError.
-func NewSpec(o Options) (*Spec, error) {
+func NewSpec(o Options) (*Spec, error) { return NewSpecContext(context.Background(), o) }
+
+// NewSpecContext is NewSpec that stops when ctx is done, returning an error
+// wrapping ctx.Err() (not an *OptionError): the edge colouring of a large
+// graph's layered classes takes minutes.
+func NewSpecContext(ctx context.Context, o Options) (*Spec, error) {
 	s := &Spec{Layout: o.Layout, Seed: o.Seed}
 	ro := circuits.ReadOptions{AllowDisconnected: o.AllowDisconnected}
 	var layout *circuits.Layout
@@ -128,6 +151,9 @@ func NewSpec(o Options) (*Spec, error) {
 			layout = layout.Drop(d)
 		}
 	}
+	if p := len(s.Graph.Components()); p > 1 {
+		s.Parts = p
+	}
 	if o.CheckGraph != nil {
 		if err := o.CheckGraph(s.Graph); err != nil {
 			return nil, &OptionError{Option: "graph", Err: err}
@@ -138,7 +164,11 @@ func NewSpec(o Options) (*Spec, error) {
 		if layout != nil {
 			s.Schedule = layout.Schedule()
 		} else {
-			s.Schedule = &circuits.Layered{Classes: circuits.LayeredClasses(s.Graph)}
+			classes, err := circuits.LayeredClassesContext(ctx, s.Graph)
+			if err != nil {
+				return nil, fmt.Errorf("runs: colouring the couplers of %s into layers: %w", s.Graph.Name, err)
+			}
+			s.Schedule = &circuits.Layered{Classes: classes}
 		}
 	case "random-edge":
 		if o.Layout != "" {
@@ -175,4 +205,11 @@ func bindCouplers(e circuits.Ensemble, g *circuits.Graph) (circuits.Ensemble, er
 		return gs.Bind(g)
 	}
 	return e, nil
+}
+
+// Estimate summarises the scan records of the run per depth against
+// Limit (scan.EstimateLimit): R = mean(Z)/(2/(D+1)) on a connected chip,
+// mean(Z) over the product of the parts' Haar values on a chip in parts.
+func (s *Spec) Estimate(records []scan.Record, c stats.Criteria) *scan.Curve {
+	return scan.EstimateLimit(s.Graph.Qubits, s.Limit(), records, c)
 }

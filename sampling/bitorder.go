@@ -1,9 +1,6 @@
 package sampling
 
-import (
-	"fmt"
-	"math"
-)
+import "fmt"
 
 // BitOrder says which end of a measured bitstring holds qubit 0.
 type BitOrder string
@@ -50,20 +47,4 @@ func InOrder(records []Record, o BitOrder) []Record {
 		return Reversed(records)
 	}
 	return records
-}
-
-// LowScore reports whether the normalized linear XEB of r is below 1/2, the
-// score at which score looks at the other bit order: data in the wrong
-// order maps each shot to an unrelated output, which pulls F_lin towards 0
-// (not exactly to 0: the outputs of one circuit at permuted qubits stay
-// correlated).
-func LowScore(r *Report) bool { return r.Shots > 1 && r.Normalized < 0.5 }
-
-// ScoresBetter reports whether other, the score of the same shots with the
-// bitstrings reversed, beats given clearly: by more than 5 combined standard
-// errors of the linear XEB (common practice for a detection) and by a factor
-// above 2.
-func ScoresBetter(other, given *Report) bool {
-	se := math.Hypot(other.LinearErr, given.LinearErr)
-	return se > 0 && other.Linear-given.Linear > 5*se && other.Linear > 2*given.Linear
 }

@@ -1,6 +1,8 @@
 package sampling
 
 import (
+	"context"
+	"math"
 	"reflect"
 	"testing"
 )
@@ -32,14 +34,80 @@ func TestReversed(t *testing.T) {
 	}
 }
 
-func TestScoresBetter(t *testing.T) {
-	given := &Report{Shots: 100, Linear: 0.1, LinearErr: 0.02, Normalized: 0.1}
-	other := &Report{Shots: 100, Linear: 0.9, LinearErr: 0.03, Normalized: 0.9}
-	if !LowScore(given) || LowScore(other) || !ScoresBetter(other, given) || ScoresBetter(given, other) {
-		t.Error("a score of 0.9 ± 0.03 against 0.1 ± 0.02 is not detected as better")
+// TestBitOrderRule checks the rule's two conditions on hand-made scores:
+// near 0 is |F| ≤ 3 SE; the reversed order scores high when it is 3 of its
+// own SE above 0 and 3 combined SE above the given order.
+func TestBitOrderRule(t *testing.T) {
+	for _, c := range []struct {
+		name          string
+		given, rev    Report
+		nearZero, hit bool
+	}{
+		{"wrong order", Report{Linear: 0.01, LinearErr: 0.02}, Report{Linear: 0.9, LinearErr: 0.03}, true, true},
+		{"given order scores", Report{Linear: 0.3, LinearErr: 0.02}, Report{Linear: 0.9, LinearErr: 0.03}, false, true},
+		{"reversed within noise of 0", Report{Linear: 0.01, LinearErr: 0.02}, Report{Linear: 0.05, LinearErr: 0.02}, true, false},
+		// 5 SE above 0, but only 1.6 combined SE above the given 0.055.
+		{"reversed not well above", Report{Linear: 0.055, LinearErr: 0.02}, Report{Linear: 0.1, LinearErr: 0.02}, true, false},
+		{"one shot, no error bar", Report{Linear: 0, LinearErr: math.NaN()}, Report{Linear: 0.9, LinearErr: math.NaN()}, false, false},
+	} {
+		if got := XEBNearZero(&c.given); got != c.nearZero {
+			t.Errorf("%s: XEBNearZero = %v", c.name, got)
+		}
+		if got := ScoresHigh(&c.rev, &c.given); got != c.hit {
+			t.Errorf("%s: ScoresHigh = %v", c.name, got)
+		}
 	}
-	// Within noise: 0.15 ± 0.05 against 0.1 ± 0.05 is not a detection.
-	if ScoresBetter(&Report{Linear: 0.15, LinearErr: 0.05}, &Report{Linear: 0.1, LinearErr: 0.05}) {
-		t.Error("a difference of 0.7 standard errors counts as better")
+}
+
+// TestCheckBitOrderRealSample runs a real ideal sample on grid:3x4 and
+// scores its shots as written and with every bitstring reversed by the
+// test (data that lists qubit 0 last, read as qubit 0 first). Read in the
+// right order the XEB of an ideal sampler is near D·Z − 1 ≈ 1 (Boixo et
+// al. 2018), not near 0, so no hint; reversed, each shot scores as an
+// unrelated output (near 0) and the check reverses it back, finding the
+// right order's score exactly.
+func TestCheckBitOrderRealSample(t *testing.T) {
+	c := testConfig(t, "grid:3x4", "haar", 12, 10, 400, Noise{Fidelity: 1})
+	results := runAll(t, c)
+	circuit := map[int]*Circuit{}
+	var recs []Record
+	for _, r := range results {
+		circuit[r.Circuit.Instance] = r.Circuit
+		for k, x := range r.Outcomes {
+			recs = append(recs, Record{Row: len(recs) + 1, Instance: r.Circuit.Instance, Bitstring: FormatBitstring(x, c.Qubits), PIdeal: r.PIdeal[k], HasP: true})
+		}
+	}
+	lookup := func(id int) *Circuit { return circuit[id] }
+	score := func(recs []Record) *Report {
+		g, err := Collect(context.Background(), "test", recs, c.Qubits, lookup, 1)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return Score(c.Qubits, g)
+	}
+	right := score(recs)
+	chk, err := CheckBitOrder(context.Background(), "test", recs, c.Qubits, lookup, 1, right)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if chk.NearZero || chk.Suggest || chk.Reversed != nil {
+		t.Errorf("right order (F_lin %.3f ± %.3f): %+v, want no hint", right.Linear, right.LinearErr, chk)
+	}
+	reversed := Reversed(recs)
+	for i := range reversed {
+		reversed[i].HasP = false // a measured table has no p_ideal
+	}
+	wrong := score(reversed)
+	chk, err = CheckBitOrder(context.Background(), "test", reversed, c.Qubits, lookup, 1, wrong)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !chk.NearZero || !chk.Suggest {
+		t.Fatalf("reversed data (F_lin %.3f ± %.3f): %+v, want the hint", wrong.Linear, wrong.LinearErr, chk)
+	}
+	t.Logf("right order F_lin %.4f ± %.4f; reversed %.4f ± %.4f", right.Linear, right.LinearErr, wrong.Linear, wrong.LinearErr)
+	// Reversing twice gives the shots back: the same score to rounding.
+	if math.Abs(chk.Reversed.Linear-right.Linear) > 1e-12 {
+		t.Errorf("the reversed trial scores %.15g, the right order %.15g", chk.Reversed.Linear, right.Linear)
 	}
 }

@@ -301,7 +301,9 @@ func ReadCircuits(name string, r io.Reader) (*CircuitFile, error) {
 		}
 		f.Edges = append(f.Edges, circuits.Edge{A: e[0], B: e[1]})
 	}
-	g, err := circuits.NewGraph(name, n, f.Edges)
+	// A chip in parts (sample --allow-disconnected) writes its circuits
+	// too; score asks for the flag again when it reads them.
+	g, err := circuits.NewGraphParts(name, n, f.Edges)
 	if err != nil {
 		return nil, bad("edges", "%v", err)
 	}
@@ -419,9 +421,9 @@ func (f *CircuitFile) Check(g *circuits.Graph) error {
 }
 
 // FileGraph returns the graph formed by the file's "edges" (validated when
-// the file was read).
+// the file was read), which may be in parts.
 func (f *CircuitFile) FileGraph(name string) *circuits.Graph {
-	g, err := circuits.NewGraph(name, f.Qubits, f.Edges)
+	g, err := circuits.NewGraphParts(name, f.Qubits, f.Edges)
 	if err != nil {
 		panic("sampling: circuit file edges were not validated: " + err.Error())
 	}

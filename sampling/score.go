@@ -1,6 +1,7 @@
 package sampling
 
 import (
+	"context"
 	"math"
 
 	"mixdepth/stats"
@@ -60,9 +61,14 @@ type Report struct {
 	LinearErrInstances                                       float64
 	HasInstanceErr                                           bool
 	Confidence                                               float64
-	// PorterThomas is (D−1)/(D+1), the value of Ideal for Haar-random
-	// outputs (Boixo et al. 2018).
+	// PorterThomas is D·Limit − 1, the value Ideal tends to at large
+	// depth: (D−1)/(D+1) for Haar-random outputs of a connected chip
+	// (Limit = 2/(D+1); Boixo et al. 2018), D times the product of the
+	// parts' Haar values, minus 1, for a chip in parts (SetLimit).
 	PorterThomas float64
+	// Limit is the E[Z] the circuits tend to: 2/(D+1) unless SetLimit
+	// changed it.
+	Limit float64
 	// Spread is true when Ideal lies within Eps of PorterThomas
 	// (relative). Otherwise the raw F_lin misstates the fidelity (it
 	// overstates it when Ideal > 1): read Normalized instead, and prefer
@@ -82,7 +88,7 @@ func Score(qubits int, groups []InstanceSamples) *Report {
 		panic("sampling: Score needs at least 1 qubit")
 	}
 	dim := math.Ldexp(1, qubits)
-	r := &Report{Qubits: qubits, PorterThomas: (dim - 1) / (dim + 1)}
+	r := &Report{Qubits: qubits, PorterThomas: (dim - 1) / (dim + 1), Limit: stats.HaarCollision(dim)}
 	var all []float64
 	var idealSum float64
 	for _, g := range groups {
@@ -117,6 +123,19 @@ func Score(qubits int, groups []InstanceSamples) *Report {
 	return r
 }
 
+// SetLimit sets Limit, the E[Z] the circuits tend to (moments.PartsLimit
+// for a chip in parts, whose parts' states are independent, so that E[Z]
+// is the product of their Haar values), and with it PorterThomas =
+// D·limit − 1 and Spread. It panics unless 0 < limit ≤ 1.
+func (r *Report) SetLimit(limit float64) {
+	if !(limit > 0 && limit <= 1) {
+		panic("sampling: limit must lie in (0, 1]")
+	}
+	r.Limit = limit
+	r.PorterThomas = math.Ldexp(limit, r.Qubits) - 1
+	r.SetEps(r.Eps)
+}
+
 // SetEps sets the threshold Eps and Spread = |Ideal/PorterThomas − 1| ≤ eps.
 // It panics unless 0 ≤ eps < 1.
 func (r *Report) SetEps(eps float64) {
@@ -125,4 +144,69 @@ func (r *Report) SetEps(eps float64) {
 	}
 	r.Eps = eps
 	r.Spread = math.Abs(r.Ideal/r.PorterThomas-1) <= eps
+}
+
+// BitOrderSigmas is the number of standard errors in the bit-order rule
+// (CheckBitOrder): 3, so that under normal errors the hint comes up by
+// chance about once in 700 tables (two-sided 3σ, 0.27%) for each of its
+// conditions (common practice for a detection).
+const BitOrderSigmas = 3
+
+// BitOrderCheck is the outcome of CheckBitOrder.
+type BitOrderCheck struct {
+	// NearZero is |F_lin| ≤ BitOrderSigmas·SE of the given order: the
+	// linear XEB is consistent with 0, what shots read in the wrong order
+	// give (each is scored as an unrelated output).
+	NearZero bool
+	// Reversed is the score of the same shots with every bitstring
+	// reversed; nil unless NearZero.
+	Reversed *Report
+	// Suggest is the rule: NearZero, and the reversed order scores high:
+	// its F_lin is at least BitOrderSigmas of its own standard errors above
+	// 0 and at least BitOrderSigmas combined standard errors
+	// √(SE² + SE_rev²) above the given one. The shots are the same, so the
+	// two estimates are correlated; the combined error treats them as
+	// independent, the usual bound when the correlation is unknown.
+	Suggest bool
+}
+
+// XEBNearZero reports whether the pooled linear XEB of r is within
+// BitOrderSigmas standard errors of 0 (false without an error bar, one
+// shot).
+func XEBNearZero(r *Report) bool {
+	return r.LinearErr > 0 && math.Abs(r.Linear) <= BitOrderSigmas*r.LinearErr
+}
+
+// ScoresHigh reports whether rev, the score of the shots of given with
+// every bitstring reversed, scores high: F_lin at least BitOrderSigmas of
+// its standard errors above 0 and BitOrderSigmas combined standard errors
+// above given's.
+func ScoresHigh(rev, given *Report) bool {
+	se := math.Hypot(rev.LinearErr, given.LinearErr)
+	return rev.LinearErr > 0 && rev.Linear >= BitOrderSigmas*rev.LinearErr && rev.Linear-given.Linear >= BitOrderSigmas*se
+}
+
+// CheckBitOrder applies the bit-order rule to the shots records (in the
+// tool's order, as given to Collect) whose score is given: when the linear
+// XEB is near 0 (XEBNearZero) it scores the shots again with every
+// bitstring reversed and suggests the other order when that scores high
+// (ScoresHigh). A row's p_ideal belongs to its own order, so the reversed
+// trial ignores it. The arguments name, qubits, circuit and workers are
+// those of Collect; its errors are returned.
+func CheckBitOrder(ctx context.Context, name string, records []Record, qubits int, circuit func(id int) *Circuit, workers int, given *Report) (BitOrderCheck, error) {
+	var c BitOrderCheck
+	if c.NearZero = XEBNearZero(given); !c.NearZero {
+		return c, nil
+	}
+	other := Reversed(records)
+	for i := range other {
+		other[i].HasP = false
+	}
+	g, err := Collect(ctx, name, other, qubits, circuit, workers)
+	if err != nil {
+		return c, err
+	}
+	c.Reversed = Score(qubits, g)
+	c.Suggest = ScoresHigh(c.Reversed, given)
+	return c, nil
 }

@@ -391,7 +391,7 @@ type Row struct {
 	Depth     int
 	GateCount int
 	Collision stats.Summary
-	// Ratio is mean(Z)/Z_H; [Lower, Upper] is its two-sided BCa bootstrap
+	// Ratio is mean(Z)/Curve.Limit (Z_H for a connected chip); [Lower, Upper] is its two-sided BCa bootstrap
 	// interval over instances (stats.MeanIntervalBCa). HasInterval is false,
 	// and the bounds ±Inf, with fewer than stats.MinIntervalValues
 	// instances: "too few instances for an interval".
@@ -415,6 +415,10 @@ type Row struct {
 type Curve struct {
 	Qubits        int
 	HaarCollision float64
+	// Limit is the value R divides by: HaarCollision for a connected chip,
+	// the product of the parts' Haar values for a chip in parts, which
+	// never reaches HaarCollision (EstimateLimit).
+	Limit float64
 	// PTBaseline is the Porter–Thomas distance of Haar-random states of the
 	// same dimension (stats.HaarPTBaseline), the reference of the second
 	// criterion.
@@ -432,9 +436,20 @@ type Curve struct {
 // ascending depth order, and judges each depth with the criteria c. It
 // panics if c is invalid (stats.Criteria.Check) or qubits < 1.
 func Estimate(qubits int, records []Record, c stats.Criteria) *Curve {
+	return EstimateLimit(qubits, stats.HaarCollision(math.Ldexp(1, qubits)), records, c)
+}
+
+// EstimateLimit is Estimate with R = mean(Z)/limit (and its interval) read
+// against limit instead of the Haar value 2/(D+1): the value E[Z] tends to
+// on a chip in parts (moments.PartsLimit). It panics if limit is not in
+// (0, 1], as well as in the cases of Estimate.
+func EstimateLimit(qubits int, limit float64, records []Record, c stats.Criteria) *Curve {
 	c.Check()
+	if !(limit > 0 && limit <= 1) {
+		panic(fmt.Sprintf("scan: EstimateLimit with limit %v outside (0, 1]", limit))
+	}
 	dim := math.Ldexp(1, qubits)
-	s := &Curve{Qubits: qubits, HaarCollision: stats.HaarCollision(dim), Criteria: c}
+	s := &Curve{Qubits: qubits, HaarCollision: stats.HaarCollision(dim), Limit: limit, Criteria: c}
 	if c.Rule != stats.RuleCollision {
 		s.PTBaseline = stats.HaarPTBaseline(dim)
 	}
@@ -461,9 +476,9 @@ func Estimate(qubits int, records []Record, c stats.Criteria) *Curve {
 	for k := range s.Rows {
 		row := &s.Rows[k]
 		row.Collision = stats.Summarize(zs[k])
-		row.Ratio = row.Collision.Mean / s.HaarCollision
+		row.Ratio = row.Collision.Mean / s.Limit
 		lo, hi, ok := stats.MeanIntervalBCa(zs[k], c.Confidence)
-		row.Lower, row.Upper, row.HasInterval = lo/s.HaarCollision, hi/s.HaarCollision, ok
+		row.Lower, row.Upper, row.HasInterval = lo/s.Limit, hi/s.Limit, ok
 		row.KSMean = stats.Summarize(ks[k]).Mean
 		row.Verdict = c.Judge(row.Lower, row.Upper, ok, row.KSMean, s.PTBaseline.Mean)
 		row.Spread = row.Verdict == stats.VerdictSpread

@@ -2,18 +2,25 @@ package tables
 
 import (
 	"encoding/binary"
+	"errors"
 	"fmt"
 	"hash"
 	"hash/crc64"
 	"math"
 )
 
-// checksumKey is the Parquet footer key that holds the content checksum of a
-// table written by Create. arrow-go v18.8.0 neither writes nor verifies the
-// optional page CRCs of the Parquet format, so the Writer records a checksum
-// of the values instead, and Read recomputes it: a flipped data byte that
-// still decodes is caught rather than silently read. The key lives in the
-// file footer, not in the run metadata, and Read does not return it in Meta.
+// checksumKey is the key that holds the content checksum of a table written
+// by Create. arrow-go v18.8.0 neither writes nor verifies the optional page
+// CRCs of the Parquet format, and the Arrow IPC format has no checksum at
+// all, so the Writer records a checksum of the values instead, and Read
+// recomputes it: a flipped data byte that still decodes is caught rather
+// than silently read. In Parquet the key lives in the file footer's
+// key-value metadata; in Arrow IPC, in the custom metadata of the last
+// record batch's message (Message.custom_metadata of the Arrow format's
+// Message.fbs; arrow-go's FileWriter has no footer custom metadata), a
+// batch that the Writer always writes (with no rows for an empty table). Neither is run metadata: Read does not return it in
+// Meta. A table without the key (Arrow tables written before the checksum)
+// is read unverified.
 const checksumKey = "mixdepth.content_crc64"
 
 // crcTable is the ECMA-182 CRC-64 polynomial table.
@@ -81,6 +88,53 @@ func (t *Table) checksum() string {
 				r.str(col[i])
 			}
 		}
+	}
+	return r.String()
+}
+
+// schemaKey is the key beside checksumKey that holds the checksum of a
+// table's schema as Create wrote it: its fields (name, type, nullability,
+// unit, doc) and its run metadata, in order. The content checksum covers
+// only the values, and most bytes of a small table are its metadata, which
+// the footer's copy of the schema carries: without this checksum a flipped
+// byte of a metadata string is read as another value. Tables written before
+// it have no such key and are read unverified.
+const schemaKey = "mixdepth.schema_crc64"
+
+// sealKey is a key of the Arrow schema metadata of every table written by
+// Create since the checksums exist (value "content_crc64,schema_crc64"),
+// both copies of the schema in an Arrow IPC file and the stored schema of a
+// Parquet file. With it, a table whose checksum keys are missing (a
+// flipped byte that drops a batch's custom metadata or a footer entry) is
+// damaged rather than taken for a table from before the checksums, which
+// is read unverified. Read and ReadMeta leave it out of Meta.
+const sealKey = "mixdepth.checksums"
+
+// sealValue is the value of sealKey.
+const sealValue = "content_crc64,schema_crc64"
+
+// errUnsealed reports a table whose schema says it records checksums that
+// are not there.
+var errUnsealed = errors.New("the table's checksums are missing, though its schema says it records them")
+
+// schemaChecksum returns the schema checksum of fields and meta.
+func schemaChecksum(fields []Field, meta Meta) string {
+	r := newRowHash()
+	for _, f := range fields {
+		r.str(f.Name)
+		r.word(uint64(f.Type))
+		if f.Nullable {
+			r.word(1)
+		} else {
+			r.word(0)
+		}
+		r.str(f.Unit)
+		r.str(f.Doc)
+	}
+	r.word(uint64(len(meta.Keys)))
+	for i, k := range meta.Keys {
+		r.str(k)
+		r.str(meta.Values[i])
 	}
 	return r.String()
 }

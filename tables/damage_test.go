@@ -1,11 +1,21 @@
 package tables
 
 import (
+	"bytes"
+	"encoding/binary"
 	"errors"
+	"math"
 	"os"
 	"path/filepath"
+	"reflect"
+	"slices"
 	"strings"
 	"testing"
+
+	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/array"
+	"github.com/apache/arrow-go/v18/arrow/ipc"
+	"github.com/apache/arrow-go/v18/arrow/memory"
 )
 
 // flipSweep writes the sample table as name, then flips each byte in turn
@@ -22,6 +32,10 @@ func flipSweep(t *testing.T, name string, mask byte) (ok, failed, recovered int)
 	if err != nil {
 		t.Fatal(err)
 	}
+	want, err := Read(path)
+	if err != nil {
+		t.Fatal(err)
+	}
 	data := make([]byte, len(orig))
 	for i := range orig {
 		copy(data, orig)
@@ -29,7 +43,13 @@ func flipSweep(t *testing.T, name string, mask byte) (ok, failed, recovered int)
 		if err := os.WriteFile(path, data, 0o644); err != nil {
 			t.Fatal(err)
 		}
-		reads := []func() error{func() error { _, err := Read(path); return err }}
+		reads := []func() error{func() error {
+			got, err := Read(path)
+			if err == nil && !sameTable(got, want) {
+				t.Errorf("%s: flipping byte %d of %d (mask %#x) reads silently as another table", name, i, len(orig), mask)
+			}
+			return err
+		}}
 		if i%8 == 0 { // ReadMeta takes a subset of Read's path; a sample keeps the test fast
 			reads = append(reads, func() error { _, _, err := ReadMeta(path); return err })
 		}
@@ -59,9 +79,47 @@ func flipSweep(t *testing.T, name string, mask byte) (ok, failed, recovered int)
 	return ok, failed, recovered
 }
 
+// sameTable reports whether a and b hold the same fields, metadata and
+// values, floats compared bit for bit (so NaNs compare equal) and a missing
+// validity list equal to one without nulls.
+func sameTable(a, b *Table) bool {
+	if !reflect.DeepEqual(a.Fields, b.Fields) || !reflect.DeepEqual(a.Meta, b.Meta) || len(a.Columns) != len(b.Columns) {
+		return false
+	}
+	for j := range a.Columns {
+		switch ca := a.Columns[j].(type) {
+		case []float64:
+			cb, ok := b.Columns[j].([]float64)
+			if !ok || len(ca) != len(cb) {
+				return false
+			}
+			for i := range ca {
+				if math.Float64bits(ca[i]) != math.Float64bits(cb[i]) {
+					return false
+				}
+			}
+		default:
+			if !reflect.DeepEqual(a.Columns[j], b.Columns[j]) {
+				return false
+			}
+		}
+		n := a.Len()
+		for i := range n {
+			va := a.Valid[j] == nil || a.Valid[j][i]
+			vb := b.Valid[j] == nil || b.Valid[j][i]
+			if va != vb {
+				return false
+			}
+		}
+	}
+	return true
+}
+
 // TestByteFlips flips the lowest bit of every byte of a small Arrow IPC and
-// a small Parquet table in turn: Read must never panic and must report
-// damage as ErrDamaged. (cmd/mixdepth sweeps whole-byte flips through the
+// a small Parquet table in turn: Read must never panic, must report damage
+// as ErrDamaged, and a flip that reads without error (in padding, or in
+// bytes the readers do not use) must give the table unchanged: fields,
+// metadata and every value bit for bit. (cmd/mixdepth sweeps whole-byte flips through the
 // CLI.)
 func TestByteFlips(t *testing.T) {
 	for _, name := range []string{"t.arrow", "t.parquet"} {
@@ -143,4 +201,106 @@ func FuzzRead(f *testing.F) {
 			}
 		}
 	})
+}
+
+// TestArrowChecksum writes an Arrow IPC table and checks, with arrow-go's
+// own reader, that its last record batch carries the content and schema
+// checksums in its custom metadata (the Arrow format's
+// Message.custom_metadata; a test that fails if an arrow-go upgrade stops
+// writing or reading it), and that changing the 8 bytes of one float value
+// in the file (1/3, whose IEEE-754 bytes occur once) is refused as a
+// checksum mismatch, where before the checksum it read as another value.
+func TestArrowChecksum(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "c.arrow")
+	writeRows(t, path, sampleFields, sampleMeta(), sampleRows)
+	f, err := os.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	r, err := ipc.NewFileReader(f)
+	if err != nil {
+		t.Fatal(err)
+	}
+	rec, err := r.RecordBatch(r.NumRecords() - 1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	md := batchMeta(rec)
+	sum, ok1 := md.Get(checksumKey)
+	_, ok2 := md.Get(schemaKey)
+	r.Close()
+	f.Close()
+	if !ok1 || !ok2 || len(sum) != 16 {
+		t.Fatalf("last record batch metadata %v: no content and schema checksums", md)
+	}
+	if _, err := Read(path); err != nil {
+		t.Fatal(err)
+	}
+	data, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var third [8]byte
+	binary.LittleEndian.PutUint64(third[:], math.Float64bits(1.0/3))
+	if bytes.Count(data, third[:]) != 1 {
+		t.Fatalf("the bytes of 1/3 occur %d times in the file", bytes.Count(data, third[:]))
+	}
+	i := bytes.Index(data, third[:])
+	data[i] ^= 0x01 // 1/3 becomes another finite float
+	if err := os.WriteFile(path, data, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := Read(path); !errors.Is(err, ErrDamaged) || !strings.Contains(err.Error(), "content checksum") {
+		t.Errorf("Read of a table with a changed value: %v, want a content checksum error wrapping ErrDamaged", err)
+	}
+}
+
+// TestArrowWithoutChecksum: an Arrow IPC file written without the
+// checksums, as Create wrote them before they existed (arrow-go's writer
+// alone), still reads, values unverified; the same file whose schema
+// carries the seal (sealKey) but whose batches lost their checksums is
+// damaged.
+func TestArrowWithoutChecksum(t *testing.T) {
+	dir := t.TempDir()
+	write := func(name string, md arrow.Metadata) string {
+		path := filepath.Join(dir, name)
+		schema := arrow.NewSchema([]arrow.Field{{Name: "v", Type: arrow.PrimitiveTypes.Int64}}, &md)
+		b := array.NewInt64Builder(memory.NewGoAllocator())
+		b.AppendValues([]int64{3, 1, 4}, nil)
+		col := b.NewArray()
+		rec := array.NewRecordBatch(schema, []arrow.Array{col}, 3)
+		var buf bytes.Buffer
+		w, err := ipc.NewFileWriter(&buf, ipc.WithSchema(schema))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := w.Write(rec); err != nil {
+			t.Fatal(err)
+		}
+		if err := w.Close(); err != nil {
+			t.Fatal(err)
+		}
+		if err := os.WriteFile(path, buf.Bytes(), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return path
+	}
+	old := write("old.arrow", arrow.NewMetadata([]string{"seed"}, []string{"7"}))
+	tb, err := Read(old)
+	if err != nil {
+		t.Fatalf("an Arrow table without checksums: %v", err)
+	}
+	if v, _ := tb.Int64s("v"); !slices.Equal(v, []int64{3, 1, 4}) {
+		t.Errorf("values %v", v)
+	}
+	if _, _, err := ReadMeta(old); err != nil {
+		t.Errorf("ReadMeta of an Arrow table without checksums: %v", err)
+	}
+	lost := write("lost.arrow", arrow.NewMetadata([]string{"seed", sealKey}, []string{"7", sealValue}))
+	if _, err := Read(lost); !errors.Is(err, ErrDamaged) || !strings.Contains(err.Error(), "checksums are missing") {
+		t.Errorf("Read of a sealed table without its checksums: %v", err)
+	}
+	if _, _, err := ReadMeta(lost); !errors.Is(err, ErrDamaged) {
+		t.Errorf("ReadMeta of a sealed table without its checksums: %v", err)
+	}
 }

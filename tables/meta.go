@@ -46,7 +46,16 @@ func (m Meta) arrow() arrow.Metadata {
 	return arrow.NewMetadata(m.Keys, m.Values)
 }
 
-// metaFrom copies Arrow metadata into a Meta.
+// metaFrom copies Arrow metadata into a Meta, without the key sealKey.
 func metaFrom(md arrow.Metadata) Meta {
-	return Meta{Keys: slices.Clone(md.Keys()), Values: slices.Clone(md.Values())}
+	m := Meta{Keys: slices.Clone(md.Keys()), Values: slices.Clone(md.Values())}
+	if i := slices.Index(m.Keys, sealKey); i >= 0 {
+		m.Keys = slices.Delete(m.Keys, i, i+1)
+		m.Values = slices.Delete(m.Values, i, i+1)
+	}
+	return m
 }
+
+// sealed reports whether the Arrow schema s says that its table records
+// its checksums (sealKey).
+func sealed(s *arrow.Schema) bool { return s.Metadata().FindKey(sealKey) >= 0 }

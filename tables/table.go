@@ -1,8 +1,10 @@
 package tables
 
 import (
+	"bytes"
 	"context"
 	"encoding/base64"
+	"encoding/binary"
 	"errors"
 	"fmt"
 	"io"
@@ -14,6 +16,7 @@ import (
 	"github.com/apache/arrow-go/v18/arrow/ipc"
 	"github.com/apache/arrow-go/v18/parquet"
 	"github.com/apache/arrow-go/v18/parquet/file"
+	"github.com/apache/arrow-go/v18/parquet/metadata"
 	"github.com/apache/arrow-go/v18/parquet/pqarrow"
 )
 
@@ -142,8 +145,9 @@ var ErrDamaged = errors.New("tables: not a complete table of this tool (a damage
 // Create. Errors name the file; a file that opens but does not read as a
 // table gives an error wrapping ErrDamaged. Every record batch is validated
 // before its values are used, a panic inside the Arrow or Parquet readers is
-// recovered and reported as damage, and a Parquet table written by Create is
-// checked against the content checksum in its footer.
+// recovered and reported as damage, and a table written by Create is
+// checked against the content checksum it records (see checksumKey; an
+// Arrow table written before the checksum existed is read unverified).
 func Read(path string) (*Table, error) {
 	form, err := formatOf(path)
 	if err != nil {
@@ -182,8 +186,21 @@ func ReadMeta(path string) (Meta, []Field, error) {
 			}
 			return withArrowReader(fd, func(r *ipc.FileReader) error {
 				var err error
-				t, err = newTable(r.Schema())
-				return err
+				if t, err = newTable(r.Schema()); err != nil {
+					return err
+				}
+				if r.NumRecords() == 0 {
+					if sealed(r.Schema()) {
+						return errUnsealed
+					}
+					return nil
+				}
+				// The schema checksum is in the last batch's metadata.
+				rec, err := r.RecordBatch(r.NumRecords() - 1)
+				if err != nil {
+					return err
+				}
+				return t.checkSchema(batchMeta(rec), sealed(r.Schema()))
 			})
 		case parquetFormat:
 			return withParquetReader(fd, func(r *pqarrow.FileReader) error {
@@ -191,7 +208,10 @@ func ReadMeta(path string) (Meta, []Field, error) {
 				if err == nil {
 					t, err = newTable(s)
 				}
-				return err
+				if err != nil {
+					return err
+				}
+				return t.checkSchema(parquetSums(r.ParquetReader().MetaData().KeyValueMetadata()), sealed(s))
 			})
 		}
 		return nil
@@ -254,11 +274,16 @@ func withFile(path string, read func(*os.File) error) (err error) {
 }
 
 // checkParquetSchema verifies the Arrow schema that pqarrow stores in the
-// footer of pf before pqarrow decodes it (see checkArrowFile for why).
+// footer of pf before pqarrow decodes it (see checkArrowFile for why), and
+// that it is there.
 func checkParquetSchema(pf *file.Reader) error {
 	v := pf.MetaData().KeyValueMetadata().FindValue("ARROW:schema")
 	if v == nil {
-		return nil
+		// Create has always stored it (pqarrow.WithStoreSchema); a footer
+		// without it lost its key-value metadata (a damaged length or
+		// field header in the footer drops the whole list, units and run
+		// metadata with it) or comes from another program.
+		return errors.New("no stored Arrow schema (ARROW:schema) in the Parquet footer, which every table of this tool has")
 	}
 	data, err := base64.StdEncoding.DecodeString(*v)
 	if err != nil {
@@ -283,14 +308,60 @@ func fileSize(fd *os.File) int64 {
 	return fi.Size()
 }
 
-// withArrowReader calls f with an Arrow IPC file reader of fd.
+// withArrowReader calls f with an Arrow IPC file reader of fd, once the
+// schema at the start of the file has been found equal to the footer's
+// (sameArrowSchemas).
 func withArrowReader(fd *os.File, f func(*ipc.FileReader) error) error {
 	r, err := ipc.NewFileReader(fd, ipc.WithAllocator(allocator()))
 	if err != nil {
 		return err
 	}
 	defer r.Close()
+	if err := sameArrowSchemas(fd, fileSize(fd), r.Schema()); err != nil {
+		return err
+	}
 	return f(r)
+}
+
+// sameArrowSchemas checks that the schema message at the start of the Arrow
+// IPC file fd of the given size (after the 8 bytes of "ARROW1" and padding; Arrow IPC "File
+// format") equals footer, the footer's copy, which the file reader uses.
+// The two copies are written together, so a difference is damage, and the
+// check gives the first copy, otherwise unread, a purpose: a flipped byte in
+// either is caught.
+func sameArrowSchemas(fd io.ReaderAt, size int64, footer *arrow.Schema) error {
+	var head [8]byte
+	if _, err := fd.ReadAt(head[:], 8); err != nil {
+		return fmt.Errorf("schema message: %w", err)
+	}
+	n := int64(int32(binary.LittleEndian.Uint32(head[4:])))
+	if binary.LittleEndian.Uint32(head[:4]) != 0xFFFFFFFF || n <= 0 || n > size-16 {
+		return errors.New("no schema message at the start of the Arrow IPC file")
+	}
+	data := make([]byte, 8+n)
+	if _, err := fd.ReadAt(data, 8); err != nil {
+		return fmt.Errorf("schema message: %w", err)
+	}
+	if err := checkSchemaMessage(data); err != nil {
+		return fmt.Errorf("schema message: %w", err)
+	}
+	sr, err := ipc.NewReader(bytes.NewReader(data), ipc.WithAllocator(allocator()))
+	if err != nil {
+		return fmt.Errorf("schema message: %w", err)
+	}
+	defer sr.Release()
+	a, err := newTable(sr.Schema())
+	if err != nil {
+		return err
+	}
+	b, err := newTable(footer)
+	if err != nil {
+		return err
+	}
+	if schemaChecksum(a.Fields, a.Meta) != schemaChecksum(b.Fields, b.Meta) {
+		return errors.New("the schema at the start of the Arrow IPC file differs from the footer's copy")
+	}
+	return nil
 }
 
 // withParquetReader calls f with a Parquet file reader of fd.
@@ -321,18 +392,84 @@ func readArrow(fd *os.File) (*Table, error) {
 		if t, err = newTable(r.Schema()); err != nil {
 			return err
 		}
+		var want *string
+		if sealed(r.Schema()) && r.NumRecords() == 0 {
+			return errUnsealed
+		}
 		for i := range r.NumRecords() {
 			rec, err := r.RecordBatch(i) // valid until the next call; not ours to release
 			if err != nil {
 				return err
 			}
+			md := batchMeta(rec)
+			if sum, ok := md.Get(checksumKey); ok {
+				if i != r.NumRecords()-1 {
+					return fmt.Errorf("record batch %d of %d carries the content checksum, which only the last one holds", i, r.NumRecords())
+				}
+				want = &sum
+			}
+			if i == r.NumRecords()-1 {
+				if err := t.checkSchema(md, sealed(r.Schema())); err != nil {
+					return err
+				}
+				if _, ok := md.Get(checksumKey); !ok && sealed(r.Schema()) {
+					return errUnsealed
+				}
+			}
 			if err := t.appendBatch(rec); err != nil {
 				return err
 			}
 		}
-		return nil
+		return t.checkContent(want)
 	})
 	return t, err
+}
+
+// batchMeta returns the custom metadata of an Arrow record batch, where the
+// last batch of a table written by Create holds its checksums (see
+// checksumKey).
+func batchMeta(rec arrow.RecordBatch) Meta {
+	if rm, ok := rec.(arrow.RecordBatchWithMetadata); ok {
+		return metaFrom(rm.Metadata())
+	}
+	return Meta{}
+}
+
+// checkSchema compares the fields and run metadata of t with the schema
+// checksum in md, when md has one (see schemaKey); a sealed table must have
+// one (sealKey).
+func (t *Table) checkSchema(md Meta, sealed bool) error {
+	want, ok := md.Get(schemaKey)
+	if !ok && sealed {
+		return errUnsealed
+	}
+	if ok {
+		if got := schemaChecksum(t.Fields, t.Meta); got != want {
+			return fmt.Errorf("schema checksum %s, not the %s recorded when the table was written: its columns or run metadata changed", got, want)
+		}
+	}
+	return nil
+}
+
+// parquetSums returns the schema checksum of a Parquet footer's key-value
+// metadata as a Meta for checkSchema.
+func parquetSums(kv metadata.KeyValueMetadata) Meta {
+	var m Meta
+	if v := kv.FindValue(schemaKey); v != nil {
+		m.Set(schemaKey, *v)
+	}
+	return m
+}
+
+// checkContent compares the rows of t with the content checksum want, when
+// not nil (see checksumKey).
+func (t *Table) checkContent(want *string) error {
+	if want != nil {
+		if got := t.checksum(); got != *want {
+			return fmt.Errorf("content checksum %s, not the %s recorded when the table was written", got, *want)
+		}
+	}
+	return nil
 }
 
 func readParquet(fd *os.File) (*Table, error) {
@@ -358,12 +495,15 @@ func readParquet(fd *os.File) (*Table, error) {
 		if err := rr.Err(); err != nil && !errors.Is(err, io.EOF) {
 			return err
 		}
-		if want := r.ParquetReader().MetaData().KeyValueMetadata().FindValue(checksumKey); want != nil {
-			if got := t.checksum(); got != *want {
-				return fmt.Errorf("content checksum %s, not the %s recorded when the table was written", got, *want)
-			}
+		kv := r.ParquetReader().MetaData().KeyValueMetadata()
+		if err := t.checkSchema(parquetSums(kv), sealed(s)); err != nil {
+			return err
 		}
-		return nil
+		want := kv.FindValue(checksumKey)
+		if want == nil && sealed(s) {
+			return errUnsealed
+		}
+		return t.checkContent(want)
 	})
 	return t, err
 }

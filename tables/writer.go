@@ -47,6 +47,7 @@ type Writer struct {
 	builder *array.RecordBuilder
 	columns []array.Builder
 	sum     *rowHash // content checksum of the rows appended (see checksumKey)
+	schema  string   // schema checksum of the fields and metadata (see schemaKey)
 	pending int      // rows in the builders
 	rows    int      // rows appended
 	err     error    // first error while writing a batch
@@ -63,6 +64,7 @@ type Writer struct {
 func Create(path string, fields []Field, meta Meta) (*Writer, error) {
 	checkFields(fields)
 	md := meta.arrow()
+	md = arrow.NewMetadata(append(md.Keys(), sealKey), append(md.Values(), sealValue))
 	form, err := formatOf(path)
 	if err != nil {
 		return nil, err
@@ -78,6 +80,7 @@ func Create(path string, fields []Field, meta Meta) (*Writer, error) {
 		file:      file,
 		buf:       bufio.NewWriterSize(file, bufferSize),
 		sum:       newRowHash(),
+		schema:    schemaChecksum(fields, meta),
 	}
 
 	afs := make([]arrow.Field, len(fields))
@@ -144,6 +147,15 @@ func (w *Writer) Append(values ...any) {
 	for i, v := range values {
 		checkValue(w.fields[i], v)
 	}
+	batch := w.BatchRows
+	if batch < 1 {
+		batch = DefaultBatchRows
+	}
+	// An Arrow table writes a full batch only when the next row comes, so
+	// that the last batch, which Close writes with the checksum, has rows.
+	if _, ok := w.out.(*ipc.FileWriter); ok && w.pending >= batch {
+		w.flush()
+	}
 	for i, v := range values {
 		w.sum.add(v)
 		switch v := v.(type) {
@@ -161,11 +173,7 @@ func (w *Writer) Append(values ...any) {
 	}
 	w.pending++
 	w.rows++
-	batch := w.BatchRows
-	if batch < 1 {
-		batch = DefaultBatchRows
-	}
-	if w.pending >= batch {
+	if _, ok := w.out.(*ipc.FileWriter); !ok && w.pending >= batch {
 		w.flush()
 	}
 }
@@ -205,6 +213,22 @@ func (w *Writer) flush() {
 	}
 }
 
+// flushLast writes the buffered rows of an Arrow IPC table as its last
+// record batch (with no rows only for an empty table), which carries the
+// content checksum of every row in its custom metadata (see checksumKey).
+func (w *Writer) flushLast() {
+	rec := w.builder.NewRecordBatch()
+	defer rec.Release()
+	w.pending = 0
+	if w.err != nil {
+		return
+	}
+	md := arrow.NewMetadata([]string{checksumKey, schemaKey}, []string{w.sum.String(), w.schema})
+	last := array.NewRecordBatchWithMetadata(rec.Schema(), rec.Columns(), rec.NumRows(), md)
+	defer last.Release()
+	w.err = w.out.Write(last)
+}
+
 // Rows returns the number of rows appended so far.
 func (w *Writer) Rows() int { return w.rows }
 
@@ -218,11 +242,18 @@ func (w *Writer) Close() error {
 		return fmt.Errorf("tables: close %q: %w", w.path, fs.ErrClosed)
 	}
 	w.done = true
-	w.flush()
+	if _, ok := w.out.(*ipc.FileWriter); ok {
+		w.flushLast()
+	} else {
+		w.flush()
+	}
 	w.builder.Release()
 	err := w.err
 	if pw, ok := w.out.(*pqarrow.FileWriter); ok && err == nil {
 		err = pw.AppendKeyValueMetadata(checksumKey, w.sum.String())
+		if err == nil {
+			err = pw.AppendKeyValueMetadata(schemaKey, w.schema)
+		}
 	}
 	if e := w.out.Close(); err == nil { // always called: it releases memory
 		err = e

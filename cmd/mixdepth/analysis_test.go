@@ -453,7 +453,7 @@ func TestSetupFromMeta(t *testing.T) {
 		{graph: "star:4", schedule: "layered", gates: "cz+haar1", seed: 6},
 		{schedule: "layered", gates: "haar", seed: 7}, // the demo chip
 	} {
-		s, err := cf.resolve()
+		s, err := cf.resolve(context.Background())
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -478,7 +478,7 @@ func TestSetupFromMeta(t *testing.T) {
 	if _, err := setupFromMeta(m); err == nil || !strings.Contains(err.Error(), "qubits") {
 		t.Errorf("metadata without qubits: %v", err)
 	}
-	s, _ := (&circuitFlags{graph: "line:4", schedule: "layered", gates: "haar"}).resolve()
+	s, _ := (&circuitFlags{graph: "line:4", schedule: "layered", gates: "haar"}).resolve(context.Background())
 	meta := runMeta(s, &circuitFlags{graph: "line:4"})
 	meta.Set("edges", "0-1,1-2,2-3,3-0")
 	if _, err := setupFromMeta(meta); err == nil || !strings.Contains(err.Error(), "graph_digest") {

@@ -47,7 +47,7 @@ func runCompare(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	curves := make([]plots.Labelled, len(loaded))
 	fmt.Fprintf(stdout, "%-40s %9s %12s  %s\n", "run", "instances", "recommended", "file")
 	for i, sc := range loaded {
-		curves[i] = plots.Labelled{Label: labels[i], Series: curveSeries(sc.curve, sc.run.ExactRatios(sc.setup.graph.Qubits))}
+		curves[i] = plots.Labelled{Label: labels[i], Series: curveSeries(sc.curve, sc.run.ExactRatios(sc.setup.spec.Limit()))}
 		rec := "none"
 		if sc.curve.Found {
 			rec = fmt.Sprintf("%d", sc.curve.Depth)

@@ -100,7 +100,6 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	bondFlag := fs.String("bond-dim", "auto", fmt.Sprintf("bond dimension cap of the mps engine, 2..%d; auto: %d for chains and rings (order bandwidth ≤ 2), %d otherwise; the error estimate reruns at half of it", moments.MPSMaxBond, moments.DefaultBondDim(1), moments.DefaultBondDim(3)))
 	orderFlag := fs.String("order", "auto", "qubit order of the mps engine: auto, or FILE listing the qubit ids in order")
 	asJSON := fs.Bool("json", false, "print one JSON document instead of the text report")
-	allow := fs.Bool("allow-disconnected", false, "accept a chip in parts; E[Z] is then measured against the product of the parts' Haar values, which it tends to")
 	var nf noiseFlags
 	nf.add(fs)
 	if err := parseFlags(fs, args); err != nil {
@@ -127,7 +126,7 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if err := files.check(fs); err != nil {
 		return err
 	}
-	s, err := cf.resolveWith(func(o *runs.Options) { o.AllowDisconnected = *allow })
+	s, err := cf.resolve(ctx)
 	if err != nil {
 		return err
 	}

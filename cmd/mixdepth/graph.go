@@ -56,7 +56,7 @@ func runGraph(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		spec = fs.Arg(0)
 	}
 	cf := circuitFlags{graph: spec, layout: *layout, drop: *drop}
-	s, err := cf.resolveWith(func(o *runs.Options) { o.AllowDisconnected = *allow })
+	s, err := cf.resolveWith(ctx, func(o *runs.Options) { o.AllowDisconnected = *allow })
 	var ue usageError
 	if errors.As(err, &ue) && spec != "" {
 		// The graph is an argument here, not --graph.

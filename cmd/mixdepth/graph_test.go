@@ -196,13 +196,19 @@ func TestChipBadInput(t *testing.T) {
 	}
 }
 
-// TestScoreBitOrder: measured data written with qubit 0 last scores as
-// unrelated outputs; score says so, and --bit-order last gives exactly the
-// score of the data in the tool's order.
+// TestScoreBitOrder: measured data written with qubit 0 last (a real
+// sample run, bitstrings reversed by the test) scores as unrelated outputs,
+// XEB near 0; score says so (sampling.CheckBitOrder), and --bit-order last
+// gives exactly the score of the data in the tool's order. The other
+// direction, data in the tool's order read with --bit-order last, draws
+// the hint to --bit-order first.
 func TestScoreBitOrder(t *testing.T) {
 	dir := t.TempDir()
 	out := filepath.Join(dir, "s.parquet")
-	args := []string{"--graph", "grid:2x3", "--depth", "12", "--instances", "4", "--seed", "5"}
+	// 12 qubits at depth 16 (spread): read in the wrong order the shots
+	// are unrelated outputs, XEB near 0; on a smaller or shallower chip the
+	// outputs at reversed qubits stay correlated and the XEB is not near 0.
+	args := []string{"--graph", "grid:3x4", "--depth", "16", "--instances", "4", "--seed", "5"}
 	sampleOK(t, append(append([]string{"sample"}, args...), "--shots", "500", "--out", out)...)
 	tab := sampleTable(t, out)
 	ids, err := tab.Int64s("instance")
@@ -224,13 +230,14 @@ func TestScoreBitOrder(t *testing.T) {
 	}
 	firstCSV := writeFile(t, dir, "first.csv", first.String())
 	lastCSV := writeFile(t, dir, "last.csv", last.String())
-	scoreArgs := []string{"--graph", "grid:2x3", "--depth", "12", "--seed", "5"}
+	scoreArgs := []string{"--graph", "grid:3x4", "--depth", "16", "--seed", "5"}
 	want := scoreDoc(t, append([]string{firstCSV}, scoreArgs...)...)
 	got := scoreDoc(t, append([]string{lastCSV, "--bit-order", "last"}, scoreArgs...)...)
 	if *got.LinearXEB != *want.LinearXEB || *got.NormalizedXEB != *want.NormalizedXEB {
 		t.Errorf("--bit-order last: XEB %v, want %v", *got.LinearXEB, *want.LinearXEB)
 	}
 	wrong := scoreDoc(t, append([]string{lastCSV}, scoreArgs...)...)
+	t.Logf("reversed data: XEB %v ± %v, warnings %v", *wrong.LinearXEB, *wrong.LinearXEBStderr, wrong.Warnings)
 	found := false
 	for _, w := range wrong.Warnings {
 		found = found || strings.Contains(w, "--bit-order last")
@@ -238,10 +245,20 @@ func TestScoreBitOrder(t *testing.T) {
 	if !found {
 		t.Errorf("reversed data scored %v without a bit-order warning: %v", *wrong.LinearXEB, wrong.Warnings)
 	}
-	for _, w := range want.Warnings {
+	for _, w := range append(want.Warnings, got.Warnings...) {
 		if strings.Contains(w, "bit-order") {
 			t.Errorf("data in the right order draws a bit-order warning: %s", w)
 		}
+	}
+	// The other direction: data in the tool's order scored as qubit 0
+	// last is near 0 too, and the hint names --bit-order first.
+	other := scoreDoc(t, append([]string{firstCSV, "--bit-order", "last"}, scoreArgs...)...)
+	found = false
+	for _, w := range other.Warnings {
+		found = found || strings.Contains(w, "--bit-order first")
+	}
+	if !found {
+		t.Errorf("qubit-0-first data read as last scored %v without a hint to --bit-order first: %v", *other.LinearXEB, other.Warnings)
 	}
 	_, stderr, code := runCLI(t, "score", out, "--bit-order", "last")
 	if code != 2 || !strings.Contains(stderr, "qubit 0 first") {

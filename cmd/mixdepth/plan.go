@@ -88,7 +88,7 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if fs.NArg() > 0 {
 		return badInput("plan takes no positional arguments (got %q)", fs.Arg(0))
 	}
-	s, err := cf.resolve()
+	s, err := cf.resolve(ctx)
 	if err != nil {
 		return err
 	}
@@ -182,6 +182,9 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		return writeJSON(stdout, doc)
 	}
 	fmt.Fprintln(stdout, s.describe())
+	if note := s.partsNote(); note != "" {
+		fmt.Fprintln(stdout, strings.Replace(note, "R below is", "the anti-concentration depth below is", 1))
+	}
 	fmt.Fprintf(stdout, "depth %d: %d two-qubit gates, %d single-qubit gates, %d qubits read out\n\n", *depth, g2, g1, n)
 	if rates {
 		fmt.Fprintln(stdout, "digital error model (Arute et al. 2019, Nature 574, 505):")
@@ -250,8 +253,12 @@ func planDepthCheck(ctx context.Context, fs *pflag.FlagSet, s *setup, depth int,
 		doc.DepthSource = "exact E[Z]"
 		ac, found = r.Depth, r.Found
 		if !found {
-			doc.Warnings = append(doc.Warnings, fmt.Sprintf("depth %d has not anti-concentrated: the exact R = E[Z]/Z_H there is %.4f > 1+eps = %.4f, so the raw linear XEB overstates the fidelity; use deeper circuits (see mixdepth exact)",
-				depth, r.Ratio[len(r.Ratio)-1], 1+eps))
+			ratio := "E[Z]/Z_H"
+			if r.Parts > 1 {
+				ratio = fmt.Sprintf("E[Z]/%.6g (the chip is in %d parts: the product of their Haar values, which E[Z] tends to)", r.Limit, r.Parts)
+			}
+			doc.Warnings = append(doc.Warnings, fmt.Sprintf("depth %d has not anti-concentrated: the exact R = %s there is %.4f > 1+eps = %.4f, so the raw linear XEB overstates the fidelity; use deeper circuits (see mixdepth exact)",
+				depth, ratio, r.Ratio[len(r.Ratio)-1], 1+eps))
 			spread := false
 			doc.Spread = &spread
 			return nil

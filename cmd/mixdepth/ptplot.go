@@ -71,7 +71,7 @@ func runPTPlot(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		if len(records) == 0 {
 			return badInput("%s holds no scan rows to choose a depth from: give --depth D", path)
 		}
-		d = defaultPTDepth(t.Meta, s.graph.Qubits, records)
+		d = defaultPTDepth(t.Meta, s.spec, records)
 	}
 	if err := checkCircuitDepth(s, d); err != nil {
 		return err
@@ -115,8 +115,8 @@ func runPTPlot(ctx context.Context, args []string, stdout, stderr io.Writer) err
 
 // defaultPTDepth is the recommended depth of the table's summary under
 // its own criteria, or its deepest depth when there is none.
-func defaultPTDepth(meta tables.Meta, qubits int, records []scan.Record) int {
-	sum := scan.Estimate(qubits, records, recordedCriteria(meta))
+func defaultPTDepth(meta tables.Meta, sp *runs.Spec, records []scan.Record) int {
+	sum := sp.Estimate(records, recordedCriteria(meta))
 	if sum.Found {
 		return sum.Depth
 	}

@@ -29,6 +29,11 @@ func init() {
 type scanJSON struct {
 	runs.Header
 	HaarCollision float64 `json:"haar_collision"`
+	// Parts and CollisionLimit are set for a chip in parts
+	// (--allow-disconnected): the number of parts and the product of their
+	// Haar values, against which collision_ratio is measured.
+	Parts          int      `json:"parts,omitempty"`
+	CollisionLimit *float64 `json:"collision_limit,omitempty"`
 	// PTHaar is the mean Porter–Thomas distance of Haar-random states of the
 	// same dimension (stats.HaarPTBaseline); null under the collision rule.
 	PTHaar           *float64      `json:"pt_ks_haar"`
@@ -89,7 +94,7 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if fs.NArg() > 0 {
 		return badInput("scan takes no positional arguments (got %q)", fs.Arg(0))
 	}
-	s, err := cf.resolve()
+	s, err := cf.resolve(ctx)
 	if err != nil {
 		return err
 	}
@@ -205,7 +210,7 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		fmt.Fprintln(stderr, msg)
 		return errInterrupted
 	}
-	sum := scan.Estimate(s.graph.Qubits, records, crit)
+	sum := s.spec.Estimate(records, crit)
 	for _, r := range sum.Rows {
 		if r.Collision.N > 1 && r.Collision.StdDev == 0 {
 			fmt.Fprintf(stderr, "mixdepth: warning: all %d instances have the same collision probability at depth %d: the gate set draws too few distinct circuits to estimate an ensemble average; its interval is not meaningful\n", r.Collision.N, r.Depth)
@@ -274,6 +279,9 @@ func scanDocument(s *setup, seed uint64, instances int, sum *scan.Curve) scanJSO
 	}
 	if c.Rule != stats.RuleCollision {
 		doc.PTHaar = &sum.PTBaseline.Mean
+	}
+	if s.spec.Parts > 1 {
+		doc.Parts, doc.CollisionLimit = s.spec.Parts, &sum.Limit
 	}
 	if sum.Found {
 		d := sum.Depth
@@ -347,6 +355,12 @@ func printScan(w io.Writer, s *setup, cf *circuitFlags, instances string, sum *s
 		b := sum.PTBaseline
 		fmt.Fprintf(w, "Haar PT dist (mean over %d Haar-random states of D = %s%s) = %.4g; margin %g\n",
 			b.States, dimString(s.graph.Qubits), scaledNote(b), b.Mean, c.PTMargin)
+	}
+	if note := s.partsNote(); note != "" {
+		fmt.Fprintln(w, note)
+		if c.Rule != stats.RuleCollision {
+			fmt.Fprintln(w, "Its outputs are a product of the parts' outputs, not Porter–Thomas over the whole chip, so the PT distance stays above the Haar baseline: use --rule collision.")
+		}
 	}
 	fmt.Fprintln(w)
 	pct := strconv.FormatFloat(100*c.Confidence, 'g', 4, 64) + "% interval"

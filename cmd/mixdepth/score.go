@@ -10,6 +10,7 @@ import (
 	"unicode/utf8"
 
 	"mixdepth/circuits"
+	"mixdepth/moments"
 	"mixdepth/runs"
 	"mixdepth/sampling"
 	"mixdepth/stats"
@@ -38,16 +39,21 @@ type scoreJSON struct {
 	NormalizedXEBStderr *float64 `json:"normalized_xeb_stderr"`
 	// The errors over instances (stats.ClusterBootstrap): every source of
 	// variation; null with too few instances.
-	LinearXEBStderrInstances     *float64            `json:"linear_xeb_stderr_instances"`
-	NormalizedXEBStderrInstances *float64            `json:"normalized_xeb_stderr_instances"`
-	NormalizedXEBLower           *float64            `json:"normalized_xeb_lower"`
-	NormalizedXEBUpper           *float64            `json:"normalized_xeb_upper"`
-	Confidence                   float64             `json:"confidence"`
-	PorterThomasXEB              float64             `json:"porter_thomas_xeb"`
-	Eps                          float64             `json:"eps"`
-	Spread                       bool                `json:"spread"`
-	Warnings                     []string            `json:"warnings"`
-	Instances                    []scoreJSONInstance `json:"instance_scores"`
+	LinearXEBStderrInstances     *float64 `json:"linear_xeb_stderr_instances"`
+	NormalizedXEBStderrInstances *float64 `json:"normalized_xeb_stderr_instances"`
+	NormalizedXEBLower           *float64 `json:"normalized_xeb_lower"`
+	NormalizedXEBUpper           *float64 `json:"normalized_xeb_upper"`
+	Confidence                   float64  `json:"confidence"`
+	PorterThomasXEB              float64  `json:"porter_thomas_xeb"`
+	// Parts and CollisionLimit are set for a chip in parts: the number of
+	// parts and the product of their Haar values; porter_thomas_xeb is then
+	// D·collision_limit − 1, the value the ideal XEB tends to.
+	Parts          int                 `json:"parts,omitempty"`
+	CollisionLimit *float64            `json:"collision_limit,omitempty"`
+	Eps            float64             `json:"eps"`
+	Spread         bool                `json:"spread"`
+	Warnings       []string            `json:"warnings"`
+	Instances      []scoreJSONInstance `json:"instance_scores"`
 }
 
 type scoreJSONInstance struct {
@@ -119,6 +125,10 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	var qubits int
 	var lookup func(int) *sampling.Circuit
 	var source string
+	// parts and limit describe a chip in parts: its E[Z] tends to limit,
+	// the product of the parts' Haar values.
+	var parts int
+	var limit float64
 	if *circuitsIn != "" {
 		for _, name := range []string{"schedule", "gates", "seed", "depth"} {
 			if fs.Changed(name) {
@@ -130,7 +140,7 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 			return err
 		}
 		if fs.Changed("graph") || fs.Changed("layout") {
-			s, err := cf.resolve()
+			s, err := cf.resolve(ctx)
 			if err != nil {
 				return err
 			}
@@ -144,12 +154,22 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		}
 		qubits, lookup = cfile.Qubits, cfile.Circuit
 		source = *circuitsIn
+		// The file's edges say whether the chip is in parts (it was sampled
+		// with --allow-disconnected); the final layer, whether an isolated
+		// qubit is rotated.
+		if g := cfile.FileGraph(cfile.Graph); len(g.Components()) > 1 {
+			final := len(cfile.Circuits) > 0 && cfile.Circuits[0].Final != nil
+			parts, limit = len(g.Components()), moments.PartsLimit(g, final)
+		}
 	} else {
-		s, seed, d, total, err := scoreSetup(fs.Changed, &cf, *depth, meta, sampled, path)
+		s, seed, d, total, err := scoreSetup(ctx, fs.Changed, &cf, *depth, meta, sampled, path)
 		if err != nil {
 			return err
 		}
 		qubits = s.graph.Qubits
+		if s.spec.Parts > 1 {
+			parts, limit = s.spec.Parts, s.spec.Limit()
+		}
 		lookup = func(id int) *sampling.Circuit {
 			if id < 0 || total > 0 && id >= total {
 				return nil
@@ -174,31 +194,31 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		return err
 	}
 	rep := sampling.Score(qubits, groups)
+	reference := "the Porter–Thomas value"
+	if parts > 1 {
+		rep.SetLimit(limit)
+		reference = fmt.Sprintf("the value of a chip in %d parts, D times the product of the parts' Haar values minus 1,", parts)
+	}
 	rep.SetEps(*eps)
 	warnings := []string{}
 	if !rep.Spread {
-		w := fmt.Sprintf("the circuits have not anti-concentrated: the ideal value D·Z − 1 = %.4f is more than %g%% from the Porter–Thomas value %.4f, so the raw linear XEB misstates the fidelity; read normalized_xeb, or use deeper circuits",
-			rep.Ideal, 100*rep.Eps, rep.PorterThomas)
+		w := fmt.Sprintf("the circuits have not anti-concentrated: the ideal value D·Z − 1 = %.4f is more than %g%% from %s %.4f, so the raw linear XEB misstates the fidelity; read normalized_xeb, or use deeper circuits",
+			rep.Ideal, 100*rep.Eps, reference, rep.PorterThomas)
 		if rep.Ideal > rep.PorterThomas {
 			w = strings.Replace(w, "misstates", "overstates", 1)
 		}
 		warnings = append(warnings, w)
 	}
-	if sampling.LowScore(rep) {
-		// Bits in the other order score as unrelated outputs; say so when
-		// the other order scores high. A row's p_ideal belongs to its own
-		// order, so the trial ignores it.
-		other := sampling.Reversed(recs)
-		for i := range other {
-			other[i].HasP = false
-		}
-		if g, err := sampling.Collect(ctx, path, other, qubits, lookup, *workers); err == nil {
-			if rev := sampling.Score(qubits, g); sampling.ScoresBetter(rev, rep) {
-				flip := map[sampling.BitOrder]string{sampling.QubitZeroFirst: "last", sampling.QubitZeroLast: "first"}[order]
-				warnings = append(warnings, fmt.Sprintf("the linear XEB %s is low, but with each bitstring reversed it is %s: the data may list qubit 0 %s; score with --bit-order %s",
-					plusMinus(rep.Linear, rep.LinearErr), plusMinus(rev.Linear, rev.LinearErr), flip, flip))
-			}
-		}
+	bits, err := sampling.CheckBitOrder(ctx, path, recs, qubits, lookup, *workers, rep)
+	if errors.Is(err, context.Canceled) {
+		return errInterrupted
+	}
+	// Any other failure would have stopped the first Collect: reversing
+	// a bitstring keeps its length and characters.
+	if err == nil && bits.Suggest {
+		flip := map[sampling.BitOrder]string{sampling.QubitZeroFirst: "last", sampling.QubitZeroLast: "first"}[order]
+		warnings = append(warnings, fmt.Sprintf("the linear XEB %s is near 0 (within %d standard errors), but with each bitstring reversed it is %s: the data may list qubit 0 %s; score with --bit-order %s",
+			plusMinus(rep.Linear, rep.LinearErr), sampling.BitOrderSigmas, plusMinus(bits.Reversed.Linear, bits.Reversed.LinearErr), flip, flip))
 	}
 	for _, w := range warnings {
 		fmt.Fprintln(stderr, "mixdepth: warning: "+w)
@@ -212,6 +232,9 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 			LinearXEBStderrInstances: finiteOrNull(rep.LinearErrInstances), NormalizedXEBStderrInstances: finiteOrNull(rep.NormalizedErrInstances),
 			NormalizedXEBLower: finiteOrNull(rep.NormalizedLower), NormalizedXEBUpper: finiteOrNull(rep.NormalizedUpper), Confidence: rep.Confidence,
 			PorterThomasXEB: rep.PorterThomas, Eps: rep.Eps, Spread: rep.Spread, Warnings: warnings,
+		}
+		if parts > 1 {
+			doc.Parts, doc.CollisionLimit = parts, &rep.Limit
 		}
 		for _, s := range rep.Instances {
 			doc.Instances = append(doc.Instances, scoreJSONInstance{
@@ -232,7 +255,11 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	for _, s := range rep.Instances {
 		row(fmt.Sprintf("instance %d", s.Instance), s.Shots, s.Linear, s.LinearErr, s.Log, s.LogErr, s.Ideal, s.Normalized, s.NormalizedErr)
 	}
-	fmt.Fprintf(stdout, "\nPorter–Thomas value of D·Z − 1: (D−1)/(D+1) = %.4f", rep.PorterThomas)
+	if parts > 1 {
+		fmt.Fprintf(stdout, "\nThe chip is in %d parts and never reaches the Haar value: E[Z] tends to the product of the parts' Haar values, %.6g,\nso D·Z − 1 tends to %.4f, not (D−1)/(D+1); the anti-concentration check uses that limit", parts, rep.Limit, rep.PorterThomas)
+	} else {
+		fmt.Fprintf(stdout, "\nPorter–Thomas value of D·Z − 1: (D−1)/(D+1) = %.4f", rep.PorterThomas)
+	}
 	if rep.Spread {
 		fmt.Fprintf(stdout, "; the circuits are spread: their mean lies within eps = %g of it (relative).\n", rep.Eps)
 	} else {
@@ -322,14 +349,14 @@ func readCircuitFile(path string) (*sampling.CircuitFile, error) {
 // given, else from the flags; --seed and --depth override the table's.
 // total is the full run's instance count when the table records it (ids at
 // or above it are unknown), else 0.
-func scoreSetup(changed func(string) bool, cf *circuitFlags, depth int, meta tables.Meta, sampled bool, path string) (s *setup, seed uint64, d, total int, err error) {
+func scoreSetup(ctx context.Context, changed func(string) bool, cf *circuitFlags, depth int, meta tables.Meta, sampled bool, path string) (s *setup, seed uint64, d, total int, err error) {
 	flagged := changed("graph") || changed("layout") || changed("schedule") || changed("gates") || changed("drop")
 	if sampled && !flagged {
 		if s, err = setupFromMeta(meta); err != nil {
 			return nil, 0, 0, 0, badInput("%s: cannot rebuild its circuits: %v; give --circuits FILE.json or the circuit flags", path, err)
 		}
 	} else {
-		if s, err = cf.resolve(); err != nil {
+		if s, err = cf.resolve(ctx); err != nil {
 			return nil, 0, 0, 0, err
 		}
 		if digest, ok := meta.Get("graph_digest"); ok && sampled && digest != s.graph.Digest() {

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"os"
@@ -24,6 +25,10 @@ type circuitFlags struct {
 	graph, layout, schedule, gates, drop string
 	seed                                 uint64
 	unitarize                            bool
+	// allowDisconnected accepts a chip with isolated qubits or several
+	// parts (--allow-disconnected); R is then measured against the
+	// product of the parts' Haar values (runs.Spec.Limit).
+	allowDisconnected bool
 	// checkGraph, when not nil, lets resolve refuse a graph before any
 	// costly set-up (the edge colouring of a large graph).
 	checkGraph func(*circuits.Graph) error
@@ -36,6 +41,7 @@ func (c *circuitFlags) add(fs *pflag.FlagSet) {
 	fs.StringVar(&c.schedule, "schedule", "layered", "gate schedule: layered or random-edge")
 	fs.StringVar(&c.gates, "gates", "haar", "two-qubit gate set: haar, clifford, cz+haar1, cnot+haar1, iswap+haar1, sqrt-iswap+haar1, or a gate-set JSON file")
 	fs.Uint64Var(&c.seed, "seed", defaultSeed, "seed of the per-instance random streams")
+	fs.BoolVar(&c.allowDisconnected, "allow-disconnected", false, "accept a chip with isolated qubits or several parts; it never reaches the Haar value 2/(D+1): E[Z] tends to the product of the parts' Haar values, against which R is then measured")
 	fs.BoolVar(&c.unitarize, "unitarize", false, "replace each matrix of a gate-set file by its nearest unitary (measured matrices are unitary only to the digits written)")
 }
 
@@ -56,16 +62,21 @@ func newSetup(sp *runs.Spec) *setup {
 	return &setup{spec: sp, graph: sp.Graph, schedule: sp.Schedule, ensemble: sp.Ensemble, layout: sp.Layout, demo: sp.Demo}
 }
 
-// resolve builds the graph, schedule and ensemble; every failure is bad input.
-func (c *circuitFlags) resolve() (*setup, error) { return c.resolveWith(func(*runs.Options) {}) }
+// resolve builds the graph, schedule and ensemble; every failure is bad
+// input, except an interruption (ctx done during the colouring of a large
+// graph), which wraps ctx.Err().
+func (c *circuitFlags) resolve(ctx context.Context) (*setup, error) {
+	return c.resolveWith(ctx, func(*runs.Options) {})
+}
 
 // resolveWith is resolve with a change to the options before the spec is
 // built.
-func (c *circuitFlags) resolveWith(change func(*runs.Options)) (*setup, error) {
-	o := runs.Options{Graph: c.graph, Layout: c.layout, Schedule: c.schedule, Gates: c.gates, Seed: c.seed, Drop: c.drop, Unitarize: c.unitarize}
+func (c *circuitFlags) resolveWith(ctx context.Context, change func(*runs.Options)) (*setup, error) {
+	o := runs.Options{Graph: c.graph, Layout: c.layout, Schedule: c.schedule, Gates: c.gates, Seed: c.seed, Drop: c.drop, Unitarize: c.unitarize,
+		AllowDisconnected: c.allowDisconnected}
 	o.CheckGraph = c.checkGraph
 	change(&o)
-	sp, err := runs.NewSpec(o)
+	sp, err := runs.NewSpecContext(ctx, o)
 	var oe *runs.OptionError
 	if errors.As(err, &oe) {
 		if oe.Value != "" {
@@ -115,6 +126,16 @@ func (s *setup) describe() string {
 		}
 	}
 	return fmt.Sprintf("%s: %d qubits, %d couplers; %s; %s", name, s.graph.Qubits, len(s.graph.Edges), sched, gates)
+}
+
+// partsNote says, for a chip in parts, that it never reaches the Haar value
+// and what R is measured against instead; "" for a connected chip.
+func (s *setup) partsNote() string {
+	if s.spec.Parts < 2 {
+		return ""
+	}
+	return fmt.Sprintf("The chip is in %d parts and never reaches the Haar value 2/(D+1): E[Z] tends to the product of the parts' Haar values, %.6g;\nR below is measured against that limit, not 2/(D+1).",
+		s.spec.Parts, s.spec.Limit())
 }
 
 // The bounds of --depths and --instances.

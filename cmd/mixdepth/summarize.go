@@ -75,7 +75,7 @@ func runSummarize(ctx context.Context, args []string, stdout, stderr io.Writer) 
 		fmt.Fprintf(stderr, "mixdepth: note: summarizing %d of the run's %d instances (missing %s)\n", len(run.Done), run.Instances, briefIDs(missing))
 	}
 	if *plot != "" {
-		if err := saveScanPlot(*plot, s, sum, run.ExactRatios(s.graph.Qubits)); err != nil {
+		if err := saveScanPlot(*plot, s, sum, run.ExactRatios(s.spec.Limit())); err != nil {
 			return err
 		}
 	}
@@ -148,5 +148,5 @@ func loadScan(fs *pflag.FlagSet, vf *verdictFlags, paths []string, cmd string) (
 	if err != nil {
 		return nil, usageError{err}
 	}
-	return &loadedScan{setup: s, run: run, curve: scan.Estimate(s.graph.Qubits, records, crit)}, nil
+	return &loadedScan{setup: s, run: run, curve: s.spec.Estimate(records, crit)}, nil
 }

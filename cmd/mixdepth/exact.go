@@ -100,7 +100,7 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	bondFlag := fs.String("bond-dim", "auto", fmt.Sprintf("bond dimension cap of the mps engine, 2..%d; auto: %d for chains and rings (order bandwidth ≤ 2), %d otherwise; the error estimate reruns at half of it", moments.MPSMaxBond, moments.DefaultBondDim(1), moments.DefaultBondDim(3)))
 	orderFlag := fs.String("order", "auto", "qubit order of the mps engine: auto, or FILE listing the qubit ids in order")
 	asJSON := fs.Bool("json", false, "print one JSON document instead of the text report")
-	var nf noiseFlags
+	var nf xebFlags
 	nf.add(fs)
 	if err := parseFlags(fs, args); err != nil {
 		return err
@@ -456,9 +456,9 @@ func explainTransfer(w io.Writer, e circuits.Ensemble) error {
 	return nil
 }
 
-// noiseFlags are the noise flags of exact: with any of them given, exact
+// xebFlags are the noise flags of exact: with any of them given, exact
 // also predicts the cross-entropy benchmark.
-type noiseFlags struct {
+type xebFlags struct {
 	gateSpec, readoutSpec string
 	single, fidelity      float64
 	// Parsed by parse.
@@ -469,7 +469,7 @@ type noiseFlags struct {
 // exactNoiseFlags are the flag names that switch the noisy benchmark on.
 var exactNoiseFlags = []string{"gate-error", "single-qubit-error", "readout-error", "fidelity"}
 
-func (nf *noiseFlags) add(fs *pflag.FlagSet) {
+func (nf *xebFlags) add(fs *pflag.FlagSet) {
 	fs.StringVar(&nf.gateSpec, "gate-error", "0", "Pauli error rate in [0, 1] after every two-qubit gate (one of the 15 non-identity Paulis); a list or range as for --depths, e.g. 0.001:0.02:0.001, gives one block of rows per rate")
 	fs.Float64Var(&nf.single, "single-qubit-error", 0, "Pauli error rate in [0, 1] after every single-qubit gate (gate sets G·(u⊗u) and their final layer; Haar and Clifford gates have none)")
 	fs.StringVar(&nf.readoutSpec, "readout-error", "0,0", "readout flip probabilities p01,p10 (0→1, 1→0), or one value for both")
@@ -477,12 +477,12 @@ func (nf *noiseFlags) add(fs *pflag.FlagSet) {
 }
 
 // given reports whether any noise flag was set on the command line.
-func (nf *noiseFlags) given(fs *pflag.FlagSet) bool {
+func (nf *xebFlags) given(fs *pflag.FlagSet) bool {
 	return slices.ContainsFunc(exactNoiseFlags, fs.Changed)
 }
 
 // parse checks the noise flags; every rate must lie in [0, 1].
-func (nf *noiseFlags) parse() error {
+func (nf *xebFlags) parse() error {
 	rates, err := parseRates("--gate-error", nf.gateSpec)
 	if err != nil {
 		return err
@@ -499,7 +499,7 @@ func (nf *noiseFlags) parse() error {
 }
 
 // setMeta records the noise in the table metadata.
-func (nf *noiseFlags) setMeta(meta tables.Meta) {
+func (nf *xebFlags) setMeta(meta tables.Meta) {
 	rates := make([]string, len(nf.gateErrors))
 	for i, r := range nf.gateErrors {
 		rates[i] = formatFloat(r)
@@ -512,7 +512,7 @@ func (nf *noiseFlags) setMeta(meta tables.Meta) {
 
 // exactNoise returns the chip noise of g for one gate error rate and the
 // other noise flags: the same rates on every coupler and qubit.
-func exactNoise(g *circuits.Graph, nf *noiseFlags, gateError float64) (*circuits.ChipNoise, error) {
+func exactNoise(g *circuits.Graph, nf *xebFlags, gateError float64) (*circuits.ChipNoise, error) {
 	nz := circuits.UniformNoise(g, gateError, nf.single, nf.p01, nf.p10, nf.fidelity)
 	if err := nz.Validate(g); err != nil {
 		return nil, badInput("%v; every rate must lie in [0, 1]", err)
@@ -577,7 +577,7 @@ type exactJSONNoise struct {
 	Fidelity         float64   `json:"fidelity"`
 }
 
-func (nf *noiseFlags) json() *exactJSONNoise {
+func (nf *xebFlags) json() *exactJSONNoise {
 	return &exactJSONNoise{GateErrors: nf.gateErrors, SingleQubitError: nf.single, Readout01: nf.p01, Readout10: nf.p10, Fidelity: nf.fidelity}
 }
 
@@ -624,7 +624,7 @@ func xebAgreementOf(r *moments.Result) exactXEBAgreement {
 }
 
 // printXEB prints the benchmark blocks of the text report, one per rate.
-func printXEB(w io.Writer, nf *noiseFlags, rates []float64, results []*moments.Result) {
+func printXEB(w io.Writer, nf *xebFlags, rates []float64, results []*moments.Result) {
 	for k, r := range results {
 		fmt.Fprintln(w)
 		fmt.Fprintf(w, "Expected cross-entropy benchmark · gate error %g · single-qubit error %g · readout %g,%g · fidelity %g\n",

@@ -122,7 +122,7 @@ func TestReadCalibrationErrors(t *testing.T) {
 	const h = "qubit,coupled_to,pair_error,single_error,readout_01,readout_10\n"
 	for _, c := range []struct {
 		name, file, want string
-		line           int
+		line             int
 	}{
 		{"no header", "# nothing\n\n", "no header row", 0},
 		{"unknown column", "qubit,fidelity\n", `header column "fidelity"`, 1},

@@ -45,7 +45,7 @@ func TestChipUniformSameShots(t *testing.T) {
 // fixedGate is a test ensemble whose every gate is M, drawing nothing.
 type fixedGate struct{ m [16]complex128 }
 
-func (f fixedGate) Name() string                          { return "fixed" }
+func (f fixedGate) Name() string                         { return "fixed" }
 func (f fixedGate) Gate(_ *rand.Rand, m *[16]complex128) { *m = f.m }
 
 // TestChipOneNoisyCoupler runs identity gates on line:4 where only the
@@ -415,6 +415,3 @@ func TestChipValidate(t *testing.T) {
 		t.Error(err)
 	}
 }
-
-
-

@@ -12,6 +12,7 @@ import (
 
 	"github.com/spf13/pflag"
 
+	"mixdepth/circuits"
 	"mixdepth/moments"
 	"mixdepth/runs"
 	"mixdepth/sampling"
@@ -57,6 +58,7 @@ var badInputErrors = []error{
 	moments.ErrTooLarge,
 	moments.ErrNoExactMoments, moments.ErrEngine, moments.ErrOrder,
 	scan.ErrConfig,
+	circuits.ErrCalibration,
 	sampling.ErrConfig, sampling.ErrNoiseRange, sampling.ErrCircuitFile, sampling.ErrCircuitMismatch, sampling.ErrEmpty, sampling.ErrColumn, sampling.ErrColumnType, sampling.ErrNull, sampling.ErrNotNumber, sampling.ErrBitstring, sampling.ErrInstance, sampling.ErrProbability, sampling.ErrMismatch,
 }
 

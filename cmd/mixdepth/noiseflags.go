@@ -135,3 +135,24 @@ func chipFromMeta(meta tables.Meta, g *circuits.Graph) (*circuits.ChipNoise, err
 	}
 	return circuits.ReadCalibration("metadata "+runs.KeyCalibration, bytes.NewReader([]byte(content)), g, base)
 }
+
+// digitalParts returns the factors of c.DigitalFidelity for depth steps of
+// s and e: the two-qubit gates alone, the single-qubit gates alone, the
+// readout alone, and the whole (with c's global fidelity), each computed by
+// DigitalFidelity on a copy of c with the other rates zero.
+func digitalParts(c *circuits.ChipNoise, s circuits.Schedule, e circuits.Ensemble, depth int) (two, single, readout, all float64) {
+	zero := make([]float64, c.Qubits())
+	only := func(pair bool, single, r01, r10 []float64) float64 {
+		d := *c // shares the coupler index, read only
+		d.Fidelity = 1
+		if !pair {
+			d.Pair = make([]float64, len(c.Pair))
+		}
+		d.Single, d.Readout01, d.Readout10 = single, r01, r10
+		return d.DigitalFidelity(s, e, depth)
+	}
+	two = only(true, zero, zero, zero)
+	single = only(false, c.Single, zero, zero)
+	readout = only(false, zero, c.Readout01, c.Readout10)
+	return two, single, readout, c.DigitalFidelity(s, e, depth)
+}

@@ -1,0 +1,158 @@
+package main
+
+import (
+	"encoding/json"
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"mixdepth/circuits"
+	"mixdepth/fixtures"
+	"mixdepth/runs"
+)
+
+// lineCalibration is a calibration of line:4 (invented values for the
+// test): the coupler 1-2 weak, qubit 2's single-qubit gates worse, qubit 0
+// reading 1 as 0 often.
+const lineCalibration = `# test calibration of line:4 (invented values)
+qubit,coupled_to,pair_error,single_error,readout_01,readout_10
+1,2,0.03,,,
+2,,,0.004,,
+0,,,,,0.1
+`
+
+// TestSampleCalibration runs sample with a calibration file: the report
+// counts the file's rows, the predicted fidelity is the digital model
+// element by element (worked by hand below), and the table's metadata
+// rebuilds the same ChipNoise (chipFromMeta).
+func TestSampleCalibration(t *testing.T) {
+	dir := t.TempDir()
+	cal := writeFile(t, dir, "line4.csv", lineCalibration)
+	out := filepath.Join(dir, "s.arrow")
+	stdout, _ := sampleOK(t, "sample", "--graph", "line:4", "--gates", "cz+haar1", "--depth", "4", "--instances", "2", "--shots", "200",
+		"--gate-error", "0.01", "--single-qubit-error", "0.001", "--readout-error", "0.02", "--calibration", cal, "--out", out, "--json")
+	var doc sampleJSON
+	if err := json.Unmarshal([]byte(stdout), &doc); err != nil {
+		t.Fatal(err)
+	}
+	if doc.Calibration == nil || doc.Calibration.Couplers != 1 || doc.Calibration.Qubits != 2 || doc.SingleQubitError == nil || *doc.SingleQubitError != 0.001 {
+		t.Fatalf("calibration %+v, single %v; want 1 coupler, 2 qubits, 0.001", doc.Calibration, doc.SingleQubitError)
+	}
+	// line:4 layered, depth 4: (0,1), (2,3), (1,2), (0,1), (2,3), (1,2);
+	// each gate carries the single-qubit errors of its two qubits, the final
+	// layer one per qubit (Arute et al. 2019, the digital error model).
+	s := []float64{0.999, 0.999, 0.996, 0.999} // 1 − single, per qubit
+	g01 := 0.99 * s[0] * s[1]
+	g23 := 0.99 * s[2] * s[3]
+	g12 := 0.97 * s[1] * s[2]
+	readout := (1 - (0.02+0.1)/2) * math.Pow(1-0.02, 3)
+	want := math.Pow(g01*g23*g12, 2) * s[0] * s[1] * s[2] * s[3] * readout
+	if math.Abs(doc.PredictedFidelity-want) > 1e-12 {
+		t.Errorf("predicted fidelity %.15g, want %.15g", doc.PredictedFidelity, want)
+	}
+	if doc.Trajectories != 100 {
+		t.Errorf("%d trajectories, want the default 100", doc.Trajectories)
+	}
+
+	tab := sampleTable(t, out)
+	if got, _ := tab.Meta.Get(runs.KeyCalibration); got != lineCalibration {
+		t.Errorf("metadata calibration %q, want the file's content", got)
+	}
+	g, _ := circuits.ParseGraph("line:4")
+	rebuilt, err := chipFromMeta(tab.Meta, g)
+	if err != nil {
+		t.Fatal(err)
+	}
+	direct, err := circuits.ReadCalibration("f", strings.NewReader(lineCalibration), g, circuits.UniformNoise(g, 0.01, 0.001, 0.02, 0.02, 1))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if fmt.Sprint(rebuilt.Pair, rebuilt.Single, rebuilt.Readout01, rebuilt.Readout10, rebuilt.Fidelity) !=
+		fmt.Sprint(direct.Pair, direct.Single, direct.Readout01, direct.Readout10, direct.Fidelity) {
+		t.Errorf("metadata rebuilds %+v, want %+v", rebuilt, direct)
+	}
+	// An altered calibration in the metadata is refused.
+	tab.Meta.Set(runs.KeyCalibration, strings.Replace(lineCalibration, "0.03", "0.003", 1))
+	if _, err := chipFromMeta(tab.Meta, g); err == nil || !strings.Contains(err.Error(), "altered") {
+		t.Errorf("altered calibration: %v", err)
+	}
+
+	// Without the new flags the table has none of their keys.
+	plain := filepath.Join(dir, "p.arrow")
+	sampleOK(t, "sample", "--graph", "line:4", "--depth", "4", "--instances", "1", "--shots", "10", "--gate-error", "0.01", "--out", plain)
+	for _, k := range []string{runs.KeyCalibration, runs.KeyCalibrationDigest, runs.KeySingleQubitError} {
+		if _, ok := sampleTable(t, plain).Meta.Get(k); ok {
+			t.Errorf("a run without --calibration and --single-qubit-error records %s", k)
+		}
+	}
+}
+
+// TestCalibrationBadInput: a bad calibration file, or an output over it,
+// exits 2 with one line naming the file and the problem.
+func TestCalibrationBadInput(t *testing.T) {
+	dir := t.TempDir()
+	cal := writeFile(t, dir, "line4.csv", lineCalibration)
+	bad := writeFile(t, dir, "bad.csv", "qubit,coupled_to,pair_error\n0,2,0.01\n")
+	base := []string{"sample", "--graph", "line:4", "--depth", "2", "--instances", "1", "--shots", "5"}
+	for _, c := range []struct {
+		args []string
+		want string
+	}{
+		{[]string{"--calibration", bad}, "bad.csv:2: invalid calibration file: line:4 does not couple qubits 0 and 2"},
+		{[]string{"--calibration", filepath.Join(dir, "none.csv")}, "--calibration"},
+		{[]string{"--calibration", cal, "--out", cal}, "same file as the input --calibration"},
+		{[]string{"--single-qubit-error", "1.5"}, "--single-qubit-error 1.5"},
+	} {
+		_, stderr, code := runCLI(t, append(base, c.args...)...)
+		if code != 2 || !strings.Contains(stderr, c.want) || strings.Count(strings.TrimSpace(stderr), "\n") > 0 {
+			t.Errorf("%v: exit %d, %q; want 2 and one line with %q", c.args, code, stderr, c.want)
+		}
+	}
+	if data, _ := os.ReadFile(cal); string(data) != lineCalibration {
+		t.Error("the calibration file was changed")
+	}
+	_, stderr, code := runCLI(t, "plan", "--graph", "line:4", "--calibration", bad)
+	if code != 2 || !strings.Contains(stderr, "bad.csv:2") {
+		t.Errorf("plan with a bad calibration: exit %d, %q", code, stderr)
+	}
+}
+
+// TestPlanCalibrationUniform: a calibration that lists every element of the
+// demo chip with the uniform rates predicts, element by element, what the
+// uniform digital model (ErrorModel.Predict over CountGates) predicts: two
+// derivations of Arute et al.'s product of fidelities.
+func TestPlanCalibrationUniform(t *testing.T) {
+	var b strings.Builder
+	b.WriteString("qubit,coupled_to,pair_error,single_error,readout_01,readout_10\n")
+	g, _ := fixtures.DemoChip()
+	for _, e := range g.Edges {
+		fmt.Fprintf(&b, "%d,%d,0.006,,,\n", e.A, e.B)
+	}
+	for q := range g.Qubits {
+		fmt.Fprintf(&b, "%d,,,0.001,0.02,0.04\n", q)
+	}
+	cal := writeFile(t, t.TempDir(), "uniform.csv", b.String())
+	plan := func(args ...string) planJSON {
+		t.Helper()
+		stdout, _ := sampleOK(t, append([]string{"plan", "--json", "--gates", "iswap+haar1", "--depth", "10"}, args...)...)
+		var doc planJSON
+		if err := json.Unmarshal([]byte(stdout), &doc); err != nil {
+			t.Fatal(err)
+		}
+		return doc
+	}
+	want := plan("--gate-error", "0.006", "--single-qubit-error", "0.001", "--readout-error", "0.02,0.04")
+	got := plan("--calibration", cal)
+	for _, p := range [][2]float64{{got.PredictedFidelity, want.PredictedFidelity}, {got.TwoQubitFidelity, want.TwoQubitFidelity},
+		{got.SingleQubitFidelity, want.SingleQubitFidelity}, {got.ReadoutFidelity, want.ReadoutFidelity}} {
+		if math.Abs(p[0]-p[1]) > 1e-12*p[1] {
+			t.Errorf("with the calibration %.15g, uniform %.15g", p[0], p[1])
+		}
+	}
+	if got.Calibration != cal {
+		t.Errorf("JSON calibration %q, want %q", got.Calibration, cal)
+	}
+}

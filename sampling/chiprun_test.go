@@ -368,10 +368,10 @@ func TestChipTrajectoryCheckpoints(t *testing.T) {
 	}
 }
 
-// TestChipSingleOnlyFinal checks that for a Haar ensemble, which has no
+// TestChipSingleWithoutSingleGates checks that for a Haar ensemble, which has no
 // single-qubit gates, single-qubit rates change nothing: no trajectories,
 // the shots of the noiseless chip.
-func TestChipSingleOnlyFinal(t *testing.T) {
+func TestChipSingleWithoutSingleGates(t *testing.T) {
 	noisy := chipConfig(t, "ring:4", "haar", 4, 2, 300, func(g *circuits.Graph) *circuits.ChipNoise {
 		return circuits.UniformNoise(g, 0, 0.2, 0, 0, 1)
 	})
@@ -413,5 +413,48 @@ func TestChipValidate(t *testing.T) {
 	d.Noise = Noise{Chip: circuits.UniformNoise(ring, 0.01, 0, 0, 0, 1)}
 	if err := d.Validate(); err != nil {
 		t.Error(err)
+	}
+}
+
+// finalIdentity is a test ensemble of identity two-qubit gates with a final
+// layer of identity single-qubit gates: only the final layer can hold
+// single-qubit errors.
+type finalIdentity struct{ fixedGate }
+
+func (finalIdentity) Final(_ *rand.Rand, m *[4]complex128) { *m = [4]complex128{1, 0, 0, 1} }
+
+// TestChipFinalLayerErrors: with identity gates and identity final gates,
+// a trajectory's only errors are those after the final layer, and qubit q
+// reads 1 exactly when its error is X or Y: P(1) = 2·Single[q]/3 (worked
+// by hand), within 4 binomial standard errors. Trajectories whose first
+// error lies past the last gate start from the last saved state; the shots
+// are the same bit for bit without saved states.
+func TestChipFinalLayerErrors(t *testing.T) {
+	const shots = 30000
+	single := []float64{0.3, 0, 0.06}
+	c := chipConfig(t, "line:3", "haar", 4, 1, shots, func(g *circuits.Graph) *circuits.ChipNoise {
+		ch := circuits.UniformNoise(g, 0, 0, 0, 0, 1)
+		copy(ch.Single, single)
+		return ch
+	})
+	c.Ensemble = finalIdentity{fixedGate{[16]complex128{0: 1, 5: 1, 10: 1, 15: 1}}}
+	c.Trajectories = shots
+	r := runAll(t, c)[0]
+	var ones [3]int
+	for _, x := range r.Outcomes {
+		for q := range 3 {
+			ones[q] += int(x >> q & 1)
+		}
+	}
+	for q, s := range single {
+		want := 2 * s / 3
+		se := math.Sqrt(want * (1 - want) / shots)
+		if got := float64(ones[q]) / shots; math.Abs(got-want) > 4*se {
+			t.Errorf("qubit %d reads 1 with frequency %.4f, want %.4f ± 4·%.4f", q, got, want, se)
+		}
+	}
+	c.SavedStateBytes = -1
+	if again := runAll(t, c)[0]; !slices.Equal(again.Outcomes, r.Outcomes) {
+		t.Error("final-layer errors: shots differ without saved states")
 	}
 }

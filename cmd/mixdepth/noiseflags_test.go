@@ -156,3 +156,42 @@ func TestPlanCalibrationUniform(t *testing.T) {
 		t.Errorf("JSON calibration %q, want %q", got.Calibration, cal)
 	}
 }
+
+// TestDemoCalibration reads the shipped calibration of the demo chip
+// (invented values): every coupler and qubit set, rates in the plausible
+// ranges its comment states, and with --drop 9 the rows of qubit 9 and its
+// four couplers skipped.
+func TestDemoCalibration(t *testing.T) {
+	const path = "../../fixtures/tarn16-calibration.csv"
+	data, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	g, _ := fixtures.DemoChip()
+	c, err := circuits.ReadCalibrationInfo(path, strings.NewReader(string(data)), g, circuits.UniformNoise(g, 0, 0, 0, 0, 1))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if c.Couplers != len(g.Edges) || c.Qubits != g.Qubits || c.Skipped != 0 {
+		t.Errorf("%d couplers, %d qubits, %d skipped; want %d, %d, 0", c.Couplers, c.Qubits, c.Skipped, len(g.Edges), g.Qubits)
+	}
+	in := func(v, lo, hi float64) bool { return v >= lo && v <= hi }
+	for i, v := range c.Noise.Pair {
+		if !in(v, 0.003, 0.015) {
+			t.Errorf("coupler %v: rate %v outside 0.3–1.5%%", g.Edges[i], v)
+		}
+	}
+	for q := range g.Qubits {
+		if !in(c.Noise.Single[q], 0.0002, 0.001) || !in(c.Noise.Readout01[q], 0.01, 0.05) || !in(c.Noise.Readout10[q], 0.01, 0.05) {
+			t.Errorf("qubit %d: rates %v, %v, %v outside the stated ranges", q, c.Noise.Single[q], c.Noise.Readout01[q], c.Noise.Readout10[q])
+		}
+	}
+	stdout, _ := sampleOK(t, "sample", "--depth", "2", "--instances", "1", "--shots", "20", "--drop", "9", "--calibration", path, "--json")
+	var doc sampleJSON
+	if err := json.Unmarshal([]byte(stdout), &doc); err != nil {
+		t.Fatal(err)
+	}
+	if doc.Calibration == nil || doc.Calibration.Skipped != 5 || doc.Calibration.Qubits != 15 || doc.Calibration.Couplers != len(g.Edges)-4 {
+		t.Errorf("--drop 9: calibration %+v; want 5 rows skipped, 15 qubits, %d couplers", doc.Calibration, len(g.Edges)-4)
+	}
+}

@@ -91,7 +91,7 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	readout := fs.String("readout-error", "0,0", "readout flip probabilities p01,p10 (0→1, 1→0), or one value for both")
 	var nf noiseFlags
 	nf.add(fs, true)
-	trajectories := fs.Int("trajectories", sampling.DefaultTrajectories, "trajectories per instance with --gate-error: T = min(shots, this)")
+	trajectories := fs.Int("trajectories", sampling.DefaultTrajectories, "trajectories per instance with gate errors (--gate-error, --single-qubit-error, --calibration): T = min(shots, this)")
 	partFlag := fs.String("part", "", partFlagHelp)
 	workers := fs.Int("workers", defaultWorkers(), "worker goroutines")
 	out := fs.String("out", "", "write the shots to FILE.arrow or FILE.parquet")

@@ -1,13 +1,16 @@
 package sampling
 
 import (
+	"flag"
 	"math"
 	"math/cmplx"
 	"math/rand/v2"
+	"path/filepath"
 	"slices"
 	"testing"
 
 	"mixdepth/circuits"
+	"mixdepth/internal/golden"
 )
 
 // chipConfig is testConfig with the noise of a ChipNoise on the graph spec.
@@ -456,5 +459,42 @@ func TestChipFinalLayerErrors(t *testing.T) {
 	c.SavedStateBytes = -1
 	if again := runAll(t, c)[0]; !slices.Equal(again.Outcomes, r.Outcomes) {
 		t.Error("final-layer errors: shots differ without saved states")
+	}
+}
+
+var updateChip = flag.Bool("update", false, "rewrite testdata/chip_regress.json from the current code")
+
+// chipRegress is what TestChipRegress pins: the outcomes of a small run
+// with per-coupler, single-qubit and readout errors.
+type chipRegress struct {
+	Outcomes [][]uint64
+}
+
+// TestChipRegress pins the shots of a run with a ChipNoise (per-coupler
+// rates, single-qubit errors on cz+haar1, per-qubit readout), so that a
+// change to SingleErrorStream or to the order of the draws shows up: it
+// would change every later table of a run with these flags. Regenerate
+// with go test ./sampling/ -run ChipRegress -update, after checking why.
+func TestChipRegress(t *testing.T) {
+	c := chipConfig(t, "ring:5", "cz+haar1", 6, 2, 40, func(g *circuits.Graph) *circuits.ChipNoise {
+		ch := circuits.UniformNoise(g, 0.01, 0.003, 0.02, 0.04, 0.95)
+		ch.Pair[2] = 0.05
+		ch.Single[4] = 0.02
+		ch.Readout10[1] = 0.1
+		return ch
+	})
+	c.Trajectories = 20
+	var got chipRegress
+	for _, r := range runAll(t, c) {
+		got.Outcomes = append(got.Outcomes, r.Outcomes)
+	}
+	var want chipRegress
+	if !golden.Load(t, filepath.Join("testdata", "chip_regress.json"), *updateChip, got, &want) {
+		return
+	}
+	for i := range want.Outcomes {
+		if i >= len(got.Outcomes) || !slices.Equal(got.Outcomes[i], want.Outcomes[i]) {
+			t.Errorf("instance %d: outcomes differ from the pinned ones", i)
+		}
 	}
 }

@@ -218,22 +218,27 @@ func (r density) pair(e float64) density {
 }
 
 // chipLaw returns the exact output law of the two-qubit circuit c of the
-// gate set G·(u_a ⊗ u_b) (G given) under ch by applying every channel to
-// the density matrix: each gate as u_a ⊗ u_b = G†·M, then the single-qubit
+// gate set gs, G·(u_a ⊗ u_b) with G the set's entangler or its coupler's,
+// under ch by applying every channel to the density matrix: each gate as u_a ⊗ u_b = G†·M, then the single-qubit
 // channels of a and b (before G when beforeG, after it otherwise), G, the
 // coupler's Pauli channel; the final layer with a single-qubit channel
 // after each gate; then the readout flips of each qubit on the diagonal.
-func chipLaw(c *Circuit, g *[16]complex128, ch *circuits.ChipNoise, beforeG bool) [4]float64 {
-	var gd [16]complex128 // G†
-	for i := range 4 {
-		for j := range 4 {
-			gd[4*i+j] = cmplx.Conj(g[4*j+i])
-		}
-	}
+func chipLaw(c *Circuit, gs *circuits.GateSet, ch *circuits.ChipNoise, beforeG bool) [4]float64 {
+	bound := gs.EdgeEntanglers()
 	var r density
 	r[0][0] = 1
 	for _, step := range c.Steps {
 		for _, gt := range step {
+			g := &gs.G
+			if b, ok := bound[[2]int{gt.A, gt.B}]; ok {
+				g = &b
+			}
+			var gd [16]complex128 // G†
+			for i := range 4 {
+				for j := range 4 {
+					gd[4*i+j] = cmplx.Conj(g[4*j+i])
+				}
+			}
 			var k [16]complex128
 			mul4(&k, &gd, &gt.M)
 			r = r.conj(op4(&k, gt.A, gt.B))
@@ -280,12 +285,13 @@ func chipLaw(c *Circuit, g *[16]complex128, ch *circuits.ChipNoise, beforeG bool
 // (single-qubit errors after u_a, u_b and before G, and after each
 // final-layer gate) is compared outcome by outcome with the frequencies of
 // independent shots (one trajectory each, fixed seed), within 4 binomial
-// standard errors. Two gate sets: cz+haar1, and CNOT dressed with the
-// identity as its only single-qubit gate, where an X error on the control
-// before G also flips the target but after G does not, so that the law
-// with the errors placed after G differs from the right one by more than 6
-// standard errors (checked, so that the test can fail); the law without
-// single-qubit errors must differ too.
+// standard errors. Three gate sets: cz+haar1; CNOT dressed with the
+// identity as its only single-qubit gate; and CZ with its coupler
+// calibrated to CNOT (a per-coupler entangler), dressed the same way. With
+// CNOT an X error on the control before G also flips the target, after G
+// it does not, so the law with the errors placed after G differs from the
+// right one by more than 6 standard errors (checked, so that the test can
+// fail); the law without single-qubit errors must differ too.
 func TestChipSingleQubitErrorsDensity(t *testing.T) {
 	shots := 60000
 	if testing.Short() {
@@ -304,21 +310,34 @@ func TestChipSingleQubitErrorsDensity(t *testing.T) {
 		t.Fatal(err)
 	}
 	cz, _ := circuits.NewEnsemble("cz+haar1")
+	// A set whose G is CZ but whose coupler 0-1 is calibrated to CNOT: the
+	// dressing errors must be conjugated by the coupler's entangler.
+	czG, _ := circuits.Entangler("cz")
+	unbound, err := circuits.NewGateSet("coupler-cnot", czG, [][4]complex128{{1, 0, 0, 1}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	unbound.Couplers = []circuits.CouplerGate{{A: "0", B: "1", G: cnot}}
+	line2, _ := circuits.ParseGraph("line:2")
+	perCoupler, err := unbound.Bind(line2)
+	if err != nil {
+		t.Fatal(err)
+	}
 	for _, tc := range []struct {
 		gs        *circuits.GateSet
 		seed      uint64
 		placement bool // the after-G law must differ
-	}{{cz.(*circuits.GateSet), 7, false}, {plain, 11, true}} {
+	}{{cz.(*circuits.GateSet), 7, false}, {plain, 11, true}, {perCoupler, 13, true}} {
 		c := chipConfig(t, "line:2", "haar", 3, 1, shots, build)
 		c.Ensemble = tc.gs
 		c.Seed = tc.seed
 		c.Trajectories = shots
 		r := runAll(t, c)[0]
-		want := chipLaw(r.Circuit, &tc.gs.G, c.Noise.Chip, true)
-		after := chipLaw(r.Circuit, &tc.gs.G, c.Noise.Chip, false)
+		want := chipLaw(r.Circuit, tc.gs, c.Noise.Chip, true)
+		after := chipLaw(r.Circuit, tc.gs, c.Noise.Chip, false)
 		none := *c.Noise.Chip
 		none.Single = []float64{0, 0}
-		without := chipLaw(r.Circuit, &tc.gs.G, &none, true)
+		without := chipLaw(r.Circuit, tc.gs, &none, true)
 		var count [4]int
 		for _, x := range r.Outcomes {
 			count[x]++

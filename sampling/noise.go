@@ -63,16 +63,25 @@ func (n Noise) Validate() error {
 		case len(c.Readout01) != c.Qubits() || len(c.Readout10) != c.Qubits():
 			return fmt.Errorf("sampling: chip noise with %d single-qubit rates and %d, %d readout rates: %w", c.Qubits(), len(c.Readout01), len(c.Readout10), ErrConfig)
 		}
-		values := []namedValue{{"fidelity", c.Fidelity}}
+		// Names are built only for the value at fault: DrawShots validates
+		// its noise once per trajectory.
+		bad := func(v float64) bool { return !(v >= 0 && v <= 1) }
+		if bad(c.Fidelity) {
+			return checkUnitRange([]namedValue{{"fidelity", c.Fidelity}})
+		}
 		for i, v := range c.Pair {
-			values = append(values, namedValue{fmt.Sprintf("Pauli error rate of coupler %d", i), v})
+			if bad(v) {
+				return checkUnitRange([]namedValue{{fmt.Sprintf("Pauli error rate of coupler %d", i), v}})
+			}
 		}
 		for q := range c.Qubits() {
-			values = append(values, namedValue{fmt.Sprintf("single-qubit error rate of qubit %d", q), c.Single[q]},
-				namedValue{fmt.Sprintf("readout error 0→1 of qubit %d", q), c.Readout01[q]},
-				namedValue{fmt.Sprintf("readout error 1→0 of qubit %d", q), c.Readout10[q]})
+			for _, r := range []namedValue{{"single-qubit error rate", c.Single[q]}, {"readout error 0→1", c.Readout01[q]}, {"readout error 1→0", c.Readout10[q]}} {
+				if bad(r.v) {
+					return checkUnitRange([]namedValue{{fmt.Sprintf("%s of qubit %d", r.name, q), r.v}})
+				}
+			}
 		}
-		return checkUnitRange(values)
+		return nil
 	}
 	return checkUnitRange([]namedValue{{"fidelity", n.Fidelity}, {"gate error", n.GateError},
 		{"readout error 0→1", n.Readout01}, {"readout error 1→0", n.Readout10}})

@@ -12,6 +12,7 @@ import (
 	"mixdepth/circuits"
 	"mixdepth/fixtures"
 	"mixdepth/runs"
+	"mixdepth/sampling"
 )
 
 // lineCalibration is a calibration of line:4 (invented values for the
@@ -193,5 +194,35 @@ func TestDemoCalibration(t *testing.T) {
 	}
 	if doc.Calibration == nil || doc.Calibration.Skipped != 5 || doc.Calibration.Qubits != 15 || doc.Calibration.Couplers != len(g.Edges)-4 {
 		t.Errorf("--drop 9: calibration %+v; want 5 rows skipped, 15 qubits, %d couplers", doc.Calibration, len(g.Edges)-4)
+	}
+}
+
+// TestSampleCalibrationUniformSameShots: a calibration file that sets
+// nothing (a header alone) leaves the uniform rates, and the shots are
+// those of the same run without the file, row for row: the per-element
+// sampler draws what the uniform one draws.
+func TestSampleCalibrationUniformSameShots(t *testing.T) {
+	dir := t.TempDir()
+	empty := writeFile(t, dir, "empty.csv", "# no entries\nqubit,coupled_to,pair_error\n")
+	args := []string{"sample", "--graph", "grid:2x3", "--gates", "cz+haar1", "--depth", "6", "--instances", "3", "--shots", "300",
+		"--gate-error", "0.02", "--readout-error", "0.03,0.05", "--fidelity", "0.9"}
+	a, b := filepath.Join(dir, "a.arrow"), filepath.Join(dir, "b.arrow")
+	sampleOK(t, append(args, "--out", a)...)
+	sampleOK(t, append(args, "--out", b, "--calibration", empty)...)
+	ra, _, err := sampling.ReadSampleTable(a)
+	if err != nil {
+		t.Fatal(err)
+	}
+	rb, _, err := sampling.ReadSampleTable(b)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(ra) != len(rb) || len(ra) != 900 {
+		t.Fatalf("%d and %d rows, want 900", len(ra), len(rb))
+	}
+	for i := range ra {
+		if ra[i].Instance != rb[i].Instance || ra[i].Bitstring != rb[i].Bitstring || ra[i].PIdeal != rb[i].PIdeal {
+			t.Fatalf("row %d: %+v without the file, %+v with it", i+1, ra[i], rb[i])
+		}
 	}
 }

@@ -34,4 +34,9 @@
 // and line and wrap one of the Err… sentinels; check them with errors.Is.
 // Gate-set specs and files fail with *ParseError values wrapping
 // ErrUnknownGateSet or ErrGateSet.
+//
+// Noise. ChipNoise holds a chip's error rates per coupler and per qubit,
+// shared by the exact engines and the sampler; ReadCalibration reads them
+// from a calibration file (CSV of this project's own design), whose errors
+// are *ParseError values wrapping ErrCalibration.
 package circuits

@@ -79,6 +79,13 @@ func (c *ChipNoise) PairError(a, b int) float64 {
 	return c.Pair[i]
 }
 
+// PairIndex returns the index in Pair of the coupler (a, b), in either
+// orientation, and false when a and b are not coupled.
+func (c *ChipNoise) PairIndex(a, b int) (int, bool) {
+	i, ok := c.edges[key(Edge{a, b})]
+	return i, ok
+}
+
 // Noiseless reports whether c has no error at all: every rate 0 and
 // Fidelity 1.
 func (c *ChipNoise) Noiseless() bool {

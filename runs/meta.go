@@ -18,6 +18,18 @@ const (
 	KeyGateSetDigest = "gate_set_digest"
 )
 
+// Metadata keys of a sampling run's per-element noise, set only when used
+// (sample --calibration, --single-qubit-error): the calibration file's
+// content, its digest (the first 16 hex digits of its SHA-256), and the
+// uniform single-qubit Pauli error rate. With the uniform keys fidelity,
+// gate_error and readout_error they rebuild the circuits.ChipNoise of the
+// run. They are run parameters: tables of one run agree on them.
+const (
+	KeyCalibration       = "calibration"
+	KeyCalibrationDigest = "calibration_digest"
+	KeySingleQubitError  = "single_qubit_error"
+)
+
 // Metadata keys of a chip description: the qubit labels in qubit order
 // ("Q1,Q2,…", present when the graph has labels; they enter graph_digest),
 // and the out-of-service qubits and couplers removed by --drop, in the

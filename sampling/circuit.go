@@ -84,36 +84,7 @@ func (c *Circuit) run(ctx context.Context, st *sim.State, paulis []uint8, worker
 // before it; paulis still covers every gate of the circuit. after, when
 // non-nil, is called after each step t with t+1, the number of steps done.
 func (c *Circuit) runFrom(ctx context.Context, st *sim.State, from int, paulis []uint8, workers int, after func(done int)) bool {
-	if st.Qubits != c.Qubits {
-		panic(fmt.Sprintf("sampling: %d-qubit circuit on a %d-qubit state", c.Qubits, st.Qubits))
-	}
-	if paulis != nil && len(paulis) != c.GateCount() {
-		panic(fmt.Sprintf("sampling: %d Pauli errors for %d gates", len(paulis), c.GateCount()))
-	}
-	k := 0
-	for _, step := range c.Steps[:from] {
-		k += len(step)
-	}
-	for t, step := range c.Steps[from:] {
-		if ctx.Err() != nil {
-			return false
-		}
-		for i := range step {
-			g := &step[i]
-			st.Apply2(g.A, g.B, &g.M, workers)
-			if paulis != nil && paulis[k] != 0 {
-				st.Apply2(g.A, g.B, &pauliMatrices[paulis[k]], workers)
-			}
-			k++
-		}
-		if after != nil {
-			after(from + t + 1)
-		}
-	}
-	for q := range c.Final {
-		st.Apply1(q, &c.Final[q], workers)
-	}
-	return true
+	return c.runNoisy(ctx, st, from, paulis, nil, workers, after)
 }
 
 // Probabilities resets st, runs the noiseless circuit and writes the 2^n

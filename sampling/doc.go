@@ -13,14 +13,18 @@
 // without errors reuses the ideal distribution; the shots of a trajectory
 // share its errors, so they are independent draws of the noisy mixture only
 // when T = shots); global depolarizing with
-// fidelity f; and independent readout bit flips. The recorded p_ideal is
-// always the noiseless probability of the recorded outcome.
+// fidelity f; and independent readout bit flips. Noise.Chip (a
+// circuits.ChipNoise, e.g. from a calibration file) gives the same parts
+// element by element, plus single-qubit Pauli errors after the
+// single-qubit gates of dressed gate sets and final layers. The recorded
+// p_ideal is always the noiseless probability of the recorded outcome.
 //
 // Streams. Instance i of a run with seed s at depth d draws its gates from
 // circuits.Stream(s, i), its final single-qubit layer (gate sets that have
 // one) from circuits.FinalStream(s, i, d), its Pauli errors from
-// ErrorStream(s, i, d) and its shots from ShotStream(s, i, d): four ChaCha8
-// generators with distinct keys. Results depend on (s, i, d) alone, not on
+// ErrorStream(s, i, d), its single-qubit errors (only when a single-qubit
+// rate is non-zero) from SingleErrorStream(s, i, d) and its shots from
+// ShotStream(s, i, d): ChaCha8 generators with distinct keys. Results depend on (s, i, d) alone, not on
 // workers or on how a run is split into parts.
 //
 // Scoring (Boixo et al. 2018, Nature Physics 14, 595; Arute et al. 2019,

@@ -66,8 +66,13 @@ var NoErrors = ErrorModel{Depolarizing: 1}
 // ErrorModel returns the digital error model of the noise n: its Pauli
 // error rate as the two-qubit gate error (a Pauli error rate e leaves a
 // gate's fidelity 1 − e), its global depolarizing fidelity, its readout
-// flips, and no single-qubit gate errors (Noise simulates none).
+// flips, and no single-qubit gate errors. It panics for a noise with a
+// Chip, whose rates differ element by element: its digital model is
+// Chip.DigitalFidelity.
 func (n Noise) ErrorModel() ErrorModel {
+	if n.Chip != nil {
+		panic("sampling: ErrorModel of a noise with a Chip; use Chip.DigitalFidelity")
+	}
 	return ErrorModel{TwoQubitError: n.GateError, Depolarizing: n.Fidelity, Readout01: n.Readout01, Readout10: n.Readout10}
 }
 

@@ -4,6 +4,8 @@ import (
 	"errors"
 	"fmt"
 	"math/rand/v2"
+
+	"mixdepth/circuits"
 )
 
 // Noise is the noise model of a sampling run. Each option has one meaning:
@@ -21,12 +23,24 @@ import (
 //     flips independently, 0 → 1 with probability Readout01 and 1 → 0 with
 //     probability Readout10.
 //
+// Chip, when non-nil, is the whole model instead, element by element, with
+// the meanings circuits.ChipNoise gives its rates: the Pauli error rate of
+// each coupler after each two-qubit gate on it, the single-qubit Pauli
+// error rate of each qubit after each of its single-qubit gates (for a
+// *circuits.GateSet G·(u_a ⊗ u_b), after u_a and u_b and before G; for a
+// circuits.Finisher, after each gate of the final layer; Haar and Clifford
+// two-qubit gates have none), each qubit's readout flips, and its global
+// depolarizing fidelity. The other fields must then be zero. A Chip with
+// the same rates everywhere draws exactly what the same uniform fields
+// draw, so the two give the same shots bit for bit.
+//
 // The zero Noise is a uniform sampler (Fidelity 0); Ideal is the noiseless
 // model.
 type Noise struct {
 	Fidelity             float64
 	GateError            float64
 	Readout01, Readout10 float64
+	Chip                 *circuits.ChipNoise
 }
 
 // Ideal is the noiseless model: Fidelity 1 and no gate or readout errors.
@@ -36,8 +50,39 @@ var Ideal = Noise{Fidelity: 1}
 var ErrNoiseRange = errors.New("noise parameter outside [0, 1]")
 
 // Validate returns an error wrapping ErrNoiseRange, naming the parameter,
-// unless every parameter lies in [0, 1].
+// unless every parameter lies in [0, 1], and an error wrapping ErrConfig for
+// a Chip beside a non-zero uniform field or with slices of different
+// lengths. Config.Validate also checks the Chip against the circuit's
+// qubits and couplers.
 func (n Noise) Validate() error {
+	if n.Chip != nil {
+		c := n.Chip
+		switch {
+		case n.Fidelity != 0 || n.GateError != 0 || n.Readout01 != 0 || n.Readout10 != 0:
+			return fmt.Errorf("sampling: a noise with a Chip takes its fidelity and rates from it; leave the other fields zero: %w", ErrConfig)
+		case len(c.Readout01) != c.Qubits() || len(c.Readout10) != c.Qubits():
+			return fmt.Errorf("sampling: chip noise with %d single-qubit rates and %d, %d readout rates: %w", c.Qubits(), len(c.Readout01), len(c.Readout10), ErrConfig)
+		}
+		// Names are built only for the value at fault: DrawShots validates
+		// its noise once per trajectory.
+		bad := func(v float64) bool { return !(v >= 0 && v <= 1) }
+		if bad(c.Fidelity) {
+			return checkUnitRange([]namedValue{{"fidelity", c.Fidelity}})
+		}
+		for i, v := range c.Pair {
+			if bad(v) {
+				return checkUnitRange([]namedValue{{fmt.Sprintf("Pauli error rate of coupler %d", i), v}})
+			}
+		}
+		for q := range c.Qubits() {
+			for _, r := range []namedValue{{"single-qubit error rate", c.Single[q]}, {"readout error 0→1", c.Readout01[q]}, {"readout error 1→0", c.Readout10[q]}} {
+				if bad(r.v) {
+					return checkUnitRange([]namedValue{{fmt.Sprintf("%s of qubit %d", r.name, q), r.v}})
+				}
+			}
+		}
+		return nil
+	}
 	return checkUnitRange([]namedValue{{"fidelity", n.Fidelity}, {"gate error", n.GateError},
 		{"readout error 0→1", n.Readout01}, {"readout error 1→0", n.Readout10}})
 }
@@ -66,20 +111,52 @@ func (n Noise) check() {
 	}
 }
 
+// fidelity returns the global depolarizing fidelity: Chip's when set.
+func (n Noise) fidelity() float64 {
+	if n.Chip != nil {
+		return n.Chip.Fidelity
+	}
+	return n.Fidelity
+}
+
+// readoutRates returns the readout flip rates of qubit q: Chip's when set.
+func (n Noise) readoutRates(q int) (p01, p10 float64) {
+	if n.Chip != nil {
+		return n.Chip.Readout01[q], n.Chip.Readout10[q]
+	}
+	return n.Readout01, n.Readout10
+}
+
+// noReadout reports whether no qubit has a readout flip.
+func (n Noise) noReadout() bool {
+	if n.Chip == nil {
+		return n.Readout01 == 0 && n.Readout10 == 0
+	}
+	for q := range n.Chip.Qubits() {
+		if n.Chip.Readout01[q] != 0 || n.Chip.Readout10[q] != 0 {
+			return false
+		}
+	}
+	return true
+}
+
 // Readout returns the outcome x of qubits qubits after independent readout
 // flips: bit q = 0 becomes 1 with probability Readout01 and bit q = 1 becomes
-// 0 with probability Readout10. It draws from rng only for non-zero rates.
+// 0 with probability Readout10 (qubit q's rates with a Chip). It draws from
+// rng only for non-zero rates, qubit by qubit. It panics if a Chip has
+// fewer than qubits qubits.
 func (n Noise) Readout(rng *rand.Rand, x uint64, qubits int) uint64 {
-	if n.Readout01 == 0 && n.Readout10 == 0 {
+	if n.noReadout() {
 		return x
 	}
 	for q := range qubits {
+		p01, p10 := n.readoutRates(q)
 		bit := uint64(1) << q
 		if x&bit == 0 {
-			if n.Readout01 > 0 && rng.Float64() < n.Readout01 {
+			if p01 > 0 && rng.Float64() < p01 {
 				x |= bit
 			}
-		} else if n.Readout10 > 0 && rng.Float64() < n.Readout10 {
+		} else if p10 > 0 && rng.Float64() < p10 {
 			x &^= bit
 		}
 	}
@@ -99,9 +176,10 @@ func DrawShots(dst []uint64, rng *rand.Rand, a *Alias, qubits, shots int, nz Noi
 		panic(fmt.Sprintf("sampling: alias table of %d outcomes for %d qubits", a.Len(), qubits))
 	}
 	dim := uint64(1) << qubits
+	f := nz.fidelity()
 	for range shots {
 		var x uint64
-		if nz.Fidelity == 1 || rng.Float64() < nz.Fidelity {
+		if f == 1 || rng.Float64() < f {
 			x = uint64(a.Draw(rng))
 		} else {
 			x = rng.Uint64N(dim)
@@ -146,4 +224,21 @@ func drawPauli(rng *rand.Rand, e float64) int {
 		return 0
 	}
 	return 1 + rng.IntN(pauliCount-1)
+}
+
+// onePauli[p] is the 2×2 Pauli p (0 = I, 1 = X, 2 = Y, 3 = Z), row-major.
+var onePauli = [4][4]complex128{
+	{1, 0, 0, 1},
+	{0, 1, 1, 0},
+	{0, -1i, 1i, 0},
+	{1, 0, 0, -1},
+}
+
+// drawSingle returns 0 (no error) with probability 1−e and otherwise one of
+// X, Y, Z (1..3), uniformly. It draws nothing for e = 0.
+func drawSingle(rng *rand.Rand, e float64) uint8 {
+	if e == 0 || rng.Float64() >= e {
+		return 0
+	}
+	return uint8(1 + rng.IntN(3))
 }

@@ -41,8 +41,8 @@ type Config struct {
 	// Shots is the number of bitstrings drawn per instance.
 	Shots int
 	Noise Noise
-	// Trajectories bounds the quantum trajectories per instance when
-	// Noise.GateError > 0: T = min(Shots, Trajectories), and 0 means
+	// Trajectories bounds the quantum trajectories per instance when the
+	// noise has gate errors (HasGateErrors): T = min(Shots, Trajectories), and 0 means
 	// DefaultTrajectories. See TrajectoryShots for the split of the shots.
 	Trajectories int
 	// SavedStateBytes bounds the memory of the ideal states an instance
@@ -133,15 +133,62 @@ func (c *Config) Validate() error {
 		}
 		seen[id] = true
 	}
-	return c.Noise.Validate()
+	if err := c.Noise.Validate(); err != nil {
+		return err
+	}
+	if ch := c.Noise.Chip; ch != nil {
+		if ch.Qubits() != c.Qubits {
+			return bad("chip noise for %d qubits on a %d-qubit circuit", ch.Qubits(), c.Qubits)
+		}
+		var edges []circuits.Edge
+		switch s := c.Schedule.(type) {
+		case *circuits.Layered:
+			for _, cl := range s.Classes {
+				edges = append(edges, cl...)
+			}
+		case *circuits.RandomEdge:
+			edges = s.Edges
+		}
+		for _, e := range edges {
+			if _, ok := ch.PairIndex(e.A, e.B); !ok {
+				return bad("chip noise has no rate for the coupler %d-%d of the schedule", e.A, e.B)
+			}
+		}
+	}
+	return nil
+}
+
+// HasGateErrors reports whether the noise of c puts Pauli errors in the
+// circuit, so that instances need trajectories: a non-zero GateError, or a
+// Chip with a non-zero coupler rate, or a non-zero single-qubit rate when
+// the ensemble has single-qubit gates.
+func (c *Config) HasGateErrors() bool {
+	if c.Noise.GateError > 0 {
+		return true
+	}
+	ch := c.Noise.Chip
+	if ch == nil {
+		return false
+	}
+	return slices.ContainsFunc(ch.Pair, nonZero) || (hasSingleGates(c.Ensemble) && slices.ContainsFunc(ch.Single, nonZero))
+}
+
+func nonZero(v float64) bool { return v != 0 }
+
+// hasSingleGates reports whether the circuits of e have single-qubit
+// gates: the dressing of a *circuits.GateSet or a final layer.
+func hasSingleGates(e circuits.Ensemble) bool {
+	_, dressed := e.(*circuits.GateSet)
+	_, final := e.(circuits.Finisher)
+	return dressed || final
 }
 
 // TrajectoriesPerInstance returns the number of quantum trajectories each
-// instance simulates: 0 without gate errors, else
+// instance simulates: 0 without gate errors (HasGateErrors), else
 // T = min(Shots, Trajectories), with DefaultTrajectories for a zero
 // Trajectories.
 func (c *Config) TrajectoriesPerInstance() int {
-	if c.Noise.GateError == 0 {
+	if !c.HasGateErrors() {
 		return 0
 	}
 	t := c.Trajectories
@@ -181,9 +228,23 @@ func ShotStream(seed uint64, instance, depth int) *rand.Rand {
 // ErrorStream returns the random stream of the Pauli errors of instance i at
 // depth d of a run with seed s: a ChaCha8 generator keyed by "mixpauli" and
 // (s, i, d). Trajectory after trajectory, it draws for each gate in order
-// whether an error occurs and which Pauli.
+// whether an error occurs and which Pauli (nothing for a gate whose rate is
+// 0).
 func ErrorStream(seed uint64, instance, depth int) *rand.Rand {
 	return keyedStream("mixpauli", seed, instance, depth)
+}
+
+// SingleErrorStream returns the random stream of the single-qubit Pauli
+// errors of instance i at depth d of a run with seed s: a ChaCha8 generator
+// keyed by "mix1qerr" and (s, i, d), apart from ErrorStream so that the
+// two-qubit errors draw the same with or without single-qubit errors.
+// Trajectory after trajectory, it draws for each gate in order, qubit A
+// then B, whether an error follows the qubit's single-qubit gate and which
+// of X, Y, Z, then the same for the final layer qubit by qubit; nothing for
+// a qubit whose rate is 0. It is used only when some single-qubit rate is
+// non-zero.
+func SingleErrorStream(seed uint64, instance, depth int) *rand.Rand {
+	return keyedStream("mix1qerr", seed, instance, depth)
 }
 
 func keyedStream(tag string, seed uint64, instance, depth int) *rand.Rand {
@@ -202,7 +263,7 @@ func keyedStream(tag string, seed uint64, instance, depth int) *rand.Rand {
 func (c *Config) bytesPerInstance() float64 {
 	dim := float64(uint64(1) << c.Qubits)
 	need := sim.StateBytes(c.Qubits) + 8*dim + 16*dim
-	if c.Noise.GateError > 0 {
+	if c.HasGateErrors() {
 		need += 8*dim + 16*dim
 	}
 	need += float64(len(c.checkpoints())) * sim.StateBytes(c.Qubits)
@@ -222,7 +283,7 @@ const DefaultSavedStateBytes = 256 << 20
 // order to the same amplitudes: its state, and so the output, is the same
 // bit for bit.
 func (c *Config) checkpoints() []int {
-	if c.Noise.GateError == 0 || c.Depth < 2 {
+	if !c.HasGateErrors() || c.Depth < 2 {
 		return nil
 	}
 	budget := c.SavedStateBytes
@@ -354,6 +415,9 @@ type worker struct {
 	// saved[j] is the ideal state after at[j] steps (Config.checkpoints).
 	at    []int
 	saved [][]complex128
+	// dressing holds the single-qubit error rates and matrices, nil
+	// without single-qubit errors.
+	dressing *dressing
 }
 
 func newWorker(c *Config, workers int) (*worker, error) {
@@ -362,8 +426,9 @@ func newWorker(c *Config, workers int) (*worker, error) {
 		return nil, err
 	}
 	w := &worker{c: c, workers: workers, st: st, ideal: make([]float64, len(st.Amp)), at: c.checkpoints()}
-	if c.Noise.GateError > 0 {
+	if c.HasGateErrors() {
 		w.noisy = make([]float64, len(st.Amp))
+		w.dressing = newDressing(c)
 	}
 	for range w.at {
 		w.saved = append(w.saved, make([]complex128, len(st.Amp)))
@@ -384,7 +449,7 @@ func (w *worker) save(done int) {
 // resets it to |0…0⟩ and returns 0 when none is saved that early.
 func (w *worker) restore(circ *Circuit, first int) int {
 	step := 0
-	for k := first; k >= len(circ.Steps[step]); step++ {
+	for k := first; step < len(circ.Steps) && k >= len(circ.Steps[step]); step++ {
 		k -= len(circ.Steps[step])
 	}
 	// The last checkpoint at or before step: the steps before it hold no
@@ -423,21 +488,33 @@ func (w *worker) instance(ctx context.Context, id int) (r *Result, ok bool) {
 	} else {
 		errs := ErrorStream(c.Seed, id, c.Depth)
 		paulis := make([]uint8, circ.GateCount())
+		rates := w.gateRates(circ)
+		var singles *singleErrors
+		var singleRng *rand.Rand
+		if w.dressing != nil {
+			singles = w.dressing.errors(circ)
+			singleRng = SingleErrorStream(c.Seed, id, c.Depth)
+		}
 		for _, k := range TrajectoryShots(c.Shots, r.Trajectories) {
 			if ctx.Err() != nil {
 				return nil, false
 			}
 			first := -1 // the first gate with an error
 			for i := range paulis {
-				paulis[i] = uint8(drawPauli(errs, c.Noise.GateError))
+				paulis[i] = uint8(drawPauli(errs, rates[i]))
 				if first < 0 && paulis[i] != 0 {
 					first = i
+				}
+			}
+			if singles != nil {
+				if f := singles.draw(singleRng); f >= 0 && (first < 0 || f < first) {
+					first = f
 				}
 			}
 			table := &w.idealTable
 			if first >= 0 { // a trajectory without errors is the ideal circuit
 				from := w.restore(circ, first)
-				if !circ.runFrom(ctx, w.st, from, paulis, w.workers, nil) {
+				if !circ.runNoisy(ctx, w.st, from, paulis, singles, w.workers, nil) {
 					return nil, false
 				}
 				w.noisy = w.st.Probabilities(w.noisy, w.workers)

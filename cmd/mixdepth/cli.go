@@ -58,6 +58,7 @@ var badInputErrors = []error{
 	moments.ErrTooLarge,
 	moments.ErrNoExactMoments, moments.ErrEngine, moments.ErrOrder, circuits.ErrNoiseRate,
 	scan.ErrConfig,
+	circuits.ErrCalibration,
 	sampling.ErrConfig, sampling.ErrNoiseRange, sampling.ErrCircuitFile, sampling.ErrCircuitMismatch, sampling.ErrEmpty, sampling.ErrColumn, sampling.ErrColumnType, sampling.ErrNull, sampling.ErrNotNumber, sampling.ErrBitstring, sampling.ErrInstance, sampling.ErrProbability, sampling.ErrMismatch,
 }
 

@@ -10,6 +10,7 @@ import (
 
 	"github.com/spf13/pflag"
 
+	"mixdepth/circuits"
 	"mixdepth/moments"
 	"mixdepth/runs"
 	"mixdepth/sampling"
@@ -34,6 +35,7 @@ type planJSON struct {
 	ReadoutFidelity     float64    `json:"readout_fidelity"`
 	ErrorModelFidelity  *float64   `json:"error_model_fidelity"`
 	PredictedFidelity   float64    `json:"predicted_fidelity"`
+	Calibration         string     `json:"calibration,omitempty"`
 	FidelitySource      string     `json:"fidelity_source"`
 	Sigmas              *float64   `json:"sigmas"`
 	RelPrecision        *float64   `json:"rel_precision"`
@@ -75,6 +77,8 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	gateError := fs.Float64("gate-error", 0, "two-qubit gate error e2 in [0, 1)")
 	singleError := fs.Float64("single-qubit-error", 0, "single-qubit gate error e1 in [0, 1)")
 	readout := fs.String("readout-error", "0,0", "readout flip probabilities p01,p10 (0→1, 1→0), or one value for both")
+	var nf noiseFlags
+	nf.add(fs, false)
 	singleGates := fs.Int("single-qubit-gates", -1, "single-qubit gates to count; −1 counts them from the gate set (see above)")
 	asJSON := fs.Bool("json", false, "print one JSON document instead of the text report")
 	eps := fs.Float64("eps", sampling.DefaultEps, "anti-concentration threshold, as scan's: plan warns when --depth is below the depth whose R ≤ 1+eps")
@@ -111,7 +115,7 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if given && !(*fidelity > 0 && *fidelity <= 1) {
 		return badInput("--fidelity %v: must lie in (0, 1]", *fidelity)
 	}
-	rates := fs.Changed("gate-error") || fs.Changed("single-qubit-error") || fs.Changed("readout-error")
+	rates := fs.Changed("gate-error") || fs.Changed("single-qubit-error") || fs.Changed("readout-error") || nf.calibration != ""
 	if !given && !rates {
 		return badInput("plan needs the expected fidelity: give --fidelity F, or error rates (--gate-error, --single-qubit-error, --readout-error) for the digital error model")
 	}
@@ -135,6 +139,16 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	errModel := sampling.ErrorModel{TwoQubitError: *gateError, SingleQubitError: *singleError, Depolarizing: 1, Readout01: p01, Readout10: p10}
 	pred := errModel.Predict(counts)
 	f2, f1, fr, model := pred.TwoQubit, pred.SingleQubit, pred.Readout, pred.Fidelity
+	var cal *circuits.Calibration
+	if nf.calibration != "" {
+		if fs.Changed("single-qubit-gates") {
+			return badInput("--single-qubit-gates with --calibration: the per-element model counts each qubit's single-qubit gates itself; drop one of them")
+		}
+		if cal, err = nf.chip(s.graph, *gateError, *singleError, p01, p10, 1); err != nil {
+			return err
+		}
+		f2, f1, fr, model = digitalParts(cal.Noise, s.schedule, s.ensemble, *depth)
+	}
 	f, source := model, "error model"
 	if given {
 		f, source = *fidelity, "given"
@@ -147,6 +161,9 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		Depth:  *depth, TwoQubitGates: g2, SingleQubitGates: g1, GateError: *gateError, SingleQubitError: *singleError,
 		ReadoutError: [2]float64{p01, p10}, TwoQubitFidelity: f2, SingleQubitFidelity: f1, ReadoutFidelity: fr,
 		PredictedFidelity: f, FidelitySource: source,
+	}
+	if cal != nil {
+		doc.Calibration = nf.calibration
 	}
 	if rates {
 		doc.ErrorModelFidelity = &model
@@ -188,9 +205,16 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	fmt.Fprintf(stdout, "depth %d: %d two-qubit gates, %d single-qubit gates, %d qubits read out\n\n", *depth, g2, g1, n)
 	if rates {
 		fmt.Fprintln(stdout, "digital error model (Arute et al. 2019, Nature 574, 505):")
-		fmt.Fprintf(stdout, "  two-qubit gates   (1 − %g)^%d = %.4f\n", *gateError, g2, f2)
-		fmt.Fprintf(stdout, "  single-qubit      (1 − %g)^%d = %.4f\n", *singleError, g1, f1)
-		fmt.Fprintf(stdout, "  readout           (1 − (%g + %g)/2)^%d = %.4f\n", p01, p10, n, fr)
+		if cal != nil {
+			fmt.Fprintf(stdout, "  calibration %s: rates of %d coupler(s) and %d qubit(s), the others uniform\n", nf.calibration, cal.Couplers, cal.Qubits)
+			fmt.Fprintf(stdout, "  two-qubit gates   Π (1 − e2 of the coupler) = %.4f\n", f2)
+			fmt.Fprintf(stdout, "  single-qubit      Π (1 − e1 of the qubit) = %.4f\n", f1)
+			fmt.Fprintf(stdout, "  readout           Π (1 − (p01 + p10)/2 of the qubit) = %.4f\n", fr)
+		} else {
+			fmt.Fprintf(stdout, "  two-qubit gates   (1 − %g)^%d = %.4f\n", *gateError, g2, f2)
+			fmt.Fprintf(stdout, "  single-qubit      (1 − %g)^%d = %.4f\n", *singleError, g1, f1)
+			fmt.Fprintf(stdout, "  readout           (1 − (%g + %g)/2)^%d = %.4f\n", p01, p10, n, fr)
+		}
 		fmt.Fprintf(stdout, "  predicted fidelity F = %.4f\n", model)
 	}
 	if given {

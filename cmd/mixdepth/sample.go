@@ -34,24 +34,26 @@ var testHookSampleProgress func()
 // sampleJSON is the --json document of sample. Field names are an interface.
 type sampleJSON struct {
 	runs.Header
-	Seed              uint64     `json:"seed"`
-	Depth             int        `json:"depth"`
-	GateCount         int        `json:"gate_count"`
-	Instances         int        `json:"instances"`
-	Part              string     `json:"part"`
-	InstancesDone     string     `json:"instances_done"`
-	Shots             int        `json:"shots"`
-	Fidelity          float64    `json:"fidelity"`
-	GateError         float64    `json:"gate_error"`
-	ReadoutError      [2]float64 `json:"readout_error"`
-	Trajectories      int        `json:"trajectories"`
-	PredictedFidelity float64    `json:"predicted_fidelity"`
-	LinearXEB         *float64   `json:"linear_xeb"`
-	LinearXEBStderr   *float64   `json:"linear_xeb_stderr"`
-	IdealXEB          *float64   `json:"ideal_xeb"`
-	NormalizedXEB     *float64   `json:"normalized_xeb"`
-	Out               string     `json:"out,omitempty"`
-	Circuits          string     `json:"circuits,omitempty"`
+	Seed              uint64           `json:"seed"`
+	Depth             int              `json:"depth"`
+	GateCount         int              `json:"gate_count"`
+	Instances         int              `json:"instances"`
+	Part              string           `json:"part"`
+	InstancesDone     string           `json:"instances_done"`
+	Shots             int              `json:"shots"`
+	Fidelity          float64          `json:"fidelity"`
+	GateError         float64          `json:"gate_error"`
+	ReadoutError      [2]float64       `json:"readout_error"`
+	Trajectories      int              `json:"trajectories"`
+	SingleQubitError  *float64         `json:"single_qubit_error,omitempty"`
+	Calibration       *calibrationJSON `json:"calibration,omitempty"`
+	PredictedFidelity float64          `json:"predicted_fidelity"`
+	LinearXEB         *float64         `json:"linear_xeb"`
+	LinearXEBStderr   *float64         `json:"linear_xeb_stderr"`
+	IdealXEB          *float64         `json:"ideal_xeb"`
+	NormalizedXEB     *float64         `json:"normalized_xeb"`
+	Out               string           `json:"out,omitempty"`
+	Circuits          string           `json:"circuits,omitempty"`
 }
 
 func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) error {
@@ -72,6 +74,11 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		"  --readout-error p01,p10\n"+
 		"                      at measurement each bit flips independently, 0→1 with probability p01\n"+
 		"                      and 1→0 with probability p10 (one value sets both)\n"+
+		"  --single-qubit-error e1\n"+
+		"                      after every single-qubit gate (the dressing u_a, u_b of a gate set G·(u_a ⊗ u_b),\n"+
+		"                      before G, and the final layer), with probability e1 one of X, Y, Z, uniformly\n"+
+		"  --calibration FILE  per-coupler and per-qubit rates (two-qubit Pauli, single-qubit, readout) that\n"+
+		"                      override the uniform rates above element by element (README: calibration files)\n"+
 		"With no --graph it samples the demo chip.",
 		"mixdepth sample --depth 16 --instances 10 --shots 2000 --gate-error 0.005 --readout-error 0.01,0.03 --out samples.parquet --circuits circuits.json", stdout)
 	cf := circuitFlags{checkGraph: func(g *circuits.Graph) error { return sampling.CheckQubits(g.Qubits, "sampling") }}
@@ -82,7 +89,9 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	fidelity := fs.Float64("fidelity", 1, "global depolarizing fidelity f in [0, 1]: a shot is ideal with probability f, else uniform")
 	gateError := fs.Float64("gate-error", 0, "Pauli error rate e in [0, 1] after every two-qubit gate (quantum trajectories)")
 	readout := fs.String("readout-error", "0,0", "readout flip probabilities p01,p10 (0→1, 1→0), or one value for both")
-	trajectories := fs.Int("trajectories", sampling.DefaultTrajectories, "trajectories per instance with --gate-error: T = min(shots, this)")
+	var nf noiseFlags
+	nf.add(fs, true)
+	trajectories := fs.Int("trajectories", sampling.DefaultTrajectories, "trajectories per instance with gate errors (--gate-error, --single-qubit-error, --calibration): T = min(shots, this)")
 	partFlag := fs.String("part", "", partFlagHelp)
 	workers := fs.Int("workers", defaultWorkers(), "worker goroutines")
 	out := fs.String("out", "", "write the shots to FILE.arrow or FILE.parquet")
@@ -97,6 +106,7 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	}
 	var files ioCheck
 	files.circuitInputs(&cf)
+	nf.inputs(&files)
 	files.output("out", *out)
 	files.output("circuits", *circuitsOut)
 	if err := files.check(fs); err != nil {
@@ -127,6 +137,9 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	if err := checkProbability("gate-error", *gateError); err != nil {
 		return err
 	}
+	if err := checkProbability("single-qubit-error", nf.single); err != nil {
+		return err
+	}
 	p01, p10, err := parseReadout(*readout)
 	if err != nil {
 		return err
@@ -136,6 +149,13 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		return err
 	}
 	noise := sampling.Noise{Fidelity: *fidelity, GateError: *gateError, Readout01: p01, Readout10: p10}
+	var cal *circuits.Calibration
+	if nf.used() {
+		if cal, err = nf.chip(s.graph, *gateError, nf.single, p01, p10, *fidelity); err != nil {
+			return err
+		}
+		noise = sampling.Noise{Chip: cal.Noise}
+	}
 	cfg := &sampling.Config{
 		Schedule: s.schedule, Ensemble: s.ensemble, Qubits: s.graph.Qubits, Depth: *depth, Seed: cf.seed,
 		Instances: part.Instances(*instances), Shots: *shots, Noise: noise, Trajectories: *trajectories, Workers: *workers,
@@ -155,9 +175,10 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	meta.Set("gate_count", strconv.Itoa(gateCount))
 	meta.Set("instances", strconv.Itoa(*instances))
 	meta.Set("shots", strconv.Itoa(*shots))
-	meta.Set("fidelity", formatFloat(noise.Fidelity))
-	meta.Set("gate_error", formatFloat(noise.GateError))
+	meta.Set("fidelity", formatFloat(*fidelity))
+	meta.Set("gate_error", formatFloat(*gateError))
 	meta.Set("readout_error", formatFloat(p01)+","+formatFloat(p10))
+	nf.setMeta(&meta)
 	meta.Set("trajectories", strconv.Itoa(usedTrajectories))
 	meta.Set("part", part.String())
 	if *out != "" {
@@ -227,7 +248,12 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		return errInterrupted
 	}
 
-	predicted := noise.ErrorModel().Predict(sampling.CountGates(s.schedule, s.ensemble, s.graph.Qubits, *depth)).Fidelity
+	var predicted float64
+	if cal != nil {
+		predicted = cal.Noise.DigitalFidelity(s.schedule, s.ensemble, *depth)
+	} else {
+		predicted = noise.ErrorModel().Predict(sampling.CountGates(s.schedule, s.ensemble, s.graph.Qubits, *depth)).Fidelity
+	}
 	groups := make([]sampling.InstanceSamples, len(results))
 	for i, r := range results {
 		groups[i] = r.Samples()
@@ -237,11 +263,20 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		rep.SetLimit(s.spec.Limit())
 	}
 	if *asJSON {
+		var single *float64
+		var calDoc *calibrationJSON
+		if cal != nil {
+			single = &nf.single
+			if nf.calibration != "" {
+				calDoc = &calibrationJSON{File: nf.calibration, Digest: calibrationDigest(nf.content), Couplers: cal.Couplers, Qubits: cal.Qubits, Skipped: cal.Skipped}
+			}
+		}
 		return writeJSON(stdout, sampleJSON{
 			Header: s.spec.Header(),
 			Seed:   cf.seed, Depth: *depth, GateCount: gateCount,
 			Instances: *instances, Part: part.String(), InstancesDone: formatIDs(done), Shots: *shots,
-			Fidelity: noise.Fidelity, GateError: noise.GateError, ReadoutError: [2]float64{p01, p10},
+			Fidelity: *fidelity, GateError: *gateError, ReadoutError: [2]float64{p01, p10},
+			SingleQubitError: single, Calibration: calDoc,
 			Trajectories: usedTrajectories, PredictedFidelity: predicted,
 			LinearXEB: finiteOrNull(rep.Linear), LinearXEBStderr: finiteOrNull(rep.LinearErr),
 			IdealXEB: finiteOrNull(rep.Ideal), NormalizedXEB: finiteOrNull(rep.Normalized),
@@ -254,7 +289,20 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		fmt.Fprintf(stdout, " · part %s of %d instances", part, *instances)
 	}
 	fmt.Fprintln(stdout)
-	fmt.Fprintf(stdout, "noise: %s\n", describeNoise(noise, usedTrajectories))
+	uniform := sampling.Noise{Fidelity: *fidelity, GateError: *gateError, Readout01: p01, Readout10: p10}
+	if cal != nil && nf.calibration != "" {
+		fmt.Fprintf(stdout, "noise: uniform rates %s\n", strings.TrimSuffix(describeNoise(uniform, nf.single, usedTrajectories), " (ideal sampler)"))
+		fmt.Fprintf(stdout, "calibration %s: its rates of %d coupler(s) and %d qubit(s) override the uniform ones", nf.calibration, cal.Couplers, cal.Qubits)
+		if cal.Skipped > 0 {
+			fmt.Fprintf(stdout, " (%d row(s) of dropped elements skipped)", cal.Skipped)
+		}
+		if usedTrajectories > 0 {
+			fmt.Fprintf(stdout, "; %d trajectories per instance", usedTrajectories)
+		}
+		fmt.Fprintln(stdout)
+	} else {
+		fmt.Fprintf(stdout, "noise: %s\n", describeNoise(uniform, nf.single, usedTrajectories))
+	}
 	if s.graph.Labels != nil {
 		fmt.Fprintf(stdout, "bitstrings list the qubits in the order %s\n", strings.Join(s.graph.Labels, " "))
 	}
@@ -266,7 +314,11 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		fmt.Fprintf(stdout, "ideal value D·Z − 1 (mean)      %.4f   (Porter–Thomas: %.4f)\n", rep.Ideal, rep.PorterThomas)
 	}
 	fmt.Fprintf(stdout, "normalized F_lin/(D·Z − 1)      %s\n", plusMinus(rep.Normalized, rep.NormalizedErr))
-	fmt.Fprintf(stdout, "digital error model fidelity    %.4f   (f · (1−e)^%d · readout)\n", predicted, gateCount)
+	if cal != nil {
+		fmt.Fprintf(stdout, "digital error model fidelity    %.4f   (f · Π gates (1−e) · Π single-qubit gates (1−e1) · readout, element by element)\n", predicted)
+	} else {
+		fmt.Fprintf(stdout, "digital error model fidelity    %.4f   (f · (1−e)^%d · readout)\n", predicted, gateCount)
+	}
 	if *out != "" {
 		fmt.Fprintf(stdout, "\nShots: %s (%d rows); score it with 'mixdepth score %s'\n", *out, rep.Shots, *out)
 	}
@@ -279,11 +331,25 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	return nil
 }
 
-// describeNoise is the one-line description of a noise model.
-func describeNoise(nz sampling.Noise, trajectories int) string {
+// calibrationJSON describes the calibration file of a sample run in its
+// --json document. Field names are an interface.
+type calibrationJSON struct {
+	File     string `json:"file"`
+	Digest   string `json:"digest"`
+	Couplers int    `json:"couplers"`
+	Qubits   int    `json:"qubits"`
+	Skipped  int    `json:"skipped"`
+}
+
+// describeNoise is the one-line description of a uniform noise model with
+// the single-qubit rate single.
+func describeNoise(nz sampling.Noise, single float64, trajectories int) string {
 	var parts []string
 	if nz.GateError > 0 {
 		parts = append(parts, fmt.Sprintf("Pauli error rate %g after each two-qubit gate (%d trajectories per instance)", nz.GateError, trajectories))
+	}
+	if single > 0 {
+		parts = append(parts, fmt.Sprintf("Pauli error rate %g after each single-qubit gate", single))
 	}
 	if nz.Fidelity < 1 {
 		parts = append(parts, fmt.Sprintf("global depolarizing fidelity %g", nz.Fidelity))

@@ -102,6 +102,7 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	asJSON := fs.Bool("json", false, "print one JSON document instead of the text report")
 	var nf xebFlags
 	nf.add(fs)
+	nf.cal.add(fs, false)
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
@@ -121,6 +122,7 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	}
 	var files ioCheck
 	files.circuitInputs(&cf)
+	nf.cal.inputs(&files)
 	files.output("out", *out)
 	files.output("plot", *plot)
 	if err := files.check(fs); err != nil {
@@ -167,7 +169,14 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	meta.Set("depths", joinInts(depths))
 	meta.Set("eps", strconv.FormatFloat(*eps, 'g', -1, 64))
 	if noisy {
-		nf.setMeta(meta)
+		// The calibration file is read once, on the first rate, so that its
+		// content is in the metadata before the table's writability check.
+		cal, err := exactNoise(s.graph, &nf, nf.gateErrors[0])
+		if err != nil {
+			return err
+		}
+		nf.info = cal
+		nf.setMeta(&meta)
 	}
 	if *out != "" {
 		fields := runs.ExactFields()
@@ -206,11 +215,11 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	for k, rate := range rates {
 		opts := exactOpts
 		if noisy {
-			nz, err := exactNoise(s.graph, &nf, rate)
+			cal, err := exactNoise(s.graph, &nf, rate)
 			if err != nil {
 				return err
 			}
-			opts = append(slices.Clone(exactOpts), moments.ExactNoise(nz))
+			opts = append(slices.Clone(exactOpts), moments.ExactNoise(cal.Noise))
 			if k > 0 {
 				opts = append(opts, moments.ExactCurveOnly())
 			}
@@ -461,6 +470,10 @@ func explainTransfer(w io.Writer, e circuits.Ensemble) error {
 type xebFlags struct {
 	gateSpec, readoutSpec string
 	single, fidelity      float64
+	// cal is --calibration; info is what the file set, after the first
+	// exactNoise.
+	cal  noiseFlags
+	info *circuits.Calibration
 	// Parsed by parse.
 	gateErrors []float64
 	p01, p10   float64
@@ -478,7 +491,7 @@ func (nf *xebFlags) add(fs *pflag.FlagSet) {
 
 // given reports whether any noise flag was set on the command line.
 func (nf *xebFlags) given(fs *pflag.FlagSet) bool {
-	return slices.ContainsFunc(exactNoiseFlags, fs.Changed)
+	return slices.ContainsFunc(exactNoiseFlags, fs.Changed) || nf.cal.calibration != ""
 }
 
 // parse checks the noise flags; every rate must lie in [0, 1].
@@ -499,7 +512,7 @@ func (nf *xebFlags) parse() error {
 }
 
 // setMeta records the noise in the table metadata.
-func (nf *xebFlags) setMeta(meta tables.Meta) {
+func (nf *xebFlags) setMeta(meta *tables.Meta) {
 	rates := make([]string, len(nf.gateErrors))
 	for i, r := range nf.gateErrors {
 		rates[i] = formatFloat(r)
@@ -508,16 +521,17 @@ func (nf *xebFlags) setMeta(meta tables.Meta) {
 	meta.Set("single_qubit_error", formatFloat(nf.single))
 	meta.Set("readout_error", formatFloat(nf.p01)+","+formatFloat(nf.p10))
 	meta.Set("fidelity", formatFloat(nf.fidelity))
+	nf.cal.setMeta(meta)
 }
 
 // exactNoise returns the chip noise of g for one gate error rate and the
-// other noise flags: the same rates on every coupler and qubit.
-func exactNoise(g *circuits.Graph, nf *xebFlags, gateError float64) (*circuits.ChipNoise, error) {
-	nz := circuits.UniformNoise(g, gateError, nf.single, nf.p01, nf.p10, nf.fidelity)
-	if err := nz.Validate(g); err != nil {
+// other noise flags: the same rates on every coupler and qubit, then the
+// entries of the --calibration file, which override them.
+func exactNoise(g *circuits.Graph, nf *xebFlags, gateError float64) (*circuits.Calibration, error) {
+	if err := circuits.UniformNoise(g, gateError, nf.single, nf.p01, nf.p10, nf.fidelity).Validate(g); err != nil {
 		return nil, badInput("%v; every rate must lie in [0, 1]", err)
 	}
-	return nz, nil
+	return nf.cal.chip(g, gateError, nf.single, nf.p01, nf.p10, nf.fidelity)
 }
 
 // exactMaxRates bounds the --gate-error list: each rate is one exact run.
@@ -575,10 +589,17 @@ type exactJSONNoise struct {
 	Readout01        float64   `json:"readout_error_01"`
 	Readout10        float64   `json:"readout_error_10"`
 	Fidelity         float64   `json:"fidelity"`
+	// Calibration describes the --calibration file, whose entries override
+	// the uniform rates above.
+	Calibration *calibrationJSON `json:"calibration,omitempty"`
 }
 
 func (nf *xebFlags) json() *exactJSONNoise {
-	return &exactJSONNoise{GateErrors: nf.gateErrors, SingleQubitError: nf.single, Readout01: nf.p01, Readout10: nf.p10, Fidelity: nf.fidelity}
+	doc := &exactJSONNoise{GateErrors: nf.gateErrors, SingleQubitError: nf.single, Readout01: nf.p01, Readout10: nf.p10, Fidelity: nf.fidelity}
+	if c := nf.info; c != nil && nf.cal.calibration != "" {
+		doc.Calibration = &calibrationJSON{File: nf.cal.calibration, Digest: calibrationDigest(nf.cal.content), Couplers: c.Couplers, Qubits: c.Qubits, Skipped: c.Skipped}
+	}
+	return doc
 }
 
 // setXEB fills the benchmark fields of row from depth index i of r.
@@ -629,6 +650,13 @@ func printXEB(w io.Writer, nf *xebFlags, rates []float64, results []*moments.Res
 		fmt.Fprintln(w)
 		fmt.Fprintf(w, "Expected cross-entropy benchmark · gate error %g · single-qubit error %g · readout %g,%g · fidelity %g\n",
 			rates[k], nf.single, nf.p01, nf.p10, nf.fidelity)
+		if c := nf.info; c != nil && nf.cal.calibration != "" {
+			fmt.Fprintf(w, "calibration %s: its rates of %d coupler(s) and %d qubit(s) override the uniform ones above", nf.cal.calibration, c.Couplers, c.Qubits)
+			if c.Skipped > 0 {
+				fmt.Fprintf(w, "; %d row(s) of dropped elements skipped", c.Skipped)
+			}
+			fmt.Fprintln(w)
+		}
 		fmt.Fprintf(w, "%6s %7s %13s %13s %15s %17s %17s\n", "depth", "gates", "xeb_expected", "xeb_ideal", "xeb_normalized", "digital_fidelity", "xeb_over_digital")
 		for i, d := range r.Depths {
 			fmt.Fprintf(w, "%6d %7d %13.6g %13.6g %15.6f %17.6f %17.6f\n", d, r.GateCounts[i], r.XEBExpected[i], r.XEBIdeal[i],

@@ -3,6 +3,7 @@ package main
 import (
 	"context"
 	"math"
+	"os"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -189,5 +190,60 @@ func TestParseRates(t *testing.T) {
 	}
 	if want := []float64{0, 0.001, 0.002, 0.01}; len(got) != len(want) || got[0] != want[0] || got[1] != want[1] || got[2] != want[2] || got[3] != want[3] {
 		t.Errorf("list gives %v, want %v", got, want)
+	}
+}
+
+// TestExactCalibration: `exact --calibration` models the chip of the file:
+// its rows override the uniform flags element by element, so the JSON rows
+// equal moments.Exact with the ChipNoise that circuits.ReadCalibration
+// builds from the same file over the flags' rates; the file and its digest
+// are recorded in the JSON and the table metadata, and --out cannot
+// replace the file.
+func TestExactCalibration(t *testing.T) {
+	dir := t.TempDir()
+	cal := writeFile(t, dir, "cal.csv", "qubit,coupled_to,pair_error,single_error,readout_01,readout_10\n"+
+		"0,1,0.02,,,\n2,3,0.001,,,\n1,,,0.004,0.05,0.01\n4,,,,0,0.08\n")
+	args := []string{"--graph", "line:5", "--gates", "iswap+haar1", "--depths", "1:12", "--gate-error", "0.005",
+		"--readout-error", "0.01,0.02", "--calibration", cal}
+	doc := exactJSONOf(t, args...)
+	g, _ := circuits.ParseGraph("line:5")
+	s, _ := circuits.NewSchedule(circuits.KindLayered, g)
+	e, _ := circuits.NewEnsemble("iswap+haar1")
+	depths, _ := parseDepths("1:12")
+	f, err := os.Open(cal)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	chip, err := circuits.ReadCalibration(cal, f, g, circuits.UniformNoise(g, 0.005, 0, 0.01, 0.02, 1))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if chip.PairError(0, 1) != 0.02 || chip.PairError(1, 2) != 0.005 || chip.Readout10[4] != 0.08 {
+		t.Fatalf("calibration read as %+v", chip)
+	}
+	r, err := moments.Exact(context.Background(), g, s, e, depths, moments.ExactCurveOnly(), moments.ExactNoise(chip))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i, row := range doc.Rows {
+		if row.XEBExpected == nil || *row.XEBExpected != r.XEBExpected[i] || *row.DigitalFidelity != r.DigitalFidelity[i] {
+			t.Errorf("depth %d: row %+v, library %v %v", depths[i], row, r.XEBExpected[i], r.DigitalFidelity[i])
+		}
+	}
+	if doc.Noise == nil || doc.Noise.Calibration == nil || doc.Noise.Calibration.Couplers != 2 || doc.Noise.Calibration.Qubits != 2 {
+		t.Fatalf("noise block %+v", doc.Noise)
+	}
+	out := filepath.Join(dir, "x.arrow")
+	mustRun(t, append(append([]string{"exact"}, args...), "--out", out)...)
+	meta, _, err := tables.ReadMeta(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if v, _ := meta.Get("calibration"); !strings.Contains(v, "0,1,0.02") {
+		t.Errorf("calibration metadata %q", v)
+	}
+	if _, _, code := runCLI(t, append(append([]string{"exact"}, args...), "--out", cal)...); code != 2 {
+		t.Errorf("--out onto the calibration file: exit %d, want 2", code)
 	}
 }

@@ -334,9 +334,17 @@ func formatRatio(x float64) string {
 // plotExact draws the exact curve alone: the exact ratios per depth, with
 // no Monte Carlo estimate or band.
 func plotExact(path string, s *setup, r *moments.Result) error {
-	series := &plots.DepthSeries{Qubits: s.graph.Qubits, Depths: r.Depths, Exact: r.Ratio, Depth: r.Depth, Found: r.Found}
+	// No depth line on a depth the error could move (the report's "No verdict").
+	series := &plots.DepthSeries{Qubits: s.graph.Qubits, Depths: r.Depths, Exact: r.Ratio, ExactError: r.TruncationError, Depth: r.Depth, Found: r.Found && !r.DepthUncertain()}
+	how := "exact"
+	switch r.Engine {
+	case moments.EngineMPS:
+		how = "matrix product state"
+	case moments.EngineExtrapolate:
+		how = "extrapolated from " + strings.Join(r.ExtrapolatedFrom, ", ")
+	}
 	return plots.SaveDepthPlot(path, series, r.Eps, plots.WithDepthUnit(depthUnit(s)),
-		plots.WithTitle(s.graph.Name+", "+s.ensemble.Name()+" gates, exact"))
+		plots.WithTitle(s.graph.Name+", "+s.ensemble.Name()+" gates, "+how))
 }
 
 func indexOf(v []int, x int) int {

@@ -126,6 +126,11 @@ type Result struct {
 	XEBExpected, XEBIdeal, XEBNormalized []float64
 	DigitalFidelity, XEBOverDigital      []float64
 	XEBTruncationError                   []float64
+	// ExtrapolatedFrom names the smaller members of the graph's family whose
+	// exact curves EngineExtrapolate fitted, ascending in size; there
+	// TruncationError is the leave-one-size-out uncertainty of each ratio
+	// (see ExactEngine). It is nil for the other engines.
+	ExtrapolatedFrom []string
 }
 
 // ExactOption sets an optional parameter of Exact.
@@ -140,6 +145,9 @@ type exactConfig struct {
 	engine    string
 	bond      int
 	order     []int
+	// extrapQubits is the largest member of EngineExtrapolate, 0 for
+	// DefaultExtrapolateQubits.
+	extrapQubits int
 }
 
 // The engines of Exact (see ExactEngine).
@@ -147,10 +155,13 @@ const (
 	EngineAuto   = "auto"
 	EngineVector = "vector"
 	EngineMPS    = "mps"
+	// EngineExtrapolate fits the exact curves of smaller members of a
+	// lattice family and predicts the graph's (see ExactEngine).
+	EngineExtrapolate = "extrapolate"
 )
 
 // Engines lists the values ExactEngine accepts.
-var Engines = []string{EngineAuto, EngineVector, EngineMPS}
+var Engines = []string{EngineAuto, EngineVector, EngineMPS, EngineExtrapolate}
 
 // AutoVectorMaxQubits is the largest qubit count for which EngineAuto takes
 // the vector engine on a layered schedule: 2^26 coefficients are 512 MiB
@@ -196,6 +207,16 @@ func ExactProgress(f func(done, total int)) ExactOption {
 // default): the vector engine for random-edge schedules and for layered
 // schedules on at most AutoVectorMaxQubits qubits, the MPS beyond. Exact
 // panics for other values.
+//
+// EngineExtrapolate (the family's layered schedule on a graph of
+// ExtrapolateFamilies only) computes with the vector engine the exact
+// ln E[Z]/Z_H of smaller members of the graph's family, up to
+// ExactExtrapolateQubits qubits, fits it per depth by least squares with
+// a bulk and an end term (a lattice as a strip of its narrow side), and
+// evaluates the fit at the graph; each TruncationError is the uncertainty
+// from leaving one size out and from the previous window of sizes, and
+// ExtrapolatedFrom lists the members. Other graphs and schedules, and gate
+// files with per-coupler matrices, give an error wrapping ErrEngine.
 func ExactEngine(name string) ExactOption {
 	return func(c *exactConfig) { c.engine = name }
 }
@@ -293,7 +314,21 @@ func Exact(ctx context.Context, g *circuits.Graph, s circuits.Schedule, e circui
 	if cfg.engine == EngineMPS && layered == nil {
 		return nil, fmt.Errorf("moments: the MPS engine runs layered schedules (and layout files) only, not %s: %w", s.Kind(), ErrEngine)
 	}
-	if useMPS {
+	switch {
+	case cfg.engine == EngineExtrapolate:
+		if et != nil {
+			return nil, fmt.Errorf("moments: the extrapolate engine takes one transfer for every coupler, and a gate file with per-coupler matrices has no smaller members: %w; use --engine vector or mps", ErrEngine)
+		}
+		if cfg.noise != nil {
+			return nil, fmt.Errorf("moments: the extrapolate engine fits noiseless curves only, not the benchmark under noise: %w; use --engine vector or mps with noise", ErrEngine)
+		}
+		if cfg.extrapQubits != 0 && (cfg.extrapQubits < 4 || cfg.extrapQubits > AutoVectorMaxQubits) {
+			panic(fmt.Sprintf("moments: Exact with extrapolation members up to %d qubits: need 4..%d", cfg.extrapQubits, AutoVectorMaxQubits))
+		}
+		if err := exactExtrapolate(ctx, r, g, s, &t, depths, &cfg, final); err != nil {
+			return nil, err
+		}
+	case useMPS:
 		if err := exactMPS(ctx, r, g, layered, &t, depths, &cfg, copts); err != nil {
 			return nil, err
 		}
@@ -306,7 +341,7 @@ func Exact(ctx context.Context, g *circuits.Graph, s circuits.Schedule, e circui
 				r.TruncationError[i] *= scale
 			}
 		}
-	} else {
+	default:
 		r.Engine = EngineVector
 		if r.Collision, err = CollisionCurve(ctx, g, s, &t, depths, cfg.workers, copts...); err != nil {
 			return nil, exactMemory(err)

@@ -13,6 +13,7 @@ import (
 	"testing"
 
 	"mixdepth/circuits"
+	"mixdepth/fixtures"
 )
 
 var updateMPS = flag.Bool("update-mps", false, "rewrite moments/testdata/mps-*.json from the vector engine")
@@ -311,4 +312,44 @@ func TestQubitOrder(t *testing.T) {
 	if o, err := ReadOrder("t", strings.NewReader("# comment\n3, 2\n1 0\n"), g); err != nil || o[0] != 3 || o[3] != 0 {
 		t.Errorf("ReadOrder: %v, %v", o, err)
 	}
+}
+
+// TestMPSDemoChip is the default-bond check on the demo chip (the
+// graph and layout mixdepth exact runs with no --graph, fixtures.DemoChip),
+// against the vector engine on the same 16 qubits: |R − R_exact| ≤
+// max(1e-3·(R − 1), 1e-7) at every depth up to the first with R − 1 < 1e-4,
+// and the error estimate at least the true error there.
+func TestMPSDemoChip(t *testing.T) {
+	g, l := fixtures.DemoChip()
+	s := l.Schedule()
+	depths := make([]int, 80)
+	for i := range depths {
+		depths[i] = i + 1
+	}
+	exact, err := CollisionCurve(context.Background(), g, s, &HaarTransfer, depths, 2)
+	if err != nil {
+		t.Fatal(err)
+	}
+	order := QubitOrder(g)
+	bond := DefaultBondDim(Bandwidth(g, order))
+	got, est, used, err := MPSCurve(context.Background(), g, s, &HaarTransfer, depths, order, bond)
+	if err != nil {
+		t.Fatal(err)
+	}
+	zh := 2 / (math.Ldexp(1, g.Qubits) + 1)
+	for i, d := range depths {
+		want := exact[i] / zh
+		diff := math.Abs(got[i] - want)
+		if diff > max(1e-3*(want-1), 1e-7) {
+			t.Errorf("demo chip, bond %d, depth %d: R = %.10g, exact %.10g (R−1 = %.3g, error %.2g)", bond, d, got[i], want, want-1, diff)
+		}
+		if est[i] < diff {
+			t.Errorf("demo chip, bond %d, depth %d: error estimate %.2g below the true error %.2g", bond, d, est[i], diff)
+		}
+		if want-1 < 1e-4 {
+			t.Logf("demo chip: bond %d (bandwidth %d, largest bond reached %d), checked depths 1..%d", bond, Bandwidth(g, order), used[i], d)
+			return
+		}
+	}
+	t.Errorf("demo chip: R − 1 stays above 1e-4 up to depth %d", depths[len(depths)-1])
 }

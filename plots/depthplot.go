@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"strconv"
 
 	"gonum.org/v1/plot"
@@ -60,6 +61,11 @@ type DepthSeries struct {
 	Ratio, Lower, Upper []float64
 	// Exact is E[Z]/Z_H at each depth, or nil. A NaN entry is left out.
 	Exact []float64
+	// ExactError is the error estimate of each Exact value (an MPS
+	// truncation error, an extrapolation's uncertainty), or nil. The plot
+	// shades Exact ± ExactError when it is visible at the plot's scale: some
+	// depth has ExactError ≥ ExactErrorVisible·(Exact − 1).
+	ExactError []float64
 	// Depth is the recommended (anti-concentration) depth, drawn as a
 	// vertical line when Found is true.
 	Depth int
@@ -75,7 +81,7 @@ func (s *DepthSeries) check() {
 	for _, c := range []struct {
 		name   string
 		values []float64
-	}{{"Ratio", s.Ratio}, {"Lower", s.Lower}, {"Upper", s.Upper}, {"Exact", s.Exact}} {
+	}{{"Ratio", s.Ratio}, {"Lower", s.Lower}, {"Upper", s.Upper}, {"Exact", s.Exact}, {"ExactError", s.ExactError}} {
 		if c.values != nil && len(c.values) != len(s.Depths) {
 			panic(fmt.Sprintf("plots: DepthPlot got %d %s values for %d depths", len(c.values), c.name, len(s.Depths)))
 		}
@@ -83,7 +89,15 @@ func (s *DepthSeries) check() {
 	if (s.Lower == nil) != (s.Upper == nil) {
 		panic("plots: DepthPlot needs both Lower and Upper, or neither")
 	}
+	if s.ExactError != nil && s.Exact == nil {
+		panic("plots: DepthPlot got ExactError without Exact")
+	}
 }
+
+// ExactErrorVisible is the smallest ExactError/(Exact − 1) that DepthPlot
+// shades: 5% of R − 1 is 0.02 of a decade on the log axis, about a pixel at
+// the default size, below which a band would not show.
+const ExactErrorVisible = 0.05
 
 // DepthPlot draws s to w in the given format: R − 1 against depth on a
 // logarithmic axis, where R = mean(Z)/Z_H is the collision probability in
@@ -146,6 +160,9 @@ type depthPoints struct {
 	clipped plotter.XYs   // R − 1 at or below the floor, drawn at the floor
 	bands   []plotter.XYs // closed outlines of the band over runs of finite intervals
 	exact   plotter.XYs
+	// exactBand is the closed outline of Exact ± ExactError over every
+	// depth with a finite exact value, nil when the error is not visible.
+	exactBand plotter.XYs
 	// anyClipped is true when some drawn value (estimate, bound or exact)
 	// lies at or below the floor.
 	anyClipped bool
@@ -163,6 +180,12 @@ func newDepthPoints(ds *DepthSeries, eps float64) *depthPoints {
 	var values []float64
 	for i := range ds.Depths {
 		values = append(values, at(ds.Ratio, i)-1, at(ds.Lower, i)-1, at(ds.Upper, i)-1, at(ds.Exact, i)-1)
+	}
+	visible := false
+	for i := range ds.Depths {
+		if e := at(ds.ExactError, i); finite(e) && e > 0 && e >= ExactErrorVisible*math.Abs(at(ds.Exact, i)-1) {
+			visible = true
+		}
 	}
 	s := &depthPoints{floor: logFloor(values, eps), ymax: eps}
 	clip := func(v float64) float64 {
@@ -208,6 +231,23 @@ func newDepthPoints(ds *DepthSeries, eps float64) *depthPoints {
 		}
 	}
 	closeBand()
+	if visible {
+		ymax := s.ymax
+		var hi, lo plotter.XYs
+		for i, d := range ds.Depths {
+			exact, e := at(ds.Exact, i), at(ds.ExactError, i)
+			if !finite(exact) || !finite(e) {
+				continue
+			}
+			// The band does not widen the axis: it is cut at the plot's
+			// top (2·ymax, see depthPlot) and drawn at the floor below it.
+			hi = append(hi, plotter.XY{X: float64(d), Y: math.Min(clip(exact-1+e), 2*ymax)})
+			lo = append(lo, plotter.XY{X: float64(d), Y: math.Min(clip(exact-1-e), 2*ymax)})
+		}
+		s.ymax = ymax
+		slices.Reverse(lo)
+		s.exactBand = append(hi, lo...)
+	}
 	return s
 }
 
@@ -254,6 +294,16 @@ func depthPlot(s *depthPoints, ds *DepthSeries, eps float64, o depthOptions) (*f
 		if i == 0 {
 			fig.key(band, poly)
 		}
+	}
+	if len(s.exactBand) > 2 {
+		poly, err := plotter.NewPolygon(log10XYs(s.exactBand))
+		if err != nil {
+			return nil, err
+		}
+		poly.Color = colourExactBand
+		poly.LineStyle.Width = 0
+		p.Add(poly)
+		fig.key("error estimate of the exact curve (± error)", poly)
 	}
 	if len(s.exact) > 0 {
 		l, err := plotter.NewLine(log10XYs(s.exact))

@@ -225,3 +225,32 @@ func TestDepthPlotExactOnly(t *testing.T) {
 		t.Error("legend of an exact-only plot")
 	}
 }
+
+// TestExactErrorBand: the exact curve's error band is drawn when some error
+// reaches ExactErrorVisible·(R − 1) and left out below it; it is cut at the
+// floor below and does not raise the axis above the data (a design rule of
+// this package, not an outside fact).
+func TestExactErrorBand(t *testing.T) {
+	exact := []float64{3, 1.5, 1.1, 1.01}
+	s := &DepthSeries{Depths: []int{1, 2, 3, 4}, Exact: exact, ExactError: []float64{1e-3, 1e-4, 1e-5, 1e-6}}
+	if p := newDepthPoints(s, 0.05); p.exactBand != nil {
+		t.Errorf("an error of 0.1%% of R − 1 drew a band: %v", p.exactBand)
+	}
+	s.ExactError = []float64{100, 0.1, 0.01, 2e-2}
+	p := newDepthPoints(s, 0.05)
+	if len(p.exactBand) != 8 {
+		t.Fatalf("band outline has %d points, want 8", len(p.exactBand))
+	}
+	if p.ymax != 2 { // the largest R − 1; the band's 102 does not raise it
+		t.Errorf("ymax %g, want 2", p.ymax)
+	}
+	if top := p.exactBand[0].Y; top != 4 {
+		t.Errorf("band top at depth 1 is %g, want the plot's top 4", top)
+	}
+	if low := p.exactBand[len(p.exactBand)-1].Y; low != p.floor { // depth 1 lower side: 2 − 100 < 0
+		t.Errorf("band bottom at depth 1 is %g, want the floor %g", low, p.floor)
+	}
+	if low := p.exactBand[4].Y; low != p.floor { // depth 4: 0.01 − 0.02 < 0
+		t.Errorf("band bottom at depth 4 is %g, want the floor %g", low, p.floor)
+	}
+}

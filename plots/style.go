@@ -11,14 +11,17 @@ import (
 
 // Colours of the plots: distinguishable in colour and, by line style, in grey.
 var (
-	colourMean   = color.RGBA{R: 31, G: 84, B: 160, A: 255}
-	colourBand   = color.RGBA{R: 176, G: 203, B: 236, A: 255}
-	colourExact  = color.RGBA{A: 255}
-	colourEps    = color.RGBA{R: 200, G: 30, B: 30, A: 255}
-	colourDepth  = color.RGBA{R: 20, G: 130, B: 60, A: 255}
-	colourFloor  = color.RGBA{R: 110, G: 110, B: 110, A: 255}
-	colourHist   = color.RGBA{R: 190, G: 190, B: 190, A: 255}
-	colourFinite = color.RGBA{R: 200, G: 30, B: 30, A: 255}
+	colourMean  = color.RGBA{R: 31, G: 84, B: 160, A: 255}
+	colourBand  = color.RGBA{R: 176, G: 203, B: 236, A: 255}
+	colourExact = color.RGBA{A: 255}
+	// colourExactBand is a light grey, so that the exact curve's error band
+	// stays apart from the blue confidence band of an estimate.
+	colourExactBand = color.RGBA{R: 205, G: 205, B: 205, A: 255}
+	colourEps       = color.RGBA{R: 200, G: 30, B: 30, A: 255}
+	colourDepth     = color.RGBA{R: 20, G: 130, B: 60, A: 255}
+	colourFloor     = color.RGBA{R: 110, G: 110, B: 110, A: 255}
+	colourHist      = color.RGBA{R: 190, G: 190, B: 190, A: 255}
+	colourFinite    = color.RGBA{R: 200, G: 30, B: 30, A: 255}
 )
 
 // integerTicks marks depth axes: labels at whole multiples of a step of 1,

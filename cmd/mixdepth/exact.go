@@ -38,6 +38,7 @@ type exactJSON struct {
 	BondDim                int            `json:"bond_dim,omitempty"`
 	QubitOrder             []int          `json:"qubit_order,omitempty"`
 	OrderBandwidth         int            `json:"order_bandwidth,omitempty"`
+	ExtrapolatedFrom       []string       `json:"extrapolated_from,omitempty"`
 	FrameNote              string         `json:"frame_potential_note,omitempty"`
 	GapNote                string         `json:"gap_note,omitempty"`
 	Rows                   []exactJSONRow `json:"rows"`
@@ -96,7 +97,7 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	out := fs.String("out", "", "write the per-depth table to FILE.arrow or FILE.parquet")
 	plot := fs.String("plot", "", "draw the exact E[Z]/Z_H − 1 against depth to FILE.png or FILE.svg")
 	explain := fs.Bool("explain", false, "print the gate set's 4×4 transfer matrix on {I,S}² and its eigenvalues, then stop")
-	engine := fs.String("engine", moments.EngineAuto, fmt.Sprintf("engine for E[Z]: auto (the 2^n vector up to %d qubits, a matrix product state beyond), vector or mps", moments.AutoVectorMaxQubits))
+	engine := fs.String("engine", moments.EngineAuto, fmt.Sprintf("engine for E[Z]: auto (the 2^n vector up to %d qubits, a matrix product state beyond), vector, mps, or extrapolate (fit smaller members of a line or lattice strip, up to %d qubits)", moments.AutoVectorMaxQubits, moments.DefaultExtrapolateQubits))
 	bondFlag := fs.String("bond-dim", "auto", fmt.Sprintf("bond dimension cap of the mps engine, 2..%d; auto: %d for chains and rings (order bandwidth ≤ 2), %d otherwise; the error estimate reruns at half of it", moments.MPSMaxBond, moments.DefaultBondDim(1), moments.DefaultBondDim(3)))
 	orderFlag := fs.String("order", "auto", "qubit order of the mps engine: auto, or FILE listing the qubit ids in order")
 	asJSON := fs.Bool("json", false, "print one JSON document instead of the text report")
@@ -262,7 +263,8 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	}
 	if *asJSON {
 		doc := exactJSON{Header: s.spec.Header(), HaarCollision: r.HaarCollision, Eps: *eps, FrameNote: r.FrameNote, GapNote: r.GapNote, Gap: gap,
-			Engine: r.Engine, BondDim: r.BondDim, QubitOrder: r.Order, OrderBandwidth: r.Bandwidth, DepthUncertain: r.DepthUncertain()}
+			Engine: r.Engine, BondDim: r.BondDim, QubitOrder: r.Order, OrderBandwidth: r.Bandwidth, DepthUncertain: r.DepthUncertain(),
+			ExtrapolatedFrom: r.ExtrapolatedFrom}
 		if found {
 			doc.AnticoncentrationDepth = &depth
 		}
@@ -312,14 +314,22 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		fmt.Fprintf(stdout, "The chip is in %d parts and never reaches that value: E[Z] tends to the product of the parts' Haar values, %.6g;\nthe E[Z]/Z_H column below divides by that limit instead (and F2 tends to the product of the parts' values, not 2).\n", r.Parts, r.Limit)
 	}
 	mps := r.Engine == moments.EngineMPS
+	extrap := r.Engine == moments.EngineExtrapolate
 	if mps {
 		fmt.Fprintf(stdout, "engine: matrix product state, bond dimension %d (error from a rerun at %d), qubit order bandwidth %d\n",
 			r.BondDim, max(r.BondDim/2, 1), r.Bandwidth)
 	}
+	if extrap {
+		fmt.Fprintf(stdout, "engine: extrapolation of ln E[Z]/Z_H from the exact curves of %s\n(error: the largest change when one size is left out or the sizes move one step down)\n",
+			strings.Join(r.ExtrapolatedFrom, ", "))
+	}
 	fmt.Fprintln(stdout)
-	if mps {
+	switch {
+	case extrap:
+		fmt.Fprintf(stdout, "%6s %7s %14s %10s %12s\n", "depth", "gates", "E[Z]/Z_H", "± error", "F2")
+	case mps:
 		fmt.Fprintf(stdout, "%6s %7s %14s %10s %5s %12s\n", "depth", "gates", "E[Z]/Z_H", "± error", "bond", "F2")
-	} else {
+	default:
 		fmt.Fprintf(stdout, "%6s %7s %14s %12s\n", "depth", "gates", "E[Z]/Z_H", "F2")
 	}
 	for i, d := range r.Depths {
@@ -327,13 +337,16 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		if r.Frame != nil {
 			f = strconv.FormatFloat(r.Frame[i], 'f', 6, 64)
 		}
-		if mps {
-			mark := ""
-			if r.Uncertain(i) {
-				mark = " ?"
-			}
+		mark := ""
+		if r.Uncertain(i) {
+			mark = " ?"
+		}
+		switch {
+		case extrap:
+			fmt.Fprintf(stdout, "%6d %7d %14s %10.1e %12s%s\n", d, r.GateCounts[i], formatRatio(r.Ratio[i]), r.TruncationError[i], f, mark)
+		case mps:
 			fmt.Fprintf(stdout, "%6d %7d %14s %10.1e %5d %12s%s\n", d, r.GateCounts[i], formatRatio(r.Ratio[i]), r.TruncationError[i], r.BondDimUsed[i], f, mark)
-		} else {
+		default:
 			fmt.Fprintf(stdout, "%6d %7d %14s %12s\n", d, r.GateCounts[i], formatRatio(r.Ratio[i]), f)
 		}
 	}
@@ -341,15 +354,24 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if mps && slices.ContainsFunc(r.Depths, func(d int) bool { return r.Uncertain(indexOf(r.Depths, d)) }) {
 		fmt.Fprintln(stdout, "?: the error estimate is at least the distance of E[Z]/Z_H to 1+eps, so the truncation could move this depth across the threshold.")
 	}
+	if extrap && slices.ContainsFunc(r.Depths, func(d int) bool { return r.Uncertain(indexOf(r.Depths, d)) }) {
+		fmt.Fprintln(stdout, "?: the extrapolation's error is at least the distance of E[Z]/Z_H to 1+eps, so this depth could lie on either side of the threshold.")
+	}
 	if r.FrameNote != "" {
 		fmt.Fprintf(stdout, "F2 not shown: %s.\n", r.FrameNote)
 	}
 	switch {
+	case extrap && r.DepthUncertain():
+		fmt.Fprintf(stdout, "No verdict: the extrapolation's error reaches the distance to 1+eps = %.4f at a depth marked '?'; use --engine mps for this graph.\n", 1+*eps)
 	case r.DepthUncertain():
 		fmt.Fprintf(stdout, "No verdict: at bond dimension %d the truncation error reaches the distance to 1+eps = %.4f at a depth marked '?'; raise --bond-dim.\n", r.BondDim, 1+*eps)
 	case found:
-		fmt.Fprintf(stdout, "Anti-concentration depth (exact): %d (%d gates), where E[Z]/Z_H = %.6f ≤ 1+eps = %.4f.\n",
-			depth, s.schedule.GateCount(depth), r.Ratio[indexOf(r.Depths, depth)], 1+*eps)
+		how := "exact"
+		if extrap {
+			how = "extrapolated"
+		}
+		fmt.Fprintf(stdout, "Anti-concentration depth (%s): %d (%d gates), where E[Z]/Z_H = %.6f ≤ 1+eps = %.4f.\n",
+			how, depth, s.schedule.GateCount(depth), r.Ratio[indexOf(r.Depths, depth)], 1+*eps)
 	default:
 		last := len(r.Depths) - 1
 		fmt.Fprintf(stdout, "No requested depth anti-concentrates: at depth %d E[Z]/Z_H = %.6f > 1+eps = %.4f; ask for larger depths.\n",
@@ -408,9 +430,17 @@ func formatRatio(x float64) string {
 // plotExact draws the exact curve alone: the exact ratios per depth, with
 // no Monte Carlo estimate or band.
 func plotExact(path string, s *setup, r *moments.Result) error {
-	series := &plots.DepthSeries{Qubits: s.graph.Qubits, Depths: r.Depths, Exact: r.Ratio, Depth: r.Depth, Found: r.Found}
+	// No depth line on a depth the error could move (the report's "No verdict").
+	series := &plots.DepthSeries{Qubits: s.graph.Qubits, Depths: r.Depths, Exact: r.Ratio, ExactError: r.TruncationError, Depth: r.Depth, Found: r.Found && !r.DepthUncertain()}
+	how := "exact"
+	switch r.Engine {
+	case moments.EngineMPS:
+		how = "matrix product state"
+	case moments.EngineExtrapolate:
+		how = "extrapolated from " + strings.Join(r.ExtrapolatedFrom, ", ")
+	}
 	return plots.SaveDepthPlot(path, series, r.Eps, plots.WithDepthUnit(depthUnit(s)),
-		plots.WithTitle(s.graph.Name+", "+s.ensemble.Name()+" gates, exact"))
+		plots.WithTitle(s.graph.Name+", "+s.ensemble.Name()+" gates, "+how))
 }
 
 func indexOf(v []int, x int) int {

@@ -692,13 +692,17 @@ func printXEB(w io.Writer, nf *xebFlags, rates []float64, results []*moments.Res
 			fmt.Fprintf(w, "%6d %7d %13.6g %13.6g %15.6f %17.6f %17.6f\n", d, r.GateCounts[i], r.XEBExpected[i], r.XEBIdeal[i],
 				r.XEBNormalized[i], r.DigitalFidelity[i], r.XEBOverDigital[i])
 		}
-		say := func(tol float64) string {
-			if d, ok := xebStaysWithin(r, tol); ok {
-				return fmt.Sprintf("from depth %d on", d)
-			}
-			return fmt.Sprintf("not yet at depth %d, the last requested", r.Depths[len(r.Depths)-1])
+		last := r.Depths[len(r.Depths)-1]
+		d1, ok1 := xebStaysWithin(r, 0.01)
+		d5, ok5 := xebStaysWithin(r, 0.05)
+		switch {
+		case ok1:
+			fmt.Fprintf(w, "The digital model is within 5%% of the exact benchmark from depth %d on, and within 1%% from depth %d on.\n", d5, d1)
+		case ok5:
+			fmt.Fprintf(w, "The digital model is within 5%% of the exact benchmark from depth %d on; not yet within 1%% at depth %d, the last requested.\n", d5, last)
+		default:
+			fmt.Fprintf(w, "The digital model is not yet within 5%% of the exact benchmark at depth %d, the last requested.\n", last)
 		}
-		fmt.Fprintf(w, "Digital model against the exact benchmark: within 1%% %s; within 5%% %s.\n", say(0.01), say(0.05))
 	}
 }
 

@@ -25,7 +25,7 @@ func init() {
 const graphListMax = 64
 
 func runGraph(ctx context.Context, args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("graph", "mixdepth graph [SPEC|FILE]: SPEC is a graph family, FILE an edge-list file; with neither, the\n"+
+	fs := newFlags("graph [SPEC|FILE]", "SPEC is a graph family, FILE an edge-list file; with neither, the\n"+
 		"demo chip. Families: "+strings.Join(circuits.Families, ", ")+".\n\n"+
 		"Prints what the other commands will use: the qubits and couplers (with their labels), the\n"+
 		"degree histogram, the connected parts, the diameter, whether the chip is bipartite, the layers\n"+
@@ -36,7 +36,7 @@ func runGraph(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		"mixdepth graph chip.edges --drop Q7,Q3-Q4 --plot chip.png", stdout)
 	layout := fs.String("layout", "", "layout file (JSON) with explicit gate layers")
 	drop := fs.String("drop", "", "out-of-service qubits and couplers to remove, as Q,Q,A-B,… in the graph's labels")
-	allow := fs.Bool("allow-disconnected", false, "accept a chip with isolated qubits or several parts (the run commands refuse it)")
+	allow := fs.Bool("allow-disconnected", false, "accept a chip with isolated qubits or several parts, as the run commands do with this flag")
 	asJSON := fs.Bool("json", false, "print one JSON document instead of text")
 	plot := fs.String("plot", "", "draw the chip to FILE.png or FILE.svg")
 	workers := fs.Int("workers", defaultWorkers(), "goroutines for the spectral gap")

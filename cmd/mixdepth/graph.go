@@ -218,7 +218,7 @@ func printGraph(w io.Writer, sp *runs.Spec, r *chip.Report) {
 	}
 	switch {
 	case r.Gap != nil:
-		fmt.Fprintf(w, "random-edge schedule, Haar gates: second eigenvalue %.9f of the moment operator, gap Δ = |E|(1 − λ₂) = %.6g\n", r.Gap.SecondEigenvalue, r.Gap.HamiltonianGap)
+		fmt.Fprintf(w, "random-edge schedule, Haar gates: second eigenvalue λ₂(M) = %.9f of the moment operator M, Hamiltonian gap Δ = |E|(1 − λ₂(M)) = %.6g\n", r.Gap.SecondEigenvalue, r.Gap.HamiltonianGap)
 	case len(r.Components) == 1:
 		fmt.Fprintf(w, "random-edge gap: not computed above %d qubits\n", moments.GapMaxQubits)
 	default:
@@ -244,7 +244,7 @@ type graphJSON struct {
 	GraphDigest string     `json:"graph_digest"`
 	Qubits      int        `json:"qubits"`
 	Labels      []string   `json:"labels"`
-	Couplers    [][2]int   `json:"couplers"`
+	Couplers    [][2]int   `json:"coupler_list"`
 	Dropped     []string   `json:"dropped"`
 	Degrees     []int      `json:"degree_histogram"`
 	Components  [][]int    `json:"components"`
@@ -254,10 +254,11 @@ type graphJSON struct {
 	Layers      [][][2]int `json:"layers"`
 	// AlgebraicConnectivity is null above chip.MaxSpectrumQubits qubits.
 	AlgebraicConnectivity *float64 `json:"algebraic_connectivity"`
-	// RandomEdgeSecondEigenvalue and RandomEdgeGap are null for a chip in
+	// RandomEdgeSecondEigenvalue and RandomEdgeHamiltonianGap (Δ = |E|(1 − λ₂),
+	// the key exact --json calls hamiltonian_gap) are null for a chip in
 	// parts or above moments.GapMaxQubits qubits.
 	RandomEdgeSecondEigenvalue *float64 `json:"random_edge_second_eigenvalue"`
-	RandomEdgeGap              *float64 `json:"random_edge_gap"`
+	RandomEdgeHamiltonianGap   *float64 `json:"random_edge_hamiltonian_gap"`
 	HaarCollision              float64  `json:"haar_collision"`
 	// CollisionLimit is the large-depth E[Z]: the Haar value for a connected
 	// chip, the product of the parts' values otherwise.
@@ -305,7 +306,7 @@ func graphDoc(sp *runs.Spec, r *chip.Report) graphJSON {
 		doc.AlgebraicConnectivity = &r.AlgebraicConnectivity
 	}
 	if r.Gap != nil {
-		doc.RandomEdgeSecondEigenvalue, doc.RandomEdgeGap = &r.Gap.SecondEigenvalue, &r.Gap.HamiltonianGap
+		doc.RandomEdgeSecondEigenvalue, doc.RandomEdgeHamiltonianGap = &r.Gap.SecondEigenvalue, &r.Gap.HamiltonianGap
 	}
 	return doc
 }

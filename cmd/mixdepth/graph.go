@@ -25,8 +25,8 @@ func init() {
 const graphListMax = 64
 
 func runGraph(ctx context.Context, args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("graph [SPEC|FILE]", "SPEC is a graph family, FILE an edge-list file; with neither, the\n"+
-		"demo chip. Families: "+strings.Join(circuits.Families, ", ")+".\n\n"+
+	fs := newFlags("graph [SPEC|FILE]", "SPEC is a graph family, FILE an edge-list file; with neither, the demo chip.\n"+
+		"Families: "+strings.Join(circuits.Families, ", ")+".\n\n"+
 		"Prints what the other commands will use: the qubits and couplers (with their labels), the\n"+
 		"degree histogram, the connected parts, the diameter, whether the chip is bipartite, the layers\n"+
 		"of the layered schedule and where they come from, the algebraic connectivity of the graph\n"+

@@ -141,7 +141,7 @@ func dropDetail(err error, labels []string) string {
 	}
 	d := pe.Detail
 	if pe.Err == ErrIsolatedQubit {
-		// "qubit N is on no edge …": name it by label.
+		// "qubit N is on no coupler …": name it by label.
 		var q int
 		if _, e := fmt.Sscanf(d, "qubit %d", &q); e == nil && q < len(labels) {
 			return "qubit " + labels[q] + " would be left on no coupler; drop it too (--allow-disconnected accepts a chip in parts)"

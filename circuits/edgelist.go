@@ -161,8 +161,8 @@ func ReadEdgeListWith(name string, r io.Reader, o ReadOptions) (*Graph, error) {
 	g, err := newGraph(name, maxID+1, edges, o.AllowDisconnected)
 	if err != nil {
 		var pe *ParseError
-		if errors.As(err, &pe) && pe.Line > 0 {
-			pe.Line = edgeLines[pe.Line-1]
+		if errors.As(err, &pe) && pe.edge > 0 {
+			pe.Line = edgeLines[pe.edge-1]
 		}
 		if errors.Is(err, ErrIsolatedQubit) {
 			if q := firstIsolated(maxID+1, edges); declared[q] > 0 {

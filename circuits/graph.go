@@ -99,6 +99,9 @@ type ParseError struct {
 	Err  error
 	// Detail says what exactly is wrong, for the message.
 	Detail string
+	// edge is the 1-based position of the offending coupler in the list
+	// given to newGraph (0: none), which ReadEdgeList turns into its line.
+	edge int
 }
 
 func (e *ParseError) Error() string {
@@ -124,8 +127,8 @@ func (e *ParseError) Error() string {
 func (e *ParseError) Unwrap() error { return e.Err }
 
 // NewGraph validates edges on qubits 0..n-1 and returns the graph.
-// The error, if any, is a *ParseError with Line 0 (or the 1-based position of
-// the offending edge in edges).
+// The error, if any, is a *ParseError with Line 0; its message names the
+// 1-based position of an offending coupler in edges.
 func NewGraph(name string, n int, edges []Edge) (*Graph, error) {
 	return newGraph(name, n, edges, false)
 }
@@ -138,24 +141,24 @@ func NewGraphParts(name string, n int, edges []Edge) (*Graph, error) {
 
 func newGraph(name string, n int, edges []Edge, parts bool) (*Graph, error) {
 	if n < 2 {
-		return nil, &ParseError{File: name, Err: ErrTooFewQubits, Detail: fmt.Sprintf("%d qubit(s); a coupling graph needs at least one edge", n)}
+		return nil, &ParseError{File: name, Err: ErrTooFewQubits, Detail: fmt.Sprintf("%d qubit(s); a coupling graph needs at least one coupler", n)}
 	}
 	if len(edges) == 0 {
-		return nil, &ParseError{File: name, Err: ErrTooFewQubits, Detail: "no edges; a coupling graph needs at least one"}
+		return nil, &ParseError{File: name, Err: ErrTooFewQubits, Detail: "no couplers; a coupling graph needs at least one"}
 	}
 	dupAt, dupOf := firstDuplicate(edges)
 	for i, e := range edges {
 		if i == dupAt {
-			return nil, &ParseError{File: name, Line: i + 1, Err: ErrDuplicateEdge, Detail: fmt.Sprintf("edge %d %d repeats edge %d", e.A, e.B, dupOf+1)}
+			return nil, &ParseError{File: name, edge: i + 1, Err: ErrDuplicateEdge, Detail: fmt.Sprintf("coupler %d (%d %d) repeats coupler %d", i+1, e.A, e.B, dupOf+1)}
 		}
 		if e.A < 0 || e.B < 0 {
-			return nil, &ParseError{File: name, Line: i + 1, Err: ErrNegativeID, Detail: fmt.Sprintf("edge %d %d", e.A, e.B)}
+			return nil, &ParseError{File: name, edge: i + 1, Err: ErrNegativeID, Detail: fmt.Sprintf("coupler %d (%d %d)", i+1, e.A, e.B)}
 		}
 		if e.A >= n || e.B >= n {
-			return nil, &ParseError{File: name, Line: i + 1, Err: ErrQubitRange, Detail: fmt.Sprintf("edge %d %d on %d qubits", e.A, e.B, n)}
+			return nil, &ParseError{File: name, edge: i + 1, Err: ErrQubitRange, Detail: fmt.Sprintf("coupler %d (%d %d) on %d qubits", i+1, e.A, e.B, n)}
 		}
 		if e.A == e.B {
-			return nil, &ParseError{File: name, Line: i + 1, Err: ErrSelfLoop, Detail: fmt.Sprintf("edge %d %d", e.A, e.B)}
+			return nil, &ParseError{File: name, edge: i + 1, Err: ErrSelfLoop, Detail: fmt.Sprintf("coupler %d (%d %d)", i+1, e.A, e.B)}
 		}
 	}
 	g := &Graph{Name: name, Qubits: n, Edges: append([]Edge(nil), edges...)}
@@ -207,7 +210,7 @@ func firstDuplicate(edges []Edge) (at, of int) {
 func firstIsolated(n int, edges []Edge) int { return firstUnlisted(n-1, edges, nil) }
 
 func isolatedError(name string, q, maxID int) error {
-	return &ParseError{File: name, Err: ErrIsolatedQubit, Detail: fmt.Sprintf("qubit %d is on no edge (qubits are 0..%d); couple it or renumber the qubits (--allow-disconnected accepts it)", q, maxID)}
+	return &ParseError{File: name, Err: ErrIsolatedQubit, Detail: fmt.Sprintf("qubit %d is on no coupler (qubits are 0..%d); couple it or renumber the qubits (--allow-disconnected accepts it)", q, maxID)}
 }
 
 func key(e Edge) [2]int {

@@ -112,34 +112,40 @@ func TestReadEdgeListMessages(t *testing.T) {
 		t.Errorf("error %q, want prefix %q", err, want)
 	}
 	_, err = ReadEdgeList("chip.edges", strings.NewReader("0 1\n1 5\n"))
-	if err == nil || !strings.Contains(err.Error(), "qubit 2 is on no edge") || !strings.Contains(err.Error(), "0..5") {
+	if err == nil || !strings.Contains(err.Error(), "qubit 2 is on no coupler") || !strings.Contains(err.Error(), "0..5") {
 		t.Errorf("isolated-qubit error %q does not name qubit 2 and the range 0..5", err)
 	}
 	_, err = ReadEdgeList("chip.edges", strings.NewReader("0 1\n1 9223372036854775807\n"))
-	if err == nil || !strings.Contains(err.Error(), "qubit 2 is on no edge") {
+	if err == nil || !strings.Contains(err.Error(), "qubit 2 is on no coupler") {
 		t.Errorf("isolated-qubit error %q does not name qubit 2", err)
 	}
 }
 
 func TestNewGraphErrors(t *testing.T) {
 	for _, tc := range []struct {
-		name  string
-		n     int
-		edges []Edge
-		want  error
-		line  int
+		name   string
+		n      int
+		edges  []Edge
+		want   error
+		detail string
 	}{
-		{"one qubit", 1, nil, ErrTooFewQubits, 0},
-		{"negative", 3, []Edge{{0, 1}, {-1, 2}}, ErrNegativeID, 2},
-		{"out of range", 3, []Edge{{0, 1}, {1, 3}}, ErrQubitRange, 2},
-		{"self-loop", 3, []Edge{{0, 1}, {2, 2}}, ErrSelfLoop, 2},
-		{"duplicate", 3, []Edge{{0, 1}, {1, 2}, {1, 0}}, ErrDuplicateEdge, 3},
-		{"isolated", 4, []Edge{{0, 1}, {1, 2}}, ErrIsolatedQubit, 0},
-		{"isolated huge n", 1 << 40, []Edge{{0, 1}}, ErrIsolatedQubit, 0},
-		{"disconnected", 4, []Edge{{0, 1}, {2, 3}}, ErrDisconnected, 0},
+		{"one qubit", 1, nil, ErrTooFewQubits, ""},
+		{"negative", 3, []Edge{{0, 1}, {-1, 2}}, ErrNegativeID, "coupler 2 (-1 2)"},
+		{"out of range", 3, []Edge{{0, 1}, {1, 3}}, ErrQubitRange, "coupler 2 (1 3)"},
+		{"self-loop", 3, []Edge{{0, 1}, {2, 2}}, ErrSelfLoop, "coupler 2 (2 2)"},
+		{"duplicate", 3, []Edge{{0, 1}, {1, 2}, {1, 0}}, ErrDuplicateEdge, "coupler 3 (1 0) repeats coupler 1"},
+		{"isolated", 4, []Edge{{0, 1}, {1, 2}}, ErrIsolatedQubit, "qubit 3 is on no coupler"},
+		{"isolated huge n", 1 << 40, []Edge{{0, 1}}, ErrIsolatedQubit, "qubit 2 is on no coupler"},
+		{"disconnected", 4, []Edge{{0, 1}, {2, 3}}, ErrDisconnected, "2 separate parts"},
 	} {
+		// A list of couplers has no lines: Line stays 0 (a file reader such
+		// as ReadEdgeList sets it), and the message names the coupler by its
+		// 1-based position in the list.
 		_, err := NewGraph(tc.name, tc.n, tc.edges)
-		wantParseError(t, tc.name, err, tc.want, tc.line)
+		wantParseError(t, tc.name, err, tc.want, 0)
+		if err != nil && !strings.Contains(err.Error(), tc.detail) {
+			t.Errorf("%s: error %q does not say %q", tc.name, err, tc.detail)
+		}
 	}
 	g, err := NewGraph("ok", 3, []Edge{{2, 1}, {0, 1}})
 	if err != nil || g.Qubits != 3 || !reflect.DeepEqual(g.Edges, []Edge{{2, 1}, {0, 1}}) {

@@ -105,8 +105,18 @@ func ReadLayout(name string, r io.Reader) (*Layout, error) {
 		}
 		l.Layers = append(l.Layers, edges)
 	}
-	if _, err := NewGraph(name, n, union); err != nil {
+	// A layout's graph is the union of its layers, which must reach every
+	// qubit and be connected: --allow-disconnected does not apply to it, so
+	// these messages say what to change in the file instead of naming it.
+	if q := firstIsolated(n, union); q >= 0 {
+		return nil, bad(ErrIsolatedQubit, "no layer has a gate on qubit %d (qubits are 0..%d); add a gate on it to a layer", q, n-1)
+	}
+	g, err := NewGraphParts(name, n, union)
+	if err != nil {
 		return nil, err
+	}
+	if comps := len(g.Components()); comps > 1 {
+		return nil, bad(ErrDisconnected, "the layers' gates split the qubits into %d separate parts, between which random circuits never mix; add gates that join them", comps)
 	}
 	return l, nil
 }

@@ -66,12 +66,16 @@ func TestReadLayoutErrors(t *testing.T) {
 		{"trailing data", `{"qubits": 2, "layers": [[[0, 1]]]} {"qubits": 3}`, ErrLayoutSyntax, "after the layout"},
 		{"isolated qubit", `{"qubits": 4, "layers": [[[0, 1]], [[1, 2]]]}`, ErrIsolatedQubit, "qubit 3"},
 		{"isolated huge count", `{"qubits": 4000000000000, "layers": [[[0, 1]]]}`, ErrIsolatedQubit, "qubit 2"},
-		{"disconnected", `{"qubits": 4, "layers": [[[0, 1], [2, 3]]]}`, ErrDisconnected, ""},
+		{"disconnected", `{"qubits": 4, "layers": [[[0, 1], [2, 3]]]}`, ErrDisconnected, "2 separate parts"},
 	} {
 		_, err := ReadLayout("lay.json", strings.NewReader(tc.in))
 		wantParseError(t, tc.name, err, tc.want, 0)
 		if err != nil && !strings.Contains(err.Error(), tc.detail) {
 			t.Errorf("%s: error %q does not contain %q", tc.name, err, tc.detail)
+		}
+		// No flag accepts a layout in parts, so its message must not offer one.
+		if err != nil && strings.Contains(err.Error(), "--allow-disconnected") {
+			t.Errorf("%s: error %q offers --allow-disconnected, which a layout ignores", tc.name, err)
 		}
 		if err != nil && !strings.Contains(err.Error(), "lay.json") {
 			t.Errorf("%s: error %q does not name the file", tc.name, err)

@@ -64,7 +64,11 @@ func randomEdgeCurve(ctx context.Context, n int, edges []circuits.Edge, t *Trans
 	}
 	workers = max(workers, 1)
 	need := float64(workers) * 2 * EngineBytes(n)
-	if err := sim.CheckMemory(need, fmt.Sprintf("the exact random-edge average on %d qubits (two %d-qubit vectors per worker, %d workers)", n, n, workers)); err != nil {
+	fix := "use fewer qubits"
+	if workers > 1 {
+		fix = "use fewer --workers"
+	}
+	if err := sim.CheckMemoryFix(need, fmt.Sprintf("the exact random-edge average on %d qubits (two %d-qubit vectors per worker, %d workers)", n, n, workers), fix); err != nil {
 		return nil, fmt.Errorf("moments: %w", err)
 	}
 	steps := 0

@@ -62,7 +62,7 @@ func ParseDepths(spec string) ([]int, error) {
 			return nil, bad("a range FROM:TO:STEP needs FROM ≤ TO and STEP ≥ 1")
 		}
 		if to > MaxDepth {
-			return nil, bad("depth %d is beyond the largest depth, %d; ask for fewer layers", to, MaxDepth)
+			return nil, bad("depth %d is beyond the largest depth, %d; ask for smaller depths", to, MaxDepth)
 		}
 		if len(out)+(to-from)/step >= MaxDepthCount {
 			return nil, bad("more than %d depths; use a step (FROM:TO:STEP)", MaxDepthCount)

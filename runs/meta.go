@@ -181,7 +181,7 @@ func FromMeta(meta tables.Meta) (*Spec, error) {
 			}
 			for _, e := range class {
 				if !g.HasEdge(e.A, e.B) {
-					return nil, fmt.Errorf("runs: metadata layers: layer %d uses %d-%d, which is not an edge of the graph", i, e.A, e.B)
+					return nil, fmt.Errorf("runs: metadata layers: layer %d uses %d-%d, which is not a coupler of the graph", i, e.A, e.B)
 				}
 			}
 			classes = append(classes, class)

@@ -160,7 +160,7 @@ func scanRecords(t *tables.Table) ([]scan.Record, error) {
 		case !(r.KS >= 0 && r.KS <= 1):
 			bad = fmt.Sprintf("pt_ks %v outside [0, 1]", r.KS)
 		case math.IsNaN(r.Ratio) || math.IsInf(r.Ratio, 0) || math.IsNaN(r.XEBIdeal) || math.IsInf(r.XEBIdeal, 0):
-			bad = "collision_ratio or xeb_ideal not finite"
+			bad = "collision_ratio or ideal_xeb not finite"
 		}
 		if bad != "" {
 			return nil, fmt.Errorf("%w: row %d: %s", ErrValue, i+1, bad)

@@ -26,25 +26,45 @@ func ParseBitOrder(s string) (BitOrder, error) {
 }
 
 // Reversed returns a copy of records with every bitstring reversed, which
-// turns one bit order into the other.
+// turns one bit order into the other. The records still remember the
+// bitstring as written (see InOrder).
 func Reversed(records []Record) []Record {
 	out := make([]Record, len(records))
 	for i, r := range records {
-		b := []byte(r.Bitstring)
-		for j, k := 0, len(b)-1; j < k; j, k = j+1, k-1 {
-			b[j], b[k] = b[k], b[j]
+		written := r.asWritten()
+		r.Bitstring = reverse(r.Bitstring)
+		// A bitstring InOrder reversed is now as written again; any other
+		// is now read as qubit 0 last.
+		r.written = ""
+		if r.Bitstring != written {
+			r.written = written
 		}
-		r.Bitstring = string(b)
 		out[i] = r
 	}
 	return out
 }
 
-// InOrder returns records with their bitstrings in the tool's order
-// (QubitZeroFirst), given that they were written in order o.
-func InOrder(records []Record, o BitOrder) []Record {
-	if o == QubitZeroLast {
-		return Reversed(records)
+func reverse(s string) string {
+	b := []byte(s)
+	for j, k := 0, len(b)-1; j < k; j, k = j+1, k-1 {
+		b[j], b[k] = b[k], b[j]
 	}
-	return records
+	return string(b)
+}
+
+// InOrder returns records with their bitstrings in the tool's order
+// (QubitZeroFirst), given that they were written in order o. The records
+// remember the bitstring as written, so that the errors of Collect quote it
+// and count its characters as the file has them.
+func InOrder(records []Record, o BitOrder) []Record {
+	if o != QubitZeroLast {
+		return records
+	}
+	out := make([]Record, len(records))
+	for i, r := range records {
+		r.written = r.asWritten()
+		r.Bitstring = reverse(r.written)
+		out[i] = r
+	}
+	return out
 }

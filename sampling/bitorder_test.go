@@ -2,8 +2,10 @@ package sampling
 
 import (
 	"context"
+	"errors"
 	"math"
 	"reflect"
+	"strings"
 	"testing"
 )
 
@@ -12,9 +14,14 @@ import (
 func TestReversed(t *testing.T) {
 	in := []Record{{Row: 1, Instance: 2, Bitstring: "1100", PIdeal: 0.5, HasP: true}, {Row: 2, Bitstring: "0111"}}
 	got := Reversed(in)
-	want := []Record{{Row: 1, Instance: 2, Bitstring: "0011", PIdeal: 0.5, HasP: true}, {Row: 2, Bitstring: "1110"}}
+	// Each record remembers its bitstring as written, for messages.
+	want := []Record{{Row: 1, Instance: 2, Bitstring: "0011", PIdeal: 0.5, HasP: true, written: "1100"}, {Row: 2, Bitstring: "1110", written: "0111"}}
 	if !reflect.DeepEqual(got, want) {
 		t.Errorf("Reversed = %+v", got)
+	}
+	// Reversed twice is as read.
+	if back := Reversed(got); !reflect.DeepEqual(back, in) {
+		t.Errorf("Reversed twice = %+v, want %+v", back, in)
 	}
 	if in[0].Bitstring != "1100" {
 		t.Error("Reversed changed its argument")
@@ -109,5 +116,54 @@ func TestCheckBitOrderRealSample(t *testing.T) {
 	// Reversing twice gives the shots back: the same score to rounding.
 	if math.Abs(chk.Reversed.Linear-right.Linear) > 1e-12 {
 		t.Errorf("the reversed trial scores %.15g, the right order %.15g", chk.Reversed.Linear, right.Linear)
+	}
+}
+
+// TestCollectQuotesAsWritten: with qubit 0 last, the errors of Collect
+// quote the bitstring as the file has it and count its characters along it,
+// while the outcome is the reversed one (design.md §2: character q is qubit
+// q in the tool's own order).
+func TestCollectQuotesAsWritten(t *testing.T) {
+	none := func(int) *Circuit { return nil }
+	for _, c := range []struct {
+		name, bits string
+		order      BitOrder
+		want       []string
+	}{
+		{"bad character, qubit 0 last", "01x1", QubitZeroLast, []string{`"01x1"`, "at character 3 (qubit 1)"}},
+		{"bad character, qubit 0 first", "01x1", QubitZeroFirst, []string{`"01x1"`, "at character 3 (qubit 2)"}},
+		{"too short, qubit 0 last", "011", QubitZeroLast, []string{`"011"`, "want 4", "qubit 0 last"}},
+		{"too short, qubit 0 first", "011", QubitZeroFirst, []string{`"011"`, "want 4", "qubit 0 first"}},
+	} {
+		recs := InOrder([]Record{{Row: 1, Line: 2, Bitstring: c.bits}}, c.order)
+		_, err := Collect(context.Background(), "m.csv", recs, 4, none, 1)
+		if !errors.Is(err, ErrBitstring) {
+			t.Errorf("%s: error %v, want ErrBitstring", c.name, err)
+			continue
+		}
+		for _, w := range c.want {
+			if !strings.Contains(err.Error(), w) {
+				t.Errorf("%s: error %q does not say %q", c.name, err, w)
+			}
+		}
+	}
+
+	// A p_ideal that does not match quotes the bitstring as written too.
+	cfg := testConfig(t, "line:4", "haar", 4, 1, 1, Noise{Fidelity: 1})
+	res := runAll(t, cfg)[0]
+	x := res.Outcomes[0]
+	asWritten := reverse(FormatBitstring(x, 4))
+	recs := InOrder([]Record{{Row: 1, Line: 2, Instance: res.Circuit.Instance, Bitstring: asWritten, PIdeal: res.PIdeal[0] / 2, HasP: true}}, QubitZeroLast)
+	_, err := Collect(context.Background(), "m.csv", recs, 4, func(int) *Circuit { return res.Circuit }, 1)
+	if !errors.Is(err, ErrMismatch) || !strings.Contains(err.Error(), "bitstring "+asWritten) {
+		t.Errorf("mismatch error %v does not quote bitstring %s as written", err, asWritten)
+	}
+	// Without p_ideal the record is read as outcome x: the simulated
+	// probability is the one the sampler recorded for x (the same circuit
+	// simulated again: rounding only).
+	recs[0].HasP = false
+	g, err := Collect(context.Background(), "m.csv", recs, 4, func(int) *Circuit { return res.Circuit }, 1)
+	if err != nil || math.Abs(g[0].PIdeal[0]-res.PIdeal[0]) > 1e-12 {
+		t.Errorf("reversed record of outcome %d: %+v, %v", x, g, err)
 	}
 }

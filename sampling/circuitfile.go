@@ -382,17 +382,17 @@ func readMatrix(rows [][][]number, d int, dst []complex128) error {
 	}
 	for i, row := range rows {
 		if len(row) != d {
-			return fmt.Errorf("row %d has %d entries, want %d", i, len(row), d)
+			return fmt.Errorf("row %d has %d entries, want %d", i+1, len(row), d)
 		}
 		for j, p := range row {
 			if len(p) != 2 {
-				return fmt.Errorf("row %d entry %d has %d numbers, want [re, im]", i, j, len(p))
+				return fmt.Errorf("row %d entry %d has %d numbers, want [re, im]", i+1, j+1, len(p))
 			}
 			dst[i*d+j] = complex(float64(p[0]), float64(p[1]))
 		}
 	}
 	if dev := circuits.UnitaryDeviation(dst, d); !(dev <= circuits.UnitaryTolerance) {
-		return fmt.Errorf("is not unitary: max |(M†M − I)_ij| = %.3g > %g", dev, circuits.UnitaryTolerance)
+		return fmt.Errorf("is not unitary: ‖M†M − I‖ = %.3g (max entry; tolerance %g)", dev, circuits.UnitaryTolerance)
 	}
 	return nil
 }

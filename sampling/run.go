@@ -327,8 +327,12 @@ func Run(ctx context.Context, c *Config, emit func(*Result) error) (done []int, 
 	if c.Qubits < sim.ParallelQubits {
 		concurrent, gateWorkers = min(workers, len(ids)), 1
 	}
-	if err := sim.CheckMemory(float64(concurrent)*c.bytesPerInstance(),
-		fmt.Sprintf("sampling %d %d-qubit instance(s) at once (state, probabilities, alias tables, shots)", concurrent, c.Qubits)); err != nil {
+	fix := "use fewer qubits"
+	if concurrent > 1 {
+		fix = "use fewer --workers"
+	}
+	if err := sim.CheckMemoryFix(float64(concurrent)*c.bytesPerInstance(),
+		fmt.Sprintf("sampling %d %d-qubit instance(s) at once (state, probabilities, alias tables, shots)", concurrent, c.Qubits), fix); err != nil {
 		return nil, err
 	}
 

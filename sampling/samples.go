@@ -28,11 +28,31 @@ type Record struct {
 	// PIdeal is the ideal probability of the bitstring when HasP is true.
 	PIdeal float64
 	HasP   bool
+	// written is the bitstring as its file wrote it when InOrder reversed
+	// Bitstring (qubit 0 last), and "" otherwise: messages quote the file.
+	written string
+}
+
+// bits parses r's bitstring; an error quotes it as its file wrote it, with
+// positions counted along that string.
+func (r Record) bits(n int) (uint64, error) {
+	if r.written != "" {
+		return parseBits(r.written, n, QubitZeroLast)
+	}
+	return parseBits(r.Bitstring, n, QubitZeroFirst)
+}
+
+// asWritten is r's bitstring as its file wrote it.
+func (r Record) asWritten() string {
+	if r.written != "" {
+		return r.written
+	}
+	return r.Bitstring
 }
 
 // Sentinel errors wrapped by *RowError.
 var (
-	ErrEmpty       = errors.New("no samples")
+	ErrEmpty       = errors.New("no shots")
 	ErrColumn      = errors.New("missing column")
 	ErrNotNumber   = errors.New("not a number")
 	ErrBitstring   = errors.New("bad bitstring")
@@ -81,18 +101,26 @@ func (e *RowError) Unwrap() error { return e.Err }
 // ParseBitstring returns the basis index x = Σ b_q 2^q of a bitstring that
 // lists qubit 0 first. The error wraps ErrBitstring when s does not have
 // exactly n characters, each 0 or 1.
-func ParseBitstring(s string, n int) (uint64, error) {
+func ParseBitstring(s string, n int) (uint64, error) { return parseBits(s, n, QubitZeroFirst) }
+
+// parseBits is ParseBitstring for a bitstring written in order o; an error
+// counts characters from 1 along s as written.
+func parseBits(s string, n int, o BitOrder) (uint64, error) {
 	if len(s) != n {
-		return 0, fmt.Errorf("%w: %q has %d characters, want %d (one per qubit, qubit 0 first)", ErrBitstring, s, len(s), n)
+		return 0, fmt.Errorf("%w: %q has %d characters, want %d (one per qubit, qubit 0 %s)", ErrBitstring, s, len(s), n, o)
 	}
 	var x uint64
-	for q := 0; q < n; q++ {
-		switch s[q] {
+	for i := 0; i < n; i++ {
+		q := i
+		if o == QubitZeroLast {
+			q = n - 1 - i
+		}
+		switch s[i] {
 		case '0':
 		case '1':
 			x |= 1 << q
 		default:
-			return 0, fmt.Errorf("%w: %q has %q at position %d; use only 0 and 1", ErrBitstring, s, s[q], q)
+			return 0, fmt.Errorf("%w: %q has %q at character %d (qubit %d); use only 0 and 1", ErrBitstring, s, s[i], i+1, q)
 		}
 	}
 	return x, nil
@@ -220,7 +248,7 @@ func Collect(ctx context.Context, name string, records []Record, qubits int, cir
 	outcomes := make([]uint64, len(records))
 	byID := map[int][]int{}
 	for k, rec := range records {
-		x, err := ParseBitstring(rec.Bitstring, qubits)
+		x, err := rec.bits(qubits)
 		if err != nil {
 			return nil, &RowError{File: name, Row: rec.Row, Line: rec.Line, Column: "bitstring", Err: err}
 		}
@@ -268,7 +296,7 @@ func Collect(ctx context.Context, name string, records []Record, qubits int, cir
 				if math.Abs(rec.PIdeal-p) > MatchTolerance*max(rec.PIdeal, p)+1e-9/dim {
 					return nil, &RowError{File: name, Row: rec.Row, Line: rec.Line, Column: "p_ideal", Err: ErrMismatch,
 						Detail: fmt.Sprintf("the table says %.10g for instance %d bitstring %s, the circuit gives %.10g; score with the circuits the table was sampled from",
-							rec.PIdeal, id, rec.Bitstring, p)}
+							rec.PIdeal, id, rec.asWritten(), p)}
 				}
 				p = rec.PIdeal
 			}

@@ -45,7 +45,7 @@ func PlanShots(f, z, r float64) (ShotPlan, error) {
 	}
 	ceil := func(x float64) (int64, error) {
 		if !(x <= MaxPlanShots) {
-			return 0, fmt.Errorf("sampling: %.3g shots at predicted fidelity %g: %w", x, f, ErrTooManyShots)
+			return 0, fmt.Errorf("sampling: %.3g shots at fidelity %g: %w", x, f, ErrTooManyShots)
 		}
 		return int64(math.Ceil(x)), nil
 	}

@@ -169,7 +169,11 @@ func Run(ctx context.Context, c *Config) (records []Record, done []int, err erro
 		concurrent, gateWorkers = min(workers, len(c.Instances)), 1
 	}
 	if n <= sim.MaxQubits {
-		if err := sim.CheckMemory(float64(concurrent)*c.instanceBytes(n), fmt.Sprintf("simulating %d %d-qubit instance(s) at once (state and statistics buffers)", concurrent, n)); err != nil {
+		fix := "use fewer qubits"
+		if concurrent > 1 {
+			fix = "use fewer --workers"
+		}
+		if err := sim.CheckMemoryFix(float64(concurrent)*c.instanceBytes(n), fmt.Sprintf("simulating %d %d-qubit instance(s) at once (state and statistics buffers)", concurrent, n), fix); err != nil {
 			return nil, nil, err
 		}
 	}

@@ -37,14 +37,22 @@ func GiB(bytes float64) string {
 }
 
 // CheckMemory returns an error wrapping ErrTooLarge when need bytes exceed
-// the memory available now. what names the allocation for the message.
+// the memory available now. what names the allocation for the message,
+// which ends with the fix "use fewer qubits".
 func CheckMemory(need float64, what string) error {
+	return CheckMemoryFix(need, what, "use fewer qubits")
+}
+
+// CheckMemoryFix is CheckMemory with the fix that the message ends with, for
+// a caller whose need grows with more than the qubit count (several
+// instances or workers at once: "use fewer --workers").
+func CheckMemoryFix(need float64, what, fix string) error {
 	avail := AvailableMemory()
 	if avail == 0 || need <= float64(avail) {
 		return nil
 	}
-	return fmt.Errorf("sim: %s needs %s but this machine has %s available: %w; use fewer qubits",
-		what, GiB(need), GiB(float64(avail)), ErrTooLarge)
+	return fmt.Errorf("sim: %s needs %s but this machine has %s available: %w; %s",
+		what, GiB(need), GiB(float64(avail)), ErrTooLarge, fix)
 }
 
 // CheckVector returns an error wrapping ErrTooLarge when a vector of 2^n

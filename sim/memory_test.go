@@ -45,4 +45,11 @@ func TestCheckMemory(t *testing.T) {
 	if !errors.Is(err, sim.ErrTooLarge) || !strings.Contains(err.Error(), "a test buffer") || !strings.HasPrefix(err.Error(), "sim: ") {
 		t.Errorf("CheckMemory(twice the memory): %v", err)
 	}
+	if !strings.HasSuffix(err.Error(), "; use fewer qubits") {
+		t.Errorf("CheckMemory message %q does not end with its fix", err)
+	}
+	err = sim.CheckMemoryFix(2*float64(avail)+1<<30, "two test buffers", "use fewer --workers")
+	if !errors.Is(err, sim.ErrTooLarge) || !strings.HasSuffix(err.Error(), "; use fewer --workers") {
+		t.Errorf("CheckMemoryFix message %q does not end with the caller's fix", err)
+	}
 }

@@ -131,12 +131,17 @@ func printOverview(w io.Writer) {
 }
 
 // newFlags returns a flag set whose --help prints usage, example and flags.
-func newFlags(name, usage, example string, stdout io.Writer) *pflag.FlagSet {
+// synopsis is the command name followed by its arguments, if it takes any
+// ("score FILE", "merge --out FILE PART..."); the flag set is named by its
+// first word, and --help prints "Usage: mixdepth SYNOPSIS [flags]" once, so
+// usage should not repeat it.
+func newFlags(synopsis, usage, example string, stdout io.Writer) *pflag.FlagSet {
+	name, _, _ := strings.Cut(synopsis, " ")
 	fs := pflag.NewFlagSet(name, pflag.ContinueOnError)
 	fs.SortFlags = false
 	fs.SetOutput(io.Discard)
 	fs.Usage = func() {
-		fmt.Fprintf(stdout, "Usage: mixdepth %s [flags]\n\n%s\n\nExample:\n  %s\n\nFlags:\n", name, usage, example)
+		fmt.Fprintf(stdout, "Usage: mixdepth %s [flags]\n\n%s\n\nExample:\n  %s\n\nFlags:\n", synopsis, usage, example)
 		fs.SetOutput(stdout)
 		fs.PrintDefaults()
 		fs.SetOutput(io.Discard)

@@ -242,3 +242,32 @@ func TestHelp(t *testing.T) {
 		t.Errorf("overview: exit %d, %q", code, stdout)
 	}
 }
+
+// TestHelpSynopsis: the Usage line of a command that takes arguments shows
+// them, and the synopsis appears once, not again in the text below it.
+func TestHelpSynopsis(t *testing.T) {
+	for name, synopsis := range map[string]string{
+		"scan":      "scan",
+		"exact":     "exact",
+		"sample":    "sample",
+		"plan":      "plan",
+		"graph":     "graph [SPEC|FILE]",
+		"show":      "show FILE",
+		"merge":     "merge --out FILE PART...",
+		"summarize": "summarize FILE...",
+		"compare":   "compare FILE... --plot OUT",
+		"pt-plot":   "pt-plot FILE --out PLOT.png|PLOT.svg",
+	} {
+		stdout, _, code := runCLI(t, "help", name)
+		first, rest, _ := strings.Cut(stdout, "\n")
+		if want := "Usage: mixdepth " + synopsis + " [flags]"; code != 0 || first != want {
+			t.Errorf("help %s: exit %d, first line %q, want %q", name, code, first, want)
+		}
+		desc, _, _ := strings.Cut(rest, "\nExample:\n")
+		for _, line := range strings.Split(desc, "\n") {
+			if strings.HasPrefix(line, "mixdepth "+name) {
+				t.Errorf("help %s repeats its synopsis below the Usage line: %q", name, line)
+			}
+		}
+	}
+}

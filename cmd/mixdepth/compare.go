@@ -10,7 +10,7 @@ import (
 )
 
 func init() {
-	register(command{name: "compare", summary: "draw the R − 1 curves of several scan tables (gate sets, graphs, noise levels) on one chart", run: runCompare})
+	register(command{name: "compare", summary: "draw the R − 1 curves of several scan tables (gate sets, graphs, schedules, precisions) on one chart", run: runCompare})
 }
 
 // compareKeys are the metadata keys that can tell the runs of a comparison
@@ -18,7 +18,7 @@ func init() {
 var compareKeys = []string{"graph", "schedule", "layout", "gates", "gate_set_digest", "precision", "seed", "instances"}
 
 func runCompare(ctx context.Context, args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("compare", "mixdepth compare FILE... --plot OUT: each FILE is the per-instance scan table of one run.\n\nSummarises each run as summarize does and draws their R − 1 curves on one chart, with their\nconfidence bounds as error bars; the legend names each run by the parameters in which the\nruns differ (graph, schedule, gates, ...) and gives its recommended depth.",
+	fs := newFlags("compare FILE... --plot OUT", "Each FILE is the per-instance scan table of one run.\n\nSummarizes each run as summarize does and draws their R − 1 curves on one chart, with their\nconfidence bounds as error bars; the legend names each run by the parameters in which the\nruns differ (graph, schedule, gates, …) and gives its recommended depth.",
 		"mixdepth compare haar.parquet cz.parquet iswap.parquet --plot gates.png", stdout)
 	vf := addRecordedVerdictFlags(fs)
 	plot := fs.String("plot", "", "write the chart to FILE.png or FILE.svg (required)")
@@ -30,7 +30,7 @@ func runCompare(ctx context.Context, args []string, stdout, stderr io.Writer) er
 		return badInput("compare needs two or more scan tables: mixdepth compare FILE FILE... --plot OUT.png")
 	}
 	if *plot == "" {
-		return badInput("compare needs --plot FILE.png or FILE.svg for the chart")
+		return badInput("compare: --plot FILE.png or --plot FILE.svg is required")
 	}
 	if err := plots.CheckPath(*plot); err != nil {
 		return usageError{fmt.Errorf("--plot: %w", err)}

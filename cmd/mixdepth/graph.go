@@ -25,8 +25,8 @@ func init() {
 const graphListMax = 64
 
 func runGraph(ctx context.Context, args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("graph", "mixdepth graph [SPEC|FILE]: SPEC is a graph family, FILE an edge-list file; with neither, the\n"+
-		"demo chip. Families: "+strings.Join(circuits.Families, ", ")+".\n\n"+
+	fs := newFlags("graph [SPEC|FILE]", "SPEC is a graph family, FILE an edge-list file; with neither, the demo chip.\n"+
+		"Families: "+strings.Join(circuits.Families, ", ")+".\n\n"+
 		"Prints what the other commands will use: the qubits and couplers (with their labels), the\n"+
 		"degree histogram, the connected parts, the diameter, whether the chip is bipartite, the layers\n"+
 		"of the layered schedule and where they come from, the algebraic connectivity of the graph\n"+
@@ -36,7 +36,7 @@ func runGraph(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		"mixdepth graph chip.edges --drop Q7,Q3-Q4 --plot chip.png", stdout)
 	layout := fs.String("layout", "", "layout file (JSON) with explicit gate layers")
 	drop := fs.String("drop", "", "out-of-service qubits and couplers to remove, as Q,Q,A-B,… in the graph's labels")
-	allow := fs.Bool("allow-disconnected", false, "accept a chip with isolated qubits or several parts (the run commands refuse it)")
+	allow := fs.Bool("allow-disconnected", false, "accept a chip with isolated qubits or several parts, as the run commands do with this flag")
 	asJSON := fs.Bool("json", false, "print one JSON document instead of text")
 	plot := fs.String("plot", "", "draw the chip to FILE.png or FILE.svg")
 	workers := fs.Int("workers", defaultWorkers(), "goroutines for the spectral gap")
@@ -218,7 +218,7 @@ func printGraph(w io.Writer, sp *runs.Spec, r *chip.Report) {
 	}
 	switch {
 	case r.Gap != nil:
-		fmt.Fprintf(w, "random-edge schedule, Haar gates: second eigenvalue %.9f of the moment operator, gap Δ = |E|(1 − λ₂) = %.6g\n", r.Gap.SecondEigenvalue, r.Gap.HamiltonianGap)
+		fmt.Fprintf(w, "random-edge schedule, Haar gates: second eigenvalue λ₂(M) = %.9f of the moment operator M, Hamiltonian gap Δ = |E|(1 − λ₂(M)) = %.6g\n", r.Gap.SecondEigenvalue, r.Gap.HamiltonianGap)
 	case len(r.Components) == 1:
 		fmt.Fprintf(w, "random-edge gap: not computed above %d qubits\n", moments.GapMaxQubits)
 	default:
@@ -244,7 +244,7 @@ type graphJSON struct {
 	GraphDigest string     `json:"graph_digest"`
 	Qubits      int        `json:"qubits"`
 	Labels      []string   `json:"labels"`
-	Couplers    [][2]int   `json:"couplers"`
+	Couplers    [][2]int   `json:"coupler_list"`
 	Dropped     []string   `json:"dropped"`
 	Degrees     []int      `json:"degree_histogram"`
 	Components  [][]int    `json:"components"`
@@ -254,10 +254,11 @@ type graphJSON struct {
 	Layers      [][][2]int `json:"layers"`
 	// AlgebraicConnectivity is null above chip.MaxSpectrumQubits qubits.
 	AlgebraicConnectivity *float64 `json:"algebraic_connectivity"`
-	// RandomEdgeSecondEigenvalue and RandomEdgeGap are null for a chip in
+	// RandomEdgeSecondEigenvalue and RandomEdgeHamiltonianGap (Δ = |E|(1 − λ₂),
+	// the key exact --json calls hamiltonian_gap) are null for a chip in
 	// parts or above moments.GapMaxQubits qubits.
 	RandomEdgeSecondEigenvalue *float64 `json:"random_edge_second_eigenvalue"`
-	RandomEdgeGap              *float64 `json:"random_edge_gap"`
+	RandomEdgeHamiltonianGap   *float64 `json:"random_edge_hamiltonian_gap"`
 	HaarCollision              float64  `json:"haar_collision"`
 	// CollisionLimit is the large-depth E[Z]: the Haar value for a connected
 	// chip, the product of the parts' values otherwise.
@@ -305,7 +306,7 @@ func graphDoc(sp *runs.Spec, r *chip.Report) graphJSON {
 		doc.AlgebraicConnectivity = &r.AlgebraicConnectivity
 	}
 	if r.Gap != nil {
-		doc.RandomEdgeSecondEigenvalue, doc.RandomEdgeGap = &r.Gap.SecondEigenvalue, &r.Gap.HamiltonianGap
+		doc.RandomEdgeSecondEigenvalue, doc.RandomEdgeHamiltonianGap = &r.Gap.SecondEigenvalue, &r.Gap.HamiltonianGap
 	}
 	return doc
 }

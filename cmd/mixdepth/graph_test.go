@@ -144,8 +144,25 @@ func TestGraphCommand(t *testing.T) {
 	// (Chung 1997).
 	if doc.Qubits != 6 || len(doc.Couplers) != 6 || doc.Degrees[2] != 6 || *doc.Diameter != 3 || !doc.Bipartite ||
 		doc.AlgebraicConnectivity == nil || *doc.AlgebraicConnectivity < 1-1e-12 || *doc.AlgebraicConnectivity > 1+1e-12 ||
-		doc.RandomEdgeGap == nil || len(doc.Layers) != 2 || doc.Labels[5] != "5" {
+		doc.RandomEdgeHamiltonianGap == nil || len(doc.Layers) != 2 || doc.Labels[5] != "5" {
 		t.Errorf("graph ring:6 --json: %+v", doc)
+	}
+	// The keys are an interface (README): the coupler pairs are
+	// coupler_list, since couplers is the count in every run's header, and the
+	// gap is named as exact --json names it (hamiltonian_gap).
+	var keys map[string]json.RawMessage
+	if err := json.Unmarshal([]byte(mustRun(t, "graph", "ring:6", "--json")), &keys); err != nil {
+		t.Fatal(err)
+	}
+	for _, k := range []string{"coupler_list", "random_edge_second_eigenvalue", "random_edge_hamiltonian_gap"} {
+		if _, ok := keys[k]; !ok {
+			t.Errorf("graph --json lacks %q", k)
+		}
+	}
+	for _, k := range []string{"couplers", "random_edge_gap"} {
+		if _, ok := keys[k]; ok {
+			t.Errorf("graph --json still has the old key %q", k)
+		}
 	}
 	// A chip in parts is refused, then shown with its limit (2/17)².
 	parts := tempFile(t, "parts.edges", "a b\nb c\nc d\ne f\nf g\ng h\n")

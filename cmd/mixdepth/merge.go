@@ -17,7 +17,7 @@ func init() {
 }
 
 func runMerge(ctx context.Context, args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("merge", "mixdepth merge --out FILE PART...: each PART is a table written by scan or sample.\n\nCombines the per-instance tables of one run (the parts of 'scan --part K/N', or partial tables)\ninto one table whose rows equal those of the same run done at once. The inputs must share every\nrun parameter but the part; each instance must come from exactly one input; and a missing\ninstance is an error unless --allow-partial is given.",
+	fs := newFlags("merge --out FILE PART...", "Each PART is a table written by scan or sample.\n\nCombines the per-instance tables of one run (the parts of 'scan --part K/N' or\n'sample --part K/N', or partial tables) into one table whose rows equal those of the same run\ndone at once. The inputs must share every run parameter but the part; each instance must come\nfrom exactly one input; and a missing instance is an error unless --allow-partial is given.",
 		"mixdepth merge --out scan.parquet part-0.parquet part-1.parquet part-2.parquet", stdout)
 	out := fs.String("out", "", "write the merged table to FILE.arrow or FILE.parquet (required)")
 	allowPartial := fs.Bool("allow-partial", false, "write the table even when instances are missing, marked partial=true")

@@ -18,9 +18,9 @@ func init() {
 }
 
 func runPTPlot(ctx context.Context, args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("pt-plot", "mixdepth pt-plot FILE --out PLOT.png|PLOT.svg: FILE is a per-instance scan table.\n\nRebuilds the circuits of a per-instance scan table from its metadata, simulates some of its\ninstances again to one depth, and draws the histogram of the rescaled output probabilities D·p\nagainst the Porter–Thomas density e^(−x) and the exact finite-D Haar law. Each re-simulated\ninstance is checked against the collision probability the table records.",
+	fs := newFlags("pt-plot FILE --out PLOT.png|PLOT.svg", "FILE is a per-instance scan table.\n\nRebuilds the circuits of a per-instance scan table from its metadata, simulates some of its\ninstances again to one depth, and draws the histogram of the rescaled output probabilities D·p\nagainst the Porter–Thomas density e^(−x) and the exact finite-D Haar law. Each re-simulated\ninstance is checked against the collision probability the table records.",
 		"mixdepth pt-plot scan.parquet --depth 8 --instances 20 --out pt-depth8.png", stdout)
-	depth := fs.Int("depth", 0, "depth to simulate (default: the table's anti-concentration depth, else its deepest depth)")
+	depth := fs.Int("depth", 0, "depth to simulate (default: the table's recommended depth, else its deepest depth)")
 	instances := fs.Int("instances", 20, "number of the run's instances to simulate (the lowest ids)")
 	out := fs.String("out", "", "plot file, FILE.png or FILE.svg (required)")
 	workers := fs.Int("workers", defaultWorkers(), "worker goroutines for large states")

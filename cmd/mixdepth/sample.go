@@ -408,7 +408,7 @@ func checkJSONWritable(path string) error {
 		return badInput("--circuits %q: use a name ending in .json", path)
 	}
 	if info, err := os.Stat(path); err == nil && info.IsDir() {
-		return badInput("--circuits %q is a directory", path)
+		return badInput("--circuits %q: is a directory; give a file name ending in .json", path)
 	}
 	dir := filepath.Dir(path)
 	f, err := os.CreateTemp(dir, "."+filepath.Base(path)+".*.tmp")

@@ -71,7 +71,7 @@ type scanJSONRow struct {
 }
 
 func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("scan", "Simulates random circuit instances exactly and reports, per depth, the collision probability\nagainst the Haar value 2/(D+1) with a confidence interval, the Porter–Thomas distance, and the\nsmallest depth that anti-concentrates. With no flags it runs the demo chip.",
+	fs := newFlags("scan", "Simulates random circuit instances exactly and reports, per depth, the collision probability\nagainst the Haar value 2/(D+1) with a confidence interval, the Porter–Thomas distance, and the\nrecommended depth (the first from which every later depth is spread). With no --graph or\n--layout it runs the demo chip.",
 		"mixdepth scan --graph grid:3x4 --depths 1:16 --instances 400 --out scan.parquet", stdout)
 	var cf circuitFlags
 	cf.checkGraph = checkStateVector
@@ -109,7 +109,7 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		return err
 	}
 	if *instances <= 0 || *instances > maxInstances {
-		return badInput("--instances %d: must be between 1 (2 or more for error bars) and %d", *instances, maxInstances)
+		return badInput("--instances %d: must be between 1 (%d or more for an interval) and %d", *instances, stats.MinIntervalValues, maxInstances)
 	}
 	if *instances*len(depths) > 100_000_000 {
 		return badInput("--instances %d × %d depths: more than 10^8 per-instance records to hold; use fewer, or parts (--part)", *instances, len(depths))
@@ -168,7 +168,7 @@ func runScan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 
 	runIDs := part.Instances(*instances)
 	if len(runIDs) == 0 {
-		return badInput("--part %s selects no instance of %d; use fewer parts than instances", part, *instances)
+		return badInput("--part %s selects no instance of %d: use fewer parts or more instances", part, *instances)
 	}
 	ids := runIDs
 	var previous []scan.Record

@@ -25,10 +25,10 @@ func init() {
 const showTextRows = 20
 
 func runShow(ctx context.Context, args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("show", "mixdepth show FILE: FILE is a table written by mixdepth (.arrow or .parquet).\n\nPrints what the table holds: its run metadata, its\ncolumns with types, units and meanings, and its rows, as aligned text, CSV (rows only, with a\nheader line) or one JSON document. Floats are exact in csv and json (shortest round-trip form)\nand rounded to 8 significant digits in text.",
+	fs := newFlags("show FILE", "FILE is a table written by mixdepth (.arrow or .parquet).\n\nPrints what the table holds: its run metadata, its columns with types, units and meanings, and\nits rows, as aligned text, CSV (rows only, with a header line) or one JSON document. Floats are\nexact in csv and json (shortest round-trip form) and rounded to 8 significant digits in text.",
 		"mixdepth show scan.parquet --limit 5", stdout)
 	format := fs.String("format", "text", "output format: text, csv or json")
-	limit := fs.Int("limit", -1, "print at most N rows, 0 for all; −1 means 20 in text and all in csv and json")
+	limit := fs.Int("limit", -1, "print at most N rows, 0 for all; -1 means 20 in text and all in csv and json")
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}

@@ -50,7 +50,7 @@ func recordedCriteria(meta tables.Meta) stats.Criteria {
 }
 
 func runSummarize(ctx context.Context, args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("summarize", "mixdepth summarize FILE...: each FILE is a per-instance scan table.\n\nReads one or more per-instance scan tables of one run (a whole run, or its parts) and prints\nthe per-depth summary that scan prints: R = mean(Z)/Z_H with its confidence interval, the\nPorter–Thomas distance beside the Haar value, each depth's verdict and the recommended depth.\n--json prints the scan --json document; --plot draws the chart of scan --plot.",
+	fs := newFlags("summarize FILE...", "Each FILE is a per-instance scan table.\n\nReads one or more per-instance scan tables of one run (a whole run, or its parts) and prints\nthe per-depth summary that scan prints: R = mean(Z)/Z_H with its confidence interval, the\nPorter–Thomas distance beside the Haar value, each depth's verdict and the recommended depth.\n--json prints the scan --json document; --plot draws the chart of scan --plot.",
 		"mixdepth summarize part-0.parquet part-1.parquet --eps 0.02 --plot sweep.png", stdout)
 	vf := addRecordedVerdictFlags(fs)
 	plot := fs.String("plot", "", "draw R − 1 against depth with its confidence band to FILE.png or FILE.svg, as scan --plot does")

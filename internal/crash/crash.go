@@ -24,7 +24,7 @@ type Error struct {
 }
 
 func (e *Error) Error() string {
-	return fmt.Sprintf("internal error (%v); this is a bug in mixdepth, please report it with the command line", e.Value)
+	return fmt.Sprintf("internal error (%v): this is a bug in mixdepth; please report it with the command line", e.Value)
 }
 
 // Unwrap returns ErrPanic.

@@ -59,7 +59,7 @@ func TestHaarXEBVariance(t *testing.T) {
 		return d * d * (haarSecondMoment(d) - m*m)
 	}
 	e2 := func(d float64) float64 { return d * d * haarSecondMoment(d) } // D²·E[Z²]
-	e1 := func(d float64) float64 { return d * 2 / (d + 1) }              // D·E[Z]
+	e1 := func(d float64) float64 { return d * 2 / (d + 1) }             // D·E[Z]
 	cases := []struct {
 		name  string
 		g     *circuits.Graph

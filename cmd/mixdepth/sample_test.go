@@ -334,15 +334,7 @@ func TestSampleDemoChip(t *testing.T) {
 // fidelities) on gate counts made by hand, and its sample counts against
 // N = z²(1 + 2f − f²)/f² and N = (1 + 2f − f²)/(r·f)² (linear XEB under global depolarization, per-sample variance 1 + 2f − f²).
 func TestPlan(t *testing.T) {
-	plan := func(args ...string) planJSON {
-		t.Helper()
-		stdout, _ := sampleOK(t, append([]string{"plan", "--json"}, args...)...)
-		var doc planJSON
-		if err := json.Unmarshal([]byte(stdout), &doc); err != nil {
-			t.Fatal(err)
-		}
-		return doc
-	}
+	plan := func(args ...string) planJSON { t.Helper(); return planJSONOf(t, args...) }
 	// line:4 layered: class A = (0,1), (2,3), class B = (1,2); depth 4 is
 	// A, B, A, B: 6 gates.
 	doc := plan("--graph", "line:4", "--depth", "4", "--gate-error", "0.01", "--single-qubit-error", "0.001",

@@ -375,12 +375,12 @@ func printSplit(w io.Writer, x *sampling.Experiment, from string, depth int) {
 			"                             of finite depth spread more (give a scan table with --from for the real spread)\n", x.CircuitVariance)
 	}
 	fmt.Fprintf(w, "  target variance            %.4g;  one circuit costs c = %g shots\n", x.TargetVariance, x.CircuitCost)
-	fmt.Fprintf(w, "cheapest split: %d instances × %d shots (%d shots in all, cost %.0f shot-equivalents, variance %.4g)",
+	fmt.Fprintf(w, "cheapest split: %d instances × %d shots\n  (%d shots in all, cost %.0f shot-equivalents, variance %.4g)",
 		sp.Instances, sp.PerInstance, int64(sp.Instances)*sp.PerInstance, sp.Cost, sp.Variance)
 	if sp.Instances == stats.MinIntervalValues {
 		fmt.Fprintf(w, ";\n  %d instances is the fewest that give an error bar over instances", stats.MinIntervalValues)
 		if x.CircuitVarianceSource == sampling.VarianceHaarFloor {
-			fmt.Fprint(w, ": run at least that many, more if score's error over instances exceeds the shots' error")
+			fmt.Fprint(w, ": run at least that many\n  (more if score's error over instances exceeds the shots' error)")
 		}
 	}
 	fmt.Fprintln(w, ".")

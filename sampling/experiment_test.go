@@ -261,3 +261,61 @@ func TestPlanExperimentLimits(t *testing.T) {
 		t.Errorf("F = 1e-9: %v", err)
 	}
 }
+
+// TestPlanExperimentTwoStageVariance simulates the design PlanExperiment
+// plans for and checks its variance model on the data: 300 circuits of
+// line:6 at depth 10 with gate error 0.01, m = 100 shots each, one
+// trajectory per shot (so the shots of a circuit are independent draws of
+// its noisy law). The per-circuit linear XEB should have mean F (the exact
+// expected XEB) and variance σ_b² + σ_w²/m, with σ_b² = F_norm²·D²·Var(Z_U)
+// from the same circuits' Z_U (the global-depolarizing approximation, Boixo
+// et al. 2018) and σ_w² = 1 + 2F − F² (Porter–Thomas shots; Cochran 1977,
+// §10.6, for the two-stage sum). Tolerances: 4 standard errors of the mean
+// and of the sample variance (sqrt((m4 − s⁴)/M)), fixed seed.
+func TestPlanExperimentTwoStageVariance(t *testing.T) {
+	g := mustGraph(t, "line:6")
+	s, _ := circuits.NewSchedule(circuits.KindLayered, g)
+	e, _ := circuits.NewEnsemble("haar")
+	const circuitsN, shots, depth, rate = 300, 100, 10, 0.01
+	inst := make([]int, circuitsN)
+	for i := range inst {
+		inst[i] = i
+	}
+	cfg := &Config{Schedule: s, Ensemble: e, Qubits: g.Qubits, Depth: depth, Seed: 31, Instances: inst, Shots: shots,
+		Noise: Noise{Fidelity: 1, GateError: rate}, Trajectories: shots, Workers: 2}
+	var xeb, zs []float64
+	if _, err := Run(context.Background(), cfg, func(r *Result) error {
+		sum := 0.0
+		for _, p := range r.PIdeal {
+			sum += p
+		}
+		xeb = append(xeb, 64*sum/shots-1)
+		zs = append(zs, r.Collision)
+		return nil
+	}); err != nil {
+		t.Fatal(err)
+	}
+	spread := stats.Summarize(zs)
+	x, err := PlanExperiment(context.Background(), g, s, e, ExperimentConfig{Depth: depth, Noise: circuits.UniformNoise(g, rate, 0, 0, 0, 1),
+		Digital: math.Pow(1-rate, 25), Relative: 0.05, CollisionSpread: &spread})
+	if err != nil {
+		t.Fatal(err)
+	}
+	sum := stats.Summarize(xeb)
+	var m4 float64
+	for _, v := range xeb {
+		d := v - sum.Mean
+		m4 += d * d * d * d / circuitsN
+	}
+	s2 := sum.StdDev * sum.StdDev
+	seVar := math.Sqrt((m4 - s2*s2) / circuitsN)
+	want := x.CircuitVariance + x.ShotVariance/shots
+	t.Logf("per-circuit XEB: mean %.4f ± %.4f (exact %.4f); variance %.5f ± %.5f, model σ_b² + σ_w²/m = %.5f + %.5f",
+		sum.Mean, sum.StdErr, x.Fidelity, s2, seVar, x.CircuitVariance, x.ShotVariance/shots)
+	if math.Abs(sum.Mean-x.Fidelity) > 4*sum.StdErr {
+		t.Errorf("mean XEB %.4f ± %.4f, exact expected %.4f", sum.Mean, sum.StdErr, x.Fidelity)
+	}
+	if math.Abs(s2-want) > 4*seVar {
+		t.Errorf("variance over circuits %.5f ± %.5f, model %.5f", s2, seVar, want)
+	}
+}

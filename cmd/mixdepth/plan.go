@@ -205,7 +205,7 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		spread, spreadNote = scanSpread(sc, s, *from, *depth)
 	}
 
-	cfg := sampling.ExperimentConfig{Depth: *depth, Digital: model, Sigmas: 0, Relative: 0, CircuitCost: *circuitCost,
+	cfg := sampling.ExperimentConfig{Depth: *depth, Digital: model, CircuitCost: *circuitCost,
 		CollisionSpread: spread, ExactOptions: []moments.ExactOption{moments.ExactEps(*eps)}}
 	if useSigmas {
 		cfg.Sigmas = *sigmas

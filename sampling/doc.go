@@ -42,6 +42,12 @@
 // Nature 574, 505): a circuit's fidelity is the product of its gate,
 // depolarizing and readout fidelities, with the gates counted by
 // CountGates; Noise.ErrorModel gives the model of a sampling noise model.
+// PlanExperiment plans a measurement: F is the exact expected linear XEB
+// under a circuits.ChipNoise (moments.Exact with moments.ExactNoise) when an
+// exact engine fits, else the digital model; PlanShots gives the shots, and
+// PlanSplit the cheapest circuits × shots of the two-stage design (Cochran,
+// Sampling Techniques, 1977, §10.6) for the circuit-to-circuit variance of a
+// scan or the Haar floor (HaarXEBVariance).
 //
 // Files. The circuit file (WriteCircuits, ReadCircuits) is JSON of this
 // project's own design, described at CircuitFile. A sample table holds one

@@ -138,12 +138,7 @@ func TestPlanCalibrationUniform(t *testing.T) {
 	cal := writeFile(t, t.TempDir(), "uniform.csv", b.String())
 	plan := func(args ...string) planJSON {
 		t.Helper()
-		stdout, _ := sampleOK(t, append([]string{"plan", "--json", "--gates", "iswap+haar1", "--depth", "10"}, args...)...)
-		var doc planJSON
-		if err := json.Unmarshal([]byte(stdout), &doc); err != nil {
-			t.Fatal(err)
-		}
-		return doc
+		return planJSONOf(t, append([]string{"--gates", "iswap+haar1", "--depth", "10"}, args...)...)
 	}
 	want := plan("--gate-error", "0.006", "--single-qubit-error", "0.001", "--readout-error", "0.02,0.04")
 	got := plan("--calibration", cal)

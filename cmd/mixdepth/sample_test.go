@@ -334,33 +334,35 @@ func TestSampleDemoChip(t *testing.T) {
 // fidelities) on gate counts made by hand, and its sample counts against
 // N = z²(1 + 2f − f²)/f² and N = (1 + 2f − f²)/(r·f)² (linear XEB under global depolarization, per-sample variance 1 + 2f − f²).
 func TestPlan(t *testing.T) {
-	plan := func(args ...string) planJSON {
-		t.Helper()
-		stdout, _ := sampleOK(t, append([]string{"plan", "--json"}, args...)...)
-		var doc planJSON
-		if err := json.Unmarshal([]byte(stdout), &doc); err != nil {
-			t.Fatal(err)
-		}
-		return doc
-	}
+	plan := func(args ...string) planJSON { t.Helper(); return planJSONOf(t, args...) }
 	// line:4 layered: class A = (0,1), (2,3), class B = (1,2); depth 4 is
 	// A, B, A, B: 6 gates.
 	doc := plan("--graph", "line:4", "--depth", "4", "--gate-error", "0.01", "--single-qubit-error", "0.001",
 		"--readout-error", "0.02,0.04", "--sigmas", "3", "--rel-precision", "0.05")
 	f := math.Pow(0.99, 6) * math.Pow(1-0.03, 4)
-	nz := math.Ceil(9 * (1 + 2*f - f*f) / (f * f))
-	nr := math.Ceil((1 + 2*f - f*f) / (0.05 * f * 0.05 * f))
-	if doc.TwoQubitGates != 6 || doc.SingleQubitGates != 0 || math.Abs(doc.PredictedFidelity-f) > 1e-12 {
-		t.Errorf("gates %d/%d, fidelity %v; want 6/0 and %v", doc.TwoQubitGates, doc.SingleQubitGates, doc.PredictedFidelity, f)
+	shots := func(f float64) (nz, nr float64) {
+		return math.Ceil(9 * (1 + 2*f - f*f) / (f * f)), math.Ceil((1 + 2*f - f*f) / (0.05 * f * 0.05 * f))
 	}
+	if doc.TwoQubitGates != 6 || doc.SingleQubitGates != 0 || math.Abs(*doc.ErrorModelFidelity-f) > 1e-12 || math.Abs(*doc.DigitalFidelity-f) > 1e-12 {
+		t.Errorf("gates %d/%d, digital fidelity %v; want 6/0 and %v", doc.TwoQubitGates, doc.SingleQubitGates, *doc.ErrorModelFidelity, f)
+	}
+	// The plan's F is the exact expected XEB (TestPlanExactPrediction); the
+	// shot formulas take it, and the digital model's F gives digital_shots.
+	if doc.FidelitySource != "exact" || doc.XEBExpected == nil || doc.PredictedFidelity != *doc.XEBExpected {
+		t.Errorf("fidelity source %q, predicted %v, xeb_expected %v", doc.FidelitySource, doc.PredictedFidelity, doc.XEBExpected)
+	}
+	nz, nr := shots(doc.PredictedFidelity)
 	if *doc.ShotsSigmas != int64(nz) || *doc.ShotsRelPrecision != int64(nr) || doc.Shots != int64(max(nz, nr)) {
 		t.Errorf("samples %d, %d, %d; want %v, %v", *doc.ShotsSigmas, *doc.ShotsRelPrecision, doc.Shots, nz, nr)
+	}
+	if nz, nr := shots(f); doc.DigitalShots == nil || *doc.DigitalShots != int64(max(nz, nr)) {
+		t.Errorf("digital shots %v, want %v", doc.DigitalShots, max(nz, nr))
 	}
 	// A dressed gate set G·(u_a ⊗ u_b) with a final layer: 2 single-qubit
 	// gates per two-qubit gate plus one per qubit.
 	doc = plan("--graph", "line:4", "--depth", "4", "--gates", "cz+haar1", "--single-qubit-error", "0.001")
-	if doc.SingleQubitGates != 16 || math.Abs(doc.PredictedFidelity-math.Pow(0.999, 16)) > 1e-12 {
-		t.Errorf("cz+haar1: %d single-qubit gates, fidelity %v", doc.SingleQubitGates, doc.PredictedFidelity)
+	if doc.SingleQubitGates != 16 || math.Abs(*doc.ErrorModelFidelity-math.Pow(0.999, 16)) > 1e-12 {
+		t.Errorf("cz+haar1: %d single-qubit gates, fidelity %v", doc.SingleQubitGates, *doc.ErrorModelFidelity)
 	}
 	// --fidelity alone, the default 5σ: Arute et al.'s f ≈ 0.002 needs
 	// about 25/f² ≈ 6.3 million shots.

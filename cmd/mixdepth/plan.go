@@ -25,7 +25,7 @@ func init() {
 type planJSON struct {
 	runs.Header
 	Depth               int        `json:"depth"`
-	TwoQubitGates       int        `json:"two_qubit_gates"`
+	TwoQubitGates       int        `json:"gate_count"`
 	SingleQubitGates    int        `json:"single_qubit_gates"`
 	GateError           float64    `json:"gate_error"`
 	SingleQubitError    float64    `json:"single_qubit_error"`
@@ -108,7 +108,7 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	readout := fs.String("readout-error", "0,0", "readout flip probabilities p01,p10 (0→1, 1→0), or one value for both")
 	var nf noiseFlags
 	nf.add(fs, false)
-	singleGates := fs.Int("single-qubit-gates", -1, "single-qubit gates to count; −1 counts them from the gate set (see above); a count of your own leaves the exact engines out")
+	singleGates := fs.Int("single-qubit-gates", -1, "single-qubit gates to count; -1 counts them from the gate set (see above); a count of your own leaves the exact engines out")
 	circuitCost := fs.Float64("circuit-cost", sampling.DefaultCircuitCost, "cost of running one more circuit (compiling, loading) in units of one shot, ≥ 0; the default is about 0.1 s of loading against 100 µs per shot (README: circuits × shots)")
 	asJSON := fs.Bool("json", false, "print one JSON document instead of the text report")
 	eps := fs.Float64("eps", sampling.DefaultEps, "anti-concentration threshold, as scan's: plan warns when --depth is below the depth whose R ≤ 1+eps")
@@ -185,7 +185,7 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		f2, f1, fr, model = digitalParts(cal.Noise, s.schedule, s.ensemble, *depth)
 	}
 	if rates && !given && !(model > 0) {
-		return badInput("the digital error model predicts fidelity %g: no number of samples resolves it; lower the error rates or the depth", model)
+		return badInput("the digital error model predicts fidelity %g: no number of shots resolves it; lower the error rates or the depth", model)
 	}
 
 	// The scan table, read first: its spread of Z at the depth gives the

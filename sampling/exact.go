@@ -91,6 +91,9 @@ func PredictXEB(ctx context.Context, g *circuits.Graph, s circuits.Schedule, e c
 // (ExactXEB).
 type Comparison struct {
 	Exact ExactXEB
+	// Linear and Normalized are the measured pooled values
+	// (Report.Linear, Report.Normalized).
+	Linear, Normalized float64
 	// OverInstances is true when the standard errors below are those over
 	// instances (Report.HasInstanceErr: every source of variation), false
 	// when they are the shots' alone.
@@ -122,7 +125,7 @@ type Comparison struct {
 // Compare returns the comparison of the measured benchmark r with its
 // exact expectation x.
 func Compare(r *Report, x *ExactXEB) Comparison {
-	c := Comparison{Exact: *x, OverInstances: r.HasInstanceErr, LinearErr: r.LinearErr, NormalizedErr: r.NormalizedErr}
+	c := Comparison{Exact: *x, Linear: r.Linear, Normalized: r.Normalized, OverInstances: r.HasInstanceErr, LinearErr: r.LinearErr, NormalizedErr: r.NormalizedErr}
 	if r.HasInstanceErr {
 		c.LinearErr, c.NormalizedErr = r.LinearErrInstances, r.NormalizedErrInstances
 	}

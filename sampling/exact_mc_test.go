@@ -21,7 +21,7 @@ import (
 // measured normalized XEB over instances (the cluster bootstrap of
 // Report.NormalizedErrInstances: shots, trajectories and circuits).
 //
-// mcSigmas is 4: over the 36 cases of the full sweep, a two-sided normal
+// mcSigmas is 4: over the 39 cases of the full sweep, a two-sided normal
 // deviation beyond 4σ has probability 6e-5 per case, 0.2% for the whole
 // sweep, so a failure points at a real disagreement (common practice for a
 // Monte Carlo test with fixed seeds). The normalized XEB is a ratio
@@ -234,4 +234,35 @@ func TestExactXEBMonteCarloCalibration(t *testing.T) {
 			noise: Noise{Chip: chip}, chip: chip, instances: 80, shots: 500, traj: 50, seed: 7300 + uint64(i)})
 	}
 	mcCheck(t, cases)
+}
+
+// TestCompareByHand checks Compare's arithmetic on numbers worked by hand
+// (invented values): measured normalized 0.50 ± 0.02 over instances
+// against an exact 0.55 is −2.5σ; the model reading is 0.44 × 0.50/0.55 =
+// 0.4, with standard error 0.44 × 0.02/0.55 = 0.016. Without the error over
+// instances the shots' errors are used.
+func TestCompareByHand(t *testing.T) {
+	r := &Report{Linear: 0.48, LinearErr: 0.01, LinearErrInstances: 0.04, Normalized: 0.5, NormalizedErr: 0.01, NormalizedErrInstances: 0.02, HasInstanceErr: true}
+	x := &ExactXEB{Expected: 0.5, Normalized: 0.55, Digital: 0.44}
+	c := Compare(r, x)
+	near := func(name string, got, want float64) {
+		if math.Abs(got-want) > 1e-12 {
+			t.Errorf("%s %.15g, want %.15g", name, got, want)
+		}
+	}
+	near("LinearSigmas", c.LinearSigmas, -0.5)
+	near("NormalizedSigmas", c.NormalizedSigmas, -2.5)
+	near("ImpliedNormalized", c.ImpliedNormalized, 0.5)
+	near("ImpliedModel", c.ImpliedModel, 0.4)
+	near("ImpliedModelErr", c.ImpliedModelErr, 0.016)
+	if !c.OverInstances {
+		t.Error("OverInstances false with an error over instances")
+	}
+	r.HasInstanceErr = false
+	c = Compare(r, x)
+	near("NormalizedSigmas (shots)", c.NormalizedSigmas, -5)
+	near("LinearSigmas (shots)", c.LinearSigmas, -2)
+	if c.OverInstances {
+		t.Error("OverInstances true without an error over instances")
+	}
 }

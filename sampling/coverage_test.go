@@ -21,7 +21,8 @@ import (
 // across instances, so its expectation equals the ratio of expectations
 // only as the instances grow: the bias is of order (1/m)·(relative
 // variances and covariance of the two means), m = 20 here (Cochran,
-// Sampling Techniques, 3rd ed., 1977, §6.8). The test measures it as the
+// Sampling Techniques, 3rd ed., 1977, ch. 6, the ratio estimate; the
+// chapter from memory). The test measures it as the
 // mean of the 400 short-run estimates minus the exact value and requires
 // it under a tenth of the interval's mean half-width, where it moves the
 // coverage by under a point (measured: +0.0028 ± 0.0023, consistent with

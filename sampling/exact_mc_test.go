@@ -2,6 +2,7 @@ package sampling
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"math"
 	"strings"
@@ -9,6 +10,7 @@ import (
 
 	"mixdepth/circuits"
 	"mixdepth/fixtures"
+	"mixdepth/moments"
 )
 
 // The Monte Carlo checks of the exact expected benchmark (moments.Exact
@@ -264,5 +266,34 @@ func TestCompareByHand(t *testing.T) {
 	near("LinearSigmas (shots)", c.LinearSigmas, -2)
 	if c.OverInstances {
 		t.Error("OverInstances true without an error over instances")
+	}
+}
+
+// TestPredictXEBRefuses: PredictXEB refuses before starting a run its
+// estimate puts beyond PredictMaxSeconds (the random-edge average on
+// grid:4x5, 31 couplers: 200·31·3^18 updates at 2 ns, about 80 minutes by
+// moments' documented speed) and a gate set with no exact moments (CZ
+// with the identity as its only single-qubit gate).
+func TestPredictXEBRefuses(t *testing.T) {
+	g, err := circuits.ParseGraph("grid:4x5")
+	if err != nil {
+		t.Fatal(err)
+	}
+	s, err := circuits.NewSchedule(circuits.KindRandomEdge, g)
+	if err != nil {
+		t.Fatal(err)
+	}
+	e, _ := circuits.NewEnsemble("haar")
+	if _, err := PredictXEB(context.Background(), g, s, e, 200, circuits.UniformNoise(g, 0.005, 0, 0, 0, 1), 1); !errors.Is(err, ErrPredictCost) {
+		t.Errorf("random-edge grid:4x5 depth 200: %v, want ErrPredictCost", err)
+	}
+	cz, _ := circuits.Entangler("cz")
+	finite, err := circuits.NewGateSet("cz-identity", cz, [][4]complex128{{1, 0, 0, 1}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	g4, s4 := layeredOf(t, "line:4")
+	if _, err := PredictXEB(context.Background(), g4, s4, finite, 4, circuits.UniformNoise(g4, 0.005, 0, 0, 0, 1), 1); !errors.Is(err, moments.ErrNoExactMoments) {
+		t.Errorf("finite single-qubit set: %v, want ErrNoExactMoments", err)
 	}
 }

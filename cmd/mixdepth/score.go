@@ -62,20 +62,23 @@ type scoreJSON struct {
 	// and exact_note says why, when it was not computed. The sigmas are
 	// (measured − expected) in units of the standard error over instances,
 	// or of the shots alone when sigmas_over is "shots".
-	NoiseSource                     string              `json:"noise_source"`
-	ExactEngine                     *string             `json:"exact_engine"`
-	ExactNote                       string              `json:"exact_note,omitempty"`
-	XEBExpected                     *float64            `json:"xeb_expected"`
-	XEBNormalizedExpected           *float64            `json:"xeb_normalized_expected"`
-	DigitalFidelity                 *float64            `json:"digital_fidelity"`
-	LinearXEBSigmas                 *float64            `json:"linear_xeb_sigmas"`
-	NormalizedXEBSigmas             *float64            `json:"normalized_xeb_sigmas"`
-	SigmasOver                      string              `json:"sigmas_over,omitempty"`
-	ImpliedFidelityNormalized       *float64            `json:"implied_fidelity_normalized"`
-	ImpliedFidelityNormalizedStderr *float64            `json:"implied_fidelity_normalized_stderr"`
-	ImpliedFidelityModel            *float64            `json:"implied_fidelity_model"`
-	ImpliedFidelityModelStderr      *float64            `json:"implied_fidelity_model_stderr"`
-	Instances                       []scoreJSONInstance `json:"instance_scores"`
+	NoiseSource                     string   `json:"noise_source"`
+	ExactEngine                     *string  `json:"exact_engine"`
+	ExactNote                       string   `json:"exact_note,omitempty"`
+	XEBExpected                     *float64 `json:"xeb_expected"`
+	XEBNormalizedExpected           *float64 `json:"xeb_normalized_expected"`
+	DigitalFidelity                 *float64 `json:"digital_fidelity"`
+	LinearXEBSigmas                 *float64 `json:"linear_xeb_sigmas"`
+	NormalizedXEBSigmas             *float64 `json:"normalized_xeb_sigmas"`
+	SigmasOver                      string   `json:"sigmas_over,omitempty"`
+	ImpliedFidelityNormalized       *float64 `json:"implied_fidelity_normalized"`
+	ImpliedFidelityNormalizedStderr *float64 `json:"implied_fidelity_normalized_stderr"`
+	ImpliedFidelityModel            *float64 `json:"implied_fidelity_model"`
+	ImpliedFidelityModelStderr      *float64 `json:"implied_fidelity_model_stderr"`
+	// XEBTruncationError is the MPS error estimate of xeb_expected (0 for
+	// the vector engine), as exact's xeb_truncation_error.
+	XEBTruncationError *float64            `json:"xeb_truncation_error"`
+	Instances          []scoreJSONInstance `json:"instance_scores"`
 }
 
 // setExact fills the comparison fields of doc.
@@ -94,6 +97,7 @@ func (doc *scoreJSON) setExact(ex scoreExact) {
 	}
 	doc.ImpliedFidelityNormalized, doc.ImpliedFidelityNormalizedStderr = finiteOrNull(c.ImpliedNormalized), finiteOrNull(c.NormalizedErr)
 	doc.ImpliedFidelityModel, doc.ImpliedFidelityModelStderr = finiteOrNull(c.ImpliedModel), finiteOrNull(c.ImpliedModelErr)
+	doc.XEBTruncationError = finiteOrNull(c.Exact.TruncationError)
 }
 
 type scoreJSONInstance struct {
@@ -635,6 +639,9 @@ func printScoreExact(w io.Writer, ex scoreExact, changed func(string) bool) {
 	fmt.Fprintf(w, "  %-24s %8.4f   measured %s (%+.2f standard errors %s)\n", "expected linear XEB", c.Exact.Expected, plusMinus(c.Linear, c.LinearErr), c.LinearSigmas, over)
 	fmt.Fprintf(w, "  %-24s %8.4f   measured %s (%+.2f standard errors)\n", "expected normalized XEB", c.Exact.Normalized, plusMinus(c.Normalized, c.NormalizedErr), c.NormalizedSigmas)
 	fmt.Fprintf(w, "  %-24s %8.4f   (the product of the model's gate, readout and global fidelities)\n", "digital fidelity", c.Exact.Digital)
+	if c.Exact.Engine == moments.EngineMPS {
+		fmt.Fprintf(w, "  %-24s %8.2g   (estimate of the MPS truncation error of the expected linear XEB)\n", "truncation error", c.Exact.TruncationError)
+	}
 	fmt.Fprintf(w, "Implied fidelity:\n")
 	fmt.Fprintf(w, "  %s   normalized XEB ≈ fidelity, the usual reading (right once the noise acts as global white noise)\n", pad(plusMinus(c.ImpliedNormalized, c.NormalizedErr), 17))
 	fmt.Fprintf(w, "  %s   corrected by the exact model: digital fidelity × measured / expected normalized XEB\n", pad(plusMinus(c.ImpliedModel, c.ImpliedModelErr), 17))

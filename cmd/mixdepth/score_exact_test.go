@@ -81,6 +81,21 @@ func TestScoreExactDemoChip(t *testing.T) {
 		t.Errorf("--fidelity 0.5: expected normalized XEB %.15g, want half of %.15g", got, *doc.XEBNormalizedExpected)
 	}
 
+	// --calibration replaces the table's calibration: the same file gives
+	// the same model, a file with no rows leaves the table's uniform rates
+	// (all zero: sample ran with the calibration alone), and with no noise
+	// the expected normalized XEB is 1 (E[F_lin] = D·E[Z] − 1, Boixo et
+	// al. 2018).
+	same := scoreDoc(t, out, "--calibration", demoCalibration)
+	if same.NoiseSource != "table+flags" || *same.XEBNormalizedExpected != *doc.XEBNormalizedExpected {
+		t.Errorf("--calibration with the table's own file: source %q, expected %v, want table+flags and %v", same.NoiseSource, *same.XEBNormalizedExpected, *doc.XEBNormalizedExpected)
+	}
+	empty := writeFile(t, dir, "empty.csv", "qubit,coupled_to,pair_error,single_error,readout_01,readout_10\n")
+	clean := scoreDoc(t, out, "--calibration", empty)
+	if math.Abs(*clean.XEBNormalizedExpected-1) > 1e-12 || *clean.DigitalFidelity != 1 {
+		t.Errorf("--calibration with no rows: expected normalized XEB %.15g, digital %v; want 1 and 1", *clean.XEBNormalizedExpected, *clean.DigitalFidelity)
+	}
+
 	text, _ := sampleOK(t, "score", out)
 	for _, want := range []string{"Exact expectation under the noise model from the table", "vector engine", "Implied fidelity", "corrected by the exact model"} {
 		if !strings.Contains(text, want) {

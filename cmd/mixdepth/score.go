@@ -154,6 +154,9 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if err := checkUnit("eps", *eps); err != nil {
 		return err
 	}
+	if err := nf.check(); err != nil {
+		return err
+	}
 	order, err := sampling.ParseBitOrder(*bitOrder)
 	if err != nil {
 		return badInput("--bit-order %q: use first (qubit 0 is the first character, the tool's order) or last", *bitOrder)
@@ -463,6 +466,24 @@ type scoreNoiseFlags struct {
 	gateError, fidelity float64
 	readout             string
 	cal                 noiseFlags
+	// p01, p10 are --readout-error, parsed by check.
+	p01, p10 float64
+}
+
+// check validates the noise flags (before any work) and parses
+// --readout-error; every failure is bad input.
+func (nf *scoreNoiseFlags) check() error {
+	for _, c := range []struct {
+		name string
+		v    float64
+	}{{"gate-error", nf.gateError}, {"single-qubit-error", nf.cal.single}, {"fidelity", nf.fidelity}} {
+		if err := checkProbability(c.name, c.v); err != nil {
+			return err
+		}
+	}
+	var err error
+	nf.p01, nf.p10, err = parseReadout(nf.readout)
+	return err
 }
 
 // scoreNoiseFlagNames are the flags that describe the noise.
@@ -498,18 +519,7 @@ func scoreNoise(changed func(string) bool, nf *scoreNoiseFlags, meta tables.Meta
 	case len(given) > 0:
 		source = "table+flags"
 	}
-	for _, c := range []struct {
-		name string
-		v    float64
-	}{{"gate-error", nf.gateError}, {"single-qubit-error", nf.cal.single}, {"fidelity", nf.fidelity}} {
-		if err := checkProbability(c.name, c.v); err != nil {
-			return nil, "", err
-		}
-	}
-	p01, p10, err := parseReadout(nf.readout)
-	if err != nil {
-		return nil, "", err
-	}
+	p01, p10 := nf.p01, nf.p10
 	// The flags override the table's keys; the rebuilt metadata gives the
 	// noise by the rule sample's tables are read with (chipFromMeta).
 	var m tables.Meta

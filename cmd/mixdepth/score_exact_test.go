@@ -131,6 +131,15 @@ func TestScoreExactSources(t *testing.T) {
 	if finite.XEBExpected != nil || !strings.Contains(finite.ExactNote, "no exact engine fits") {
 		t.Errorf("finite single-qubit set: xeb_expected %v, note %q", finite.XEBExpected, finite.ExactNote)
 	}
+	// With --circuits, a table written by sample still gives the ensemble
+	// (its run parameters) and the noise.
+	tab, circ := filepath.Join(dir, "s.parquet"), filepath.Join(dir, "c.json")
+	sampleOK(t, append(append([]string{}, smallSample...), "--out", tab, "--circuits", circ)...)
+	withFile := scoreDoc(t, tab, "--circuits", circ)
+	rebuilt := scoreDoc(t, tab)
+	if withFile.NoiseSource != "table" || withFile.XEBExpected == nil || rebuilt.XEBExpected == nil || *withFile.XEBExpected != *rebuilt.XEBExpected {
+		t.Errorf("--circuits: source %q, xeb_expected %v (rebuilt %v), note %q", withFile.NoiseSource, withFile.XEBExpected, rebuilt.XEBExpected, withFile.ExactNote)
+	}
 	for _, c := range []struct {
 		args []string
 		want string

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bytes"
 	"context"
 	"errors"
 	"fmt"
@@ -8,6 +9,8 @@ import (
 	"math"
 	"strings"
 	"unicode/utf8"
+
+	"github.com/spf13/pflag"
 
 	"mixdepth/circuits"
 	"mixdepth/moments"
@@ -48,12 +51,53 @@ type scoreJSON struct {
 	// Parts and CollisionLimit are set for a chip in parts: the number of
 	// parts and the product of their Haar values; porter_thomas_xeb is then
 	// D·collision_limit − 1, the value the ideal XEB tends to.
-	Parts          int                 `json:"parts,omitempty"`
-	CollisionLimit *float64            `json:"collision_limit,omitempty"`
-	Eps            float64             `json:"eps"`
-	Spread         bool                `json:"spread"`
-	Warnings       []string            `json:"warnings"`
-	Instances      []scoreJSONInstance `json:"instance_scores"`
+	Parts          int      `json:"parts,omitempty"`
+	CollisionLimit *float64 `json:"collision_limit,omitempty"`
+	Eps            float64  `json:"eps"`
+	Spread         bool     `json:"spread"`
+	Warnings       []string `json:"warnings"`
+	// The comparison with the exact expected benchmark under the noise
+	// model (sampling.Compare): noise_source says where the model came
+	// from (table, flags, table+flags or none); the other fields are null,
+	// and exact_note says why, when it was not computed. The sigmas are
+	// (measured − expected) in units of the standard error over instances,
+	// or of the shots alone when sigmas_over is "shots".
+	NoiseSource                     string   `json:"noise_source"`
+	ExactEngine                     *string  `json:"exact_engine"`
+	ExactNote                       string   `json:"exact_note,omitempty"`
+	XEBExpected                     *float64 `json:"xeb_expected"`
+	XEBNormalizedExpected           *float64 `json:"xeb_normalized_expected"`
+	DigitalFidelity                 *float64 `json:"digital_fidelity"`
+	LinearXEBSigmas                 *float64 `json:"linear_xeb_sigmas"`
+	NormalizedXEBSigmas             *float64 `json:"normalized_xeb_sigmas"`
+	SigmasOver                      string   `json:"sigmas_over,omitempty"`
+	ImpliedFidelityNormalized       *float64 `json:"implied_fidelity_normalized"`
+	ImpliedFidelityNormalizedStderr *float64 `json:"implied_fidelity_normalized_stderr"`
+	ImpliedFidelityModel            *float64 `json:"implied_fidelity_model"`
+	ImpliedFidelityModelStderr      *float64 `json:"implied_fidelity_model_stderr"`
+	// XEBTruncationError is the MPS error estimate of xeb_expected (0 for
+	// the vector engine), as exact's xeb_truncation_error.
+	XEBTruncationError *float64            `json:"xeb_truncation_error"`
+	Instances          []scoreJSONInstance `json:"instance_scores"`
+}
+
+// setExact fills the comparison fields of doc.
+func (doc *scoreJSON) setExact(ex scoreExact) {
+	doc.NoiseSource, doc.ExactNote = ex.source, ex.note
+	c := ex.cmp
+	if c == nil {
+		return
+	}
+	doc.ExactEngine = &c.Exact.Engine
+	doc.XEBExpected, doc.XEBNormalizedExpected, doc.DigitalFidelity = finiteOrNull(c.Exact.Expected), finiteOrNull(c.Exact.Normalized), finiteOrNull(c.Exact.Digital)
+	doc.LinearXEBSigmas, doc.NormalizedXEBSigmas = finiteOrNull(c.LinearSigmas), finiteOrNull(c.NormalizedSigmas)
+	doc.SigmasOver = "instances"
+	if !c.OverInstances {
+		doc.SigmasOver = "shots"
+	}
+	doc.ImpliedFidelityNormalized, doc.ImpliedFidelityNormalizedStderr = finiteOrNull(c.ImpliedNormalized), finiteOrNull(c.NormalizedErr)
+	doc.ImpliedFidelityModel, doc.ImpliedFidelityModelStderr = finiteOrNull(c.ImpliedModel), finiteOrNull(c.ImpliedModelErr)
+	doc.XEBTruncationError = finiteOrNull(c.Exact.TruncationError)
 }
 
 type scoreJSONInstance struct {
@@ -83,7 +127,16 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		"F_lin misstates the fidelity.\n\n"+
 		"The circuits come from --circuits FILE.json, or are rebuilt: for a table written by sample,\n"+
 		"from its recorded run parameters (any of --graph, --layout, --schedule, --gates, --seed and\n"+
-		"--depth given overrides them); for a CSV, from those flags and their defaults, as sample uses them.",
+		"--depth given overrides them); for a CSV, from those flags and their defaults, as sample uses them.\n\n"+
+		"With a noise model it also computes the exact expected benchmark of the circuits' ensemble under\n"+
+		"that noise at their depth (as 'mixdepth exact' with noise does) and prints it beside the measured\n"+
+		"values, their difference in standard errors, and the implied fidelity two ways: (a) the usual\n"+
+		"reading, normalized XEB ≈ fidelity, right once the noise acts as global white noise (deep\n"+
+		"circuits); (b) corrected by the exact model, F = digital fidelity × measured/expected normalized\n"+
+		"XEB: the model's digital fidelity scaled by how far the chip fell from the model's expectation.\n"+
+		"The noise model is the one a table written by sample records; --gate-error, --single-qubit-error,\n"+
+		"--readout-error, --fidelity and --calibration override it key by key (for a CSV they are the only\n"+
+		"source). The report names the source; without a model, or when no exact engine fits, it says why.",
 		"mixdepth score samples.parquet --circuits circuits.json", stdout)
 	cf := circuitFlags{checkGraph: func(g *circuits.Graph) error { return sampling.CheckQubits(g.Qubits, "scoring") }}
 	cf.add(fs)
@@ -93,10 +146,15 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	asJSON := fs.Bool("json", false, "print one JSON document instead of the text report")
 	eps := fs.Float64("eps", sampling.DefaultEps, "anti-concentration threshold, as scan's: the circuits are spread when the mean D·Z_U − 1 lies within eps of (D−1)/(D+1), relative")
 	bitOrder := fs.String("bit-order", "first", "which end of a measured bitstring is qubit 0: first or last")
+	var nf scoreNoiseFlags
+	nf.add(fs)
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
 	if err := checkUnit("eps", *eps); err != nil {
+		return err
+	}
+	if err := nf.check(); err != nil {
 		return err
 	}
 	order, err := sampling.ParseBitOrder(*bitOrder)
@@ -129,6 +187,10 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	// the product of the parts' Haar values.
 	var parts int
 	var limit float64
+	// rebuilt and rebuiltDepth are the rebuilt circuits' setup and depth
+	// (nil with --circuits).
+	var rebuilt *setup
+	var rebuiltDepth int
 	if *circuitsIn != "" {
 		for _, name := range []string{"schedule", "gates", "seed", "depth"} {
 			if fs.Changed(name) {
@@ -167,6 +229,7 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 			return err
 		}
 		qubits = s.graph.Qubits
+		rebuilt, rebuiltDepth = s, d
 		if s.spec.Parts > 1 {
 			parts, limit = s.spec.Parts, s.spec.Limit()
 		}
@@ -220,6 +283,10 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		warnings = append(warnings, fmt.Sprintf("the linear XEB %s is near 0 (within %d standard errors), but with each bitstring reversed it is %s: the data may list qubit 0 %s; score with --bit-order %s",
 			plusMinus(rep.Linear, rep.LinearErr), sampling.BitOrderSigmas, plusMinus(bits.Reversed.Linear, bits.Reversed.LinearErr), flip, flip))
 	}
+	ex, err := scoreCompare(ctx, fs.Changed, &nf, rebuilt, rebuiltDepth, *circuitsIn, meta, sampled, path, rep, *workers)
+	if err != nil {
+		return err
+	}
 	for _, w := range warnings {
 		fmt.Fprintln(stderr, "mixdepth: warning: "+w)
 	}
@@ -236,6 +303,7 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		if parts > 1 {
 			doc.Parts, doc.CollisionLimit = parts, &rep.Limit
 		}
+		doc.setExact(ex)
 		for _, s := range rep.Instances {
 			doc.Instances = append(doc.Instances, scoreJSONInstance{
 				Instance: s.Instance, Shots: s.Shots,
@@ -273,6 +341,7 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	} else {
 		fmt.Fprintf(stdout, "  standard error over instances: too few instances for an interval (%d; at least %d)\n", len(rep.Instances), stats.MinIntervalValues)
 	}
+	printScoreExact(stdout, ex, fs.Changed)
 	return nil
 }
 
@@ -388,4 +457,202 @@ func scoreSetup(ctx context.Context, changed func(string) bool, cf *circuitFlags
 		return nil, 0, 0, 0, err
 	}
 	return s, seed, d, total, nil
+}
+
+// scoreNoiseFlags are score's noise flags: the chip's noise model for the
+// comparison with the exact expected benchmark. Each one given overrides
+// the same key of a table written by sample.
+type scoreNoiseFlags struct {
+	gateError, fidelity float64
+	readout             string
+	cal                 noiseFlags
+	// p01, p10 are --readout-error, parsed by check.
+	p01, p10 float64
+}
+
+// check validates the noise flags (before any work) and parses
+// --readout-error; every failure is bad input.
+func (nf *scoreNoiseFlags) check() error {
+	for _, c := range []struct {
+		name string
+		v    float64
+	}{{"gate-error", nf.gateError}, {"single-qubit-error", nf.cal.single}, {"fidelity", nf.fidelity}} {
+		if err := checkProbability(c.name, c.v); err != nil {
+			return err
+		}
+	}
+	var err error
+	nf.p01, nf.p10, err = parseReadout(nf.readout)
+	return err
+}
+
+// scoreNoiseFlagNames are the flags that describe the noise.
+var scoreNoiseFlagNames = []string{"gate-error", "single-qubit-error", "readout-error", "fidelity", "calibration"}
+
+func (nf *scoreNoiseFlags) add(fs *pflag.FlagSet) {
+	fs.Float64Var(&nf.gateError, "gate-error", 0, "the chip's Pauli error rate in [0, 1] after every two-qubit gate, for the exact expectation (overrides the table's)")
+	fs.StringVar(&nf.readout, "readout-error", "0,0", "the chip's readout flip probabilities p01,p10, or one value for both, for the exact expectation (overrides the table's)")
+	fs.Float64Var(&nf.fidelity, "fidelity", 1, "the global depolarizing fidelity in [0, 1], for the exact expectation (overrides the table's)")
+	nf.cal.add(fs, true)
+}
+
+// scoreNoise returns the noise model of the circuits on g for the exact
+// comparison and where it came from: "table" (the metadata of a table
+// written by sample), "flags" (no such table), "table+flags" (the table's,
+// with the given flags overriding their keys), or nil and "none" when
+// there is neither. A --calibration file replaces the table's calibration;
+// its entries override the uniform rates element by element. Errors are
+// bad input.
+func scoreNoise(changed func(string) bool, nf *scoreNoiseFlags, meta tables.Meta, sampled bool, g *circuits.Graph, path string) (*circuits.ChipNoise, string, error) {
+	var given []string
+	for _, name := range scoreNoiseFlagNames {
+		if changed(name) {
+			given = append(given, name)
+		}
+	}
+	source := "table"
+	switch {
+	case len(given) == 0 && !sampled:
+		return nil, "none", nil
+	case !sampled:
+		source = "flags"
+	case len(given) > 0:
+		source = "table+flags"
+	}
+	p01, p10 := nf.p01, nf.p10
+	// The flags override the table's keys; the rebuilt metadata gives the
+	// noise by the rule sample's tables are read with (chipFromMeta).
+	var m tables.Meta
+	for i, k := range meta.Keys {
+		if sampled && !(nf.cal.calibration != "" && (k == runs.KeyCalibration || k == runs.KeyCalibrationDigest)) {
+			m.Set(k, meta.Values[i])
+		}
+	}
+	set := map[string]string{"gate-error": formatFloat(nf.gateError), "single-qubit-error": formatFloat(nf.cal.single),
+		"readout-error": formatFloat(p01) + "," + formatFloat(p10), "fidelity": formatFloat(nf.fidelity)}
+	keys := map[string]string{"gate-error": "gate_error", "single-qubit-error": runs.KeySingleQubitError, "readout-error": "readout_error", "fidelity": "fidelity"}
+	for _, name := range given {
+		if k, ok := keys[name]; ok {
+			m.Set(k, set[name])
+		}
+	}
+	chip, err := chipFromMeta(m, g)
+	if err != nil {
+		return nil, "", badInput("%s: its noise metadata cannot be read: %v; give the noise with --gate-error, --readout-error, --fidelity, --calibration", path, err)
+	}
+	if nf.cal.calibration != "" {
+		data, err := inputfile.ReadFile(nf.cal.calibration, inputfile.SmallLimit)
+		if err != nil {
+			return nil, "", badInput("--calibration %q: %v", echo(nf.cal.calibration), err)
+		}
+		if chip, err = circuits.ReadCalibration(nf.cal.calibration, bytes.NewReader(data), g, chip); err != nil {
+			return nil, "", err
+		}
+	}
+	return chip, source, nil
+}
+
+// scoreExactSetup returns the circuits whose ensemble the exact comparison
+// averages over, and their depth: the rebuilt setup, or with --circuits
+// the run parameters of a table written by sample; nil and a reason when
+// there are none.
+func scoreExactSetup(rebuilt *setup, depth int, circuitsIn string, meta tables.Meta, sampled bool) (*setup, int, string) {
+	if rebuilt != nil {
+		return rebuilt, depth, ""
+	}
+	if !sampled {
+		return nil, 0, fmt.Sprintf("the circuits come from %s and the table records no run, so the gate set and schedule are unknown; rebuild the circuits with the circuit flags instead of --circuits", circuitsIn)
+	}
+	s, err := setupFromMeta(meta)
+	if err != nil {
+		return nil, 0, fmt.Sprintf("the table's run parameters cannot be read (%v)", err)
+	}
+	d, err := metaInt(meta, "depth")
+	if err != nil {
+		return nil, 0, fmt.Sprintf("the table records no depth (%v)", err)
+	}
+	return s, d, ""
+}
+
+// scoreExact is the exact comparison of a score: cmp is nil when it was
+// skipped, with note saying why.
+type scoreExact struct {
+	source string
+	chip   *circuits.ChipNoise
+	cmp    *sampling.Comparison
+	note   string
+}
+
+// scoreCompare runs the exact comparison of rep. The engines' refusals
+// (no exact moments, too large, too slow) skip it with a note; an
+// interruption is returned.
+func scoreCompare(ctx context.Context, changed func(string) bool, nf *scoreNoiseFlags, rebuilt *setup, depth int, circuitsIn string, meta tables.Meta, sampled bool, path string, rep *sampling.Report, workers int) (scoreExact, error) {
+	var out scoreExact
+	s, d, why := scoreExactSetup(rebuilt, depth, circuitsIn, meta, sampled)
+	if s == nil {
+		out.source, out.note = "none", why
+		return out, nil
+	}
+	chip, source, err := scoreNoise(changed, nf, meta, sampled, s.graph, path)
+	if err != nil {
+		return out, err
+	}
+	out.source, out.chip = source, chip
+	if chip == nil {
+		out.note = "no noise model: a table not written by sample records none; give the chip's noise with --gate-error, --single-qubit-error, --readout-error, --fidelity or --calibration"
+		return out, nil
+	}
+	x, err := sampling.PredictXEB(ctx, s.graph, s.schedule, s.ensemble, d, chip, workers)
+	switch {
+	case errors.Is(err, context.Canceled):
+		return out, errInterrupted
+	case errors.Is(err, moments.ErrNoExactMoments), errors.Is(err, moments.ErrTooLarge), errors.Is(err, moments.ErrEngine), errors.Is(err, sampling.ErrPredictCost):
+		out.note = "no exact engine fits: " + strings.TrimPrefix(strings.TrimPrefix(err.Error(), "moments: "), "sampling: ")
+		return out, nil
+	case err != nil:
+		return out, err
+	}
+	c := sampling.Compare(rep, x)
+	out.cmp = &c
+	return out, nil
+}
+
+// describeSource is the text report's phrase for the origin of the noise.
+func describeSource(source string, changed func(string) bool) string {
+	switch source {
+	case "table":
+		return "from the table (the noise sample ran with)"
+	case "flags":
+		return "from the flags"
+	}
+	var given []string
+	for _, name := range scoreNoiseFlagNames {
+		if changed(name) {
+			given = append(given, "--"+name)
+		}
+	}
+	return "from the table, with " + strings.Join(given, ", ") + " overriding"
+}
+
+// printScoreExact prints the exact comparison block of the text report.
+func printScoreExact(w io.Writer, ex scoreExact, changed func(string) bool) {
+	if ex.cmp == nil {
+		fmt.Fprintf(w, "\nExact expectation: not computed: %s.\n", ex.note)
+		return
+	}
+	c := ex.cmp
+	over := "over instances"
+	if !c.OverInstances {
+		over = "of the shots alone: too few instances for the error over instances"
+	}
+	fmt.Fprintf(w, "\nExact expectation under the noise model %s, at depth %d (%s engine):\n", describeSource(ex.source, changed), c.Exact.Depth, c.Exact.Engine)
+	fmt.Fprintf(w, "  %-24s %8.4f   measured %s (%+.2f standard errors %s)\n", "expected linear XEB", c.Exact.Expected, plusMinus(c.Linear, c.LinearErr), c.LinearSigmas, over)
+	fmt.Fprintf(w, "  %-24s %8.4f   measured %s (%+.2f standard errors)\n", "expected normalized XEB", c.Exact.Normalized, plusMinus(c.Normalized, c.NormalizedErr), c.NormalizedSigmas)
+	fmt.Fprintf(w, "  %-24s %8.4f   (the product of the model's gate, readout and global fidelities)\n", "digital fidelity", c.Exact.Digital)
+	if c.Exact.Engine == moments.EngineMPS {
+		fmt.Fprintf(w, "  %-24s %8.2g   (estimate of the MPS truncation error of the expected linear XEB)\n", "truncation error", c.Exact.TruncationError)
+	}
+	fmt.Fprintf(w, "Implied fidelity:\n")
+	fmt.Fprintf(w, "  %s   normalized XEB ≈ fidelity, the usual reading (right once the noise acts as global white noise)\n", pad(plusMinus(c.ImpliedNormalized, c.NormalizedErr), 17))
+	fmt.Fprintf(w, "  %s   corrected by the exact model: digital fidelity × measured / expected normalized XEB\n", pad(plusMinus(c.ImpliedModel, c.ImpliedModelErr), 17))
 }

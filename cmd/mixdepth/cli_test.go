@@ -253,6 +253,7 @@ func TestHelpSynopsis(t *testing.T) {
 		"plan":      "plan",
 		"graph":     "graph [SPEC|FILE]",
 		"show":      "show FILE",
+		"score":     "score FILE",
 		"merge":     "merge --out FILE PART...",
 		"summarize": "summarize FILE...",
 		"compare":   "compare FILE... --plot OUT",

@@ -113,21 +113,22 @@ type scoreJSONInstance struct {
 }
 
 func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("score", "mixdepth score FILE [flags]\n\n"+
+	fs := newFlags("score FILE", 
 		"Scores the shots of a sample table (FILE.arrow or FILE.parquet from 'mixdepth sample', or a\n"+
 		"CSV of measured data with a header and at least the columns instance,bitstring; bitstrings list\n"+
 		"qubit 0 first, or last with --bit-order last; an optional p_ideal column is checked against the\n"+
 		"simulation). Reports per instance\n"+
 		"and over all shots: the linear XEB F_lin = D·mean p − 1 and the logarithmic XEB\n"+
-		"F_log = ln D + γ + mean ln p with their standard errors, the ideal-device value D·Z_U − 1 and the\n"+
-		"normalized estimate F_lin/(D·Z_U − 1), whose error bar over all shots comes twice: from the shots\n"+
+		"F_log = ln D + γ + mean ln p with their standard errors, the ideal-device value D·Z − 1 and the\n"+
+		"normalized estimate F_lin/(D·Z − 1), whose error bar over all shots comes twice: from the shots\n"+
 		"alone, and from a bootstrap over instances that includes every source of variation (shots,\n"+
 		"noise trajectories, circuits). It warns when the circuits have not anti-concentrated (mean\n"+
-		"D·Z_U − 1 more than eps from the Porter–Thomas value (D−1)/(D+1), relative), where the raw\n"+
+		"D·Z − 1 more than eps from the Porter–Thomas value (D−1)/(D+1), relative), where the raw\n"+
 		"F_lin misstates the fidelity.\n\n"+
 		"The circuits come from --circuits FILE.json, or are rebuilt: for a table written by sample,\n"+
-		"from its recorded run parameters (any of --graph, --layout, --schedule, --gates, --seed and\n"+
-		"--depth given overrides them); for a CSV, from those flags and their defaults, as sample uses them.\n\n"+
+		"from its recorded run parameters (--seed and --depth each override the recorded value; any of\n"+
+		"--graph, --layout, --drop, --schedule and --gates rebuilds the circuits from the flags alone); for a\n"+
+		"CSV, from those flags and their defaults, as sample uses them.\n\n"+
 		"With a noise model it also computes the exact expected benchmark of the circuits' ensemble under\n"+
 		"that noise at their depth (as 'mixdepth exact' with noise does) and prints it beside the measured\n"+
 		"values, their difference in standard errors, and the implied fidelity two ways: (a) the usual\n"+
@@ -140,11 +141,11 @@ func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		"mixdepth score samples.parquet --circuits circuits.json", stdout)
 	cf := circuitFlags{checkGraph: func(g *circuits.Graph) error { return sampling.CheckQubits(g.Qubits, "scoring") }}
 	cf.add(fs)
-	depth := fs.Int("depth", defaultSampleDepth, "circuit depth when rebuilding the circuits; a table that records its depth overrides this fallback")
+	depth := fs.Int("depth", defaultSampleDepth, "circuit depth when rebuilding the circuits (default: the depth the table records, else 16)")
 	circuitsIn := fs.String("circuits", "", "read the circuits from FILE.json, as written by 'mixdepth sample --circuits'")
 	workers := fs.Int("workers", defaultWorkers(), "worker goroutines for states of 16 qubits or more")
 	asJSON := fs.Bool("json", false, "print one JSON document instead of the text report")
-	eps := fs.Float64("eps", sampling.DefaultEps, "anti-concentration threshold, as scan's: the circuits are spread when the mean D·Z_U − 1 lies within eps of (D−1)/(D+1), relative")
+	eps := fs.Float64("eps", sampling.DefaultEps, "anti-concentration threshold, as scan's: the circuits are spread when the mean D·Z − 1 lies within eps of (D−1)/(D+1), relative")
 	bitOrder := fs.String("bit-order", "first", "which end of a measured bitstring is qubit 0: first or last")
 	var nf scoreNoiseFlags
 	nf.add(fs)
@@ -430,7 +431,7 @@ func scoreSetup(ctx context.Context, changed func(string) bool, cf *circuitFlags
 		}
 		if digest, ok := meta.Get("graph_digest"); ok && sampled && digest != s.graph.Digest() {
 			g, _ := meta.Get("graph")
-			return nil, 0, 0, 0, badInput("%s was sampled on graph %s (digest %s) but the flags give %s (digest %s): drop --graph/--layout, or score the right table",
+			return nil, 0, 0, 0, badInput("%s was sampled on graph %s (digest %s) but the flags give %s (digest %s): drop the circuit flags (--graph/--layout/--drop/--schedule/--gates), or score the right table",
 				path, g, digest, s.graph.Name, s.graph.Digest())
 		}
 	}

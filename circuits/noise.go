@@ -86,6 +86,28 @@ func (c *ChipNoise) PairIndex(a, b int) (int, bool) {
 	return i, ok
 }
 
+// Uncovered returns a gate of s on a pair that has no rate in c (a pair
+// that is not a coupler of the graph c was built for) and true, or false
+// when every gate of s has its rate. A layered schedule's gates are its
+// classes' and a random-edge schedule's its edges.
+func (c *ChipNoise) Uncovered(s Schedule) (Edge, bool) {
+	var edges []Edge
+	switch s := s.(type) {
+	case *Layered:
+		for _, cl := range s.Classes {
+			edges = append(edges, cl...)
+		}
+	case *RandomEdge:
+		edges = s.Edges
+	}
+	for _, e := range edges {
+		if _, ok := c.PairIndex(e.A, e.B); !ok {
+			return e, true
+		}
+	}
+	return Edge{}, false
+}
+
 // Noiseless reports whether c has no error at all: every rate 0 and
 // Fidelity 1.
 func (c *ChipNoise) Noiseless() bool {

@@ -268,7 +268,7 @@ func XEBCurve(ctx context.Context, g *circuits.Graph, s circuits.Schedule, e cir
 	if err := nz.Validate(g); err != nil {
 		return nil, fmt.Errorf("moments: %w", err)
 	}
-	if err := xebCheckCouplers(g, s); err != nil {
+	if err := xebCheckCouplers(g, nz, s); err != nil {
 		return nil, err
 	}
 	cfg := collisionConfigure(opts)
@@ -303,7 +303,7 @@ func exactXEB(ctx context.Context, r *Result, g *circuits.Graph, s circuits.Sche
 	if err := nz.Validate(g); err != nil {
 		return fmt.Errorf("moments: %w", err)
 	}
-	if err := xebCheckCouplers(g, s); err != nil {
+	if err := xebCheckCouplers(g, nz, s); err != nil {
 		return err
 	}
 	depths := r.Depths
@@ -486,25 +486,10 @@ func xebUniformRandomEdgeSubsets(n int, edges []circuits.Edge, c []float64, dept
 }
 
 // xebCheckCouplers returns an error unless every gate of s acts on a
-// coupler of g, whose noise rates are the ones the gate takes.
-func xebCheckCouplers(g *circuits.Graph, s circuits.Schedule) error {
-	ok := make(map[[2]int]bool, len(g.Edges))
-	for _, e := range g.Edges {
-		ok[[2]int{min(e.A, e.B), max(e.A, e.B)}] = true
-	}
-	var edges []circuits.Edge
-	switch s := s.(type) {
-	case *circuits.Layered:
-		for _, cl := range s.Classes {
-			edges = append(edges, cl...)
-		}
-	case *circuits.RandomEdge:
-		edges = s.Edges
-	}
-	for _, e := range edges {
-		if !ok[[2]int{min(e.A, e.B), max(e.A, e.B)}] {
-			return fmt.Errorf("moments: the schedule has a gate on (%d, %d), which is not a coupler of %s, so it has no noise rate; use a schedule on the graph's couplers", e.A, e.B, g.Name)
-		}
+// coupler of g, which has its rate in nz.
+func xebCheckCouplers(g *circuits.Graph, nz *circuits.ChipNoise, s circuits.Schedule) error {
+	if e, ok := nz.Uncovered(s); ok {
+		return fmt.Errorf("moments: the schedule has a gate on (%d, %d), which is not a coupler of %s, so it has no noise rate; use a schedule on the graph's couplers", e.A, e.B, g.Name)
 	}
 	return nil
 }

@@ -140,19 +140,8 @@ func (c *Config) Validate() error {
 		if ch.Qubits() != c.Qubits {
 			return bad("chip noise for %d qubits on a %d-qubit circuit", ch.Qubits(), c.Qubits)
 		}
-		var edges []circuits.Edge
-		switch s := c.Schedule.(type) {
-		case *circuits.Layered:
-			for _, cl := range s.Classes {
-				edges = append(edges, cl...)
-			}
-		case *circuits.RandomEdge:
-			edges = s.Edges
-		}
-		for _, e := range edges {
-			if _, ok := ch.PairIndex(e.A, e.B); !ok {
-				return bad("chip noise has no rate for the coupler %d-%d of the schedule", e.A, e.B)
-			}
+		if e, ok := ch.Uncovered(c.Schedule); ok {
+			return bad("chip noise has no rate for the coupler %d-%d of the schedule", e.A, e.B)
 		}
 	}
 	return nil

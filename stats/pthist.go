@@ -109,13 +109,27 @@ func NewHaarKS(dim, workers, budget int) *HaarKS {
 // distinct w may run concurrently. It panics if w is outside [0, workers).
 func (h *HaarKS) Count(w int, p []float64) {
 	r, c := h.r, h.counts[w]
+	// The usual value falls in a uniform bin: one subtraction, one shift and
+	// one comparison on its key, no call; the others (zeros, tiny or huge
+	// values, negatives, NaN) take countOuter.
+	lo0, shift, nb0 := r.lo0, r.shift, uint64(r.nb0)
+	c = c[:3+nb0+1]
 	for _, v := range p {
-		if v != v {
-			h.nans[w] = true
+		if i := (ksKey(v) - lo0) >> shift; i < nb0 {
+			c[3+i]++
 			continue
 		}
-		c[r.bin0(ksKey(v))]++
+		h.countOuter(w, c, v)
 	}
+}
+
+// countOuter counts a value outside the uniform level-0 bins.
+func (h *HaarKS) countOuter(w int, c []uint32, v float64) {
+	if v != v {
+		h.nans[w] = true
+		return
+	}
+	c[h.r.bin0(ksKey(v))]++
 }
 
 // Finish returns the statistic of the probabilities counted since the last
@@ -163,13 +177,12 @@ func (h *HaarKS) reset() {
 	r.lower, r.best, r.nan = 0, 0, false
 }
 
-// ksKey maps a float64 to a uint64 in the same order (for non-NaN values).
+// ksKey maps a float64 to a uint64 in the same order (for non-NaN values):
+// the bits of a positive value with the sign bit set, the complement of a
+// negative one's, without a branch.
 func ksKey(v float64) uint64 {
 	b := math.Float64bits(v)
-	if b>>63 == 1 {
-		return ^b
-	}
-	return b | 1<<63
+	return b ^ (uint64(int64(b)>>63) | 1<<63)
 }
 
 // ksValue is the inverse of ksKey.
@@ -219,9 +232,13 @@ type ksRefiner struct {
 	// active has bit b set when level-0 node b is not idle: a pass rejects
 	// most values with this table, before touching any node.
 	active []uint64
-	// vals and all are the collect pass's buffers, kept for the next state.
-	vals [][]float64
-	all  []float64
+	// vals, all, ranges and offs are the collect pass's buffers, kept for
+	// the next state.
+	vals   [][]float64
+	all    []float64
+	ranges [][2]uint64
+	offs   []int64
+	slot   []int32 // a candidate leaf's position in the collect pass's list
 }
 
 const ksSlack = 1e-12 // candidates keep U_j ≥ L − slack, so rounding in the bounds never drops the supremum's bin
@@ -427,60 +444,170 @@ func (r *ksRefiner) split(pass ProbabilityPass, cands []int32) {
 	}
 }
 
-// collect gathers the values of the candidate leaves, sorts them and takes
-// the exact terms of the statistic from them.
+// collect gathers the values of the candidate leaves and takes the exact
+// terms of the statistic from them. The pass tests each value against the
+// candidates' key ranges (merged where adjacent; a few comparisons) or,
+// when they are many, against the table of active level-0 bins. The values
+// are then grouped by leaf (their counts are known), and each leaf is
+// sorted and searched by bisection only while its bound can exceed the
+// best term found, leaves with the largest bounds first: most candidate
+// leaves need no sort and no CDF evaluation per value.
 func (r *ksRefiner) collect(pass ProbabilityPass, cands []int32) {
 	for _, ci := range cands {
 		r.state[ci] = ksCollect
 	}
 	r.markActive()
+	// The candidates in key order.
+	slices.SortFunc(cands, func(a, b int32) int {
+		switch la, lb := r.nodes[a].lo, r.nodes[b].lo; {
+		case la < lb:
+			return -1
+		case la > lb:
+			return 1
+		}
+		return 0
+	})
+	ranges := r.ranges[:0]
+	for _, ci := range cands {
+		nd := &r.nodes[ci]
+		if m := len(ranges); m > 0 && ranges[m-1][1] == nd.lo {
+			ranges[m-1][1] = nd.hi
+			continue
+		}
+		ranges = append(ranges, [2]uint64{nd.lo, nd.hi})
+	}
+	r.ranges = ranges
 	if r.vals == nil {
 		r.vals = make([][]float64, r.workers) // worker w alone touches vals[w]
 	}
 	for w := range r.vals {
 		r.vals[w] = r.vals[w][:0]
 	}
-	pass(func(w int, p []float64) {
-		buf := r.vals[w]
-		for _, v := range p {
-			if i := r.leaf(ksKey(v)); i >= 0 && r.state[i] == ksCollect {
-				buf = append(buf, v)
-			}
+	if len(ranges) <= ksMaxRanges {
+		var lo, width [ksMaxRanges]uint64
+		for i, rg := range ranges {
+			lo[i], width[i] = rg[0], rg[1]-rg[0]
 		}
-		r.vals[w] = buf
-	})
-	all := r.all[:0]
-	for _, v := range r.vals {
-		all = append(all, v...)
+		for i := len(ranges); i < ksMaxRanges; i++ {
+			lo[i], width[i] = 0, 0 // matches nothing
+		}
+		pass(func(w int, p []float64) {
+			buf := r.vals[w]
+			for _, v := range p {
+				k := ksKey(v)
+				if k-lo[0] < width[0] || k-lo[1] < width[1] || k-lo[2] < width[2] || k-lo[3] < width[3] {
+					buf = append(buf, v)
+				}
+			}
+			r.vals[w] = buf
+		})
+	} else {
+		lo0, shift, nb0, active := r.lo0, r.shift, uint64(r.nb0), r.active
+		pass(func(w int, p []float64) {
+			buf := r.vals[w]
+			for _, v := range p {
+				k := ksKey(v)
+				i := (k-lo0)>>shift + 3
+				if i >= nb0+3 {
+					i = uint64(r.bin0(k))
+				}
+				if active[i>>6]>>(i&63)&1 != 0 {
+					if j := r.leaf(k); j >= 0 && r.state[j] == ksCollect {
+						buf = append(buf, v)
+					}
+				}
+			}
+			r.vals[w] = buf
+		})
 	}
-	r.all = all
-	slices.Sort(all)
-	// The candidates in key order, with their rank offsets.
-	leaves := make([]*ksNode, len(cands))
+	// Group the values by leaf: slot[i] is leaf i's position in cands.
+	var total int64
+	off := r.offs[:0]
+	for _, ci := range cands {
+		off = append(off, total)
+		total += r.nodes[ci].count
+	}
+	r.offs = off
+	if int64(cap(r.all)) < total {
+		r.all = make([]float64, total)
+	}
+	all := r.all[:total]
+	if len(r.slot) < len(r.nodes) {
+		r.slot = make([]int32, len(r.nodes))
+	}
 	for i, ci := range cands {
-		leaves[i] = &r.nodes[ci]
+		r.slot[ci] = int32(i)
 	}
-	slices.SortFunc(leaves, func(a, b *ksNode) int {
+	fill := slices.Clone(off)
+	for _, vs := range r.vals {
+		for _, v := range vs {
+			c := r.slot[r.leaf(ksKey(v))]
+			all[fill[c]] = v
+			fill[c]++
+		}
+	}
+	// Leaves by decreasing upper bound.
+	order := make([]int, len(cands))
+	ub := make([]float64, len(cands))
+	for i, ci := range cands {
+		order[i] = i
+		_, ub[i] = r.bounds(int(ci))
+	}
+	slices.SortFunc(order, func(a, b int) int {
 		switch {
-		case a.lo < b.lo:
+		case ub[a] > ub[b]:
 			return -1
-		case a.lo > b.lo:
+		case ub[a] < ub[b]:
 			return 1
 		}
 		return 0
 	})
-	d := float64(r.dim)
-	j := 0
-	var rank int64
-	for _, v := range all {
-		k := ksKey(v)
-		for k >= leaves[j].hi {
-			j++
-			rank = 0
+	for _, i := range order {
+		if ub[i] < r.best-ksSlack {
+			break
 		}
-		i := leaves[j].below + rank
-		f := r.cdf(v)
-		r.best = max(r.best, max(float64(i+1)/d-f, f-float64(i)/d))
-		rank++
+		vs := all[off[i] : off[i]+r.nodes[cands[i]].count]
+		slices.Sort(vs)
+		r.search(vs, r.nodes[cands[i]].below, 0, len(vs), r.cdf(vs[0]), r.cdf(vs[len(vs)-1]))
 	}
+}
+
+// ksMaxRanges is the number of merged candidate key ranges that the collect
+// pass tests by comparisons alone.
+const ksMaxRanges = 4
+
+// ksSearchLeaf is the run length below which search evaluates every term.
+const ksSearchLeaf = 8
+
+// search raises r.best to the largest term of the sorted values vs[a:b],
+// whose first has rank below+a; fa and fb are the CDF at vs[a] and vs[b−1].
+// The terms (i+1)/D − F(x_(i)) and F(x_(i)) − i/D of the run are at most
+// (below+b)/D − fa and fb − (below+a)/D (F and the ranks are monotone), so
+// a run whose bound is below the best term is skipped and a long one is
+// halved.
+func (r *ksRefiner) search(vs []float64, below int64, a, b int, fa, fb float64) {
+	d := float64(r.dim)
+	if max(float64(below+int64(b))/d-fa, fb-float64(below+int64(a))/d) < r.best-ksSlack {
+		return
+	}
+	if b-a <= ksSearchLeaf {
+		for j := a; j < b; j++ {
+			var f float64
+			switch j {
+			case a:
+				f = fa
+			case b - 1:
+				f = fb
+			default:
+				f = r.cdf(vs[j])
+			}
+			i := below + int64(j)
+			r.best = max(r.best, max(float64(i+1)/d-f, f-float64(i)/d))
+		}
+		return
+	}
+	m := (a + b) / 2
+	fl, fr := r.cdf(vs[m-1]), r.cdf(vs[m])
+	r.search(vs, below, a, m, fa, fl)
+	r.search(vs, below, m, b, fr, fb)
 }

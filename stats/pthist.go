@@ -123,6 +123,85 @@ func (h *HaarKS) Count(w int, p []float64) {
 	}
 }
 
+// CountAmplitudes adds the probabilities |a|² of the amplitudes a, given
+// as (real, imaginary) pairs, to the first-pass histogram, as Count does for
+// the probabilities, and returns their collision sum Σ|a|⁴, added in the
+// order of Collision: for the same amplitudes it equals Collision of their
+// probabilities re·re + im·im bit for bit. One loop squares, sums and bins,
+// so a state's first read-out pass is one pass over its amplitudes with no
+// buffer of probabilities. It panics if len(a) is odd or w is outside
+// [0, workers).
+func (h *HaarKS) CountAmplitudes(w int, a []float64) float64 {
+	if len(a)%2 != 0 {
+		panic("stats: CountAmplitudes of an odd number of floats")
+	}
+	c := h.counts[w][:h.r.n0]
+	return h.sumCount(w, c, a)
+}
+
+// sumCount mirrors sumSquares over the probabilities of the pairs a.
+func (h *HaarKS) sumCount(w int, c []uint32, a []float64) float64 {
+	n := len(a) / 2
+	if n <= pairwiseBlock {
+		return h.leafCount(w, c, a)
+	}
+	m := (n / 2 / pairwiseBlock) * pairwiseBlock
+	if m == 0 {
+		m = pairwiseBlock
+	}
+	return h.sumCount(w, c, a[:2*m]) + h.sumCount(w, c, a[2*m:])
+}
+
+// leafCount is sumSquares's leaf over the probabilities of the pairs a,
+// binning each probability as Count does.
+func (h *HaarKS) leafCount(w int, c []uint32, a []float64) float64 {
+	r := h.r
+	lo0, shift, nb0 := r.lo0, r.shift, uint64(r.nb0)
+	var s0, s1, s2, s3 float64
+	i := 0
+	for ; i+8 <= len(a); i += 8 {
+		q := a[i : i+8 : i+8]
+		p0 := q[0]*q[0] + q[1]*q[1]
+		p1 := q[2]*q[2] + q[3]*q[3]
+		p2 := q[4]*q[4] + q[5]*q[5]
+		p3 := q[6]*q[6] + q[7]*q[7]
+		s0 += p0 * p0
+		s1 += p1 * p1
+		s2 += p2 * p2
+		s3 += p3 * p3
+		if j := (ksKey(p0) - lo0) >> shift; j < nb0 {
+			c[3+j]++
+		} else {
+			h.countOuter(w, c, p0)
+		}
+		if j := (ksKey(p1) - lo0) >> shift; j < nb0 {
+			c[3+j]++
+		} else {
+			h.countOuter(w, c, p1)
+		}
+		if j := (ksKey(p2) - lo0) >> shift; j < nb0 {
+			c[3+j]++
+		} else {
+			h.countOuter(w, c, p2)
+		}
+		if j := (ksKey(p3) - lo0) >> shift; j < nb0 {
+			c[3+j]++
+		} else {
+			h.countOuter(w, c, p3)
+		}
+	}
+	for ; i+2 <= len(a); i += 2 {
+		p := a[i]*a[i] + a[i+1]*a[i+1]
+		s0 += p * p
+		if j := (ksKey(p) - lo0) >> shift; j < nb0 {
+			c[3+j]++
+		} else {
+			h.countOuter(w, c, p)
+		}
+	}
+	return (s0 + s1) + (s2 + s3)
+}
+
 // countOuter counts a value outside the uniform level-0 bins.
 func (h *HaarKS) countOuter(w int, c []uint32, v float64) {
 	if v != v {

@@ -319,7 +319,8 @@ type amplitudeVector interface {
 // supremum (equal to the sort of stats.KSHaar to rounding). The first pass
 // also adds Σp² per chunk of sim.ProbabilityChunk values, pairwise as
 // stats.Collision adds; on a double-precision state it is one loop over the
-// amplitudes that squares, sums and bins (stats.HaarKS.CountAmplitudes).
+// amplitudes that squares, sums and bins (stats.HaarKS.CountAmplitudes),
+// and the collect pass squares and tests them in one loop too.
 // The chunk sums are then added pairwise: up to ExactKSQubits by halves, so
 // that the result is stats.Collision of the array of all probabilities bit
 // for bit, as the scan computed it when it kept that array; above, as
@@ -329,15 +330,18 @@ func (r *readout) read(st vector) (z, ks float64) {
 		av.AmplitudeBlocks(r.workers, func(w, off int, a []float64) {
 			r.partial[off/sim.ProbabilityChunk] = r.ks.CountAmplitudes(w, a)
 		})
+		ks, _ = r.ks.FinishAmplitudes(func(visit func(w int, a []float64)) {
+			av.AmplitudeBlocks(r.workers, func(w, _ int, a []float64) { visit(w, a) })
+		})
 	} else {
 		st.ProbabilityBlocks(r.workers, func(w, off int, p []float64) {
 			r.partial[off/sim.ProbabilityChunk] = stats.Collision(p)
 			r.ks.Count(w, p)
 		})
+		ks, _ = r.ks.Finish(func(visit func(w int, p []float64)) {
+			st.ProbabilityBlocks(r.workers, func(w, _ int, p []float64) { visit(w, p) })
+		})
 	}
-	ks, _ = r.ks.Finish(func(visit func(w int, p []float64)) {
-		st.ProbabilityBlocks(r.workers, func(w, _ int, p []float64) { visit(w, p) })
-	})
 	if r.n <= ExactKSQubits {
 		return halvesSum(r.partial), ks
 	}

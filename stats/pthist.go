@@ -82,6 +82,7 @@ type HaarKS struct {
 	counts [][]uint32 // level-0 counts per worker
 	nans   []bool
 	budget int
+	bufs   [][]float64 // FinishAmplitudes's probabilities per worker
 }
 
 // NewHaarKS returns a HaarKS for states of dim probabilities whose passes
@@ -110,13 +111,16 @@ func NewHaarKS(dim, workers, budget int) *HaarKS {
 func (h *HaarKS) Count(w int, p []float64) {
 	r, c := h.r, h.counts[w]
 	// The usual value falls in a uniform bin: one subtraction, one shift and
-	// one comparison on its key, no call; the others (zeros, tiny or huge
-	// values, negatives, NaN) take countOuter.
-	lo0, shift, nb0 := r.lo0, r.shift, uint64(r.nb0)
-	c = c[:3+nb0+1]
+	// one comparison on its bits, no call; the others (zeros, tiny or huge
+	// values, negatives, NaN) take countOuter. For v ≥ 0 the key is the bits
+	// with the sign bit set and lo0 has it set, so the difference of keys is
+	// the difference of the bits and pos = lo0 without the sign bit; a
+	// negative v or a NaN gives a difference of at least 2^62, beyond the
+	// uniform bins.
+	pos, shift, u := r.lo0&^(1<<63), r.shift&63, c[3:3+r.nb0]
 	for _, v := range p {
-		if i := (ksKey(v) - lo0) >> shift; i < nb0 {
-			c[3+i]++
+		if i := (math.Float64bits(v) - pos) >> (shift & 63); i < uint64(len(u)) {
+			u[i]++ // the comparison is the bounds check
 			continue
 		}
 		h.countOuter(w, c, v)
@@ -156,7 +160,7 @@ func (h *HaarKS) sumCount(w int, c []uint32, a []float64) float64 {
 // binning each probability as Count does.
 func (h *HaarKS) leafCount(w int, c []uint32, a []float64) float64 {
 	r := h.r
-	lo0, shift, nb0 := r.lo0, r.shift, uint64(r.nb0)
+	pos, shift, u := r.lo0&^(1<<63), r.shift&63, c[3:3+r.nb0]
 	var s0, s1, s2, s3 float64
 	i := 0
 	for ; i+8 <= len(a); i += 8 {
@@ -169,23 +173,23 @@ func (h *HaarKS) leafCount(w int, c []uint32, a []float64) float64 {
 		s1 += p1 * p1
 		s2 += p2 * p2
 		s3 += p3 * p3
-		if j := (ksKey(p0) - lo0) >> shift; j < nb0 {
-			c[3+j]++
+		if j := (math.Float64bits(p0) - pos) >> (shift & 63); j < uint64(len(u)) {
+			u[j]++
 		} else {
 			h.countOuter(w, c, p0)
 		}
-		if j := (ksKey(p1) - lo0) >> shift; j < nb0 {
-			c[3+j]++
+		if j := (math.Float64bits(p1) - pos) >> (shift & 63); j < uint64(len(u)) {
+			u[j]++
 		} else {
 			h.countOuter(w, c, p1)
 		}
-		if j := (ksKey(p2) - lo0) >> shift; j < nb0 {
-			c[3+j]++
+		if j := (math.Float64bits(p2) - pos) >> (shift & 63); j < uint64(len(u)) {
+			u[j]++
 		} else {
 			h.countOuter(w, c, p2)
 		}
-		if j := (ksKey(p3) - lo0) >> shift; j < nb0 {
-			c[3+j]++
+		if j := (math.Float64bits(p3) - pos) >> (shift & 63); j < uint64(len(u)) {
+			u[j]++
 		} else {
 			h.countOuter(w, c, p3)
 		}
@@ -193,8 +197,8 @@ func (h *HaarKS) leafCount(w int, c []uint32, a []float64) float64 {
 	for ; i+2 <= len(a); i += 2 {
 		p := a[i]*a[i] + a[i+1]*a[i+1]
 		s0 += p * p
-		if j := (ksKey(p) - lo0) >> shift; j < nb0 {
-			c[3+j]++
+		if j := (math.Float64bits(p) - pos) >> (shift & 63); j < uint64(len(u)) {
+			u[j]++
 		} else {
 			h.countOuter(w, c, p)
 		}
@@ -216,6 +220,41 @@ func (h *HaarKS) countOuter(w int, c []uint32, v float64) {
 // many: usually one); pass must hand out the same probabilities as the
 // counted pass. The HaarKS is then ready for another state.
 func (h *HaarKS) Finish(pass ProbabilityPass) (ks float64, passes int) {
+	return h.finish(pass, nil)
+}
+
+// AmplitudePass is a ProbabilityPass over amplitudes: it hands every one of
+// D amplitudes to visit exactly once per call, as (real, imaginary) float64
+// pairs in blocks a (len(a) even), with the concurrency of a
+// ProbabilityPass; the probabilities are re·re + im·im.
+type AmplitudePass func(visit func(w int, a []float64))
+
+// FinishAmplitudes is Finish for a state counted with CountAmplitudes: its
+// refinement passes go over the amplitudes, and the usual one, which
+// collects the values of the candidate bins, squares and tests them in one
+// loop with no buffer of probabilities.
+func (h *HaarKS) FinishAmplitudes(pass AmplitudePass) (ks float64, passes int) {
+	if h.bufs == nil {
+		h.bufs = make([][]float64, len(h.counts))
+	}
+	probs := func(visit func(w int, p []float64)) {
+		pass(func(w int, a []float64) {
+			if cap(h.bufs[w]) < len(a)/2 {
+				h.bufs[w] = make([]float64, len(a)/2)
+			}
+			p := h.bufs[w][:len(a)/2]
+			for i := range p {
+				p[i] = a[2*i]*a[2*i] + a[2*i+1]*a[2*i+1]
+			}
+			visit(w, p)
+		})
+	}
+	return h.finish(probs, pass)
+}
+
+// finish runs the refinement passes over pass, and the collect pass over
+// apass when it is not nil.
+func (h *HaarKS) finish(pass ProbabilityPass, apass AmplitudePass) (ks float64, passes int) {
 	r := h.r
 	defer h.reset()
 	r.gather(h.counts, h.nans)
@@ -233,7 +272,7 @@ func (h *HaarKS) Finish(pass ProbabilityPass) (ks float64, passes int) {
 		case len(cands) == 0:
 			return r.best, passes
 		case total <= limit:
-			r.collect(pass, cands)
+			r.collect(pass, apass, cands)
 			return r.best, passes + 1
 		}
 		r.split(pass, cands)
@@ -311,13 +350,15 @@ type ksRefiner struct {
 	// active has bit b set when level-0 node b is not idle: a pass rejects
 	// most values with this table, before touching any node.
 	active []uint64
-	// vals, all, ranges and offs are the collect pass's buffers, kept for
-	// the next state.
-	vals   [][]float64
-	all    []float64
-	ranges [][2]uint64
-	offs   []int64
-	slot   []int32 // a candidate leaf's position in the collect pass's list
+	// act0 holds 1 for each uniform level-0 bin (node 3+i) that is not
+	// idle, the byte the collect pass reads per value.
+	act0 []uint8
+	// vals, all and offs are the collect pass's buffers, kept for the next
+	// state.
+	vals [][]float64
+	all  []float64
+	offs []int64
+	slot []int32 // a candidate leaf's position in the collect pass's list
 }
 
 const ksSlack = 1e-12 // candidates keep U_j ≥ L − slack, so rounding in the bounds never drops the supremum's bin
@@ -447,10 +488,20 @@ func (r *ksRefiner) markActive() {
 	if r.active == nil {
 		r.active = make([]uint64, (n0+63)/64)
 	}
+	if r.act0 == nil {
+		r.act0 = make([]uint8, r.nb0)
+	}
 	clear(r.active)
 	for i := 0; i < n0; i++ {
-		if r.state[i] != ksIdle {
+		on := r.state[i] != ksIdle
+		if on {
 			r.active[i>>6] |= 1 << (i & 63)
+		}
+		if i >= 3 && i < 3+r.nb0 {
+			r.act0[i-3] = 0
+			if on {
+				r.act0[i-3] = 1
+			}
 		}
 	}
 }
@@ -524,14 +575,14 @@ func (r *ksRefiner) split(pass ProbabilityPass, cands []int32) {
 }
 
 // collect gathers the values of the candidate leaves and takes the exact
-// terms of the statistic from them. The pass tests each value against the
-// candidates' key ranges (merged where adjacent; a few comparisons) or,
-// when they are many, against the table of active level-0 bins. The values
+// terms of the statistic from them, in a pass over the probabilities or,
+// when apass is not nil, over the amplitudes. The pass rejects most values
+// with one byte of a table of the active level-0 bins. The values
 // are then grouped by leaf (their counts are known), and each leaf is
 // sorted and searched by bisection only while its bound can exceed the
 // best term found, leaves with the largest bounds first: most candidate
 // leaves need no sort and no CDF evaluation per value.
-func (r *ksRefiner) collect(pass ProbabilityPass, cands []int32) {
+func (r *ksRefiner) collect(pass ProbabilityPass, apass AmplitudePass, cands []int32) {
 	for _, ci := range cands {
 		r.state[ci] = ksCollect
 	}
@@ -546,55 +597,48 @@ func (r *ksRefiner) collect(pass ProbabilityPass, cands []int32) {
 		}
 		return 0
 	})
-	ranges := r.ranges[:0]
-	for _, ci := range cands {
-		nd := &r.nodes[ci]
-		if m := len(ranges); m > 0 && ranges[m-1][1] == nd.lo {
-			ranges[m-1][1] = nd.hi
-			continue
-		}
-		ranges = append(ranges, [2]uint64{nd.lo, nd.hi})
-	}
-	r.ranges = ranges
 	if r.vals == nil {
 		r.vals = make([][]float64, r.workers) // worker w alone touches vals[w]
 	}
 	for w := range r.vals {
 		r.vals[w] = r.vals[w][:0]
 	}
-	if len(ranges) <= ksMaxRanges {
-		var lo, width [ksMaxRanges]uint64
-		for i, rg := range ranges {
-			lo[i], width[i] = rg[0], rg[1]-rg[0]
+	// A value is kept when its level-0 bin is active (one byte of act0 for
+	// the uniform bins, the bitmap for the outer ones) and its leaf is a
+	// candidate.
+	pos, shift, act := r.lo0&^(1<<63), r.shift, r.act0
+	keep := func(buf []float64, v float64) []float64 {
+		k := ksKey(v)
+		if i := r.bin0(k); r.active[i>>6]>>(i&63)&1 != 0 {
+			if j := r.leaf(k); j >= 0 && r.state[j] == ksCollect {
+				buf = append(buf, v)
+			}
 		}
-		for i := len(ranges); i < ksMaxRanges; i++ {
-			lo[i], width[i] = 0, 0 // matches nothing
-		}
-		pass(func(w int, p []float64) {
+		return buf
+	}
+	if apass != nil {
+		apass(func(w int, a []float64) {
 			buf := r.vals[w]
-			for _, v := range p {
-				k := ksKey(v)
-				if k-lo[0] < width[0] || k-lo[1] < width[1] || k-lo[2] < width[2] || k-lo[3] < width[3] {
-					buf = append(buf, v)
+			for {
+				a = a[ksSkipPairs(a, pos, shift, act):]
+				if len(a) < 2 {
+					break
 				}
+				buf = keep(buf, a[0]*a[0]+a[1]*a[1])
+				a = a[2:]
 			}
 			r.vals[w] = buf
 		})
 	} else {
-		lo0, shift, nb0, active := r.lo0, r.shift, uint64(r.nb0), r.active
 		pass(func(w int, p []float64) {
 			buf := r.vals[w]
-			for _, v := range p {
-				k := ksKey(v)
-				i := (k-lo0)>>shift + 3
-				if i >= nb0+3 {
-					i = uint64(r.bin0(k))
+			for {
+				p = p[ksSkip(p, pos, shift, act):]
+				if len(p) == 0 {
+					break
 				}
-				if active[i>>6]>>(i&63)&1 != 0 {
-					if j := r.leaf(k); j >= 0 && r.state[j] == ksCollect {
-						buf = append(buf, v)
-					}
-				}
+				buf = keep(buf, p[0])
+				p = p[1:]
 			}
 			r.vals[w] = buf
 		})
@@ -651,9 +695,32 @@ func (r *ksRefiner) collect(pass ProbabilityPass, cands []int32) {
 	}
 }
 
-// ksMaxRanges is the number of merged candidate key ranges that the collect
-// pass tests by comparisons alone.
-const ksMaxRanges = 4
+// ksSkip returns the number of leading values of p that fall in idle
+// uniform level-0 bins (act[j] == 0): the collect pass's loop, a function
+// of its own so that its few variables stay in registers. pos is lo0 without
+// its sign bit (see Count).
+//go:noinline
+func ksSkip(p []float64, pos uint64, shift uint, act []uint8) int {
+	for i, v := range p {
+		if j := (math.Float64bits(v) - pos) >> (shift & 63); j >= uint64(len(act)) || act[j] != 0 {
+			return i
+		}
+	}
+	return len(p)
+}
+
+// ksSkipPairs is ksSkip over the probabilities re·re + im·im of the pairs
+// a; it returns a number of floats (even).
+//go:noinline
+func ksSkipPairs(a []float64, pos uint64, shift uint, act []uint8) int {
+	for i := 1; i < len(a); i += 2 {
+		v := a[i-1]*a[i-1] + a[i]*a[i]
+		if j := (math.Float64bits(v) - pos) >> (shift & 63); j >= uint64(len(act)) || act[j] != 0 {
+			return i - 1
+		}
+	}
+	return len(a) &^ 1
+}
 
 // ksSearchLeaf is the run length below which search evaluates every term.
 const ksSearchLeaf = 8

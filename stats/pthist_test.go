@@ -189,8 +189,9 @@ func TestHaarKSReuse(t *testing.T) {
 // TestCountAmplitudes: the fused first pass over amplitudes returns the
 // collision sum of Collision bit for bit (the same squares re·re + im·im
 // added in the same pairwise order) and fills the same histogram as Count
-// does from the probabilities, so the statistic equals the sort of KSHaar
-// to 1e−15 (see TestKSHaarPassesExact). The amplitudes: complex Gaussian
+// does from the probabilities, so the statistic, finished over the
+// probabilities (Finish) or over the amplitudes (FinishAmplitudes), equals
+// the sort of KSHaar to 1e−15 (see TestKSHaarPassesExact). The amplitudes: complex Gaussian
 // (Haar states; Porter & Thomas 1956), block lengths that are not multiples
 // of the leaf or of four, a state with exact zeros and subnormal squares,
 // and a uniform superposition over a quarter of the basis (many equal
@@ -224,7 +225,8 @@ func TestCountAmplitudes(t *testing.T) {
 			for i := range p {
 				p[i] = a[2*i]*a[2*i] + a[2*i+1]*a[2*i+1]
 			}
-			h := NewHaarKS(d, 2, 0)
+			// A budget of 16 values forces refinement passes before the collect.
+			h := NewHaarKS(d, 2, []int{16, 0, 0}[kind])
 			// Blocks of 4096 amplitudes, alternating between two workers.
 			const block = 4096
 			for off, w := 0, 0; off < d; off, w = off+block, 1-w {
@@ -234,7 +236,15 @@ func TestCountAmplitudes(t *testing.T) {
 				}
 			}
 			calls := 0
-			got, _ := h.Finish(blockPass(p, block, 2, &calls))
+			var got float64
+			if kind == 1 {
+				got, _ = h.Finish(blockPass(p, block, 2, &calls))
+			} else {
+				got, _ = h.FinishAmplitudes(AmplitudePass(blockPass(a, 2*block, 2, &calls)))
+			}
+			if kind == 0 && d >= 1<<12 && calls < 2 {
+				t.Errorf("D=%d kind %d: %d refinement passes with a budget of 16, want a split before the collect", d, kind, calls)
+			}
 			if want := KSHaar(p, nil); math.Abs(got-want) > 1e-15 {
 				t.Errorf("D=%d kind %d: HaarKS %.17g, KSHaar %.17g", d, kind, got, want)
 			}

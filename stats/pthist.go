@@ -353,6 +353,7 @@ type ksRefiner struct {
 	// act0 holds 1 for each uniform level-0 bin (node 3+i) that is not
 	// idle, the byte the collect pass reads per value.
 	act0 []uint8
+	ups  []ksUpper // select_'s buffer
 	// vals, all and offs are the collect pass's buffers, kept for the next
 	// state.
 	vals [][]float64
@@ -454,32 +455,40 @@ func (r *ksRefiner) bounds(i int) (lower, upper float64) {
 // select_ turns the leaves counted in the last pass into candidates or idle
 // nodes and returns the candidates with their total count.
 func (r *ksRefiner) select_() (cands []int32, total int64) {
-	for i := range r.nodes {
-		nd := &r.nodes[i]
-		if r.state[i] != ksCount || nd.count == 0 {
-			continue
-		}
-		l, _ := r.bounds(i)
-		if nd.hi-nd.lo == 1 {
-			r.best = max(r.best, l) // one distinct value: the bound is a term
-		}
-		r.lower = max(r.lower, l)
-	}
-	for i := range r.nodes {
-		nd := &r.nodes[i]
+	// One pass over the nodes takes both bounds of each counted leaf; the
+	// second goes over the non-empty ones only.
+	ups := r.ups[:0]
+	for i := range r.state {
 		if r.state[i] != ksCount {
 			continue
 		}
 		r.state[i] = ksIdle
-		if nd.count == 0 || nd.hi-nd.lo == 1 {
+		nd := &r.nodes[i]
+		if nd.count == 0 {
 			continue
 		}
-		if _, u := r.bounds(i); u >= r.lower-ksSlack {
-			cands = append(cands, int32(i))
-			total += nd.count
+		l, u := r.bounds(i)
+		if nd.hi-nd.lo == 1 {
+			r.best = max(r.best, l) // one distinct value: the bound is a term
+		} else {
+			ups = append(ups, ksUpper{int32(i), u})
+		}
+		r.lower = max(r.lower, l)
+	}
+	r.ups = ups
+	for _, e := range ups {
+		if e.u >= r.lower-ksSlack {
+			cands = append(cands, e.i)
+			total += r.nodes[e.i].count
 		}
 	}
 	return cands, total
+}
+
+// ksUpper is a counted leaf with its upper bound U_j.
+type ksUpper struct {
+	i int32
+	u float64
 }
 
 // markActive rebuilds the table of level-0 nodes that are not idle.
@@ -699,6 +708,7 @@ func (r *ksRefiner) collect(pass ProbabilityPass, apass AmplitudePass, cands []i
 // uniform level-0 bins (act[j] == 0): the collect pass's loop, a function
 // of its own so that its few variables stay in registers. pos is lo0 without
 // its sign bit (see Count).
+//
 //go:noinline
 func ksSkip(p []float64, pos uint64, shift uint, act []uint8) int {
 	for i, v := range p {
@@ -711,6 +721,7 @@ func ksSkip(p []float64, pos uint64, shift uint, act []uint8) int {
 
 // ksSkipPairs is ksSkip over the probabilities re·re + im·im of the pairs
 // a; it returns a number of floats (even).
+//
 //go:noinline
 func ksSkipPairs(a []float64, pos uint64, shift uint, act []uint8) int {
 	for i := 1; i < len(a); i += 2 {

@@ -40,12 +40,13 @@ type Config struct {
 	Precision Precision
 }
 
-// ExactKSQubits is the largest qubit count whose readout keeps the array of
-// all probabilities (the collision probability is stats.Collision of it,
-// and stats.HaarKS passes over it). Above it the scan keeps no probability
-// array: the collision probability and the histogram of stats.HaarKS come
-// from one pass over the amplitudes, and HaarKS finishes the same statistic
-// (equal to the sort of stats.KSHaar to rounding) in usually one more.
+// ExactKSQubits is the largest qubit count whose collision probability adds
+// the chunk sums by halves, as stats.Collision adds the array of all
+// probabilities (the scan kept that array up to this size; the sums, and
+// so the tables, are unchanged bit for bit); above it they are added as
+// pairwiseSum adds. At every size the read-out keeps no probability array
+// (see readout.read), and stats.HaarKS gives the statistic of the sort of
+// stats.KSHaar to rounding in usually two passes.
 const ExactKSQubits = 20
 
 // maxWindow bounds the gates collected between two readouts before they are
@@ -135,8 +136,9 @@ func (c *Config) newVector(n int) (vector, error) {
 }
 
 // instanceBytes returns the memory one instance needs: the state, plus the
-// probabilities and the sort scratch up to ExactKSQubits, or the streamed
-// statistic's buffers above.
+// read-out's buffers (the chunk sums, the histogram and the collected
+// values): up to ExactKSQubits bounded by 16 bytes per amplitude, as when
+// the read-out kept the array of probabilities and its sort scratch.
 func (c *Config) instanceBytes(n int) float64 {
 	state := sim.StateBytes(n)
 	if c.Precision == PrecisionSingle {

@@ -9,8 +9,8 @@
 // as one fused sequence (sim.State.Run), so a pass over memory applies many
 // gates. The Porter–Thomas distance comes from stats.HaarKS: a histogram
 // and usually one more pass that collects the few bins that can hold the
-// supremum. Up to ExactKSQubits qubits the passes run over the array of
-// probabilities; above, the readout keeps none: the collision probability
-// and the histogram come from one pass over the amplitudes. Config.Precision PrecisionSingle
+// supremum. The readout keeps no array of probabilities: the collision
+// probability and the histogram come from one loop over the amplitudes,
+// and the collect pass goes over them again. Config.Precision PrecisionSingle
 // keeps complex64 amplitudes (31 qubits in 16 GiB).
 package scan

@@ -40,12 +40,13 @@ type Config struct {
 	Precision Precision
 }
 
-// ExactKSQubits is the largest qubit count whose readout keeps the array of
-// all probabilities (the collision probability is stats.Collision of it,
-// and stats.HaarKS passes over it). Above it the scan keeps no probability
-// array: the collision probability and the histogram of stats.HaarKS come
-// from one pass over the amplitudes, and HaarKS finishes the same statistic
-// (equal to the sort of stats.KSHaar to rounding) in usually one more.
+// ExactKSQubits is the largest qubit count whose collision probability adds
+// the chunk sums by halves, as stats.Collision adds the array of all
+// probabilities (the scan kept that array up to this size; the sums, and
+// so the tables, are unchanged bit for bit); above it they are added as
+// pairwiseSum adds. At every size the read-out keeps no probability array
+// (see readout.read), and stats.HaarKS gives the statistic of the sort of
+// stats.KSHaar to rounding in usually two passes.
 const ExactKSQubits = 20
 
 // maxWindow bounds the gates collected between two readouts before they are
@@ -135,8 +136,9 @@ func (c *Config) newVector(n int) (vector, error) {
 }
 
 // instanceBytes returns the memory one instance needs: the state, plus the
-// probabilities and the sort scratch up to ExactKSQubits, or the streamed
-// statistic's buffers above.
+// read-out's buffers (the chunk sums, the histogram and the collected
+// values): up to ExactKSQubits bounded by 16 bytes per amplitude, as when
+// the read-out kept the array of probabilities and its sort scratch.
 func (c *Config) instanceBytes(n int) float64 {
 	state := sim.StateBytes(n)
 	if c.Precision == PrecisionSingle {
@@ -301,75 +303,65 @@ func runInstance(ctx context.Context, c *Config, id, n int, st vector, ro *reado
 type readout struct {
 	n, workers int
 	ks         *stats.HaarKS // bins and counters, kept from state to state
-	probs      []float64     // n ≤ ExactKSQubits
-	partial    []float64     // n > ExactKSQubits: Σp² per chunk
+	partial    []float64     // Σp² per chunk of sim.ProbabilityChunk values
 }
 
 func newReadout(n, workers int) *readout {
-	r := &readout{n: n, workers: workers, ks: stats.NewHaarKS(1<<n, workers, 0)}
-	if n <= ExactKSQubits {
-		r.probs = make([]float64, 1<<n)
-	} else {
-		r.partial = make([]float64, (1<<n+sim.ProbabilityChunk-1)/sim.ProbabilityChunk)
+	return &readout{
+		n: n, workers: workers, ks: stats.NewHaarKS(1<<n, workers, 0),
+		partial: make([]float64, (1<<n+sim.ProbabilityChunk-1)/sim.ProbabilityChunk),
 	}
-	return r
+}
+
+// amplitudeVector is a vector whose amplitudes can be read in place as
+// float64 pairs (sim.State).
+type amplitudeVector interface {
+	AmplitudeBlocks(workers int, visit func(w, off int, a []float64))
 }
 
 // read returns the collision probability and the Porter–Thomas distance of
 // st. The distance is stats.HaarKS's: a histogram pass, then usually one
 // pass that collects the values of the few bins that can hold the
-// supremum (equal to the sort of stats.KSHaar to rounding). Up to
-// ExactKSQubits the passes run over the array of probabilities and the
-// collision probability is stats.Collision of it; above, the first pass
-// over the amplitudes adds Σp² per chunk of sim.ProbabilityChunk values
-// (pairwise within a chunk, then pairwise over the chunks, so the sum does
-// not depend on the worker count) while it fills the histogram.
+// supremum (equal to the sort of stats.KSHaar to rounding). The first pass
+// also adds Σp² per chunk of sim.ProbabilityChunk values, pairwise as
+// stats.Collision adds; on a double-precision state it is one loop over the
+// amplitudes that squares, sums and bins (stats.HaarKS.CountAmplitudes),
+// and the collect pass squares and tests them in one loop too.
+// The chunk sums are then added pairwise: up to ExactKSQubits by halves, so
+// that the result is stats.Collision of the array of all probabilities bit
+// for bit, as the scan computed it when it kept that array; above, as
+// pairwiseSum adds. Neither depends on the worker count.
 func (r *readout) read(st vector) (z, ks float64) {
-	if r.probs != nil {
-		r.probs = st.Probabilities(r.probs, r.workers)
-		pass := func(visit func(w int, p []float64)) { arrayPass(r.probs, r.workers, r.n, visit) }
-		pass(r.ks.Count)
-		ks, _ = r.ks.Finish(pass)
-		return stats.Collision(r.probs), ks
+	if av, ok := st.(amplitudeVector); ok {
+		av.AmplitudeBlocks(r.workers, func(w, off int, a []float64) {
+			r.partial[off/sim.ProbabilityChunk] = r.ks.CountAmplitudes(w, a)
+		})
+		ks, _ = r.ks.FinishAmplitudes(func(visit func(w int, a []float64)) {
+			av.AmplitudeBlocks(r.workers, func(w, _ int, a []float64) { visit(w, a) })
+		})
+	} else {
+		st.ProbabilityBlocks(r.workers, func(w, off int, p []float64) {
+			r.partial[off/sim.ProbabilityChunk] = stats.Collision(p)
+			r.ks.Count(w, p)
+		})
+		ks, _ = r.ks.Finish(func(visit func(w int, p []float64)) {
+			st.ProbabilityBlocks(r.workers, func(w, _ int, p []float64) { visit(w, p) })
+		})
 	}
-	st.ProbabilityBlocks(r.workers, func(w, off int, p []float64) {
-		r.partial[off/sim.ProbabilityChunk] = stats.Collision(p)
-		r.ks.Count(w, p)
-	})
-	ks, _ = r.ks.Finish(func(visit func(w int, p []float64)) {
-		st.ProbabilityBlocks(r.workers, func(w, _ int, p []float64) { visit(w, p) })
-	})
+	if r.n <= ExactKSQubits {
+		return halvesSum(r.partial), ks
+	}
 	return pairwiseSum(r.partial), ks
 }
 
-// arrayPass hands p to visit in sim.ProbabilityChunk blocks, split into
-// contiguous ranges across workers goroutines for states of at least
-// sim.ParallelQubits qubits, as sim's ProbabilityBlocks splits a state.
-func arrayPass(p []float64, workers, n int, visit func(w int, p []float64)) {
-	chunks := (len(p) + sim.ProbabilityChunk - 1) / sim.ProbabilityChunk
-	if n < sim.ParallelQubits {
-		workers = 1
+// halvesSum adds x (of a power-of-two length) by halves, the order in which
+// stats.Collision adds the chunks of a power-of-two array.
+func halvesSum(x []float64) float64 {
+	if len(x) == 1 {
+		return x[0]
 	}
-	workers = min(workers, chunks)
-	per := (chunks + workers - 1) / workers
-	var wg sync.WaitGroup
-	var carry crash.Carrier
-	for w := 0; w < workers; w++ {
-		lo, hi := min(w*per*sim.ProbabilityChunk, len(p)), min((w+1)*per*sim.ProbabilityChunk, len(p))
-		body := func() {
-			for off := lo; off < hi; off += sim.ProbabilityChunk {
-				visit(w, p[off:min(off+sim.ProbabilityChunk, hi)])
-			}
-		}
-		if workers == 1 {
-			body()
-			continue
-		}
-		wg.Add(1)
-		go func() { defer wg.Done(); defer carry.Catch(); body() }()
-	}
-	wg.Wait()
-	carry.Rethrow()
+	m := len(x) / 2
+	return halvesSum(x[:m]) + halvesSum(x[m:])
 }
 
 // pairwiseSum adds x pairwise: rounding error O(log len(x)·ε).

@@ -65,6 +65,14 @@ func (c *checkingVector) Run(ctx context.Context, ops []sim.Op, workers int) err
 	return c.vector.Run(ctx, ops, workers)
 }
 
+func (c *checkingVector) AmplitudeBlocks(workers int, visit func(w, off int, a []float64)) {
+	if c.pending {
+		c.pending = false
+		c.read()
+	}
+	c.vector.(amplitudeVector).AmplitudeBlocks(workers, visit)
+}
+
 func (c *checkingVector) ProbabilityBlocks(workers int, visit func(w, off int, p []float64)) {
 	if c.pending {
 		c.pending = false

@@ -3,6 +3,7 @@ package sim
 import (
 	"fmt"
 	"mixdepth/internal/crash"
+	"unsafe"
 
 	"golang.org/x/sync/errgroup"
 )
@@ -157,6 +158,41 @@ func probabilityBlocks[T amplitude](amp []T, n, workers int, visit func(w, off i
 		}
 	}
 	_ = g.Wait()
+}
+
+// AmplitudeBlocks calls visit(w, off, a) for the chunks of ProbabilityBlocks,
+// with a the chunk's amplitudes amp[off:off+len(a)/2] as (real, imaginary)
+// float64 pairs: the state's own memory, read in place, so that a caller
+// that squares, sums and bins in one loop passes over the amplitudes once
+// with no buffer. visit must not modify a. Calls with distinct w in
+// [0, workers) may run concurrently, split as ProbabilityBlocks splits.
+func (s *State) AmplitudeBlocks(workers int, visit func(w, off int, a []float64)) {
+	amp := s.Amp
+	chunks := (len(amp) + ProbabilityChunk - 1) / ProbabilityChunk
+	if workers <= 1 || s.Qubits < ParallelQubits || chunks < 2 {
+		workers = 1
+	}
+	workers = min(workers, chunks)
+	var g errgroup.Group
+	var carry crash.Carrier
+	per := (chunks + workers - 1) / workers
+	for w := 0; w < workers; w++ {
+		from, to := w*per, min((w+1)*per, chunks)
+		body := func() {
+			for c := from; c < to; c++ {
+				off := c * ProbabilityChunk
+				src := amp[off:min(off+ProbabilityChunk, len(amp))]
+				visit(w, off, unsafe.Slice((*float64)(unsafe.Pointer(&src[0])), 2*len(src)))
+			}
+		}
+		if workers == 1 {
+			body()
+		} else {
+			g.Go(func() error { defer carry.Catch(); body(); return nil })
+		}
+	}
+	_ = g.Wait()
+	carry.Rethrow()
 }
 
 // squares writes |src[i]|² (in float64) into p.

@@ -117,3 +117,33 @@ func TestProbabilityBlocks(t *testing.T) {
 }
 
 func cmplxAbs(v complex128) float64 { return math.Hypot(real(v), imag(v)) }
+
+// TestAmplitudeBlocks: the chunks of AmplitudeBlocks are those of
+// ProbabilityBlocks, and each holds the state's amplitudes as (real,
+// imaginary) pairs, read in place.
+func TestAmplitudeBlocks(t *testing.T) {
+	rng := rand.New(rand.NewPCG(77, 78))
+	for _, n := range []int{1, 3, 12, sim.ParallelQubits + 1} {
+		s := newState(t, n)
+		randomState(rng, s)
+		for _, workers := range []int{1, 3} {
+			seen := make([]int, len(s.Amp))
+			s.AmplitudeBlocks(workers, func(w, off int, a []float64) {
+				if off%sim.ProbabilityChunk != 0 || w < 0 || w >= workers || len(a)%2 != 0 {
+					t.Errorf("chunk at %d from worker %d, %d floats", off, w, len(a))
+				}
+				for i := 0; i < len(a)/2; i++ {
+					if v := s.Amp[off+i]; a[2*i] != real(v) || a[2*i+1] != imag(v) {
+						t.Errorf("n=%d: amplitude %d read as (%g, %g), want %v", n, off+i, a[2*i], a[2*i+1], v)
+					}
+					seen[off+i]++
+				}
+			})
+			for i, c := range seen {
+				if c != 1 {
+					t.Fatalf("n=%d workers=%d: amplitude %d seen %d times", n, workers, i, c)
+				}
+			}
+		}
+	}
+}

@@ -23,8 +23,9 @@
 // histogram, refinement of the few bins that can hold the supremum, and a
 // sort of their values, in O(D) time per pass and bounded memory; HaarKS
 // does the same for one state after another, its first pass fed by the
-// caller (the scan's collision pass), and costs less than the sort at any
-// size.
+// caller (the scan's collision pass; CountAmplitudes squares, sums and
+// bins amplitudes in one loop, FinishAmplitudes runs the other passes over
+// them), and costs less than the sort at any size.
 //
 // Ensemble summaries: Summarize gives the mean, the unbiased standard
 // deviation and the standard error. With fewer than two values the spread is

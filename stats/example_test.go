@@ -40,3 +40,18 @@ func ExampleRatioInterval() {
 	// R = 1.076 [0.966, 1.186]
 	// 12 true
 }
+
+// The read-out of a state vector in two passes over its amplitudes: here
+// the two-qubit state (|00⟩ + |01⟩ + |10⟩ + |11⟩)/2 as (re, im) pairs. Its
+// probabilities are all 1/4, so Z = 4·(1/4)² = 0.25, and the KS distance
+// to Beta(1, 3) is F(1/4) = 1 − (3/4)³ = 37/64 = 0.578125 (by hand).
+func ExampleHaarKS_CountAmplitudes() {
+	amps := []float64{0.5, 0, 0.5, 0, 0, 0.5, 0, -0.5}
+	pass := func(visit func(w int, a []float64)) { visit(0, amps) }
+	h := stats.NewHaarKS(4, 1, 0)
+	var z float64
+	pass(func(w int, a []float64) { z += h.CountAmplitudes(w, a) })
+	ks, _ := h.FinishAmplitudes(pass)
+	fmt.Printf("Z = %.6f, KS = %.6f\n", z, ks)
+	// Output: Z = 0.250000, KS = 0.578125
+}

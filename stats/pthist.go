@@ -82,6 +82,7 @@ type HaarKS struct {
 	counts [][]uint32 // level-0 counts per worker
 	nans   []bool
 	budget int
+	bufs   [][]float64 // FinishAmplitudes's probabilities per worker
 }
 
 // NewHaarKS returns a HaarKS for states of dim probabilities whose passes
@@ -109,13 +110,109 @@ func NewHaarKS(dim, workers, budget int) *HaarKS {
 // distinct w may run concurrently. It panics if w is outside [0, workers).
 func (h *HaarKS) Count(w int, p []float64) {
 	r, c := h.r, h.counts[w]
+	// The usual value falls in a uniform bin: one subtraction, one shift and
+	// one comparison on its bits, no call; the others (zeros, tiny or huge
+	// values, negatives, NaN) take countOuter. For v ≥ 0 the key is the bits
+	// with the sign bit set and lo0 has it set, so the difference of keys is
+	// the difference of the bits and pos = lo0 without the sign bit; a
+	// negative v or a NaN gives a difference of at least 2^62, beyond the
+	// uniform bins.
+	pos, shift, u := r.lo0&^(1<<63), r.shift&63, c[3:3+r.nb0]
 	for _, v := range p {
-		if v != v {
-			h.nans[w] = true
+		if i := (math.Float64bits(v) - pos) >> (shift & 63); i < uint64(len(u)) {
+			u[i]++ // the comparison is the bounds check
 			continue
 		}
-		c[r.bin0(ksKey(v))]++
+		h.countOuter(w, c, v)
 	}
+}
+
+// CountAmplitudes adds the probabilities |a|² of the amplitudes a, given
+// as (real, imaginary) pairs, to the first-pass histogram, as Count does for
+// the probabilities, and returns their collision sum Σ|a|⁴, added in the
+// order of Collision: for the same amplitudes it equals Collision of their
+// probabilities re·re + im·im bit for bit. One loop squares, sums and bins,
+// so a state's first read-out pass is one pass over its amplitudes with no
+// buffer of probabilities. It panics if len(a) is odd or w is outside
+// [0, workers).
+func (h *HaarKS) CountAmplitudes(w int, a []float64) float64 {
+	if len(a)%2 != 0 {
+		panic("stats: CountAmplitudes of an odd number of floats")
+	}
+	c := h.counts[w][:h.r.n0]
+	return h.sumCount(w, c, a)
+}
+
+// sumCount mirrors sumSquares over the probabilities of the pairs a.
+func (h *HaarKS) sumCount(w int, c []uint32, a []float64) float64 {
+	n := len(a) / 2
+	if n <= pairwiseBlock {
+		return h.leafCount(w, c, a)
+	}
+	m := (n / 2 / pairwiseBlock) * pairwiseBlock
+	if m == 0 {
+		m = pairwiseBlock
+	}
+	return h.sumCount(w, c, a[:2*m]) + h.sumCount(w, c, a[2*m:])
+}
+
+// leafCount is sumSquares's leaf over the probabilities of the pairs a,
+// binning each probability as Count does.
+func (h *HaarKS) leafCount(w int, c []uint32, a []float64) float64 {
+	r := h.r
+	pos, shift, u := r.lo0&^(1<<63), r.shift&63, c[3:3+r.nb0]
+	var s0, s1, s2, s3 float64
+	i := 0
+	for ; i+8 <= len(a); i += 8 {
+		q := a[i : i+8 : i+8]
+		p0 := q[0]*q[0] + q[1]*q[1]
+		p1 := q[2]*q[2] + q[3]*q[3]
+		p2 := q[4]*q[4] + q[5]*q[5]
+		p3 := q[6]*q[6] + q[7]*q[7]
+		s0 += p0 * p0
+		s1 += p1 * p1
+		s2 += p2 * p2
+		s3 += p3 * p3
+		if j := (math.Float64bits(p0) - pos) >> (shift & 63); j < uint64(len(u)) {
+			u[j]++
+		} else {
+			h.countOuter(w, c, p0)
+		}
+		if j := (math.Float64bits(p1) - pos) >> (shift & 63); j < uint64(len(u)) {
+			u[j]++
+		} else {
+			h.countOuter(w, c, p1)
+		}
+		if j := (math.Float64bits(p2) - pos) >> (shift & 63); j < uint64(len(u)) {
+			u[j]++
+		} else {
+			h.countOuter(w, c, p2)
+		}
+		if j := (math.Float64bits(p3) - pos) >> (shift & 63); j < uint64(len(u)) {
+			u[j]++
+		} else {
+			h.countOuter(w, c, p3)
+		}
+	}
+	for ; i+2 <= len(a); i += 2 {
+		p := a[i]*a[i] + a[i+1]*a[i+1]
+		s0 += p * p
+		if j := (math.Float64bits(p) - pos) >> (shift & 63); j < uint64(len(u)) {
+			u[j]++
+		} else {
+			h.countOuter(w, c, p)
+		}
+	}
+	return (s0 + s1) + (s2 + s3)
+}
+
+// countOuter counts a value outside the uniform level-0 bins.
+func (h *HaarKS) countOuter(w int, c []uint32, v float64) {
+	if v != v {
+		h.nans[w] = true
+		return
+	}
+	c[h.r.bin0(ksKey(v))]++
 }
 
 // Finish returns the statistic of the probabilities counted since the last
@@ -123,6 +220,41 @@ func (h *HaarKS) Count(w int, p []float64) {
 // many: usually one); pass must hand out the same probabilities as the
 // counted pass. The HaarKS is then ready for another state.
 func (h *HaarKS) Finish(pass ProbabilityPass) (ks float64, passes int) {
+	return h.finish(pass, nil)
+}
+
+// AmplitudePass is a ProbabilityPass over amplitudes: it hands every one of
+// D amplitudes to visit exactly once per call, as (real, imaginary) float64
+// pairs in blocks a (len(a) even), with the concurrency of a
+// ProbabilityPass; the probabilities are re·re + im·im.
+type AmplitudePass func(visit func(w int, a []float64))
+
+// FinishAmplitudes is Finish for a state counted with CountAmplitudes: its
+// refinement passes go over the amplitudes, and the usual one, which
+// collects the values of the candidate bins, squares and tests them in one
+// loop with no buffer of probabilities.
+func (h *HaarKS) FinishAmplitudes(pass AmplitudePass) (ks float64, passes int) {
+	if h.bufs == nil {
+		h.bufs = make([][]float64, len(h.counts))
+	}
+	probs := func(visit func(w int, p []float64)) {
+		pass(func(w int, a []float64) {
+			if cap(h.bufs[w]) < len(a)/2 {
+				h.bufs[w] = make([]float64, len(a)/2)
+			}
+			p := h.bufs[w][:len(a)/2]
+			for i := range p {
+				p[i] = a[2*i]*a[2*i] + a[2*i+1]*a[2*i+1]
+			}
+			visit(w, p)
+		})
+	}
+	return h.finish(probs, pass)
+}
+
+// finish runs the refinement passes over pass, and the collect pass over
+// apass when it is not nil.
+func (h *HaarKS) finish(pass ProbabilityPass, apass AmplitudePass) (ks float64, passes int) {
 	r := h.r
 	defer h.reset()
 	r.gather(h.counts, h.nans)
@@ -140,7 +272,7 @@ func (h *HaarKS) Finish(pass ProbabilityPass) (ks float64, passes int) {
 		case len(cands) == 0:
 			return r.best, passes
 		case total <= limit:
-			r.collect(pass, cands)
+			r.collect(pass, apass, cands)
 			return r.best, passes + 1
 		}
 		r.split(pass, cands)
@@ -163,13 +295,12 @@ func (h *HaarKS) reset() {
 	r.lower, r.best, r.nan = 0, 0, false
 }
 
-// ksKey maps a float64 to a uint64 in the same order (for non-NaN values).
+// ksKey maps a float64 to a uint64 in the same order (for non-NaN values):
+// the bits of a positive value with the sign bit set, the complement of a
+// negative one's, without a branch.
 func ksKey(v float64) uint64 {
 	b := math.Float64bits(v)
-	if b>>63 == 1 {
-		return ^b
-	}
-	return b | 1<<63
+	return b ^ (uint64(int64(b)>>63) | 1<<63)
 }
 
 // ksValue is the inverse of ksKey.
@@ -219,9 +350,16 @@ type ksRefiner struct {
 	// active has bit b set when level-0 node b is not idle: a pass rejects
 	// most values with this table, before touching any node.
 	active []uint64
-	// vals and all are the collect pass's buffers, kept for the next state.
+	// act0 holds 1 for each uniform level-0 bin (node 3+i) that is not
+	// idle, the byte the collect pass reads per value.
+	act0 []uint8
+	ups  []ksUpper // select_'s buffer
+	// vals, all and offs are the collect pass's buffers, kept for the next
+	// state.
 	vals [][]float64
 	all  []float64
+	offs []int64
+	slot []int32 // a candidate leaf's position in the collect pass's list
 }
 
 const ksSlack = 1e-12 // candidates keep U_j ≥ L − slack, so rounding in the bounds never drops the supremum's bin
@@ -317,32 +455,40 @@ func (r *ksRefiner) bounds(i int) (lower, upper float64) {
 // select_ turns the leaves counted in the last pass into candidates or idle
 // nodes and returns the candidates with their total count.
 func (r *ksRefiner) select_() (cands []int32, total int64) {
-	for i := range r.nodes {
-		nd := &r.nodes[i]
-		if r.state[i] != ksCount || nd.count == 0 {
-			continue
-		}
-		l, _ := r.bounds(i)
-		if nd.hi-nd.lo == 1 {
-			r.best = max(r.best, l) // one distinct value: the bound is a term
-		}
-		r.lower = max(r.lower, l)
-	}
-	for i := range r.nodes {
-		nd := &r.nodes[i]
+	// One pass over the nodes takes both bounds of each counted leaf; the
+	// second goes over the non-empty ones only.
+	ups := r.ups[:0]
+	for i := range r.state {
 		if r.state[i] != ksCount {
 			continue
 		}
 		r.state[i] = ksIdle
-		if nd.count == 0 || nd.hi-nd.lo == 1 {
+		nd := &r.nodes[i]
+		if nd.count == 0 {
 			continue
 		}
-		if _, u := r.bounds(i); u >= r.lower-ksSlack {
-			cands = append(cands, int32(i))
-			total += nd.count
+		l, u := r.bounds(i)
+		if nd.hi-nd.lo == 1 {
+			r.best = max(r.best, l) // one distinct value: the bound is a term
+		} else {
+			ups = append(ups, ksUpper{int32(i), u})
+		}
+		r.lower = max(r.lower, l)
+	}
+	r.ups = ups
+	for _, e := range ups {
+		if e.u >= r.lower-ksSlack {
+			cands = append(cands, e.i)
+			total += r.nodes[e.i].count
 		}
 	}
 	return cands, total
+}
+
+// ksUpper is a counted leaf with its upper bound U_j.
+type ksUpper struct {
+	i int32
+	u float64
 }
 
 // markActive rebuilds the table of level-0 nodes that are not idle.
@@ -351,10 +497,20 @@ func (r *ksRefiner) markActive() {
 	if r.active == nil {
 		r.active = make([]uint64, (n0+63)/64)
 	}
+	if r.act0 == nil {
+		r.act0 = make([]uint8, r.nb0)
+	}
 	clear(r.active)
 	for i := 0; i < n0; i++ {
-		if r.state[i] != ksIdle {
+		on := r.state[i] != ksIdle
+		if on {
 			r.active[i>>6] |= 1 << (i & 63)
+		}
+		if i >= 3 && i < 3+r.nb0 {
+			r.act0[i-3] = 0
+			if on {
+				r.act0[i-3] = 1
+			}
 		}
 	}
 }
@@ -427,60 +583,188 @@ func (r *ksRefiner) split(pass ProbabilityPass, cands []int32) {
 	}
 }
 
-// collect gathers the values of the candidate leaves, sorts them and takes
-// the exact terms of the statistic from them.
-func (r *ksRefiner) collect(pass ProbabilityPass, cands []int32) {
+// collect gathers the values of the candidate leaves and takes the exact
+// terms of the statistic from them, in a pass over the probabilities or,
+// when apass is not nil, over the amplitudes. The pass rejects most values
+// with one byte of a table of the active level-0 bins. The values
+// are then grouped by leaf (their counts are known), and each leaf is
+// sorted and searched by bisection only while its bound can exceed the
+// best term found, leaves with the largest bounds first: most candidate
+// leaves need no sort and no CDF evaluation per value.
+func (r *ksRefiner) collect(pass ProbabilityPass, apass AmplitudePass, cands []int32) {
 	for _, ci := range cands {
 		r.state[ci] = ksCollect
 	}
 	r.markActive()
+	// The candidates in key order.
+	slices.SortFunc(cands, func(a, b int32) int {
+		switch la, lb := r.nodes[a].lo, r.nodes[b].lo; {
+		case la < lb:
+			return -1
+		case la > lb:
+			return 1
+		}
+		return 0
+	})
 	if r.vals == nil {
 		r.vals = make([][]float64, r.workers) // worker w alone touches vals[w]
 	}
 	for w := range r.vals {
 		r.vals[w] = r.vals[w][:0]
 	}
-	pass(func(w int, p []float64) {
-		buf := r.vals[w]
-		for _, v := range p {
-			if i := r.leaf(ksKey(v)); i >= 0 && r.state[i] == ksCollect {
+	// A value is kept when its level-0 bin is active (one byte of act0 for
+	// the uniform bins, the bitmap for the outer ones) and its leaf is a
+	// candidate.
+	pos, shift, act := r.lo0&^(1<<63), r.shift, r.act0
+	keep := func(buf []float64, v float64) []float64 {
+		k := ksKey(v)
+		if i := r.bin0(k); r.active[i>>6]>>(i&63)&1 != 0 {
+			if j := r.leaf(k); j >= 0 && r.state[j] == ksCollect {
 				buf = append(buf, v)
 			}
 		}
-		r.vals[w] = buf
-	})
-	all := r.all[:0]
-	for _, v := range r.vals {
-		all = append(all, v...)
+		return buf
 	}
-	r.all = all
-	slices.Sort(all)
-	// The candidates in key order, with their rank offsets.
-	leaves := make([]*ksNode, len(cands))
+	if apass != nil {
+		apass(func(w int, a []float64) {
+			buf := r.vals[w]
+			for {
+				a = a[ksSkipPairs(a, pos, shift, act):]
+				if len(a) < 2 {
+					break
+				}
+				buf = keep(buf, a[0]*a[0]+a[1]*a[1])
+				a = a[2:]
+			}
+			r.vals[w] = buf
+		})
+	} else {
+		pass(func(w int, p []float64) {
+			buf := r.vals[w]
+			for {
+				p = p[ksSkip(p, pos, shift, act):]
+				if len(p) == 0 {
+					break
+				}
+				buf = keep(buf, p[0])
+				p = p[1:]
+			}
+			r.vals[w] = buf
+		})
+	}
+	// Group the values by leaf: slot[i] is leaf i's position in cands.
+	var total int64
+	off := r.offs[:0]
+	for _, ci := range cands {
+		off = append(off, total)
+		total += r.nodes[ci].count
+	}
+	r.offs = off
+	if int64(cap(r.all)) < total {
+		r.all = make([]float64, total)
+	}
+	all := r.all[:total]
+	if len(r.slot) < len(r.nodes) {
+		r.slot = make([]int32, len(r.nodes))
+	}
 	for i, ci := range cands {
-		leaves[i] = &r.nodes[ci]
+		r.slot[ci] = int32(i)
 	}
-	slices.SortFunc(leaves, func(a, b *ksNode) int {
+	fill := slices.Clone(off)
+	for _, vs := range r.vals {
+		for _, v := range vs {
+			c := r.slot[r.leaf(ksKey(v))]
+			all[fill[c]] = v
+			fill[c]++
+		}
+	}
+	// Leaves by decreasing upper bound.
+	order := make([]int, len(cands))
+	ub := make([]float64, len(cands))
+	for i, ci := range cands {
+		order[i] = i
+		_, ub[i] = r.bounds(int(ci))
+	}
+	slices.SortFunc(order, func(a, b int) int {
 		switch {
-		case a.lo < b.lo:
+		case ub[a] > ub[b]:
 			return -1
-		case a.lo > b.lo:
+		case ub[a] < ub[b]:
 			return 1
 		}
 		return 0
 	})
-	d := float64(r.dim)
-	j := 0
-	var rank int64
-	for _, v := range all {
-		k := ksKey(v)
-		for k >= leaves[j].hi {
-			j++
-			rank = 0
+	for _, i := range order {
+		if ub[i] < r.best-ksSlack {
+			break
 		}
-		i := leaves[j].below + rank
-		f := r.cdf(v)
-		r.best = max(r.best, max(float64(i+1)/d-f, f-float64(i)/d))
-		rank++
+		vs := all[off[i] : off[i]+r.nodes[cands[i]].count]
+		slices.Sort(vs)
+		r.search(vs, r.nodes[cands[i]].below, 0, len(vs), r.cdf(vs[0]), r.cdf(vs[len(vs)-1]))
 	}
+}
+
+// ksSkip returns the number of leading values of p that fall in idle
+// uniform level-0 bins (act[j] == 0): the collect pass's loop, a function
+// of its own so that its few variables stay in registers. pos is lo0 without
+// its sign bit (see Count).
+//
+//go:noinline
+func ksSkip(p []float64, pos uint64, shift uint, act []uint8) int {
+	for i, v := range p {
+		if j := (math.Float64bits(v) - pos) >> (shift & 63); j >= uint64(len(act)) || act[j] != 0 {
+			return i
+		}
+	}
+	return len(p)
+}
+
+// ksSkipPairs is ksSkip over the probabilities re·re + im·im of the pairs
+// a; it returns a number of floats (even).
+//
+//go:noinline
+func ksSkipPairs(a []float64, pos uint64, shift uint, act []uint8) int {
+	for i := 1; i < len(a); i += 2 {
+		v := a[i-1]*a[i-1] + a[i]*a[i]
+		if j := (math.Float64bits(v) - pos) >> (shift & 63); j >= uint64(len(act)) || act[j] != 0 {
+			return i - 1
+		}
+	}
+	return len(a) &^ 1
+}
+
+// ksSearchLeaf is the run length below which search evaluates every term.
+const ksSearchLeaf = 8
+
+// search raises r.best to the largest term of the sorted values vs[a:b],
+// whose first has rank below+a; fa and fb are the CDF at vs[a] and vs[b−1].
+// The terms (i+1)/D − F(x_(i)) and F(x_(i)) − i/D of the run are at most
+// (below+b)/D − fa and fb − (below+a)/D (F and the ranks are monotone), so
+// a run whose bound is below the best term is skipped and a long one is
+// halved.
+func (r *ksRefiner) search(vs []float64, below int64, a, b int, fa, fb float64) {
+	d := float64(r.dim)
+	if max(float64(below+int64(b))/d-fa, fb-float64(below+int64(a))/d) < r.best-ksSlack {
+		return
+	}
+	if b-a <= ksSearchLeaf {
+		for j := a; j < b; j++ {
+			var f float64
+			switch j {
+			case a:
+				f = fa
+			case b - 1:
+				f = fb
+			default:
+				f = r.cdf(vs[j])
+			}
+			i := below + int64(j)
+			r.best = max(r.best, max(float64(i+1)/d-f, f-float64(i)/d))
+		}
+		return
+	}
+	m := (a + b) / 2
+	fl, fr := r.cdf(vs[m-1]), r.cdf(vs[m])
+	r.search(vs, below, a, m, fa, fl)
+	r.search(vs, below, m, b, fr, fb)
 }

@@ -185,3 +185,72 @@ func TestHaarKSReuse(t *testing.T) {
 		}
 	}
 }
+
+// TestCountAmplitudes: the fused first pass over amplitudes returns the
+// collision sum of Collision bit for bit (the same squares re·re + im·im
+// added in the same pairwise order) and fills the same histogram as Count
+// does from the probabilities, so the statistic, finished over the
+// probabilities (Finish) or over the amplitudes (FinishAmplitudes), equals
+// the sort of KSHaar to 1e−15 (see TestKSHaarPassesExact). The amplitudes: complex Gaussian
+// (Haar states; Porter & Thomas 1956), block lengths that are not multiples
+// of the leaf or of four, a state with exact zeros and subnormal squares,
+// and a uniform superposition over a quarter of the basis (many equal
+// probabilities, as a stabiliser state's output).
+func TestCountAmplitudes(t *testing.T) {
+	rng := rand.New(rand.NewPCG(47, 48))
+	for _, d := range []int{1, 3, 130, 1 << 12, 5000, 1 << 16} {
+		for kind := 0; kind < 3; kind++ {
+			a := make([]float64, 2*d)
+			s := math.Sqrt(0.5 / float64(d))
+			for i := range a {
+				a[i] = s * rng.NormFloat64()
+			}
+			switch kind {
+			case 1:
+				for i := 0; i < d; i += 3 {
+					a[2*i], a[2*i+1] = 1e-160*a[2*i], 0 // squares subnormal or 0
+				}
+				for i := 0; i < d; i += 7 {
+					a[2*i], a[2*i+1] = 0, 0
+				}
+			case 2:
+				for i := 0; i < d; i++ {
+					a[2*i], a[2*i+1] = 0, 0
+					if i%4 == 0 {
+						a[2*i] = math.Sqrt(4 / float64(d))
+					}
+				}
+			}
+			p := make([]float64, d)
+			for i := range p {
+				p[i] = a[2*i]*a[2*i] + a[2*i+1]*a[2*i+1]
+			}
+			// A budget of 16 values forces refinement passes before the collect.
+			h := NewHaarKS(d, 2, []int{16, 0, 0}[kind])
+			// Blocks of 4096 amplitudes, alternating between two workers.
+			const block = 4096
+			for off, w := 0, 0; off < d; off, w = off+block, 1-w {
+				end := min(off+block, d)
+				if z, want := h.CountAmplitudes(w, a[2*off:2*end]), Collision(p[off:end]); z != want {
+					t.Errorf("D=%d kind %d block at %d: CountAmplitudes sum %.17g, Collision %.17g", d, kind, off, z, want)
+				}
+			}
+			calls := 0
+			var got float64
+			if kind == 1 {
+				got, _ = h.Finish(blockPass(p, block, 2, &calls))
+			} else {
+				got, _ = h.FinishAmplitudes(AmplitudePass(blockPass(a, 2*block, 2, &calls)))
+			}
+			if kind == 0 && d >= 1<<12 && calls < 2 {
+				t.Errorf("D=%d kind %d: %d refinement passes with a budget of 16, want a split before the collect", d, kind, calls)
+			}
+			if want := KSHaar(p, nil); math.Abs(got-want) > 1e-15 {
+				t.Errorf("D=%d kind %d: HaarKS %.17g, KSHaar %.17g", d, kind, got, want)
+			}
+		}
+	}
+	if !mustPanic(func() { NewHaarKS(4, 1, 0).CountAmplitudes(0, make([]float64, 3)) }) {
+		t.Error("no panic for an odd number of floats")
+	}
+}

@@ -291,7 +291,11 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	fmt.Fprintln(stdout)
 	uniform := sampling.Noise{Fidelity: *fidelity, GateError: *gateError, Readout01: p01, Readout10: p10}
 	if cal != nil && nf.calibration != "" {
-		fmt.Fprintf(stdout, "noise: uniform rates %s\n", strings.TrimSuffix(describeNoise(uniform, nf.single, usedTrajectories), " (ideal sampler)"))
+		if rates := strings.TrimSuffix(describeNoise(uniform, nf.single, usedTrajectories), " (ideal sampler)"); rates != "none" {
+			fmt.Fprintf(stdout, "noise: uniform rates %s\n", rates)
+		} else {
+			fmt.Fprintln(stdout, "noise: the calibration file's rates only (no uniform rates given)")
+		}
 		fmt.Fprintf(stdout, "calibration %s: its rates of %d coupler(s) and %d qubit(s) override the uniform ones", nf.calibration, cal.Couplers, cal.Qubits)
 		if cal.Skipped > 0 {
 			fmt.Fprintf(stdout, " (%d row(s) of dropped elements skipped)", cal.Skipped)

@@ -113,31 +113,31 @@ type scoreJSONInstance struct {
 }
 
 func runScore(ctx context.Context, args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("score FILE", 
+	fs := newFlags("score FILE",
 		"Scores the shots of a sample table (FILE.arrow or FILE.parquet from 'mixdepth sample', or a\n"+
-		"CSV of measured data with a header and at least the columns instance,bitstring; bitstrings list\n"+
-		"qubit 0 first, or last with --bit-order last; an optional p_ideal column is checked against the\n"+
-		"simulation). Reports per instance\n"+
-		"and over all shots: the linear XEB F_lin = D·mean p − 1 and the logarithmic XEB\n"+
-		"F_log = ln D + γ + mean ln p with their standard errors, the ideal-device value D·Z − 1 and the\n"+
-		"normalized estimate F_lin/(D·Z − 1), whose error bar over all shots comes twice: from the shots\n"+
-		"alone, and from a bootstrap over instances that includes every source of variation (shots,\n"+
-		"noise trajectories, circuits). It warns when the circuits have not anti-concentrated (mean\n"+
-		"D·Z − 1 more than eps from the Porter–Thomas value (D−1)/(D+1), relative), where the raw\n"+
-		"F_lin misstates the fidelity.\n\n"+
-		"The circuits come from --circuits FILE.json, or are rebuilt: for a table written by sample,\n"+
-		"from its recorded run parameters (--seed and --depth each override the recorded value; any of\n"+
-		"--graph, --layout, --drop, --schedule and --gates rebuilds the circuits from the flags alone); for a\n"+
-		"CSV, from those flags and their defaults, as sample uses them.\n\n"+
-		"With a noise model it also computes the exact expected benchmark of the circuits' ensemble under\n"+
-		"that noise at their depth (as 'mixdepth exact' with noise does) and prints it beside the measured\n"+
-		"values, their difference in standard errors, and the implied fidelity two ways: (a) the usual\n"+
-		"reading, normalized XEB ≈ fidelity, right once the noise acts as global white noise (deep\n"+
-		"circuits); (b) corrected by the exact model, F = digital fidelity × measured/expected normalized\n"+
-		"XEB: the model's digital fidelity scaled by how far the chip fell from the model's expectation.\n"+
-		"The noise model is the one a table written by sample records; --gate-error, --single-qubit-error,\n"+
-		"--readout-error, --fidelity and --calibration override it key by key (for a CSV they are the only\n"+
-		"source). The report names the source; without a model, or when no exact engine fits, it says why.",
+			"CSV of measured data with a header and at least the columns instance,bitstring; bitstrings list\n"+
+			"qubit 0 first, or last with --bit-order last; an optional p_ideal column is checked against the\n"+
+			"simulation). Reports per instance\n"+
+			"and over all shots: the linear XEB F_lin = D·mean p − 1 and the logarithmic XEB\n"+
+			"F_log = ln D + γ + mean ln p with their standard errors, the ideal-device value D·Z − 1 and the\n"+
+			"normalized estimate F_lin/(D·Z − 1), whose error bar over all shots comes twice: from the shots\n"+
+			"alone, and from a bootstrap over instances that includes every source of variation (shots,\n"+
+			"noise trajectories, circuits). It warns when the circuits have not anti-concentrated (mean\n"+
+			"D·Z − 1 more than eps from the Porter–Thomas value (D−1)/(D+1), relative), where the raw\n"+
+			"F_lin misstates the fidelity.\n\n"+
+			"The circuits come from --circuits FILE.json, or are rebuilt: for a table written by sample,\n"+
+			"from its recorded run parameters (--seed and --depth each override the recorded value; any of\n"+
+			"--graph, --layout, --drop, --schedule and --gates rebuilds the circuits from the flags alone); for a\n"+
+			"CSV, from those flags and their defaults, as sample uses them.\n\n"+
+			"With a noise model it also computes the exact expected benchmark of the circuits' ensemble under\n"+
+			"that noise at their depth (as 'mixdepth exact' with noise does) and prints it beside the measured\n"+
+			"values, their difference in standard errors, and the implied fidelity two ways: (a) the usual\n"+
+			"reading, normalized XEB ≈ fidelity, right once the noise acts as global white noise (deep\n"+
+			"circuits); (b) corrected by the exact model, F = digital fidelity × measured/expected normalized\n"+
+			"XEB: the model's digital fidelity scaled by how far the chip fell from the model's expectation.\n"+
+			"The noise model is the one a table written by sample records; --gate-error, --single-qubit-error,\n"+
+			"--readout-error, --fidelity and --calibration override it key by key (for a CSV they are the only\n"+
+			"source). The report names the source; without a model, or when no exact engine fits, it says why.",
 		"mixdepth score samples.parquet --circuits circuits.json", stdout)
 	cf := circuitFlags{checkGraph: func(g *circuits.Graph) error { return sampling.CheckQubits(g.Qubits, "scoring") }}
 	cf.add(fs)

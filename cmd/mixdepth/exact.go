@@ -251,6 +251,14 @@ func runExact(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	depth, found := r.Depth, r.Found
 
 	if *out != "" {
+		// The engine that computed the values, as the JSON names it.
+		meta.Set("engine", r.Engine)
+		if r.Engine == moments.EngineMPS {
+			meta.Set("bond_dim", strconv.Itoa(r.BondDim))
+		}
+		if len(r.ExtrapolatedFrom) > 0 {
+			meta.Set("extrapolated_from", strings.Join(r.ExtrapolatedFrom, ","))
+		}
 		var err error
 		if noisy {
 			err = runs.WriteExactXEBTable(*out, meta, rates, results)

@@ -220,3 +220,32 @@ func (c *ChipNoise) DigitalFidelity(s Schedule, e Ensemble, depth int) float64 {
 	}
 	return f
 }
+
+// DigitalParts are the factors of DigitalFidelity: the two-qubit gates
+// alone, the single-qubit gates alone, the readout alone, and Fidelity, the
+// whole (with the global fidelity).
+type DigitalParts struct {
+	TwoQubit, SingleQubit, Readout, Fidelity float64
+}
+
+// DigitalParts returns the factors of c.DigitalFidelity(s, e, depth), each
+// computed by DigitalFidelity with the other rates zero and no global
+// depolarizing.
+func (c *ChipNoise) DigitalParts(s Schedule, e Ensemble, depth int) DigitalParts {
+	zero := make([]float64, c.Qubits())
+	only := func(pair bool, single, r01, r10 []float64) float64 {
+		d := *c // shares the coupler index, read only
+		d.Fidelity = 1
+		if !pair {
+			d.Pair = make([]float64, len(c.Pair))
+		}
+		d.Single, d.Readout01, d.Readout10 = single, r01, r10
+		return d.DigitalFidelity(s, e, depth)
+	}
+	return DigitalParts{
+		TwoQubit:    only(true, zero, zero, zero),
+		SingleQubit: only(false, c.Single, zero, zero),
+		Readout:     only(false, zero, c.Readout01, c.Readout10),
+		Fidelity:    c.DigitalFidelity(s, e, depth),
+	}
+}

@@ -635,7 +635,7 @@ type exactJSONNoise struct {
 func (nf *xebFlags) json() *exactJSONNoise {
 	doc := &exactJSONNoise{GateErrors: nf.gateErrors, SingleQubitError: nf.single, Readout01: nf.p01, Readout10: nf.p10, Fidelity: nf.fidelity}
 	if c := nf.info; c != nil && nf.cal.calibration != "" {
-		doc.Calibration = &calibrationJSON{File: nf.cal.calibration, Digest: calibrationDigest(nf.cal.content), Couplers: c.Couplers, Qubits: c.Qubits, Skipped: c.Skipped}
+		doc.Calibration = &calibrationJSON{File: nf.cal.calibration, Digest: runs.CalibrationDigest(nf.cal.content), Couplers: c.Couplers, Qubits: c.Qubits, Skipped: c.Skipped}
 	}
 	return doc
 }

@@ -2,10 +2,6 @@ package main
 
 import (
 	"bytes"
-	"crypto/sha256"
-	"encoding/hex"
-	"fmt"
-	"strconv"
 
 	"github.com/spf13/pflag"
 
@@ -75,84 +71,6 @@ func (n *noiseFlags) setMeta(meta *tables.Meta) {
 	}
 	if n.content != nil {
 		meta.Set(runs.KeyCalibration, string(n.content))
-		meta.Set(runs.KeyCalibrationDigest, calibrationDigest(n.content))
+		meta.Set(runs.KeyCalibrationDigest, runs.CalibrationDigest(n.content))
 	}
-}
-
-// calibrationDigest is the first 16 hex digits of the SHA-256 of a
-// calibration file's content.
-func calibrationDigest(content []byte) string {
-	sum := sha256.Sum256(content)
-	return hex.EncodeToString(sum[:])[:16]
-}
-
-// chipFromMeta rebuilds the noise of a sample table written on the graph g
-// from its metadata: the uniform keys fidelity, gate_error, readout_error
-// and single_qubit_error (0 when absent), then the calibration content,
-// checked against its digest.
-func chipFromMeta(meta tables.Meta, g *circuits.Graph) (*circuits.ChipNoise, error) {
-	num := func(key, s string) (float64, error) {
-		v, err := strconv.ParseFloat(s, 64)
-		if err != nil {
-			return 0, fmt.Errorf("metadata %s %q is not a number: %w", key, s, runs.ErrValue)
-		}
-		return v, nil
-	}
-	get := func(key, def string) (float64, error) {
-		s, ok := meta.Get(key)
-		if !ok {
-			s = def
-		}
-		return num(key, s)
-	}
-	f, err := get("fidelity", "1")
-	if err != nil {
-		return nil, err
-	}
-	pair, err := get("gate_error", "0")
-	if err != nil {
-		return nil, err
-	}
-	single, err := get(runs.KeySingleQubitError, "0")
-	if err != nil {
-		return nil, err
-	}
-	readout, ok := meta.Get("readout_error")
-	if !ok {
-		readout = "0,0"
-	}
-	p01, p10, err := parseReadout(readout)
-	if err != nil {
-		return nil, err
-	}
-	base := circuits.UniformNoise(g, pair, single, p01, p10, f)
-	content, ok := meta.Get(runs.KeyCalibration)
-	if !ok {
-		return base, nil
-	}
-	if d, _ := meta.Get(runs.KeyCalibrationDigest); d != calibrationDigest([]byte(content)) {
-		return nil, fmt.Errorf("metadata %s has digest %s but %s is %q: the metadata was altered: %w", runs.KeyCalibration, calibrationDigest([]byte(content)), runs.KeyCalibrationDigest, d, runs.ErrValue)
-	}
-	return circuits.ReadCalibration("metadata "+runs.KeyCalibration, bytes.NewReader([]byte(content)), g, base)
-}
-
-// digitalParts returns the factors of c.DigitalFidelity for depth steps of
-// s and e: the two-qubit gates alone, the single-qubit gates alone, the
-// readout alone, and the whole (with c's global fidelity), each computed by
-// DigitalFidelity on a copy of c with the other rates zero.
-func digitalParts(c *circuits.ChipNoise, s circuits.Schedule, e circuits.Ensemble, depth int) (two, single, readout, all float64) {
-	zero := make([]float64, c.Qubits())
-	only := func(pair bool, single, r01, r10 []float64) float64 {
-		d := *c // shares the coupler index, read only
-		d.Fidelity = 1
-		if !pair {
-			d.Pair = make([]float64, len(c.Pair))
-		}
-		d.Single, d.Readout01, d.Readout10 = single, r01, r10
-		return d.DigitalFidelity(s, e, depth)
-	}
-	two = only(true, zero, zero, zero)
-	single = only(false, c.Single, zero, zero)
-	readout = only(false, zero, c.Readout01, c.Readout10)
-	return two, single, readout, c.DigitalFidelity(s, e, depth)
 }

@@ -63,7 +63,7 @@ func TestSampleCalibration(t *testing.T) {
 		t.Errorf("metadata calibration %q, want the file's content", got)
 	}
 	g, _ := circuits.ParseGraph("line:4")
-	rebuilt, err := chipFromMeta(tab.Meta, g)
+	rebuilt, err := runs.NoiseFromMeta(tab.Meta, g)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -77,7 +77,7 @@ func TestSampleCalibration(t *testing.T) {
 	}
 	// An altered calibration in the metadata is refused.
 	tab.Meta.Set(runs.KeyCalibration, strings.Replace(lineCalibration, "0.03", "0.003", 1))
-	if _, err := chipFromMeta(tab.Meta, g); err == nil || !strings.Contains(err.Error(), "altered") {
+	if _, err := runs.NoiseFromMeta(tab.Meta, g); err == nil || !strings.Contains(err.Error(), "altered") {
 		t.Errorf("altered calibration: %v", err)
 	}
 

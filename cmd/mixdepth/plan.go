@@ -182,7 +182,8 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		}
 	}
 	if nf.calibration != "" {
-		f2, f1, fr, model = digitalParts(cal.Noise, s.schedule, s.ensemble, *depth)
+		parts := cal.Noise.DigitalParts(s.schedule, s.ensemble, *depth)
+		f2, f1, fr, model = parts.TwoQubit, parts.SingleQubit, parts.Readout, parts.Fidelity
 	}
 	if rates && !given && !(model > 0) {
 		return badInput("the digital error model predicts fidelity %g: no number of shots resolves it; lower the error rates or the depth", model)

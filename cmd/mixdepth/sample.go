@@ -268,7 +268,7 @@ func runSample(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		if cal != nil {
 			single = &nf.single
 			if nf.calibration != "" {
-				calDoc = &calibrationJSON{File: nf.calibration, Digest: calibrationDigest(nf.content), Couplers: cal.Couplers, Qubits: cal.Qubits, Skipped: cal.Skipped}
+				calDoc = &calibrationJSON{File: nf.calibration, Digest: runs.CalibrationDigest(nf.content), Couplers: cal.Couplers, Qubits: cal.Qubits, Skipped: cal.Skipped}
 			}
 		}
 		return writeJSON(stdout, sampleJSON{

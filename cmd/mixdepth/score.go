@@ -537,7 +537,7 @@ func scoreNoise(changed func(string) bool, nf *scoreNoiseFlags, meta tables.Meta
 			m.Set(k, set[name])
 		}
 	}
-	chip, err := chipFromMeta(m, g)
+	chip, err := runs.NoiseFromMeta(m, g)
 	if err != nil {
 		return nil, "", badInput("%s: its noise metadata cannot be read: %v; give the noise with --gate-error, --readout-error, --fidelity, --calibration", path, err)
 	}

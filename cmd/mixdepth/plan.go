@@ -33,7 +33,6 @@ type planJSON struct {
 	TwoQubitFidelity    float64    `json:"two_qubit_fidelity"`
 	SingleQubitFidelity float64    `json:"single_qubit_fidelity"`
 	ReadoutFidelity     float64    `json:"readout_fidelity"`
-	ErrorModelFidelity  *float64   `json:"error_model_fidelity"`
 	PredictedFidelity   float64    `json:"predicted_fidelity"`
 	Calibration         string     `json:"calibration,omitempty"`
 	FidelitySource      string     `json:"fidelity_source"`
@@ -252,7 +251,7 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		doc.Calibration = nf.calibration
 	}
 	if rates {
-		doc.ErrorModelFidelity, doc.DigitalFidelity = &model, &model
+		doc.DigitalFidelity = &model
 	}
 	if x.Exact != nil {
 		doc.XEBExpected, doc.XEBNormalized, doc.ExactEngine = &x.XEBExpected, &x.XEBNormalized, &x.ExactEngine

@@ -343,8 +343,8 @@ func TestPlan(t *testing.T) {
 	shots := func(f float64) (nz, nr float64) {
 		return math.Ceil(9 * (1 + 2*f - f*f) / (f * f)), math.Ceil((1 + 2*f - f*f) / (0.05 * f * 0.05 * f))
 	}
-	if doc.TwoQubitGates != 6 || doc.SingleQubitGates != 0 || math.Abs(*doc.ErrorModelFidelity-f) > 1e-12 || math.Abs(*doc.DigitalFidelity-f) > 1e-12 {
-		t.Errorf("gates %d/%d, digital fidelity %v; want 6/0 and %v", doc.TwoQubitGates, doc.SingleQubitGates, *doc.ErrorModelFidelity, f)
+	if doc.TwoQubitGates != 6 || doc.SingleQubitGates != 0 || math.Abs(*doc.DigitalFidelity-f) > 1e-12 {
+		t.Errorf("gates %d/%d, digital fidelity %v; want 6/0 and %v", doc.TwoQubitGates, doc.SingleQubitGates, *doc.DigitalFidelity, f)
 	}
 	// The plan's F is the exact expected XEB (TestPlanExactPrediction); the
 	// shot formulas take it, and the digital model's F gives digital_shots.
@@ -361,13 +361,13 @@ func TestPlan(t *testing.T) {
 	// A dressed gate set G·(u_a ⊗ u_b) with a final layer: 2 single-qubit
 	// gates per two-qubit gate plus one per qubit.
 	doc = plan("--graph", "line:4", "--depth", "4", "--gates", "cz+haar1", "--single-qubit-error", "0.001")
-	if doc.SingleQubitGates != 16 || math.Abs(*doc.ErrorModelFidelity-math.Pow(0.999, 16)) > 1e-12 {
-		t.Errorf("cz+haar1: %d single-qubit gates, fidelity %v", doc.SingleQubitGates, *doc.ErrorModelFidelity)
+	if doc.SingleQubitGates != 16 || math.Abs(*doc.DigitalFidelity-math.Pow(0.999, 16)) > 1e-12 {
+		t.Errorf("cz+haar1: %d single-qubit gates, fidelity %v", doc.SingleQubitGates, *doc.DigitalFidelity)
 	}
 	// --fidelity alone, the default 5σ: Arute et al.'s f ≈ 0.002 needs
 	// about 25/f² ≈ 6.3 million shots.
 	doc = plan("--fidelity", "0.002")
-	if doc.ErrorModelFidelity != nil || doc.ShotsRelPrecision != nil || doc.Shots != int64(math.Ceil(stats.XEBSamples(0.002, 5))) {
+	if doc.DigitalFidelity != nil || doc.ShotsRelPrecision != nil || doc.Shots != int64(math.Ceil(stats.XEBSamples(0.002, 5))) {
 		t.Errorf("--fidelity 0.002: %+v", doc)
 	}
 	if doc.Shots < 6_200_000 || doc.Shots > 6_300_000 {

@@ -75,6 +75,36 @@ type extrapMember struct {
 //
 // So a lattice runs as a strip with its narrow side up to about
 // DefaultExtrapolateQubits/4 wide: grid:5x6 has no member of 24 qubits.
+// Nor does a lattice form that combines the members of every shape answer
+// it honestly. TestExtrapolateGridWallModels fits, per depth, ln R of all
+// grid:RxC of 6..24 qubits (both orientations) by least squares with the
+// wall physics of the domain-wall picture (Dalzell, Hunter-Jones, Brandão,
+// PRX Quantum 3, 010333, 2022; Hunter-Jones, arXiv:1905.12053, 2019), its
+// uncertainty the leave-one-member-out spread as here, against the vector
+// engine's exact curves (testdata/extrap-*.json) at the depths where
+// R − 1 ≥ 1e-6. No form covers grid:5x6 (largest |error| over R − 1 and
+// depths left uncovered, of 28):
+//
+//	straight cuts (C−1)·v(R) + (R−1)·h(C) + e, v, h free   15.7   22
+//	the same with end terms u(R) + w(C)                    3.8    11
+//	walls a·(C−1)·e^(−κR) + b·(R−1)·e^(−κC) + e            2.3    25
+//	walls plus area and edges m·RC + p·R + q·C             11.9   24
+//	separable u(R) + w(C), members with both sides ≥ 4     0.38   28
+//
+// nor the smaller held-out grid:4x5, 5x5 (from ≤ 16 or ≤ 20 qubits) and
+// 4x6 (from ≤ 20): every form misses one of them by its own spread, by up
+// to 20 times R − 1, or cannot estimate it. The exact curves say why. From
+// depth 18 on, R − 1 of a 4×C lattice falls as C grows (at depth 24 it is
+// 3.5e-5, 2.8e-5 and 2.6e-5 for C = 4, 5, 6), and the late decay per layer
+// (depths 20 to 28) is 0.67, 0.61, 0.55 on grid:2x12, 3x8, 4x6 but 0.54 on
+// grid:5x5, where a straight cut 5 long would decay by about 0.50 on that
+// trend: once both sides reach 4, the late weight sits in walls that cut
+// off corners, not in straight cuts, and the members with a side of 2 or
+// 3, where straight cuts do dominate, carry no information about it. With
+// both sides ≥ 4, 24 qubits leave grid:4x4, 4x5, 5x4, 4x6 and 6x4: the
+// separable form then predicts grid:5x6 from three of them within −38% to
+// +21% of R − 1, but with nothing left over to measure its error, so the
+// engine refuses rather than state an uncertainty it cannot check.
 func extrapolatePlan(g *circuits.Graph, maxQubits int) (members []extrapMember, target []float64, err error) {
 	fam := g.Family
 	refuse := func(why string) error {

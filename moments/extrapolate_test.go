@@ -415,6 +415,10 @@ func extrapPseudoFit(x [][]float64, y, xt []float64) (pred, rss float64, ok bool
 		}
 		rss += r * r
 	}
+	// The cut and separable forms have features 0, 1 and small integers,
+	// so a target in the row space projects onto it to rounding (1e-15
+	// relative) and one outside misses by a whole feature; the wall forms
+	// have full column rank on these members, so every target is in it.
 	return pred, rss, off <= 1e-12*(1+floats.Dot(xt, xt))
 }
 

@@ -101,7 +101,9 @@ func NewHaarKS(dim, workers, budget int) *HaarKS {
 	r := newKSRefiner(dim, workers)
 	h := &HaarKS{r: r, counts: make([][]uint32, workers), nans: make([]bool, workers), budget: budget}
 	for w := range h.counts {
-		h.counts[w] = make([]uint32, r.n0)
+		// One spare counter past the level-0 ones: the AVX2 count kernel
+		// increments it for the values it hands back (see leafCountAVX2).
+		h.counts[w] = make([]uint32, r.n0+1)
 	}
 	return h
 }
@@ -139,8 +141,7 @@ func (h *HaarKS) CountAmplitudes(w int, a []float64) float64 {
 	if len(a)%2 != 0 {
 		panic("stats: CountAmplitudes of an odd number of floats")
 	}
-	c := h.counts[w][:h.r.n0]
-	return h.sumCount(w, c, a)
+	return h.sumCount(w, h.counts[w], a)
 }
 
 // sumCount mirrors sumSquares over the probabilities of the pairs a.
@@ -159,6 +160,9 @@ func (h *HaarKS) sumCount(w int, c []uint32, a []float64) float64 {
 // leafCount is sumSquares's leaf over the probabilities of the pairs a,
 // binning each probability as Count does.
 func (h *HaarKS) leafCount(w int, c []uint32, a []float64) float64 {
+	if ksUseAVX2 && len(a) >= 8 {
+		return h.leafCountAVX2(w, c, a)
+	}
 	r := h.r
 	pos, shift, u := r.lo0&^(1<<63), r.shift&63, c[3:3+r.nb0]
 	var s0, s1, s2, s3 float64
@@ -204,6 +208,36 @@ func (h *HaarKS) leafCount(w int, c []uint32, a []float64) float64 {
 		}
 	}
 	return (s0 + s1) + (s2 + s3)
+}
+
+// leafCountAVX2 is leafCount with its groups of four pairs in the AVX2
+// kernel: the same products and sums in the same lanes (s0…s3 over the
+// pairs 4g…4g+3), so the same sum bit for bit, and the same counts. The
+// kernel increments the uniform bins itself and hands back the values
+// outside them (about 2^−12 of a Porter–Thomas state's, more for states
+// with zeros), which countOuter bins; c has the spare counter c[n0] that the
+// kernel increments for those values. a holds at most pairwiseBlock pairs.
+func (h *HaarKS) leafCountAVX2(w int, c []uint32, a []float64) float64 {
+	r := h.r
+	groups := len(a) / 8
+	var acc [4]float64
+	var outer [pairwiseBlock]float64
+	k := ksCountAVX2(&a[0], groups, r.lo0&^(1<<63), uint64(r.shift), &c[3 : r.n0+1][0], uint64(r.nb0), &acc, &outer[0])
+	for _, v := range outer[:k] {
+		h.countOuter(w, c, v)
+	}
+	pos, shift, u := r.lo0&^(1<<63), r.shift&63, c[3:3+r.nb0]
+	s0 := acc[0]
+	for i := 8 * groups; i+2 <= len(a); i += 2 {
+		p := a[i]*a[i] + a[i+1]*a[i+1]
+		s0 += p * p
+		if j := (math.Float64bits(p) - pos) >> (shift & 63); j < uint64(len(u)) {
+			u[j]++
+		} else {
+			h.countOuter(w, c, p)
+		}
+	}
+	return (s0 + acc[1]) + (acc[2] + acc[3])
 }
 
 // countOuter counts a value outside the uniform level-0 bins.
@@ -353,13 +387,18 @@ type ksRefiner struct {
 	// act0 holds 1 for each uniform level-0 bin (node 3+i) that is not
 	// idle, the byte the collect pass reads per value.
 	act0 []uint8
-	ups  []ksUpper // select_'s buffer
+	// actLo and actHi span the active uniform bins (actLo > actHi when
+	// there is none): ksFilterAVX2 looks up act0 only inside the span.
+	actLo, actHi int
+	ups          []ksUpper // select_'s buffer
 	// vals, all and offs are the collect pass's buffers, kept for the next
 	// state.
 	vals [][]float64
 	all  []float64
 	offs []int64
 	slot []int32 // a candidate leaf's position in the collect pass's list
+	// kept holds each worker's values kept by ksFilterPairs in a block.
+	kept [][]float64
 }
 
 const ksSlack = 1e-12 // candidates keep U_j ≥ L − slack, so rounding in the bounds never drops the supremum's bin
@@ -426,7 +465,7 @@ func (r *ksRefiner) bin0(k uint64) int {
 func (r *ksRefiner) gather(counts [][]uint32, nans []bool) {
 	for w := range counts {
 		r.nan = r.nan || nans[w]
-		for i, v := range counts[w] {
+		for i, v := range counts[w][:r.n0] {
 			r.nodes[i].count += int64(v)
 		}
 	}
@@ -498,9 +537,11 @@ func (r *ksRefiner) markActive() {
 		r.active = make([]uint64, (n0+63)/64)
 	}
 	if r.act0 == nil {
-		r.act0 = make([]uint8, r.nb0)
+		// Three bytes of padding for the four-byte gathers of ksFilterAVX2.
+		r.act0 = make([]uint8, r.nb0, r.nb0+ksActPad)
 	}
 	clear(r.active)
+	r.actLo, r.actHi = r.nb0, -1
 	for i := 0; i < n0; i++ {
 		on := r.state[i] != ksIdle
 		if on {
@@ -510,6 +551,7 @@ func (r *ksRefiner) markActive() {
 			r.act0[i-3] = 0
 			if on {
 				r.act0[i-3] = 1
+				r.actLo, r.actHi = min(r.actLo, i-3), i-3
 			}
 		}
 	}
@@ -616,6 +658,7 @@ func (r *ksRefiner) collect(pass ProbabilityPass, apass AmplitudePass, cands []i
 	// the uniform bins, the bitmap for the outer ones) and its leaf is a
 	// candidate.
 	pos, shift, act := r.lo0&^(1<<63), r.shift, r.act0
+	span := [2]int{r.actLo, r.actHi}
 	keep := func(buf []float64, v float64) []float64 {
 		k := ksKey(v)
 		if i := r.bin0(k); r.active[i>>6]>>(i&63)&1 != 0 {
@@ -626,15 +669,21 @@ func (r *ksRefiner) collect(pass ProbabilityPass, apass AmplitudePass, cands []i
 		return buf
 	}
 	if apass != nil {
+		if r.kept == nil {
+			r.kept = make([][]float64, r.workers)
+		}
 		apass(func(w int, a []float64) {
-			buf := r.vals[w]
-			for {
-				a = a[ksSkipPairs(a, pos, shift, act):]
-				if len(a) < 2 {
-					break
+			buf, out := r.vals[w], r.kept[w]
+			if out == nil {
+				out = make([]float64, ksFilterBlock)
+				r.kept[w] = out
+			}
+			for len(a) >= 2 {
+				m := min(len(a), 2*ksFilterBlock) &^ 1
+				for _, v := range out[:ksFilterPairs(a[:m], pos, shift, act, span, out)] {
+					buf = keep(buf, v)
 				}
-				buf = keep(buf, a[0]*a[0]+a[1]*a[1])
-				a = a[2:]
+				a = a[m:]
 			}
 			r.vals[w] = buf
 		})
@@ -719,18 +768,44 @@ func ksSkip(p []float64, pos uint64, shift uint, act []uint8) int {
 	return len(p)
 }
 
-// ksSkipPairs is ksSkip over the probabilities re·re + im·im of the pairs
-// a; it returns a number of floats (even).
-//
-//go:noinline
-func ksSkipPairs(a []float64, pos uint64, shift uint, act []uint8) int {
+// ksFilterBlock is the number of pairs ksFilterPairs takes at a time in
+// the collect pass (a buffer of 8 KiB per worker, in the first-level cache).
+const ksFilterBlock = 1 << 10
+
+// ksActPad is the padding past the act table that ksFilterAVX2's
+// four-byte gathers need.
+const ksActPad = 8
+
+// ksFilterPairs writes to out, in order, the probabilities re·re + im·im of
+// the pairs a that fall outside the uniform level-0 bins or in a bin j with
+// act[j] ≠ 0, and returns their number: the collect pass's filter, which
+// keeps about one value in 16 of a Porter–Thomas state and skips the rest
+// without a branch per value in the AVX2 kernel. out has room for
+// len(a)/2 values; act has capacity len(act)+ksActPad, with zeros past its
+// end; span holds the first and the last j with act[j] ≠ 0 (first > last
+// when there is none). pos and shift are as for Count.
+func ksFilterPairs(a []float64, pos uint64, shift uint, act []uint8, span [2]int, out []float64) int {
+	n := 0
+	if ksUseAVX2 && len(a) >= 8 {
+		if cap(act) < len(act)+ksActPad || len(out) < len(a)/2 {
+			panic("stats: ksFilterPairs buffers too small")
+		}
+		g := len(a) / 8
+		lo, hi := span[0], span[1]
+		if lo > hi {
+			lo, hi = 1, 0
+		}
+		n = ksFilterAVX2(&a[0], g, pos, uint64(shift), &act[:1][0], uint64(len(act)), uint64(lo), uint64(hi), &out[0])
+		a = a[8*g:]
+	}
 	for i := 1; i < len(a); i += 2 {
 		v := a[i-1]*a[i-1] + a[i]*a[i]
 		if j := (math.Float64bits(v) - pos) >> (shift & 63); j >= uint64(len(act)) || act[j] != 0 {
-			return i - 1
+			out[n] = v
+			n++
 		}
 	}
-	return len(a) &^ 1
+	return n
 }
 
 // ksSearchLeaf is the run length below which search evaluates every term.

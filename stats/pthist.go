@@ -101,9 +101,7 @@ func NewHaarKS(dim, workers, budget int) *HaarKS {
 	r := newKSRefiner(dim, workers)
 	h := &HaarKS{r: r, counts: make([][]uint32, workers), nans: make([]bool, workers), budget: budget}
 	for w := range h.counts {
-		// One spare counter past the level-0 ones: the AVX2 count kernel
-		// increments it for the values it hands back (see leafCountAVX2).
-		h.counts[w] = make([]uint32, r.n0+1)
+		h.counts[w] = make([]uint32, r.n0)
 	}
 	return h
 }
@@ -141,7 +139,8 @@ func (h *HaarKS) CountAmplitudes(w int, a []float64) float64 {
 	if len(a)%2 != 0 {
 		panic("stats: CountAmplitudes of an odd number of floats")
 	}
-	return h.sumCount(w, h.counts[w], a)
+	c := h.counts[w][:h.r.n0]
+	return h.sumCount(w, c, a)
 }
 
 // sumCount mirrors sumSquares over the probabilities of the pairs a.
@@ -160,9 +159,12 @@ func (h *HaarKS) sumCount(w int, c []uint32, a []float64) float64 {
 // leafCount is sumSquares's leaf over the probabilities of the pairs a,
 // binning each probability as Count does.
 func (h *HaarKS) leafCount(w int, c []uint32, a []float64) float64 {
-	if ksUseAVX2 && len(a) >= 8 {
-		return h.leafCountAVX2(w, c, a)
-	}
+	// An AVX2 form of this loop (vector squares, sums and bin indices, the
+	// increments from the vector lanes or from a buffer of indices) was
+	// measured slower than this one: 9.9 ms against 7.9 ms for 2^22 pairs
+	// on one core of an AMD EPYC Zen 5 (BenchmarkReadoutPasses/count), as
+	// the time goes to the random increments of the counters, which this
+	// loop overlaps with the arithmetic.
 	r := h.r
 	pos, shift, u := r.lo0&^(1<<63), r.shift&63, c[3:3+r.nb0]
 	var s0, s1, s2, s3 float64
@@ -208,36 +210,6 @@ func (h *HaarKS) leafCount(w int, c []uint32, a []float64) float64 {
 		}
 	}
 	return (s0 + s1) + (s2 + s3)
-}
-
-// leafCountAVX2 is leafCount with its groups of four pairs in the AVX2
-// kernel: the same products and sums in the same lanes (s0…s3 over the
-// pairs 4g…4g+3), so the same sum bit for bit, and the same counts. The
-// kernel increments the uniform bins itself and hands back the values
-// outside them (about 2^−12 of a Porter–Thomas state's, more for states
-// with zeros), which countOuter bins; c has the spare counter c[n0] that the
-// kernel increments for those values. a holds at most pairwiseBlock pairs.
-func (h *HaarKS) leafCountAVX2(w int, c []uint32, a []float64) float64 {
-	r := h.r
-	groups := len(a) / 8
-	var acc [4]float64
-	var outer [pairwiseBlock]float64
-	k := ksCountAVX2(&a[0], groups, r.lo0&^(1<<63), uint64(r.shift), &c[3 : r.n0+1][0], uint64(r.nb0), &acc, &outer[0])
-	for _, v := range outer[:k] {
-		h.countOuter(w, c, v)
-	}
-	pos, shift, u := r.lo0&^(1<<63), r.shift&63, c[3:3+r.nb0]
-	s0 := acc[0]
-	for i := 8 * groups; i+2 <= len(a); i += 2 {
-		p := a[i]*a[i] + a[i+1]*a[i+1]
-		s0 += p * p
-		if j := (math.Float64bits(p) - pos) >> (shift & 63); j < uint64(len(u)) {
-			u[j]++
-		} else {
-			h.countOuter(w, c, p)
-		}
-	}
-	return (s0 + acc[1]) + (acc[2] + acc[3])
 }
 
 // countOuter counts a value outside the uniform level-0 bins.
@@ -465,7 +437,7 @@ func (r *ksRefiner) bin0(k uint64) int {
 func (r *ksRefiner) gather(counts [][]uint32, nans []bool) {
 	for w := range counts {
 		r.nan = r.nan || nans[w]
-		for i, v := range counts[w][:r.n0] {
+		for i, v := range counts[w] {
 			r.nodes[i].count += int64(v)
 		}
 	}

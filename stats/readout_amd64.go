@@ -1,18 +1,14 @@
 package stats
 
-// The AVX2 kernels of readout_amd64.s, for the two passes of HaarKS over
-// amplitudes: ksCountAVX2 squares, sums and bins (leafCount), and
-// ksFilterAVX2 keeps the values of the collect pass's active bins
-// (ksFilterPairs).
+// The AVX2 kernel of readout_amd64.s for the collect pass of HaarKS over
+// amplitudes: ksFilterAVX2 keeps the values of the active bins
+// (ksFilterPairs). The count pass stays in Go (see leafCount).
 
 //go:noescape
 func ksCPUID(eaxIn, ecxIn uint32) (eax, ebx, ecx, edx uint32)
 
 //go:noescape
 func ksXGETBV0() (eax uint32)
-
-//go:noescape
-func ksCountAVX2(a *float64, groups int, pos, shift uint64, u *uint32, nb uint64, acc *[4]float64, outer *float64) int
 
 //go:noescape
 func ksFilterAVX2(a *float64, groups int, pos, shift uint64, act *uint8, nb, lo, hi uint64, out *float64) int

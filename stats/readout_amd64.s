@@ -18,104 +18,13 @@ TEXT ·ksXGETBV0(SB), NOSPLIT, $0-4
 	MOVL AX, eax+0(FP)
 	RET
 
-// Both kernels compute, for four (re, im) pairs at a time, the
+// The kernel computes, for four (re, im) pairs at a time, the
 // probabilities p = re·re + im·im as the Go code does: two VMULPD and one
 // VHADDPD (re² + im², in that order; no FMA, so p is the Go value bit for
 // bit), permuted back to the pairs' order by VPERMPD. The uniform level-0
 // bin of p is (bits(p) − pos) >> shift; it is a uniform bin when it is at
 // most nb−1. The shifted difference is below 2^63 for every p (shift ≥ 1),
 // so the signed VPCMPGTQ compares it correctly.
-
-// func ksCountAVX2(a *float64, groups int, pos, shift uint64, u *uint32, nb uint64, acc *[4]float64, outer *float64) int
-//
-// Adds p² of the 4·groups pairs at a to the accumulators acc (lane k takes
-// the pairs 4g+k, as leafCount's s0…s3), increments u[bin] for each p in a
-// uniform bin, and writes the others, in order, to outer; it returns their
-// number. A value outside the uniform bins increments u[nb+1] instead, a
-// spare counter the caller ignores, so that the loop has no branch on it.
-TEXT ·ksCountAVX2(SB), NOSPLIT, $0-72
-	MOVQ a+0(FP), SI
-	MOVQ groups+8(FP), CX
-	VPBROADCASTQ pos+16(FP), Y15
-	MOVQ shift+24(FP), X14
-	MOVQ u+32(FP), DI
-	MOVQ nb+40(FP), R8
-	LEAQ -1(R8), R9
-	MOVQ R9, X13
-	VPBROADCASTQ X13, Y13
-	LEAQ 1(R8), R9
-	MOVQ R9, X12
-	VPBROADCASTQ X12, Y12
-	MOVQ acc+48(FP), DX
-	VMOVUPD (DX), Y4
-	MOVQ outer+56(FP), BX
-	XORQ AX, AX
-	TESTQ CX, CX
-	JZ   countdone
-
-countloop:
-	VMOVUPD (SI), Y0
-	VMOVUPD 32(SI), Y1
-	VMULPD  Y0, Y0, Y0
-	VMULPD  Y1, Y1, Y1
-	VHADDPD Y1, Y0, Y2
-	VPERMPD $0xD8, Y2, Y2
-	VMULPD  Y2, Y2, Y3
-	VADDPD  Y3, Y4, Y4
-	VPSUBQ  Y15, Y2, Y5
-	VPSRLQ  X14, Y5, Y5
-	VPCMPGTQ Y13, Y5, Y6
-	VBLENDVPD Y6, Y12, Y5, Y5
-	VMOVQ   X5, R8
-	VPEXTRQ $1, X5, R9
-	VEXTRACTI128 $1, Y5, X7
-	VMOVQ   X7, R10
-	VPEXTRQ $1, X7, R11
-	INCL    (DI)(R8*4)
-	INCL    (DI)(R9*4)
-	INCL    (DI)(R10*4)
-	INCL    (DI)(R11*4)
-	VMOVMSKPD Y6, R12
-	TESTQ   R12, R12
-	JNZ     countouter
-
-countnext:
-	ADDQ $64, SI
-	DECQ CX
-	JNZ  countloop
-
-countdone:
-	VMOVUPD Y4, (DX)
-	VZEROUPPER
-	MOVQ AX, ret+64(FP)
-	RET
-
-countouter:
-	// Store every lane and advance by its bit: no branch per lane. The
-	// stores stay below 4·groups slots, as AX ≤ 4g before group g.
-	VMOVQ   X2, R8
-	MOVQ    R8, (BX)(AX*8)
-	MOVQ    R12, R9
-	ANDQ    $1, R9
-	ADDQ    R9, AX
-	VPEXTRQ $1, X2, R8
-	MOVQ    R8, (BX)(AX*8)
-	MOVQ    R12, R9
-	SHRQ    $1, R9
-	ANDQ    $1, R9
-	ADDQ    R9, AX
-	VEXTRACTF128 $1, Y2, X7
-	VMOVQ   X7, R8
-	MOVQ    R8, (BX)(AX*8)
-	MOVQ    R12, R9
-	SHRQ    $2, R9
-	ANDQ    $1, R9
-	ADDQ    R9, AX
-	VPEXTRQ $1, X7, R8
-	MOVQ    R8, (BX)(AX*8)
-	SHRQ    $3, R12
-	ADDQ    R12, AX
-	JMP     countnext
 
 // func ksFilterAVX2(a *float64, groups int, pos, shift uint64, act *uint8, nb, lo, hi uint64, out *float64) int
 //

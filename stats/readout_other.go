@@ -6,10 +6,6 @@ package stats
 
 var ksUseAVX2 = false
 
-func ksCountAVX2(a *float64, groups int, pos, shift uint64, u *uint32, nb uint64, acc *[4]float64, outer *float64) int {
-	panic("stats: no AVX2 kernels on this architecture")
-}
-
 func ksFilterAVX2(a *float64, groups int, pos, shift uint64, act *uint8, nb, lo, hi uint64, out *float64) int {
 	panic("stats: no AVX2 kernels on this architecture")
 }

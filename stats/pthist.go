@@ -368,7 +368,8 @@ type ksRefiner struct {
 	vals [][]float64
 	all  []float64
 	offs []int64
-	slot []int32 // a candidate leaf's position in the collect pass's list
+	slot []int32   // a candidate leaf's position in the collect pass's list
+	tmp  []float64 // refine's scratch
 	// kept holds each worker's values kept by ksFilterPairs in a block.
 	kept [][]float64
 }
@@ -716,12 +717,105 @@ func (r *ksRefiner) collect(pass ProbabilityPass, apass AmplitudePass, cands []i
 		return 0
 	})
 	for _, i := range order {
-		if ub[i] < r.best-ksSlack {
+		if ub[i] < max(r.best, r.lower)-ksSlack {
 			break
 		}
-		vs := all[off[i] : off[i]+r.nodes[cands[i]].count]
+		nd := &r.nodes[cands[i]]
+		vs := all[off[i] : off[i]+nd.count]
+		if cap(r.tmp) < len(vs) {
+			r.tmp = make([]float64, len(vs))
+		}
+		r.refine(vs, r.tmp[:len(vs)], nd.below, nd.lo, nd.hi)
+	}
+}
+
+// ksRefineSort is the number of values below which refine sorts them
+// instead of splitting their bin again.
+const ksRefineSort = 64
+
+// ksRefineBits gives refine's 2^ksRefineBits sub-bins per bin.
+const ksRefineBits = 7
+
+// refine raises r.best to the largest term of the values vs, all the
+// values with keys in [lo, hi), whose smallest has rank below. It splits
+// the bin into sub-bins of equal key width, groups vs by sub-bin through
+// tmp (len(tmp) = len(vs); both are in cache, as the collect pass has just
+// written them), takes each sub-bin's bounds as select_ takes a node's, and
+// recurses into the sub-bins whose upper bound can still reach the
+// statistic (at least max(best, lower) − slack), largest bounds first; a
+// sub-bin of one distinct value is resolved from its bounds, and a run of
+// at most ksRefineSort values is sorted and searched. The terms are those
+// of the sort, so the result is the same; it replaces the sort of whole
+// candidate bins (up to D/16 values, about 15% of a read-out at 2^24 on one
+// core).
+func (r *ksRefiner) refine(vs, tmp []float64, below int64, lo, hi uint64) {
+	if len(vs) <= ksRefineSort {
 		slices.Sort(vs)
-		r.search(vs, r.nodes[cands[i]].below, 0, len(vs), r.cdf(vs[0]), r.cdf(vs[len(vs)-1]))
+		r.search(vs, below, 0, len(vs), r.cdf(vs[0]), r.cdf(vs[len(vs)-1]))
+		return
+	}
+	width := hi - lo
+	shift := uint(bits.Len64((width - 1) >> ksRefineBits))
+	nsub := int((width-1)>>shift) + 1
+	cnt := make([]int64, nsub+1)
+	for _, v := range vs {
+		cnt[(ksKey(v)-lo)>>shift+1]++
+	}
+	for i := 1; i <= nsub; i++ {
+		cnt[i] += cnt[i-1]
+	}
+	// cnt[i] is now the first position of sub-bin i.
+	fill := slices.Clone(cnt[:nsub])
+	for _, v := range vs {
+		i := (ksKey(v) - lo) >> shift
+		tmp[fill[i]] = v
+		fill[i]++
+	}
+	d := float64(r.dim)
+	type sub struct {
+		i int
+		u float64
+	}
+	subs := make([]sub, 0, nsub)
+	for i := 0; i < nsub; i++ {
+		c := cnt[i+1] - cnt[i]
+		if c == 0 {
+			continue
+		}
+		klo := lo + uint64(i)<<shift
+		khi := min(klo+1<<shift, hi)
+		var ft, fu float64
+		if khi-klo == 1 {
+			ft = r.cdf(ksValue(klo))
+			fu = ft
+		} else {
+			ft, fu = r.cdf(ksValue(klo)), r.cdf(ksValue(khi-1))
+		}
+		after, before := float64(below+cnt[i+1])/d, float64(below+cnt[i])/d
+		l, u := max(after-fu, ft-before), max(after-ft, fu-before)
+		r.lower = max(r.lower, l)
+		if khi-klo == 1 {
+			r.best = max(r.best, l) // one distinct value: the bound is a term
+			continue
+		}
+		subs = append(subs, sub{i, u})
+	}
+	slices.SortFunc(subs, func(a, b sub) int {
+		switch {
+		case a.u > b.u:
+			return -1
+		case a.u < b.u:
+			return 1
+		}
+		return 0
+	})
+	for _, sb := range subs {
+		if sb.u < max(r.best, r.lower)-ksSlack {
+			break
+		}
+		i := sb.i
+		klo := lo + uint64(i)<<shift
+		r.refine(tmp[cnt[i]:cnt[i+1]], vs[cnt[i]:cnt[i+1]], below+cnt[i], klo, min(klo+1<<shift, hi))
 	}
 }
 

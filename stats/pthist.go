@@ -370,6 +370,8 @@ type ksRefiner struct {
 	offs []int64
 	slot []int32   // a candidate leaf's position in the collect pass's list
 	tmp  []float64 // refine's scratch
+	ints []int64   // refine's counts, a stack
+	subs []ksUpper // refine's sub-bins, a stack
 	// kept holds each worker's values kept by ksFilterPairs in a block.
 	kept [][]float64
 }
@@ -731,10 +733,10 @@ func (r *ksRefiner) collect(pass ProbabilityPass, apass AmplitudePass, cands []i
 
 // ksRefineSort is the number of values below which refine sorts them
 // instead of splitting their bin again.
-const ksRefineSort = 64
+const ksRefineSort = 128
 
 // ksRefineBits gives refine's 2^ksRefineBits sub-bins per bin.
-const ksRefineBits = 7
+const ksRefineBits = 5
 
 // refine raises r.best to the largest term of the values vs, all the
 // values with keys in [lo, hi), whose smallest has rank below. It splits
@@ -757,7 +759,13 @@ func (r *ksRefiner) refine(vs, tmp []float64, below int64, lo, hi uint64) {
 	width := hi - lo
 	shift := uint(bits.Len64((width - 1) >> ksRefineBits))
 	nsub := int((width-1)>>shift) + 1
-	cnt := make([]int64, nsub+1)
+	// cnt and fill live on r.ints, used as a stack (the callees' parts lie
+	// above this call's and are dropped when they return).
+	base := len(r.ints)
+	r.ints = slices.Grow(r.ints, 2*nsub+1)[:base+2*nsub+1]
+	defer func() { r.ints = r.ints[:base] }()
+	cnt, fill := r.ints[base:base+nsub+1], r.ints[base+nsub+1:]
+	clear(cnt)
 	for _, v := range vs {
 		cnt[(ksKey(v)-lo)>>shift+1]++
 	}
@@ -765,18 +773,15 @@ func (r *ksRefiner) refine(vs, tmp []float64, below int64, lo, hi uint64) {
 		cnt[i] += cnt[i-1]
 	}
 	// cnt[i] is now the first position of sub-bin i.
-	fill := slices.Clone(cnt[:nsub])
+	copy(fill, cnt[:nsub])
 	for _, v := range vs {
 		i := (ksKey(v) - lo) >> shift
 		tmp[fill[i]] = v
 		fill[i]++
 	}
 	d := float64(r.dim)
-	type sub struct {
-		i int
-		u float64
-	}
-	subs := make([]sub, 0, nsub)
+	sbase := len(r.subs)
+	defer func() { r.subs = r.subs[:sbase] }()
 	for i := 0; i < nsub; i++ {
 		c := cnt[i+1] - cnt[i]
 		if c == 0 {
@@ -798,9 +803,10 @@ func (r *ksRefiner) refine(vs, tmp []float64, below int64, lo, hi uint64) {
 			r.best = max(r.best, l) // one distinct value: the bound is a term
 			continue
 		}
-		subs = append(subs, sub{i, u})
+		r.subs = append(r.subs, ksUpper{int32(i), u})
 	}
-	slices.SortFunc(subs, func(a, b sub) int {
+	subs := r.subs[sbase:]
+	slices.SortFunc(subs, func(a, b ksUpper) int {
 		switch {
 		case a.u > b.u:
 			return -1
@@ -813,7 +819,7 @@ func (r *ksRefiner) refine(vs, tmp []float64, below int64, lo, hi uint64) {
 		if sb.u < max(r.best, r.lower)-ksSlack {
 			break
 		}
-		i := sb.i
+		i := int(sb.i)
 		klo := lo + uint64(i)<<shift
 		r.refine(tmp[cnt[i]:cnt[i+1]], vs[cnt[i]:cnt[i+1]], below+cnt[i], klo, min(klo+1<<shift, hi))
 	}

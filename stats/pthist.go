@@ -368,10 +368,11 @@ type ksRefiner struct {
 	vals [][]float64
 	all  []float64
 	offs []int64
-	slot []int32   // a candidate leaf's position in the collect pass's list
-	tmp  []float64 // refine's scratch
-	ints []int64   // refine's counts, a stack
-	subs []ksUpper // refine's sub-bins, a stack
+	slot []int32      // a candidate leaf's position in the collect pass's list
+	tmp  []float64    // refine's scratch
+	ints []int64      // refine's counts, a stack
+	subs []ksUpper    // refine's sub-bins, a stack
+	fsub [][2]float64 // the CDF at their smallest and largest keys
 	// kept holds each worker's values kept by ksFilterPairs in a block.
 	kept [][]float64
 }
@@ -485,7 +486,7 @@ func (r *ksRefiner) select_() (cands []int32, total int64) {
 		if nd.hi-nd.lo == 1 {
 			r.best = max(r.best, l) // one distinct value: the bound is a term
 		} else {
-			ups = append(ups, ksUpper{int32(i), u})
+			ups = append(ups, ksUpper{i: int32(i), u: u})
 		}
 		r.lower = max(r.lower, l)
 	}
@@ -501,8 +502,8 @@ func (r *ksRefiner) select_() (cands []int32, total int64) {
 
 // ksUpper is a counted leaf with its upper bound U_j.
 type ksUpper struct {
-	i int32
-	u float64
+	i, f int32 // f: refine's index of the sub-bin's CDF values
+	u    float64
 }
 
 // markActive rebuilds the table of level-0 nodes that are not idle.
@@ -727,7 +728,11 @@ func (r *ksRefiner) collect(pass ProbabilityPass, apass AmplitudePass, cands []i
 		if cap(r.tmp) < len(vs) {
 			r.tmp = make([]float64, len(vs))
 		}
-		r.refine(vs, r.tmp[:len(vs)], nd.below, nd.lo, nd.hi)
+		ft, fu := r.cdf(ksValue(nd.lo)), r.cdf(ksValue(nd.hi-1))
+		if int(cands[i]) < r.n0 {
+			ft, fu = r.f0[cands[i]][0], r.f0[cands[i]][1]
+		}
+		r.refine(vs, r.tmp[:len(vs)], nd.below, nd.lo, nd.hi, ft, fu)
 	}
 }
 
@@ -750,7 +755,12 @@ const ksRefineBits = 5
 // of the sort, so the result is the same; it replaces the sort of whole
 // candidate bins (up to D/16 values, about 15% of a read-out at 2^24 on one
 // core).
-func (r *ksRefiner) refine(vs, tmp []float64, below int64, lo, hi uint64) {
+//
+// pft and pfu are the CDF at the smallest and the largest value of the
+// bin's keys: every sub-bin's CDF values lie between them, so a sub-bin
+// whose bound from them is already too small is passed over without
+// evaluating the CDF at its edges.
+func (r *ksRefiner) refine(vs, tmp []float64, below int64, lo, hi uint64, pft, pfu float64) {
 	if len(vs) <= ksRefineSort {
 		slices.Sort(vs)
 		r.search(vs, below, 0, len(vs), r.cdf(vs[0]), r.cdf(vs[len(vs)-1]))
@@ -781,10 +791,14 @@ func (r *ksRefiner) refine(vs, tmp []float64, below int64, lo, hi uint64) {
 	}
 	d := float64(r.dim)
 	sbase := len(r.subs)
-	defer func() { r.subs = r.subs[:sbase] }()
+	defer func() { r.subs, r.fsub = r.subs[:sbase], r.fsub[:sbase] }()
 	for i := 0; i < nsub; i++ {
 		c := cnt[i+1] - cnt[i]
 		if c == 0 {
+			continue
+		}
+		after, before := float64(below+cnt[i+1])/d, float64(below+cnt[i])/d
+		if max(after-pft, pfu-before) < max(r.best, r.lower)-ksSlack {
 			continue
 		}
 		klo := lo + uint64(i)<<shift
@@ -796,16 +810,19 @@ func (r *ksRefiner) refine(vs, tmp []float64, below int64, lo, hi uint64) {
 		} else {
 			ft, fu = r.cdf(ksValue(klo)), r.cdf(ksValue(khi-1))
 		}
-		after, before := float64(below+cnt[i+1])/d, float64(below+cnt[i])/d
 		l, u := max(after-fu, ft-before), max(after-ft, fu-before)
 		r.lower = max(r.lower, l)
 		if khi-klo == 1 {
 			r.best = max(r.best, l) // one distinct value: the bound is a term
 			continue
 		}
-		r.subs = append(r.subs, ksUpper{int32(i), u})
+		r.subs = append(r.subs, ksUpper{i: int32(i), u: u})
+		r.fsub = append(r.fsub, [2]float64{ft, fu})
 	}
-	subs := r.subs[sbase:]
+	subs, fsub := r.subs[sbase:], r.fsub[sbase:]
+	for k := range subs {
+		subs[k].f = int32(k) // the sub-bin's CDF values, fsub[k]
+	}
 	slices.SortFunc(subs, func(a, b ksUpper) int {
 		switch {
 		case a.u > b.u:
@@ -821,7 +838,8 @@ func (r *ksRefiner) refine(vs, tmp []float64, below int64, lo, hi uint64) {
 		}
 		i := int(sb.i)
 		klo := lo + uint64(i)<<shift
-		r.refine(tmp[cnt[i]:cnt[i+1]], vs[cnt[i]:cnt[i+1]], below+cnt[i], klo, min(klo+1<<shift, hi))
+		f := fsub[sb.f]
+		r.refine(tmp[cnt[i]:cnt[i+1]], vs[cnt[i]:cnt[i+1]], below+cnt[i], klo, min(klo+1<<shift, hi), f[0], f[1])
 	}
 }
 

@@ -1,0 +1,87 @@
+package stats
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"testing"
+)
+
+// BenchmarkReadoutPasses times the two read-out passes of HaarKS over the
+// amplitudes of a Porter–Thomas state of 2^22 outputs, one worker, with the
+// AVX2 kernel and with the Go loop: count is CountAmplitudes over blocks
+// of 4096 amplitudes (Go only), filter the collect pass's ksFilterPairs
+// with the active bins of that state.
+func BenchmarkReadoutPasses(b *testing.B) {
+	for _, n := range []int{16, 22} {
+		b.Run(fmt.Sprintf("n=%d", n), func(b *testing.B) { benchReadoutPasses(b, 1<<n) })
+	}
+}
+
+func benchReadoutPasses(b *testing.B, d int) {
+	rng := rand.New(rand.NewPCG(7, 8))
+	a := make([]float64, 2*d)
+	s := math.Sqrt(0.5 / float64(d))
+	for i := range a {
+		a[i] = s * rng.NormFloat64()
+	}
+	h := NewHaarKS(d, 1, 0)
+	// The active bins of this state: those of its collect pass.
+	pass := func(visit func(w int, a []float64)) {
+		for off := 0; off < len(a); off += 8192 {
+			visit(0, a[off:off+8192])
+		}
+	}
+	pass(func(w int, q []float64) { h.CountAmplitudes(w, q) })
+	h.r.gather(h.counts, h.nans)
+	cands, _ := h.r.select_()
+	for _, ci := range cands {
+		h.r.state[ci] = ksCollect
+	}
+	h.r.markActive()
+	act, span := h.r.act0, [2]int{h.r.actLo, h.r.actHi}
+	h.reset()
+	out := make([]float64, 4096)
+	pos := h.r.lo0 &^ (1 << 63)
+	b.Run("count", func(b *testing.B) {
+		b.SetBytes(16 * int64(d))
+		for b.Loop() {
+			pass(func(w int, q []float64) { h.CountAmplitudes(w, q) })
+			h.reset()
+		}
+	})
+	for _, asm := range []bool{true, false} {
+		if asm && !ksUseAVX2 {
+			continue
+		}
+		name := map[bool]string{true: "avx2", false: "go"}[asm]
+		saved := ksUseAVX2
+		b.Run("filter/"+name, func(b *testing.B) {
+			ksUseAVX2 = asm
+			defer func() { ksUseAVX2 = saved }()
+			b.SetBytes(16 * int64(d))
+			kept := 0
+			for b.Loop() {
+				kept = 0
+				for off := 0; off < len(a); off += 8192 {
+					kept += ksFilterPairs(a[off:off+8192], pos, h.r.shift, act, span, out)
+				}
+			}
+			b.ReportMetric(float64(kept)/float64(d), "kept/value")
+		})
+	}
+}
+
+// BenchmarkReadoutStream is the floor of BenchmarkReadoutPasses: Collision
+// of the same 2^23 floats, one streaming read with four accumulators.
+func BenchmarkReadoutStream(b *testing.B) {
+	const d = 1 << 22
+	a := make([]float64, 2*d)
+	for i := range a {
+		a[i] = float64(i)
+	}
+	b.SetBytes(16 * d)
+	for b.Loop() {
+		Collision(a)
+	}
+}

@@ -1,0 +1,255 @@
+package stats
+
+import (
+	"math"
+	"math/bits"
+	"math/rand/v2"
+	"slices"
+	"testing"
+)
+
+// filterReference is the collect pass's rule written from the level-0 bins
+// of the refiner (bin0 on the ordered key, not the shifted difference of
+// the kernels): a value is kept when its level-0 node is not a uniform bin,
+// or is a uniform bin marked in act.
+func filterReference(r *ksRefiner, a []float64, act []uint8) []float64 {
+	var out []float64
+	for i := 1; i < len(a); i += 2 {
+		v := a[i-1]*a[i-1] + a[i]*a[i]
+		if j := r.bin0(ksKey(v)); j < 3 || j >= 3+r.nb0 || act[j-3] != 0 {
+			out = append(out, v)
+		}
+	}
+	return out
+}
+
+// TestFilterPairsPaths checks ksFilterPairs, with the AVX2 kernel and with
+// the Go loop, against filterReference bit for bit (the same values in the
+// same order): Porter–Thomas amplitudes with zeros, subnormal squares,
+// infinities and NaNs mixed in, lengths that are not multiples of the
+// kernel's four pairs, and act tables that are empty, sparse, in one run,
+// or full.
+func TestFilterPairsPaths(t *testing.T) {
+	rng := rand.New(rand.NewPCG(51, 52))
+	for _, d := range []int{1 << 10, 1 << 16} {
+		r := newKSRefiner(d, 1)
+		s := math.Sqrt(0.5 / float64(d))
+		for _, npairs := range []int{0, 1, 3, 4, 7, 64, 1023, 1024} {
+			a := make([]float64, 2*npairs)
+			for i := range a {
+				a[i] = s * rng.NormFloat64()
+				switch rng.IntN(40) {
+				case 0:
+					a[i] = 0
+				case 1:
+					a[i] *= 1e-160
+				case 2:
+					a[i] = math.Inf(1)
+				case 3:
+					a[i] = math.NaN()
+				case 4:
+					a[i] *= 1e5
+				}
+			}
+			for kind := 0; kind < 4; kind++ {
+				act := make([]uint8, r.nb0, r.nb0+ksActPad)
+				for j := range act {
+					switch kind {
+					case 1:
+						if rng.IntN(30) == 0 {
+							act[j] = 1
+						}
+					case 2:
+						if j >= r.nb0/3 && j < r.nb0/3+r.nb0/20 {
+							act[j] = 1
+						}
+					case 3:
+						act[j] = 1
+					}
+				}
+				span := [2]int{r.nb0, -1}
+				for j, on := range act {
+					if on != 0 {
+						span = [2]int{min(span[0], j), j}
+					}
+				}
+				want := filterReference(r, a, act)
+				for _, asm := range []bool{false, true} {
+					if asm && !ksUseAVX2 {
+						continue
+					}
+					saved := ksUseAVX2
+					ksUseAVX2 = asm
+					out := make([]float64, npairs)
+					got := out[:ksFilterPairs(a, r.lo0&^(1<<63), r.shift, act, span, out)]
+					ksUseAVX2 = saved
+					if len(got) != len(want) {
+						t.Errorf("D=%d pairs=%d act %d asm=%v: kept %d values, want %d", d, npairs, kind, asm, len(got), len(want))
+						continue
+					}
+					for i := range got {
+						if math.Float64bits(got[i]) != math.Float64bits(want[i]) {
+							t.Errorf("D=%d pairs=%d act %d asm=%v: value %d is %g, want %g", d, npairs, kind, asm, i, got[i], want[i])
+							break
+						}
+					}
+				}
+			}
+		}
+	}
+}
+
+// stabiliserAmplitudes returns the amplitudes of a random stabiliser-like
+// state of n qubits: uniform in modulus over an affine subspace
+// {A·y ⊕ b : y ∈ F_2^k} of the basis, with phases in {±1, ±i}; the output
+// distribution of a Clifford circuit is uniform over such a subspace
+// (Dehaene & De Moor 2003, Phys. Rev. A 68, 042318), so every non-zero
+// probability is the same 2^−k and the others are exact zeros.
+func stabiliserAmplitudes(rng *rand.Rand, n, k int) []float64 {
+	cols := make([]uint64, 0, k) // k independent columns, in echelon form by leading bit
+	for len(cols) < k {
+		c := rng.Uint64() & (1<<n - 1)
+		for _, e := range cols {
+			if hb := uint64(1) << (63 - bits.LeadingZeros64(e)); c&hb != 0 {
+				c ^= e
+			}
+		}
+		if c != 0 {
+			cols = append(cols, c)
+			slices.SortFunc(cols, func(x, y uint64) int { return bits.LeadingZeros64(x) - bits.LeadingZeros64(y) })
+		}
+	}
+	b := rng.Uint64() & (1<<n - 1)
+	a := make([]float64, 2<<n)
+	m := math.Sqrt(math.Ldexp(1, -k))
+	for y := 0; y < 1<<k; y++ {
+		x := b
+		for j, c := range cols {
+			if y>>j&1 == 1 {
+				x ^= c
+			}
+		}
+		switch rng.IntN(4) {
+		case 0:
+			a[2*x] = m
+		case 1:
+			a[2*x] = -m
+		case 2:
+			a[2*x+1] = m
+		default:
+			a[2*x+1] = -m
+		}
+	}
+	return a
+}
+
+// readoutRun is one state's read-out as the scan does it: CountAmplitudes
+// over blocks of 4096 amplitudes alternating between two workers (their
+// sums returned per block), then FinishAmplitudes over the same blocks; it
+// also returns the values the collect pass kept, sorted.
+func readoutRun(h *HaarKS, a []float64) (sums []float64, ks float64, kept []float64) {
+	const block = 4096
+	for off, w := 0, 0; off < len(a); off, w = off+2*block, 1-w {
+		sums = append(sums, h.CountAmplitudes(w, a[off:min(off+2*block, len(a))]))
+	}
+	calls := 0
+	ks, _ = h.FinishAmplitudes(AmplitudePass(blockPass(a, 2*block, 2, &calls)))
+	for _, vs := range h.r.vals {
+		kept = append(kept, vs...)
+	}
+	slices.Sort(kept)
+	return sums, ks, kept
+}
+
+// TestReadoutPaths runs the read-out of HaarKS with the AVX2 kernel and with
+// the Go loops on the same states and requires the same block sums, the
+// same kept values and the same statistic bit for bit; each block sum must
+// also equal Collision of its probabilities bit for bit (the order of
+// stats.Collision, as the scan tables need), the whole sum Collision of all
+// probabilities to 1e−14 relative (pairwise sums of the blocks against the
+// pairwise sum of the whole: a few ulps of reassociation, log2(D) ≤ 24
+// levels of at most one rounding each), and the statistic the sort-based
+// KSHaar to 1e−15 (see TestKSHaarPassesExact). The states: Porter–Thomas
+// (Haar) states of 10 to 20 qubits (24 unless -short), stabiliser-like
+// states (many equal probabilities and exact zeros), and a Haar state whose
+// small amplitudes are scaled to give subnormal or zero probabilities.
+func TestReadoutPaths(t *testing.T) {
+	rng := rand.New(rand.NewPCG(53, 54))
+	type state struct {
+		name string
+		n    int
+		a    []float64
+	}
+	haar := func(n int) []float64 {
+		a := make([]float64, 2<<n)
+		s := math.Sqrt(0.5 / float64(int(1)<<n))
+		for i := range a {
+			a[i] = s * rng.NormFloat64()
+		}
+		return a
+	}
+	var states []state
+	ns := []int{10, 14, 18, 20}
+	if !testing.Short() {
+		ns = append(ns, 24)
+	}
+	for _, n := range ns {
+		states = append(states, state{"haar", n, haar(n)})
+	}
+	for _, nk := range [][2]int{{10, 4}, {16, 9}, {20, 17}} {
+		states = append(states, state{"stabiliser", nk[0], stabiliserAmplitudes(rng, nk[0], nk[1])})
+	}
+	under := haar(16)
+	for i := 0; i < len(under); i += 2 {
+		switch rng.IntN(5) {
+		case 0:
+			under[i], under[i+1] = under[i]*1e-160, under[i+1]*1e-160
+		case 1:
+			under[i], under[i+1] = under[i]*1e-170, 0
+		}
+	}
+	states = append(states, state{"underflow", 16, under})
+	for _, st := range states {
+		d := len(st.a) / 2
+		p := make([]float64, d)
+		for i := range p {
+			p[i] = st.a[2*i]*st.a[2*i] + st.a[2*i+1]*st.a[2*i+1]
+		}
+		saved := ksUseAVX2
+		ksUseAVX2 = false
+		sumsGo, ksGo, keptGo := readoutRun(NewHaarKS(d, 2, 0), st.a)
+		ksUseAVX2 = saved
+		sumsAsm, ksAsm, keptAsm := readoutRun(NewHaarKS(d, 2, 0), st.a)
+		if math.Float64bits(ksGo) != math.Float64bits(ksAsm) {
+			t.Errorf("%s n=%d: statistic %.17g with the kernel, %.17g with the Go loop", st.name, st.n, ksAsm, ksGo)
+		}
+		if !slices.Equal(sumsGo, sumsAsm) {
+			t.Errorf("%s n=%d: block sums differ between the kernel and the Go loop", st.name, st.n)
+		}
+		if !slices.Equal(keptGo, keptAsm) {
+			t.Errorf("%s n=%d: the collect pass kept %d values with the kernel, %d with the Go loop (or other values)", st.name, st.n, len(keptAsm), len(keptGo))
+		}
+		const block = 4096
+		for k, z := range sumsAsm {
+			if want := Collision(p[k*block : min((k+1)*block, d)]); z != want {
+				t.Errorf("%s n=%d block %d: sum %.17g, Collision %.17g", st.name, st.n, k, z, want)
+				break
+			}
+		}
+		if z, want := pairwiseBlocks(sumsAsm), Collision(p); math.Abs(z-want) > 1e-14*want {
+			t.Errorf("%s n=%d: collision %.17g, Collision %.17g", st.name, st.n, z, want)
+		}
+		if want := KSHaar(p, nil); math.Abs(ksAsm-want) > 1e-15 {
+			t.Errorf("%s n=%d: statistic %.17g, KSHaar %.17g", st.name, st.n, ksAsm, want)
+		}
+	}
+}
+
+// pairwiseBlocks adds x pairwise by halves.
+func pairwiseBlocks(x []float64) float64 {
+	if len(x) == 1 {
+		return x[0]
+	}
+	m := len(x) / 2
+	return pairwiseBlocks(x[:m]) + pairwiseBlocks(x[m:])
+}

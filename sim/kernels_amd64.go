@@ -32,6 +32,9 @@ func apply2Runs64AVX512(x *complex64, lo, hi uint, from, to int, c *coef2sz)
 func apply2Q064AVX(x *complex64, hi uint, from, to int, c *coef2s)
 
 //go:noescape
+func apply2PairAVX512(x *complex128, from, to int, pl *pairPlan, c1, c2 *coef2z)
+
+//go:noescape
 func apply1AVX(x *complex128, q uint, from, to int, c *coef1)
 
 //go:noescape

@@ -34,6 +34,10 @@ func apply2Q064AVX(x *complex64, hi uint, from, to int, c *coef2s) {
 	panic("sim: no AVX kernels on this architecture")
 }
 
+func apply2PairAVX512(x *complex128, from, to int, pl *pairPlan, c1, c2 *coef2z) {
+	panic("sim: no AVX kernels on this architecture")
+}
+
 func apply1AVX(x *complex128, q uint, from, to int, c *coef1) {
 	panic("sim: no AVX kernels on this architecture")
 }

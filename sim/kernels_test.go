@@ -5,6 +5,8 @@ import (
 	"math/cmplx"
 	"math/rand/v2"
 	"testing"
+
+	"mixdepth/circuits"
 )
 
 // TestKernelsPortableMatchVector: the portable Go kernels and the AVX2
@@ -169,6 +171,152 @@ func TestKernels64PortableMatchVector(t *testing.T) {
 		}
 		if d := diff64(x, y) / scale; d > 1e-4 {
 			t.Errorf("wide=%v fused passes: complex64 vector and portable kernels differ by %g (relative)", wide, d)
+		}
+	}
+}
+
+// TestPairBitIdentical: apply2Pair (two gates in one sweep through a block)
+// performs, lane by lane, the instructions of two apply2Kernel calls in the
+// same order, so the amplitudes must be equal bit for bit (==, no
+// tolerance: the reference is the existing one-gate kernel, and any change
+// of operation order would show as a last-bit difference on some of the
+// 2^k random amplitudes). Every ordered choice of two disjoint position
+// pairs, in both orders within a gate, on blocks of 6 and 8 positions.
+func TestPairBitIdentical(t *testing.T) {
+	if !useAVX512 {
+		t.Skip("no AVX-512 on this processor: gates are never paired")
+	}
+	rng := rand.New(rand.NewPCG(71, 72))
+	gate := func() [16]complex128 {
+		var m [16]complex128
+		for i := range m {
+			m[i] = complex(rng.NormFloat64(), rng.NormFloat64()) / 2
+		}
+		return m
+	}
+	var tried int
+	for _, k := range []int{6, 8} {
+		amp := make([]complex128, 1<<k)
+		for i := range amp {
+			amp[i] = complex(rng.NormFloat64(), rng.NormFloat64())
+		}
+		for a0 := 2; a0 < k; a0++ {
+			for a1 := 2; a1 < k; a1++ {
+				for b0 := 2; b0 < k; b0++ {
+					for b1 := 2; b1 < k; b1++ {
+						if a0 == a1 || b0 == b1 || a0 == b0 || a0 == b1 || a1 == b0 || a1 == b1 {
+							continue
+						}
+						m1, m2 := gate(), gate()
+						g1, g2 := newKernel2(a0, a1, &m1), newKernel2(b0, b1, &m2)
+						if !pairable(&g1, &g2, k) {
+							t.Fatalf("k=%d (%d,%d) (%d,%d) not pairable", k, a0, a1, b0, b1)
+						}
+						want := append([]complex128(nil), amp...)
+						apply2Kernel(want, &g1, 0, 1<<(k-2))
+						apply2Kernel(want, &g2, 0, 1<<(k-2))
+						got := append([]complex128(nil), amp...)
+						apply2Pair(got, newPairPlan(&g1, &g2), &g1, &g2, 0, 1<<(k-4))
+						for i := range got {
+							if got[i] != want[i] {
+								t.Fatalf("k=%d gates (%d,%d) then (%d,%d): amplitude %d is %v, one gate at a time gives %v",
+									k, a0, a1, b0, b1, i, got[i], want[i])
+							}
+						}
+						tried++
+					}
+				}
+			}
+		}
+	}
+	if tried == 0 {
+		t.Fatal("no pair tried")
+	}
+}
+
+// TestRunBitIdenticalToApply2: a brickwork on a line and a grid-like
+// circuit run as fused block passes, where consecutive gates are paired,
+// give exactly (==) the amplitudes of the same passes' gates applied with
+// Apply2 one at a time to the whole state, in the pass order (planPasses
+// lets a pass's gates overtake left-out gates on other qubits, so the plain
+// circuit order rounds differently, by ~1e-16 relative). Apply2 takes the
+// one-gate kernel of the same class (position 0, position 1, or runs), whose
+// lanes see the same instructions in the same order, so nothing may change
+// in the last bit; this holds with the vector kernels (pairs on AVX-512),
+// with pairing switched off, and with the dispatch forced to the portable Go
+// kernels.
+func TestRunBitIdenticalToApply2(t *testing.T) {
+	defer func(v int) { fuseMinQubits = v }(fuseMinQubits)
+	fuseMinQubits = BlockQubits + 1
+	has, has512 := useAVX, useAVX512
+	defer func() { useAVX, useAVX512, usePairs = has, has512, true }()
+	rng := rand.New(rand.NewPCG(73, 74))
+	const n = BlockQubits + 3
+	var line, grid []Op
+	for layer := range 12 {
+		for a := layer % 2; a+1 < n; a += 2 {
+			line = append(line, Op{A: a, B: a + 1})
+		}
+	}
+	// 17 qubits: a 4×4 grid's horizontal and vertical classes, plus qubit 16
+	// coupled to a different qubit in each vertical layer.
+	const c = 4
+	for layer := range 12 {
+		switch layer % 4 {
+		case 0, 1:
+			for r := range 4 {
+				for col := layer % 2; col+1 < c; col += 2 {
+					grid = append(grid, Op{A: r*c + col, B: r*c + col + 1})
+				}
+			}
+		default:
+			for r := layer % 2; r+1 < 4; r += 2 {
+				for col := range c {
+					grid = append(grid, Op{A: (r+1)*c + col, B: r*c + col})
+				}
+			}
+			grid = append(grid, Op{A: n - 1, B: layer % (n - 1)})
+		}
+	}
+	amp := make([]complex128, 1<<n)
+	for i := range amp {
+		amp[i] = complex(rng.NormFloat64(), rng.NormFloat64()) / 256
+	}
+	for _, circ := range []struct {
+		name string
+		ops  []Op
+	}{{"line", line}, {"grid", grid}} {
+		for i := range circ.ops {
+			circuits.HaarUnitary(rng, 4, circ.ops[i].M[:])
+		}
+		for _, mode := range []struct {
+			name       string
+			avx, pairs bool
+		}{{"vector+pairs", true, true}, {"vector", true, false}, {"portable", false, false}} {
+			useAVX, useAVX512, usePairs = mode.avx && has, mode.avx && has512, mode.pairs
+			ref := &State{Qubits: n, Amp: append([]complex128(nil), amp...)}
+			var gates int
+			for _, p := range planPasses(n, circ.ops, BlockQubits) {
+				for _, o := range p.ops {
+					ref.Apply2(o.a, o.b, &o.m, 1)
+					gates++
+				}
+			}
+			if gates != len(circ.ops) {
+				t.Fatalf("%s: the plan has %d gates, the circuit %d (none may merge here)", circ.name, gates, len(circ.ops))
+			}
+			for _, workers := range []int{1, 2} {
+				s := &State{Qubits: n, Amp: append([]complex128(nil), amp...)}
+				if err := s.Run(context.Background(), circ.ops, workers); err != nil {
+					t.Fatal(err)
+				}
+				for i := range s.Amp {
+					if s.Amp[i] != ref.Amp[i] {
+						t.Fatalf("%s %s workers=%d: amplitude %d is %v fused, %v gate by gate",
+							circ.name, mode.name, workers, i, s.Amp[i], ref.Amp[i])
+					}
+				}
+			}
 		}
 	}
 }

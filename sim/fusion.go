@@ -272,9 +272,6 @@ type localOp struct {
 	k1     kernel1
 	k2s    kernel2s      // complex64 states
 	m64    [16]complex64 // single-qubit gate, complex64 states
-	// pair, when set, runs this gate and the next one in one sweep
-	// (apply2Pair) in applyLocal.
-	pair *pairPlan
 }
 
 func (p *pass) kernels(single64 bool) []localOp {
@@ -300,38 +297,15 @@ func (p *pass) kernels(single64 bool) []localOp {
 			out[i].k2 = newKernel2(pos[o.a], pos[o.b], &o.m)
 		}
 	}
-	if !single64 {
-		pairUp(out, len(p.qubits))
-	}
 	return out
-}
-
-// pairUp marks consecutive two-qubit gates that apply2Pair can run in one
-// sweep through a block of k positions, greedily from the first. Only
-// neighbours in the pass's order are paired: moving a gate past another,
-// even one on other qubits, would change the order of the floating-point
-// operations on every amplitude and so the rounding.
-func pairUp(ops []localOp, k int) {
-	for i := 0; i+1 < len(ops); i++ {
-		a, b := &ops[i], &ops[i+1]
-		if !a.single && !b.single && pairable(&a.k2, &b.k2, k) {
-			a.pair = newPairPlan(&a.k2, &b.k2)
-			i++
-		}
-	}
 }
 
 // applyLocal applies the kernels to the block x of 2^k amplitudes.
 func applyLocal[T amplitude](x []T, k int, ops []localOp) {
 	switch v := any(x).(type) {
 	case []complex128:
-		for i := 0; i < len(ops); i++ {
+		for i := range ops {
 			o := &ops[i]
-			if o.pair != nil {
-				apply2Pair(v, o.pair, &o.k2, &ops[i+1].k2, 0, 1<<(k-4))
-				i++
-				continue
-			}
 			if o.single {
 				apply1Kernel(v, &o.k1, 0, 1<<(k-1))
 			} else {

@@ -1,9 +1,6 @@
 package sim
 
-import (
-	"slices"
-	"unsafe"
-)
+import "unsafe"
 
 // amplitude is the element type of a state vector: complex128 (State) or
 // complex64 (State64).
@@ -226,6 +223,8 @@ func apply2Kernel(amp []complex128, k *kernel2, from, to int) {
 			apply2Q0AVX512(x, uint(k.hi), from, to, &k.cz)
 		case k.lo == 0:
 			apply2Q0AVX(x, uint(k.hi), from, to, &k.c)
+		case useAVX512 && useX2 && k.lo >= 2 && from%8 == 0 && to%8 == 0:
+			apply2RunsAVX512x2(x, uint(k.lo), uint(k.hi), from, to, &k.cz)
 		case useAVX512 && k.lo >= 2 && from%4 == 0 && to%4 == 0:
 			apply2RunsAVX512(x, uint(k.lo), uint(k.hi), from, to, &k.cz)
 		default:
@@ -387,56 +386,6 @@ func apply1Single(amp []complex64, q int, m *[4]complex64, from, to int) {
 	}
 }
 
-// pairPlan describes two consecutive gates on four distinct positions, all
-// ≥ 2, for apply2PairAVX512: the sorted positions, each plus one, the masks
-// 2^p − 1 (the zero-bit insertion of the quad index, as in apply2Scalar),
-// and the byte offsets of the sixteen members of a quad from its base,
-// member j = b_lo1 + 2·b_hi1 + 4·b_lo2 + 8·b_hi2. The field order is the
-// assembly's layout.
-type pairPlan struct {
-	pos, pos1, mask [4]uint64
-	off             [16]int64
-}
-
-// pairable reports whether the gates a then b can run as one
-// apply2PairAVX512 sweep on a block of k positions: AVX-512 in use, four
-// distinct positions, none below 2 (the 512-bit runs kernel's condition,
-// so each gate's arithmetic is the one it would get alone), and at least
-// four quads of four amplitudes per iteration.
-func pairable(a, b *kernel2, k int) bool {
-	if !usePairs || !useAVX512 || k < 6 || a.lo < 2 || b.lo < 2 {
-		return false
-	}
-	return a.lo != b.lo && a.lo != b.hi && a.hi != b.lo && a.hi != b.hi
-}
-
-// usePairs lets tests and benchmarks switch pairing off, to compare with
-// the one-gate kernels.
-var usePairs = true
-
-// newPairPlan returns the plan of gates a then b (pairable).
-func newPairPlan(a, b *kernel2) *pairPlan {
-	pl := &pairPlan{}
-	pos := []int{a.lo, a.hi, b.lo, b.hi}
-	for j := range 16 {
-		off := 0
-		for t, p := range pos {
-			off |= (j >> t & 1) << p
-		}
-		pl.off[j] = int64(off) * 16 // bytes of complex128
-	}
-	slices.Sort(pos)
-	for t, p := range pos {
-		pl.pos[t], pl.pos1[t], pl.mask[t] = uint64(p), uint64(p+1), 1<<p-1
-	}
-	return pl
-}
-
-// apply2Pair applies gate a and then gate b (pairable, planned as pl) to
-// the quads [from, to) of amp, from and to multiples of 4: the same
-// arithmetic as two apply2Kernel calls, in one sweep.
-func apply2Pair(amp []complex128, pl *pairPlan, a, b *kernel2, from, to int) {
-	if from < to {
-		apply2PairAVX512(unsafe.SliceData(amp), from, to, pl, &a.cz, &b.cz)
-	}
-}
+// useX2 selects apply2RunsAVX512x2 over apply2RunsAVX512 where both apply;
+// tests and benchmarks switch it off to compare them.
+var useX2 = true

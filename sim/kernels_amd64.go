@@ -17,6 +17,9 @@ func apply2RunsAVX(x *complex128, lo, hi uint, from, to int, c *coef2)
 func apply2RunsAVX512(x *complex128, lo, hi uint, from, to int, c *coef2z)
 
 //go:noescape
+func apply2RunsAVX512x2(x *complex128, lo, hi uint, from, to int, c *coef2z)
+
+//go:noescape
 func apply2Q0AVX(x *complex128, hi uint, from, to int, c *coef2)
 
 //go:noescape
@@ -30,9 +33,6 @@ func apply2Runs64AVX512(x *complex64, lo, hi uint, from, to int, c *coef2sz)
 
 //go:noescape
 func apply2Q064AVX(x *complex64, hi uint, from, to int, c *coef2s)
-
-//go:noescape
-func apply2PairAVX512(x *complex128, from, to int, pl *pairPlan, c1, c2 *coef2z)
 
 //go:noescape
 func apply1AVX(x *complex128, q uint, from, to int, c *coef1)

@@ -723,180 +723,189 @@ s0Done:
 	RET
 
 
-// PAIRGATE applies one gate to the four vectors i0…i3 (basis 2·b_hi + b_lo
-// order) with the coefficients at c, writing o0…o3, with the same
-// instructions in the same order as one group of apply2RunsAVX512, so that
-// every lane gets bit-identical results; Z28–Z31 hold the re/im-swapped
-// inputs.
-#define PAIRGATE(c, i0, i1, i2, i3, o0, o1, o2, o3) \
-	VPERMILPD $0x55, i0, Z28; \
-	VPERMILPD $0x55, i1, Z29; \
-	VPERMILPD $0x55, i2, Z30; \
-	VPERMILPD $0x55, i3, Z31; \
-	VMULPD      0(c), i0, o0; \
-	VFMADD231PD 64(c), Z28, o0; \
-	VFMADD231PD 128(c), i1, o0; \
-	VFMADD231PD 192(c), Z29, o0; \
-	VFMADD231PD 256(c), i2, o0; \
-	VFMADD231PD 320(c), Z30, o0; \
-	VFMADD231PD 384(c), i3, o0; \
-	VFMADD231PD 448(c), Z31, o0; \
-	VMULPD      512(c), i0, o1; \
-	VFMADD231PD 576(c), Z28, o1; \
-	VFMADD231PD 640(c), i1, o1; \
-	VFMADD231PD 704(c), Z29, o1; \
-	VFMADD231PD 768(c), i2, o1; \
-	VFMADD231PD 832(c), Z30, o1; \
-	VFMADD231PD 896(c), i3, o1; \
-	VFMADD231PD 960(c), Z31, o1; \
-	VMULPD      1024(c), i0, o2; \
-	VFMADD231PD 1088(c), Z28, o2; \
-	VFMADD231PD 1152(c), i1, o2; \
-	VFMADD231PD 1216(c), Z29, o2; \
-	VFMADD231PD 1280(c), i2, o2; \
-	VFMADD231PD 1344(c), Z30, o2; \
-	VFMADD231PD 1408(c), i3, o2; \
-	VFMADD231PD 1472(c), Z31, o2; \
-	VMULPD      1536(c), i0, o3; \
-	VFMADD231PD 1600(c), Z28, o3; \
-	VFMADD231PD 1664(c), i1, o3; \
-	VFMADD231PD 1728(c), Z29, o3; \
-	VFMADD231PD 1792(c), i2, o3; \
-	VFMADD231PD 1856(c), Z30, o3; \
-	VFMADD231PD 1920(c), i3, o3; \
-	VFMADD231PD 1984(c), Z31, o3
 
-// PAIRINS inserts a zero bit at position p (register) into AX, with the
-// mask 2^p − 1 in m and p+1 in p1; CX is clobbered.
-#define PAIRINS(p, p1, m) \
-	SHRXQ p, AX, CX; \
-	SHLXQ p1, CX, CX; \
-	ANDQ  m, AX; \
-	ORQ   CX, AX
-
-// func apply2PairAVX512(x *complex128, from, to int, pl *pairPlan, c1, c2 *coef2z)
+// func apply2RunsAVX512x2(x *complex128, lo, hi uint, from, to int, c *coef2z)
 //
-// Applies gate 1 (coefficients c1) and then gate 2 (c2) on four distinct
-// positions ≥ 2 to the quads k in [from, to), four quads (k…k+3) per
-// iteration, from and to multiples of 4. Quad k has base index i = k with
-// zero bits inserted at the sorted positions pl.pos and sixteen members at
-// byte offsets pl.off[j] from &x[i], j = b_lo1 + 2·b_hi1 + 4·b_lo2 + 8·b_hi2:
-// gate 1 acts on the members 4g…4g+3 and gate 2 on g, g+4, g+8, g+12
-// (g = 0…3). The sixteen vectors stay in registers between the two gates,
-// so the block is read and written once for both.
-TEXT ·apply2PairAVX512(SB), NOSPLIT, $0-48
+// apply2RunsAVX512 on eight groups per iteration, (k…k+3) and (k+4…k+7),
+// from and to multiples of 8 and 2 ≤ lo < hi: each coefficient vector is
+// loaded once into a register and used for both halves, which halves the
+// loads per multiply-add (the single form, with one 64-byte memory operand
+// per FMA, is bound by the load ports) and gives eight independent
+// accumulation chains. Every lane sees the instructions of apply2RunsAVX512
+// in the same order, so the results are bit-identical. The zero bits are
+// inserted as i = k + (k &^ (2^p − 1)), p = lo then hi.
+TEXT ·apply2RunsAVX512x2(SB), NOSPLIT, $0-48
 	MOVQ x+0(FP), DI
-	MOVQ from+8(FP), R10
-	MOVQ to+16(FP), R11
-	MOVQ pl+24(FP), BX
-	MOVQ c1+32(FP), SI
-	MOVQ c2+40(FP), DX
+	MOVQ lo+8(FP), CX
+	MOVQ hi+16(FP), DX
+	MOVQ from+24(FP), R10      // k
+	MOVQ to+32(FP), R11        // end
+	MOVQ c+40(FP), SI
+	MOVQ $1, AX
+	SHLXQ CX, AX, R14          // 2^lo
+	MOVQ $1, AX
+	SHLXQ DX, AX, R15          // 2^hi
+	MOVQ R14, R8
+	NEGQ R8                    // ^(2^lo − 1)
+	MOVQ R15, R9
+	NEGQ R9                    // ^(2^hi − 1)
+	SHLQ $4, R14               // byte offset of bit lo
+	SHLQ $4, R15               // byte offset of bit hi
+	LEAQ (R14)(R15*1), R12     // byte offset of both bits
 	CMPQ R10, R11
-	JGE  pairDone
+	JGE  z2runsDone
 
-pairLoop:
+z2runsLoop:
 	MOVQ R10, AX
-	MOVQ 0(BX), R8
-	MOVQ 32(BX), R9
-	MOVQ 64(BX), R12
-	PAIRINS(R8, R9, R12)
-	MOVQ 8(BX), R8
-	MOVQ 40(BX), R9
-	MOVQ 72(BX), R12
-	PAIRINS(R8, R9, R12)
-	MOVQ 16(BX), R8
-	MOVQ 48(BX), R9
-	MOVQ 80(BX), R12
-	PAIRINS(R8, R9, R12)
-	MOVQ 24(BX), R8
-	MOVQ 56(BX), R9
-	MOVQ 88(BX), R12
-	PAIRINS(R8, R9, R12)
+	MOVQ AX, CX
+	ANDQ R8, CX
+	ADDQ CX, AX
+	MOVQ AX, CX
+	ANDQ R9, CX
+	ADDQ CX, AX
 	SHLQ $4, AX
-	ADDQ DI, AX                // &x[i]
+	ADDQ DI, AX                // &x[i] of group k
+	LEAQ 4(R10), BX
+	MOVQ BX, CX
+	ANDQ R8, CX
+	ADDQ CX, BX
+	MOVQ BX, CX
+	ANDQ R9, CX
+	ADDQ CX, BX
+	SHLQ $4, BX
+	ADDQ DI, BX                // &x[i] of group k+4
 
-	MOVQ 96(BX), R8
-	VMOVUPD (AX)(R8*1), Z0
-	MOVQ 104(BX), R8
-	VMOVUPD (AX)(R8*1), Z1
-	MOVQ 112(BX), R8
-	VMOVUPD (AX)(R8*1), Z2
-	MOVQ 120(BX), R8
-	VMOVUPD (AX)(R8*1), Z3
-	MOVQ 128(BX), R8
-	VMOVUPD (AX)(R8*1), Z4
-	MOVQ 136(BX), R8
-	VMOVUPD (AX)(R8*1), Z5
-	MOVQ 144(BX), R8
-	VMOVUPD (AX)(R8*1), Z6
-	MOVQ 152(BX), R8
-	VMOVUPD (AX)(R8*1), Z7
-	MOVQ 160(BX), R8
-	VMOVUPD (AX)(R8*1), Z8
-	MOVQ 168(BX), R8
-	VMOVUPD (AX)(R8*1), Z9
-	MOVQ 176(BX), R8
-	VMOVUPD (AX)(R8*1), Z10
-	MOVQ 184(BX), R8
-	VMOVUPD (AX)(R8*1), Z11
-	MOVQ 192(BX), R8
-	VMOVUPD (AX)(R8*1), Z12
-	MOVQ 200(BX), R8
-	VMOVUPD (AX)(R8*1), Z13
-	MOVQ 208(BX), R8
-	VMOVUPD (AX)(R8*1), Z14
-	MOVQ 216(BX), R8
-	VMOVUPD (AX)(R8*1), Z15
+	VMOVUPD (AX), Z0
+	VMOVUPD (AX)(R14*1), Z1
+	VMOVUPD (AX)(R15*1), Z2
+	VMOVUPD (AX)(R12*1), Z3
+	VMOVUPD (BX), Z12
+	VMOVUPD (BX)(R14*1), Z13
+	VMOVUPD (BX)(R15*1), Z14
+	VMOVUPD (BX)(R12*1), Z15
+	VPERMILPD $0x55, Z0, Z4
+	VPERMILPD $0x55, Z1, Z5
+	VPERMILPD $0x55, Z2, Z6
+	VPERMILPD $0x55, Z3, Z7
+	VPERMILPD $0x55, Z12, Z16
+	VPERMILPD $0x55, Z13, Z17
+	VPERMILPD $0x55, Z14, Z18
+	VPERMILPD $0x55, Z15, Z19
 
-	// Gate 1: members 4g…4g+3; the outputs of group g go to the registers
-	// freed by group g−1 (group 0 to Z16–Z19).
-	PAIRGATE(SI, Z0, Z1, Z2, Z3, Z16, Z17, Z18, Z19)
-	PAIRGATE(SI, Z4, Z5, Z6, Z7, Z0, Z1, Z2, Z3)
-	PAIRGATE(SI, Z8, Z9, Z10, Z11, Z4, Z5, Z6, Z7)
-	PAIRGATE(SI, Z12, Z13, Z14, Z15, Z8, Z9, Z10, Z11)
+	// row 0
+	VMOVUPD 0(SI), Z24
+	VMULPD Z24, Z0, Z8
+	VMULPD Z24, Z12, Z20
+	VMOVUPD 64(SI), Z25
+	VFMADD231PD Z25, Z4, Z8
+	VFMADD231PD Z25, Z16, Z20
+	VMOVUPD 128(SI), Z24
+	VFMADD231PD Z24, Z1, Z8
+	VFMADD231PD Z24, Z13, Z20
+	VMOVUPD 192(SI), Z25
+	VFMADD231PD Z25, Z5, Z8
+	VFMADD231PD Z25, Z17, Z20
+	VMOVUPD 256(SI), Z24
+	VFMADD231PD Z24, Z2, Z8
+	VFMADD231PD Z24, Z14, Z20
+	VMOVUPD 320(SI), Z25
+	VFMADD231PD Z25, Z6, Z8
+	VFMADD231PD Z25, Z18, Z20
+	VMOVUPD 384(SI), Z24
+	VFMADD231PD Z24, Z3, Z8
+	VFMADD231PD Z24, Z15, Z20
+	VMOVUPD 448(SI), Z25
+	VFMADD231PD Z25, Z7, Z8
+	VFMADD231PD Z25, Z19, Z20
+	// row 1
+	VMOVUPD 512(SI), Z24
+	VMULPD Z24, Z0, Z9
+	VMULPD Z24, Z12, Z21
+	VMOVUPD 576(SI), Z25
+	VFMADD231PD Z25, Z4, Z9
+	VFMADD231PD Z25, Z16, Z21
+	VMOVUPD 640(SI), Z24
+	VFMADD231PD Z24, Z1, Z9
+	VFMADD231PD Z24, Z13, Z21
+	VMOVUPD 704(SI), Z25
+	VFMADD231PD Z25, Z5, Z9
+	VFMADD231PD Z25, Z17, Z21
+	VMOVUPD 768(SI), Z24
+	VFMADD231PD Z24, Z2, Z9
+	VFMADD231PD Z24, Z14, Z21
+	VMOVUPD 832(SI), Z25
+	VFMADD231PD Z25, Z6, Z9
+	VFMADD231PD Z25, Z18, Z21
+	VMOVUPD 896(SI), Z24
+	VFMADD231PD Z24, Z3, Z9
+	VFMADD231PD Z24, Z15, Z21
+	VMOVUPD 960(SI), Z25
+	VFMADD231PD Z25, Z7, Z9
+	VFMADD231PD Z25, Z19, Z21
+	// row 2
+	VMOVUPD 1024(SI), Z24
+	VMULPD Z24, Z0, Z10
+	VMULPD Z24, Z12, Z22
+	VMOVUPD 1088(SI), Z25
+	VFMADD231PD Z25, Z4, Z10
+	VFMADD231PD Z25, Z16, Z22
+	VMOVUPD 1152(SI), Z24
+	VFMADD231PD Z24, Z1, Z10
+	VFMADD231PD Z24, Z13, Z22
+	VMOVUPD 1216(SI), Z25
+	VFMADD231PD Z25, Z5, Z10
+	VFMADD231PD Z25, Z17, Z22
+	VMOVUPD 1280(SI), Z24
+	VFMADD231PD Z24, Z2, Z10
+	VFMADD231PD Z24, Z14, Z22
+	VMOVUPD 1344(SI), Z25
+	VFMADD231PD Z25, Z6, Z10
+	VFMADD231PD Z25, Z18, Z22
+	VMOVUPD 1408(SI), Z24
+	VFMADD231PD Z24, Z3, Z10
+	VFMADD231PD Z24, Z15, Z22
+	VMOVUPD 1472(SI), Z25
+	VFMADD231PD Z25, Z7, Z10
+	VFMADD231PD Z25, Z19, Z22
+	// row 3
+	VMOVUPD 1536(SI), Z24
+	VMULPD Z24, Z0, Z11
+	VMULPD Z24, Z12, Z23
+	VMOVUPD 1600(SI), Z25
+	VFMADD231PD Z25, Z4, Z11
+	VFMADD231PD Z25, Z16, Z23
+	VMOVUPD 1664(SI), Z24
+	VFMADD231PD Z24, Z1, Z11
+	VFMADD231PD Z24, Z13, Z23
+	VMOVUPD 1728(SI), Z25
+	VFMADD231PD Z25, Z5, Z11
+	VFMADD231PD Z25, Z17, Z23
+	VMOVUPD 1792(SI), Z24
+	VFMADD231PD Z24, Z2, Z11
+	VFMADD231PD Z24, Z14, Z23
+	VMOVUPD 1856(SI), Z25
+	VFMADD231PD Z25, Z6, Z11
+	VFMADD231PD Z25, Z18, Z23
+	VMOVUPD 1920(SI), Z24
+	VFMADD231PD Z24, Z3, Z11
+	VFMADD231PD Z24, Z15, Z23
+	VMOVUPD 1984(SI), Z25
+	VFMADD231PD Z25, Z7, Z11
+	VFMADD231PD Z25, Z19, Z23
 
-	// Gate 2: members g, g+4, g+8, g+12, now in Z16+g, Z0+g, Z4+g, Z8+g.
-	PAIRGATE(DX, Z16, Z0, Z4, Z8, Z20, Z21, Z22, Z23)
-	MOVQ 96(BX), R8
-	VMOVUPD Z20, (AX)(R8*1)
-	MOVQ 128(BX), R8
-	VMOVUPD Z21, (AX)(R8*1)
-	MOVQ 160(BX), R8
-	VMOVUPD Z22, (AX)(R8*1)
-	MOVQ 192(BX), R8
-	VMOVUPD Z23, (AX)(R8*1)
-	PAIRGATE(DX, Z17, Z1, Z5, Z9, Z20, Z21, Z22, Z23)
-	MOVQ 104(BX), R8
-	VMOVUPD Z20, (AX)(R8*1)
-	MOVQ 136(BX), R8
-	VMOVUPD Z21, (AX)(R8*1)
-	MOVQ 168(BX), R8
-	VMOVUPD Z22, (AX)(R8*1)
-	MOVQ 200(BX), R8
-	VMOVUPD Z23, (AX)(R8*1)
-	PAIRGATE(DX, Z18, Z2, Z6, Z10, Z20, Z21, Z22, Z23)
-	MOVQ 112(BX), R8
-	VMOVUPD Z20, (AX)(R8*1)
-	MOVQ 144(BX), R8
-	VMOVUPD Z21, (AX)(R8*1)
-	MOVQ 176(BX), R8
-	VMOVUPD Z22, (AX)(R8*1)
-	MOVQ 208(BX), R8
-	VMOVUPD Z23, (AX)(R8*1)
-	PAIRGATE(DX, Z19, Z3, Z7, Z11, Z24, Z25, Z26, Z27)
-	MOVQ 120(BX), R8
-	VMOVUPD Z24, (AX)(R8*1)
-	MOVQ 152(BX), R8
-	VMOVUPD Z25, (AX)(R8*1)
-	MOVQ 184(BX), R8
-	VMOVUPD Z26, (AX)(R8*1)
-	MOVQ 216(BX), R8
-	VMOVUPD Z27, (AX)(R8*1)
+	VMOVUPD Z8, (AX)
+	VMOVUPD Z9, (AX)(R14*1)
+	VMOVUPD Z10, (AX)(R15*1)
+	VMOVUPD Z11, (AX)(R12*1)
+	VMOVUPD Z20, (BX)
+	VMOVUPD Z21, (BX)(R14*1)
+	VMOVUPD Z22, (BX)(R15*1)
+	VMOVUPD Z23, (BX)(R12*1)
 
-	ADDQ $4, R10
+	ADDQ $8, R10
 	CMPQ R10, R11
-	JLT  pairLoop
+	JLT  z2runsLoop
 
-pairDone:
+z2runsDone:
 	VZEROUPPER
 	RET

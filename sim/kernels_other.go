@@ -14,6 +14,10 @@ func apply2RunsAVX(x *complex128, lo, hi uint, from, to int, c *coef2) {
 	panic("sim: no AVX kernels on this architecture")
 }
 
+func apply2RunsAVX512x2(x *complex128, lo, hi uint, from, to int, c *coef2z) {
+	panic("sim: no AVX kernels on this architecture")
+}
+
 func apply2Q0AVX(x *complex128, hi uint, from, to int, c *coef2) {
 	panic("sim: no AVX kernels on this architecture")
 }
@@ -31,10 +35,6 @@ func apply2Runs64AVX512(x *complex64, lo, hi uint, from, to int, c *coef2sz) {
 }
 
 func apply2Q064AVX(x *complex64, hi uint, from, to int, c *coef2s) {
-	panic("sim: no AVX kernels on this architecture")
-}
-
-func apply2PairAVX512(x *complex128, from, to int, pl *pairPlan, c1, c2 *coef2z) {
 	panic("sim: no AVX kernels on this architecture")
 }
 

@@ -5,6 +5,7 @@ import (
 	"math/cmplx"
 	"math/rand/v2"
 	"testing"
+	"unsafe"
 
 	"mixdepth/circuits"
 )
@@ -175,81 +176,75 @@ func TestKernels64PortableMatchVector(t *testing.T) {
 	}
 }
 
-// TestPairBitIdentical: apply2Pair (two gates in one sweep through a block)
-// performs, lane by lane, the instructions of two apply2Kernel calls in the
-// same order, so the amplitudes must be equal bit for bit (==, no
-// tolerance: the reference is the existing one-gate kernel, and any change
-// of operation order would show as a last-bit difference on some of the
-// 2^k random amplitudes). Every ordered choice of two disjoint position
-// pairs, in both orders within a gate, on blocks of 6 and 8 positions.
-func TestPairBitIdentical(t *testing.T) {
+// TestX2BitIdentical: apply2RunsAVX512x2 performs, lane by lane, the
+// instructions of apply2RunsAVX512 (and of apply2RunsAVX, which has the same
+// per-lane sequence on 256-bit vectors) in the same order, so the amplitudes
+// must be equal bit for bit (==, no tolerance: the reference is the existing
+// one-gate kernel, and any change of operation order would show as a
+// last-bit difference on some of the 2^n random amplitudes). Every ordered
+// pair of positions ≥ 2 on 5 to 8 qubits, and sub-ranges of groups that
+// start and end on multiples of 8, as parallelFor splits them.
+func TestX2BitIdentical(t *testing.T) {
 	if !useAVX512 {
-		t.Skip("no AVX-512 on this processor: gates are never paired")
+		t.Skip("no AVX-512 on this processor: apply2RunsAVX512x2 never runs")
 	}
+	defer func() { useX2 = true }()
 	rng := rand.New(rand.NewPCG(71, 72))
-	gate := func() [16]complex128 {
-		var m [16]complex128
-		for i := range m {
-			m[i] = complex(rng.NormFloat64(), rng.NormFloat64()) / 2
-		}
-		return m
-	}
-	var tried int
-	for _, k := range []int{6, 8} {
-		amp := make([]complex128, 1<<k)
+	for n := 5; n <= 8; n++ {
+		amp := make([]complex128, 1<<n)
 		for i := range amp {
 			amp[i] = complex(rng.NormFloat64(), rng.NormFloat64())
 		}
-		for a0 := 2; a0 < k; a0++ {
-			for a1 := 2; a1 < k; a1++ {
-				for b0 := 2; b0 < k; b0++ {
-					for b1 := 2; b1 < k; b1++ {
-						if a0 == a1 || b0 == b1 || a0 == b0 || a0 == b1 || a1 == b0 || a1 == b1 {
-							continue
+		groups := 1 << (n - 2)
+		for a := 2; a < n; a++ {
+			for b := 2; b < n; b++ {
+				if a == b {
+					continue
+				}
+				var m [16]complex128
+				for i := range m {
+					m[i] = complex(rng.NormFloat64(), rng.NormFloat64()) / 2
+				}
+				k := newKernel2(a, b, &m)
+				for _, r := range [][2]int{{0, groups}, {8, groups}, {0, groups - 8}} {
+					want := append([]complex128(nil), amp...)
+					useX2 = false
+					apply2Kernel(want, &k, r[0], r[1])
+					// apply2RunsAVX512 and apply2RunsAVX, called directly,
+					// must agree with each other too.
+					alt := append([]complex128(nil), amp...)
+					apply2RunsAVX(unsafe.SliceData(alt), uint(k.lo), uint(k.hi), r[0], r[1], &k.c)
+					got := append([]complex128(nil), amp...)
+					useX2 = true
+					apply2Kernel(got, &k, r[0], r[1])
+					for i := range got {
+						if got[i] != want[i] || alt[i] != want[i] {
+							t.Fatalf("n=%d gate (%d,%d) groups %v: amplitude %d is %v (x2), %v (512), %v (256)",
+								n, a, b, r, i, got[i], want[i], alt[i])
 						}
-						m1, m2 := gate(), gate()
-						g1, g2 := newKernel2(a0, a1, &m1), newKernel2(b0, b1, &m2)
-						if !pairable(&g1, &g2, k) {
-							t.Fatalf("k=%d (%d,%d) (%d,%d) not pairable", k, a0, a1, b0, b1)
-						}
-						want := append([]complex128(nil), amp...)
-						apply2Kernel(want, &g1, 0, 1<<(k-2))
-						apply2Kernel(want, &g2, 0, 1<<(k-2))
-						got := append([]complex128(nil), amp...)
-						apply2Pair(got, newPairPlan(&g1, &g2), &g1, &g2, 0, 1<<(k-4))
-						for i := range got {
-							if got[i] != want[i] {
-								t.Fatalf("k=%d gates (%d,%d) then (%d,%d): amplitude %d is %v, one gate at a time gives %v",
-									k, a0, a1, b0, b1, i, got[i], want[i])
-							}
-						}
-						tried++
 					}
 				}
 			}
 		}
 	}
-	if tried == 0 {
-		t.Fatal("no pair tried")
-	}
 }
 
 // TestRunBitIdenticalToApply2: a brickwork on a line and a grid-like
-// circuit run as fused block passes, where consecutive gates are paired,
-// give exactly (==) the amplitudes of the same passes' gates applied with
+// circuit run as fused block passes, with the unrolled kernel
+// (apply2RunsAVX512x2) where it applies, give exactly (==) the amplitudes of the same passes' gates applied with
 // Apply2 one at a time to the whole state, in the pass order (planPasses
 // lets a pass's gates overtake left-out gates on other qubits, so the plain
 // circuit order rounds differently, by ~1e-16 relative). Apply2 takes the
 // one-gate kernel of the same class (position 0, position 1, or runs), whose
 // lanes see the same instructions in the same order, so nothing may change
-// in the last bit; this holds with the vector kernels (pairs on AVX-512),
-// with pairing switched off, and with the dispatch forced to the portable Go
-// kernels.
+// in the last bit. The reference always takes the existing one-gate kernels
+// (useX2 off); Run takes the new one, the old one, and, with the dispatch
+// forced off, the portable Go kernels (against a portable reference).
 func TestRunBitIdenticalToApply2(t *testing.T) {
 	defer func(v int) { fuseMinQubits = v }(fuseMinQubits)
 	fuseMinQubits = BlockQubits + 1
 	has, has512 := useAVX, useAVX512
-	defer func() { useAVX, useAVX512, usePairs = has, has512, true }()
+	defer func() { useAVX, useAVX512, useX2 = has, has512, true }()
 	rng := rand.New(rand.NewPCG(73, 74))
 	const n = BlockQubits + 3
 	var line, grid []Op
@@ -290,10 +285,10 @@ func TestRunBitIdenticalToApply2(t *testing.T) {
 			circuits.HaarUnitary(rng, 4, circ.ops[i].M[:])
 		}
 		for _, mode := range []struct {
-			name       string
-			avx, pairs bool
-		}{{"vector+pairs", true, true}, {"vector", true, false}, {"portable", false, false}} {
-			useAVX, useAVX512, usePairs = mode.avx && has, mode.avx && has512, mode.pairs
+			name    string
+			avx, x2 bool
+		}{{"vector x2", true, true}, {"vector", true, false}, {"portable", false, false}} {
+			useAVX, useAVX512, useX2 = mode.avx && has, mode.avx && has512, false
 			ref := &State{Qubits: n, Amp: append([]complex128(nil), amp...)}
 			var gates int
 			for _, p := range planPasses(n, circ.ops, BlockQubits) {
@@ -305,6 +300,7 @@ func TestRunBitIdenticalToApply2(t *testing.T) {
 			if gates != len(circ.ops) {
 				t.Fatalf("%s: the plan has %d gates, the circuit %d (none may merge here)", circ.name, gates, len(circ.ops))
 			}
+			useX2 = mode.x2
 			for _, workers := range []int{1, 2} {
 				s := &State{Qubits: n, Amp: append([]complex128(nil), amp...)}
 				if err := s.Run(context.Background(), circ.ops, workers); err != nil {
@@ -318,5 +314,44 @@ func TestRunBitIdenticalToApply2(t *testing.T) {
 				}
 			}
 		}
+	}
+}
+
+// BenchmarkBlockPass times the kernels of a fused pass on one block of
+// 2^BlockQubits amplitudes that stays in cache (applyLocal, one core): a
+// 20-layer brickwork on the block's 14 positions, with the unrolled runs
+// kernel (x2, apply2RunsAVX512x2) and with the one it replaces (one,
+// apply2RunsAVX512); -count alternates them in one run.
+// ns/gate-amp is the compute cost per gate per amplitude, the quantity the
+// fused speed-up's ceiling is made of.
+func BenchmarkBlockPass(b *testing.B) {
+	const k = BlockQubits
+	rng := rand.New(rand.NewPCG(81, 82))
+	var ops []Op
+	for layer := range 20 {
+		for a := layer % 2; a+1 < k; a += 2 {
+			op := Op{A: a, B: a + 1}
+			circuits.HaarUnitary(rng, 4, op.M[:])
+			ops = append(ops, op)
+		}
+	}
+	p := newPass(k, allMask(k), ops)
+	x := make([]complex128, 1<<k)
+	for i := range x {
+		x[i] = complex(rng.NormFloat64(), rng.NormFloat64()) / 128
+	}
+	defer func() { useX2 = true }()
+	kops := p.kernels(false)
+	for _, mode := range []struct {
+		name string
+		x2   bool
+	}{{"x2", true}, {"one", false}} {
+		b.Run(mode.name, func(b *testing.B) {
+			useX2 = mode.x2
+			for b.Loop() {
+				applyLocal(x, k, kops)
+			}
+			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(len(kops)*len(x)), "ns/gate-amp")
+		})
 	}
 }

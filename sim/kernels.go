@@ -219,6 +219,8 @@ func apply2Kernel(amp []complex128, k *kernel2, from, to int) {
 	if useAVX {
 		x := unsafe.SliceData(amp)
 		switch {
+		case k.lo == 0 && useAVX512 && useX2 && k.hi >= 2 && from%4 == 0 && to%4 == 0:
+			apply2Q0AVX512x2(x, uint(k.hi), from, to, &k.cz)
 		case k.lo == 0 && useAVX512 && k.hi >= 2 && from%2 == 0 && to%2 == 0:
 			apply2Q0AVX512(x, uint(k.hi), from, to, &k.cz)
 		case k.lo == 0:
@@ -386,6 +388,7 @@ func apply1Single(amp []complex64, q int, m *[4]complex64, from, to int) {
 	}
 }
 
-// useX2 selects apply2RunsAVX512x2 over apply2RunsAVX512 where both apply;
-// tests and benchmarks switch it off to compare them.
+// useX2 selects apply2RunsAVX512x2 and apply2Q0AVX512x2 over
+// apply2RunsAVX512 and apply2Q0AVX512 where both apply; tests and
+// benchmarks switch it off to compare them.
 var useX2 = true

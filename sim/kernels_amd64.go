@@ -26,6 +26,9 @@ func apply2Q0AVX(x *complex128, hi uint, from, to int, c *coef2)
 func apply2Q0AVX512(x *complex128, hi uint, from, to int, c *coef2z)
 
 //go:noescape
+func apply2Q0AVX512x2(x *complex128, hi uint, from, to int, c *coef2z)
+
+//go:noescape
 func apply2Runs64AVX(x *complex64, lo, hi uint, from, to int, c *coef2s)
 
 //go:noescape

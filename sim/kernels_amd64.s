@@ -909,3 +909,118 @@ z2runsLoop:
 z2runsDone:
 	VZEROUPPER
 	RET
+
+// func apply2Q0AVX512x2(x *complex128, hi uint, from, to int, c *coef2z)
+//
+// apply2Q0AVX512 on four groups per iteration, (k, k+1) and (k+2, k+3),
+// from and to multiples of 4 and hi ≥ 2: as in apply2RunsAVX512x2, each
+// coefficient vector is loaded once into a register for both halves, and
+// every lane sees the instructions of apply2Q0AVX512 in the same order
+// (bit-identical results). The zero bit is inserted as i = j + (j &^
+// (2^hi − 1)) with j = 2k.
+TEXT ·apply2Q0AVX512x2(SB), NOSPLIT, $0-40
+	MOVQ x+0(FP), DI
+	MOVQ hi+8(FP), CX
+	MOVQ from+16(FP), R10
+	MOVQ to+24(FP), R11
+	MOVQ c+32(FP), SI
+	MOVQ $1, AX
+	SHLXQ CX, AX, R15          // 2^hi
+	MOVQ R15, R9
+	NEGQ R9                    // ^(2^hi − 1)
+	SHLQ $4, R15               // byte offset of bit hi
+	CMPQ R10, R11
+	JGE  zq02Done
+
+zq02Loop:
+	LEAQ (R10)(R10*1), AX      // 2k
+	MOVQ AX, CX
+	ANDQ R9, CX
+	ADDQ CX, AX
+	SHLQ $4, AX
+	ADDQ DI, AX                // &x[i] of group k
+	LEAQ 4(R10)(R10*1), BX     // 2(k+2)
+	MOVQ BX, CX
+	ANDQ R9, CX
+	ADDQ CX, BX
+	SHLQ $4, BX
+	ADDQ DI, BX                // &x[i] of group k+2
+
+	VMOVUPD (AX), Z0              // P
+	VMOVUPD (AX)(R15*1), Z2       // Q
+	VMOVUPD (BX), Z12
+	VMOVUPD (BX)(R15*1), Z14
+	VPERMPD $0x4e, Z0, Z1        // Ps
+	VPERMPD $0x4e, Z2, Z3        // Qs
+	VPERMPD $0x4e, Z12, Z13
+	VPERMPD $0x4e, Z14, Z15
+	VPERMILPD $0x55, Z0, Z4
+	VPERMILPD $0x55, Z1, Z5
+	VPERMILPD $0x55, Z2, Z6
+	VPERMILPD $0x55, Z3, Z7
+	VPERMILPD $0x55, Z12, Z16
+	VPERMILPD $0x55, Z13, Z17
+	VPERMILPD $0x55, Z14, Z18
+	VPERMILPD $0x55, Z15, Z19
+
+	VMOVUPD 0(SI), Z24
+	VMULPD Z24, Z0, Z8
+	VMULPD Z24, Z12, Z20
+	VMOVUPD 64(SI), Z25
+	VFMADD231PD Z25, Z4, Z8
+	VFMADD231PD Z25, Z16, Z20
+	VMOVUPD 128(SI), Z24
+	VFMADD231PD Z24, Z1, Z8
+	VFMADD231PD Z24, Z13, Z20
+	VMOVUPD 192(SI), Z25
+	VFMADD231PD Z25, Z5, Z8
+	VFMADD231PD Z25, Z17, Z20
+	VMOVUPD 256(SI), Z24
+	VFMADD231PD Z24, Z2, Z8
+	VFMADD231PD Z24, Z14, Z20
+	VMOVUPD 320(SI), Z25
+	VFMADD231PD Z25, Z6, Z8
+	VFMADD231PD Z25, Z18, Z20
+	VMOVUPD 384(SI), Z24
+	VFMADD231PD Z24, Z3, Z8
+	VFMADD231PD Z24, Z15, Z20
+	VMOVUPD 448(SI), Z25
+	VFMADD231PD Z25, Z7, Z8
+	VFMADD231PD Z25, Z19, Z20
+	VMOVUPD 512(SI), Z24
+	VMULPD Z24, Z0, Z9
+	VMULPD Z24, Z12, Z21
+	VMOVUPD 576(SI), Z25
+	VFMADD231PD Z25, Z4, Z9
+	VFMADD231PD Z25, Z16, Z21
+	VMOVUPD 640(SI), Z24
+	VFMADD231PD Z24, Z1, Z9
+	VFMADD231PD Z24, Z13, Z21
+	VMOVUPD 704(SI), Z25
+	VFMADD231PD Z25, Z5, Z9
+	VFMADD231PD Z25, Z17, Z21
+	VMOVUPD 768(SI), Z24
+	VFMADD231PD Z24, Z2, Z9
+	VFMADD231PD Z24, Z14, Z21
+	VMOVUPD 832(SI), Z25
+	VFMADD231PD Z25, Z6, Z9
+	VFMADD231PD Z25, Z18, Z21
+	VMOVUPD 896(SI), Z24
+	VFMADD231PD Z24, Z3, Z9
+	VFMADD231PD Z24, Z15, Z21
+	VMOVUPD 960(SI), Z25
+	VFMADD231PD Z25, Z7, Z9
+	VFMADD231PD Z25, Z19, Z21
+
+	VMOVUPD Z8, (AX)
+	VMOVUPD Z9, (AX)(R15*1)
+	VMOVUPD Z20, (BX)
+	VMOVUPD Z21, (BX)(R15*1)
+
+	ADDQ $4, R10
+	CMPQ R10, R11
+	JLT  zq02Loop
+
+zq02Done:
+	VZEROUPPER
+	RET

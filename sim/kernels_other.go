@@ -26,6 +26,10 @@ func apply2Q0AVX512(x *complex128, hi uint, from, to int, c *coef2z) {
 	panic("sim: no AVX kernels on this architecture")
 }
 
+func apply2Q0AVX512x2(x *complex128, hi uint, from, to int, c *coef2z) {
+	panic("sim: no AVX kernels on this architecture")
+}
+
 func apply2Runs64AVX(x *complex64, lo, hi uint, from, to int, c *coef2s) {
 	panic("sim: no AVX kernels on this architecture")
 }

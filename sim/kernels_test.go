@@ -176,13 +176,14 @@ func TestKernels64PortableMatchVector(t *testing.T) {
 	}
 }
 
-// TestX2BitIdentical: apply2RunsAVX512x2 performs, lane by lane, the
-// instructions of apply2RunsAVX512 (and of apply2RunsAVX, which has the same
-// per-lane sequence on 256-bit vectors) in the same order, so the amplitudes
+// TestX2BitIdentical: apply2RunsAVX512x2 and apply2Q0AVX512x2 perform, lane
+// by lane, the instructions of apply2RunsAVX512 and apply2Q0AVX512 (and of
+// apply2RunsAVX and apply2Q0AVX, which have the same per-lane sequences on
+// 256-bit vectors) in the same order, so the amplitudes
 // must be equal bit for bit (==, no tolerance: the reference is the existing
 // one-gate kernel, and any change of operation order would show as a
 // last-bit difference on some of the 2^n random amplitudes). Every ordered
-// pair of positions ≥ 2 on 5 to 8 qubits, and sub-ranges of groups that
+// pair of positions in {0} ∪ [2, n) on 5 to 8 qubits, and sub-ranges of groups that
 // start and end on multiples of 8, as parallelFor splits them.
 func TestX2BitIdentical(t *testing.T) {
 	if !useAVX512 {
@@ -196,9 +197,9 @@ func TestX2BitIdentical(t *testing.T) {
 			amp[i] = complex(rng.NormFloat64(), rng.NormFloat64())
 		}
 		groups := 1 << (n - 2)
-		for a := 2; a < n; a++ {
-			for b := 2; b < n; b++ {
-				if a == b {
+		for a := 0; a < n; a++ {
+			for b := 0; b < n; b++ {
+				if a == b || a == 1 || b == 1 {
 					continue
 				}
 				var m [16]complex128
@@ -213,7 +214,11 @@ func TestX2BitIdentical(t *testing.T) {
 					// apply2RunsAVX512 and apply2RunsAVX, called directly,
 					// must agree with each other too.
 					alt := append([]complex128(nil), amp...)
-					apply2RunsAVX(unsafe.SliceData(alt), uint(k.lo), uint(k.hi), r[0], r[1], &k.c)
+					if k.lo == 0 {
+						apply2Q0AVX(unsafe.SliceData(alt), uint(k.hi), r[0], r[1], &k.c)
+					} else {
+						apply2RunsAVX(unsafe.SliceData(alt), uint(k.lo), uint(k.hi), r[0], r[1], &k.c)
+					}
 					got := append([]complex128(nil), amp...)
 					useX2 = true
 					apply2Kernel(got, &k, r[0], r[1])

@@ -2,9 +2,13 @@ package sim
 
 import (
 	"context"
+	"flag"
+	"math"
 	"math/cmplx"
 	"math/rand/v2"
+	"runtime"
 	"testing"
+	"time"
 	"unsafe"
 
 	"mixdepth/circuits"
@@ -361,3 +365,80 @@ func BenchmarkBlockPass(b *testing.B) {
 		})
 	}
 }
+
+// BenchmarkFusedTargets measures the fused-brickwork targets of
+// scripts/bench (fused_speedup_line:26, fused_speedup_grid:5x5: 20 layers of
+// the layered schedule with Haar gates, the target's seed) in one run,
+// alternating four timings per round so that load from other processes
+// hits them alike: Run with the x2 kernels (fused) and with the
+// one-iteration kernels they replace (fused-old, today's kernels), and
+// Apply2 gate by gate with each (one-by-one, one-by-one-old); best of
+// -rounds. It reports ms per gate and the speed-ups one-by-one/fused (the
+// target, ≥ 2) and fused-old/fused. A 26-qubit state takes 1 GiB; run it
+// with -benchtime 1x.
+func BenchmarkFusedTargets(b *testing.B) {
+	workers := runtime.NumCPU()
+	defer func() { useX2 = true }()
+	for _, spec := range []string{"line:26", "grid:5x5"} {
+		b.Run(spec, func(b *testing.B) {
+			g, err := circuits.ParseGraph(spec)
+			if err != nil {
+				b.Fatal(err)
+			}
+			sch, err := circuits.NewSchedule("layered", g)
+			if err != nil {
+				b.Fatal(err)
+			}
+			rng := rand.New(rand.NewPCG(4, 5)) // the target's circuit
+			var ops []Op
+			var edges []circuits.Edge
+			for layer := range 20 {
+				edges = sch.Step(layer, nil, edges[:0])
+				for _, e := range edges {
+					op := Op{A: e.A, B: e.B}
+					circuits.HaarUnitary(rng, 4, op.M[:])
+					ops = append(ops, op)
+				}
+			}
+			s, err := NewState(g.Qubits, 0)
+			if err != nil {
+				b.Fatal(err)
+			}
+			kinds := []struct {
+				name         string
+				x2, oneByOne bool
+			}{{"fused", true, false}, {"fused-old", false, false}, {"one-by-one", true, true}, {"one-by-one-old", false, true}}
+			best := make([]float64, len(kinds))
+			for i := range best {
+				best[i] = math.Inf(1)
+			}
+			for b.Loop() {
+				for r := range *fusedRounds {
+					for j := range kinds {
+						kk := kinds[(j+r)%len(kinds)] // rotate which goes first
+						useX2 = kk.x2
+						start := time.Now()
+						if kk.oneByOne {
+							for i := range ops {
+								s.Apply2(ops[i].A, ops[i].B, &ops[i].M, workers)
+							}
+						} else {
+							_ = s.Run(context.Background(), ops, workers)
+						}
+						t := time.Since(start).Seconds() * 1e3 / float64(len(ops))
+						idx := (j + r) % len(kinds)
+						best[idx] = min(best[idx], t)
+					}
+				}
+			}
+			for i, k := range kinds {
+				b.ReportMetric(best[i], k.name+"-ms/gate")
+			}
+			b.ReportMetric(best[2]/best[0], "target-speedup")
+			b.ReportMetric(best[3]/best[1], "old-target-speedup")
+			b.ReportMetric(best[1]/best[0], "fused-old/fused")
+		})
+	}
+}
+
+var fusedRounds = flag.Int("rounds", 3, "rounds of BenchmarkFusedTargets")

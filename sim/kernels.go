@@ -219,12 +219,20 @@ func apply2Kernel(amp []complex128, k *kernel2, from, to int) {
 	if useAVX {
 		x := unsafe.SliceData(amp)
 		switch {
+		case k.lo == 0 && useAVX512 && useX2 && k.hi >= 2 && from%4 == 0 && to%4 == 0:
+			apply2Q0AVX512x2(x, uint(k.hi), from, to, &k.cz)
 		case k.lo == 0 && useAVX512 && k.hi >= 2 && from%2 == 0 && to%2 == 0:
 			apply2Q0AVX512(x, uint(k.hi), from, to, &k.cz)
+		case k.lo == 0 && useAVX512 && useX2 && from%2 == 0 && to%2 == 0:
+			apply2Q0AVXx2(x, uint(k.hi), from, to, &k.c)
 		case k.lo == 0:
 			apply2Q0AVX(x, uint(k.hi), from, to, &k.c)
+		case useAVX512 && useX2 && k.lo >= 2 && from%8 == 0 && to%8 == 0:
+			apply2RunsAVX512x2(x, uint(k.lo), uint(k.hi), from, to, &k.cz)
 		case useAVX512 && k.lo >= 2 && from%4 == 0 && to%4 == 0:
 			apply2RunsAVX512(x, uint(k.lo), uint(k.hi), from, to, &k.cz)
+		case useAVX512 && useX2 && from%4 == 0 && to%4 == 0:
+			apply2RunsAVXx2(x, uint(k.lo), uint(k.hi), from, to, &k.c)
 		default:
 			apply2RunsAVX(x, uint(k.lo), uint(k.hi), from, to, &k.c)
 		}
@@ -383,3 +391,9 @@ func apply1Single(amp []complex64, q int, m *[4]complex64, from, to int) {
 		amp[j] = complex(cr*xr-ci*xi+dr*yr-di*yi, cr*xi+ci*xr+dr*yi+di*yr)
 	}
 }
+
+// useX2 selects the x2 kernels (apply2RunsAVX512x2, apply2Q0AVX512x2,
+// apply2RunsAVXx2, apply2Q0AVXx2: two iterations' groups per coefficient
+// load) over the one-iteration forms where both apply; tests and
+// benchmarks switch it off to compare them.
+var useX2 = true

@@ -17,10 +17,22 @@ func apply2RunsAVX(x *complex128, lo, hi uint, from, to int, c *coef2)
 func apply2RunsAVX512(x *complex128, lo, hi uint, from, to int, c *coef2z)
 
 //go:noescape
+func apply2RunsAVX512x2(x *complex128, lo, hi uint, from, to int, c *coef2z)
+
+//go:noescape
 func apply2Q0AVX(x *complex128, hi uint, from, to int, c *coef2)
 
 //go:noescape
 func apply2Q0AVX512(x *complex128, hi uint, from, to int, c *coef2z)
+
+//go:noescape
+func apply2Q0AVX512x2(x *complex128, hi uint, from, to int, c *coef2z)
+
+//go:noescape
+func apply2RunsAVXx2(x *complex128, lo, hi uint, from, to int, c *coef2)
+
+//go:noescape
+func apply2Q0AVXx2(x *complex128, hi uint, from, to int, c *coef2)
 
 //go:noescape
 func apply2Runs64AVX(x *complex64, lo, hi uint, from, to int, c *coef2s)

@@ -14,11 +14,27 @@ func apply2RunsAVX(x *complex128, lo, hi uint, from, to int, c *coef2) {
 	panic("sim: no AVX kernels on this architecture")
 }
 
+func apply2RunsAVX512x2(x *complex128, lo, hi uint, from, to int, c *coef2z) {
+	panic("sim: no AVX kernels on this architecture")
+}
+
 func apply2Q0AVX(x *complex128, hi uint, from, to int, c *coef2) {
 	panic("sim: no AVX kernels on this architecture")
 }
 
 func apply2Q0AVX512(x *complex128, hi uint, from, to int, c *coef2z) {
+	panic("sim: no AVX kernels on this architecture")
+}
+
+func apply2Q0AVX512x2(x *complex128, hi uint, from, to int, c *coef2z) {
+	panic("sim: no AVX kernels on this architecture")
+}
+
+func apply2RunsAVXx2(x *complex128, lo, hi uint, from, to int, c *coef2) {
+	panic("sim: no AVX kernels on this architecture")
+}
+
+func apply2Q0AVXx2(x *complex128, hi uint, from, to int, c *coef2) {
 	panic("sim: no AVX kernels on this architecture")
 }
 

@@ -2,9 +2,17 @@ package sim
 
 import (
 	"context"
+	"flag"
+	"math"
 	"math/cmplx"
 	"math/rand/v2"
+	"runtime"
+	"syscall"
 	"testing"
+	"time"
+	"unsafe"
+
+	"mixdepth/circuits"
 )
 
 // TestKernelsPortableMatchVector: the portable Go kernels and the AVX2
@@ -172,3 +180,281 @@ func TestKernels64PortableMatchVector(t *testing.T) {
 		}
 	}
 }
+
+// TestX2BitIdentical: the x2 kernels (apply2RunsAVX512x2, apply2Q0AVX512x2,
+// apply2RunsAVXx2, apply2Q0AVXx2) perform, lane by lane, the arithmetic of
+// the one-iteration kernels they replace, and apply2RunsAVX512 and
+// apply2Q0AVX512 that of apply2RunsAVX and apply2Q0AVX, in the same order,
+// so the amplitudes
+// must be equal bit for bit (==, no tolerance: the reference is the existing
+// one-gate kernel, and any change of operation order would show as a
+// last-bit difference on some of the 2^n random amplitudes). Every ordered
+// pair of positions on 5 to 8 qubits, and sub-ranges of groups that
+// start and end on multiples of 8, as parallelFor splits them.
+func TestX2BitIdentical(t *testing.T) {
+	if !useAVX512 {
+		t.Skip("no AVX-512 on this processor: the x2 kernels never run")
+	}
+	defer func() { useX2 = true }()
+	rng := rand.New(rand.NewPCG(71, 72))
+	for n := 5; n <= 8; n++ {
+		amp := make([]complex128, 1<<n)
+		for i := range amp {
+			amp[i] = complex(rng.NormFloat64(), rng.NormFloat64())
+		}
+		groups := 1 << (n - 2)
+		for a := 0; a < n; a++ {
+			for b := 0; b < n; b++ {
+				if a == b {
+					continue
+				}
+				var m [16]complex128
+				for i := range m {
+					m[i] = complex(rng.NormFloat64(), rng.NormFloat64()) / 2
+				}
+				k := newKernel2(a, b, &m)
+				for _, r := range [][2]int{{0, groups}, {8, groups}, {0, groups - 8}} {
+					want := append([]complex128(nil), amp...)
+					useX2 = false
+					apply2Kernel(want, &k, r[0], r[1])
+					// The 256-bit one-iteration kernels, called directly,
+					// must agree with each other too.
+					alt := append([]complex128(nil), amp...)
+					if k.lo == 0 {
+						apply2Q0AVX(unsafe.SliceData(alt), uint(k.hi), r[0], r[1], &k.c)
+					} else {
+						apply2RunsAVX(unsafe.SliceData(alt), uint(k.lo), uint(k.hi), r[0], r[1], &k.c)
+					}
+					got := append([]complex128(nil), amp...)
+					useX2 = true
+					apply2Kernel(got, &k, r[0], r[1])
+					for i := range got {
+						if got[i] != want[i] || alt[i] != want[i] {
+							t.Fatalf("n=%d gate (%d,%d) groups %v: amplitude %d is %v (x2), %v (512), %v (256)",
+								n, a, b, r, i, got[i], want[i], alt[i])
+						}
+					}
+				}
+			}
+		}
+	}
+}
+
+// TestRunBitIdenticalToApply2: a brickwork on a line and a grid-like
+// circuit run as fused block passes, with the unrolled kernel
+// (apply2RunsAVX512x2) where it applies, give exactly (==) the amplitudes of the same passes' gates applied with
+// Apply2 one at a time to the whole state, in the pass order (planPasses
+// lets a pass's gates overtake left-out gates on other qubits, so the plain
+// circuit order rounds differently, by ~1e-16 relative). Apply2 takes the
+// one-gate kernel of the same class (position 0, position 1, or runs), whose
+// lanes see the same instructions in the same order, so nothing may change
+// in the last bit. The reference always takes the existing one-gate kernels
+// (useX2 off); Run takes the new one, the old one, and, with the dispatch
+// forced off, the portable Go kernels (against a portable reference).
+func TestRunBitIdenticalToApply2(t *testing.T) {
+	defer func(v int) { fuseMinQubits = v }(fuseMinQubits)
+	fuseMinQubits = BlockQubits + 1
+	has, has512 := useAVX, useAVX512
+	defer func() { useAVX, useAVX512, useX2 = has, has512, true }()
+	rng := rand.New(rand.NewPCG(73, 74))
+	const n = BlockQubits + 3
+	var line, grid []Op
+	for layer := range 12 {
+		for a := layer % 2; a+1 < n; a += 2 {
+			line = append(line, Op{A: a, B: a + 1})
+		}
+	}
+	// 17 qubits: a 4×4 grid's horizontal and vertical classes, plus qubit 16
+	// coupled to a different qubit in each vertical layer.
+	const c = 4
+	for layer := range 12 {
+		switch layer % 4 {
+		case 0, 1:
+			for r := range 4 {
+				for col := layer % 2; col+1 < c; col += 2 {
+					grid = append(grid, Op{A: r*c + col, B: r*c + col + 1})
+				}
+			}
+		default:
+			for r := layer % 2; r+1 < 4; r += 2 {
+				for col := range c {
+					grid = append(grid, Op{A: (r+1)*c + col, B: r*c + col})
+				}
+			}
+			grid = append(grid, Op{A: n - 1, B: layer % (n - 1)})
+		}
+	}
+	amp := make([]complex128, 1<<n)
+	for i := range amp {
+		amp[i] = complex(rng.NormFloat64(), rng.NormFloat64()) / 256
+	}
+	for _, circ := range []struct {
+		name string
+		ops  []Op
+	}{{"line", line}, {"grid", grid}} {
+		for i := range circ.ops {
+			circuits.HaarUnitary(rng, 4, circ.ops[i].M[:])
+		}
+		for _, mode := range []struct {
+			name    string
+			avx, x2 bool
+		}{{"vector x2", true, true}, {"vector", true, false}, {"portable", false, false}} {
+			useAVX, useAVX512, useX2 = mode.avx && has, mode.avx && has512, false
+			ref := &State{Qubits: n, Amp: append([]complex128(nil), amp...)}
+			var gates int
+			for _, p := range planPasses(n, circ.ops, BlockQubits) {
+				for _, o := range p.ops {
+					ref.Apply2(o.a, o.b, &o.m, 1)
+					gates++
+				}
+			}
+			if gates != len(circ.ops) {
+				t.Fatalf("%s: the plan has %d gates, the circuit %d (none may merge here)", circ.name, gates, len(circ.ops))
+			}
+			useX2 = mode.x2
+			for _, workers := range []int{1, 2} {
+				s := &State{Qubits: n, Amp: append([]complex128(nil), amp...)}
+				if err := s.Run(context.Background(), circ.ops, workers); err != nil {
+					t.Fatal(err)
+				}
+				for i := range s.Amp {
+					if s.Amp[i] != ref.Amp[i] {
+						t.Fatalf("%s %s workers=%d: amplitude %d is %v fused, %v gate by gate",
+							circ.name, mode.name, workers, i, s.Amp[i], ref.Amp[i])
+					}
+				}
+			}
+		}
+	}
+}
+
+// BenchmarkBlockPass times the kernels of a fused pass on one block of
+// 2^BlockQubits amplitudes that stays in cache (applyLocal, one core): a
+// 20-layer brickwork on the block's 14 positions, with the unrolled runs
+// kernel (x2, apply2RunsAVX512x2) and with the one it replaces (one,
+// apply2RunsAVX512); -count alternates them in one run.
+// ns/gate-amp is the compute cost per gate per amplitude, the quantity the
+// fused speed-up's ceiling is made of.
+func BenchmarkBlockPass(b *testing.B) {
+	const k = BlockQubits
+	rng := rand.New(rand.NewPCG(81, 82))
+	var ops []Op
+	for layer := range 20 {
+		for a := layer % 2; a+1 < k; a += 2 {
+			op := Op{A: a, B: a + 1}
+			circuits.HaarUnitary(rng, 4, op.M[:])
+			ops = append(ops, op)
+		}
+	}
+	p := newPass(k, allMask(k), ops)
+	x := make([]complex128, 1<<k)
+	for i := range x {
+		x[i] = complex(rng.NormFloat64(), rng.NormFloat64()) / 128
+	}
+	defer func() { useX2 = true }()
+	kops := p.kernels(false)
+	for _, mode := range []struct {
+		name string
+		x2   bool
+	}{{"x2", true}, {"one", false}} {
+		b.Run(mode.name, func(b *testing.B) {
+			useX2 = mode.x2
+			for b.Loop() {
+				applyLocal(x, k, kops)
+			}
+			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(len(kops)*len(x)), "ns/gate-amp")
+		})
+	}
+}
+
+// BenchmarkFusedTargets measures the fused-brickwork targets of
+// scripts/bench (fused_speedup_line:26, fused_speedup_grid:5x5: 20 layers of
+// the layered schedule with Haar gates, the target's seed) in one run,
+// alternating four timings per round so that load from other processes
+// hits them alike: Run with the x2 kernels (fused) and with the
+// one-iteration kernels they replace (fused-old, today's kernels), and
+// Apply2 gate by gate with each (one-by-one, one-by-one-old); best of
+// -rounds. It reports ms per gate, the speed-ups one-by-one/fused (the
+// target, ≥ 2) and fused-old/fused, and the CPU time per gate of each
+// (cpu-ms/gate, both workers' time added). A 26-qubit state takes 1 GiB;
+// run it with -benchtime 1x.
+func BenchmarkFusedTargets(b *testing.B) {
+	workers := runtime.NumCPU()
+	defer func() { useX2 = true }()
+	for _, spec := range []string{"line:26", "grid:5x5"} {
+		b.Run(spec, func(b *testing.B) {
+			g, err := circuits.ParseGraph(spec)
+			if err != nil {
+				b.Fatal(err)
+			}
+			sch, err := circuits.NewSchedule("layered", g)
+			if err != nil {
+				b.Fatal(err)
+			}
+			rng := rand.New(rand.NewPCG(4, 5)) // the target's circuit
+			var ops []Op
+			var edges []circuits.Edge
+			for layer := range 20 {
+				edges = sch.Step(layer, nil, edges[:0])
+				for _, e := range edges {
+					op := Op{A: e.A, B: e.B}
+					circuits.HaarUnitary(rng, 4, op.M[:])
+					ops = append(ops, op)
+				}
+			}
+			s, err := NewState(g.Qubits, 0)
+			if err != nil {
+				b.Fatal(err)
+			}
+			kinds := []struct {
+				name         string
+				x2, oneByOne bool
+			}{{"fused", true, false}, {"fused-old", false, false}, {"one-by-one", true, true}, {"one-by-one-old", false, true}}
+			best, bestCPU := make([]float64, len(kinds)), make([]float64, len(kinds))
+			for i := range best {
+				best[i], bestCPU[i] = math.Inf(1), math.Inf(1)
+			}
+			for b.Loop() {
+				for r := range *fusedRounds {
+					for j := range kinds {
+						kk := kinds[(j+r)%len(kinds)] // rotate which goes first
+						useX2 = kk.x2
+						start, cpu0 := time.Now(), cpuSeconds()
+						if kk.oneByOne {
+							for i := range ops {
+								s.Apply2(ops[i].A, ops[i].B, &ops[i].M, workers)
+							}
+						} else {
+							_ = s.Run(context.Background(), ops, workers)
+						}
+						t := time.Since(start).Seconds() * 1e3 / float64(len(ops))
+						c := (cpuSeconds() - cpu0) * 1e3 / float64(len(ops))
+						idx := (j + r) % len(kinds)
+						best[idx] = min(best[idx], t)
+						bestCPU[idx] = min(bestCPU[idx], c)
+					}
+				}
+			}
+			for i, k := range kinds {
+				b.ReportMetric(best[i], k.name+"-ms/gate")
+				b.ReportMetric(bestCPU[i], k.name+"-cpu-ms/gate")
+			}
+			b.ReportMetric(best[2]/best[0], "target-speedup")
+			b.ReportMetric(best[3]/best[1], "old-target-speedup")
+			b.ReportMetric(best[1]/best[0], "fused-old/fused")
+		})
+	}
+}
+
+// cpuSeconds returns the user and system CPU time of the process: under
+// load from other processes it counts only the time this one ran, a
+// steadier comparison than wall time (all workers' time added).
+func cpuSeconds() float64 {
+	var ru syscall.Rusage
+	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
+		return math.NaN()
+	}
+	return float64(ru.Utime.Nano()+ru.Stime.Nano()) / 1e9
+}
+
+var fusedRounds = flag.Int("rounds", 3, "rounds of BenchmarkFusedTargets")

@@ -70,15 +70,17 @@ func detectAVX() bool {
 	return ebx7&(avx2|bmi2) == avx2|bmi2
 }
 
-// detectAVX512 reports whether AVX-512F is there and the operating system
-// saves the opmask and ZMM registers (XCR0 bits 5–7).
+// detectAVX512 reports whether AVX-512F and AVX-512VL are there and the
+// operating system saves the opmask and ZMM registers (XCR0 bits 5–7). VL
+// is needed by the 256-bit x2 kernels, which use the EVEX-only registers
+// Y16–Y31; every AVX-512 processor but the Xeon Phi has it.
 func detectAVX512() bool {
 	if !detectAVX() {
 		return false
 	}
 	_, ebx7, _, _ := cpuid(7, 0)
-	const avx512f = 1 << 16
-	return ebx7&avx512f != 0 && xgetbv0()&0xe6 == 0xe6
+	const avx512f, avx512vl = 1 << 16, 1 << 31
+	return ebx7&(avx512f|avx512vl) == avx512f|avx512vl && xgetbv0()&0xe6 == 0xe6
 }
 
 // useAVX selects the assembly kernels and useAVX512 the 512-bit form of the

@@ -1,23 +1,5 @@
 #include "textflag.h"
 
-// func ksCPUID(eaxIn, ecxIn uint32) (eax, ebx, ecx, edx uint32)
-TEXT ·ksCPUID(SB), NOSPLIT, $0-24
-	MOVL eaxIn+0(FP), AX
-	MOVL ecxIn+4(FP), CX
-	CPUID
-	MOVL AX, eax+8(FP)
-	MOVL BX, ebx+12(FP)
-	MOVL CX, ecx+16(FP)
-	MOVL DX, edx+20(FP)
-	RET
-
-// func ksXGETBV0() (eax uint32)
-TEXT ·ksXGETBV0(SB), NOSPLIT, $0-4
-	MOVL $0, CX
-	XGETBV
-	MOVL AX, eax+0(FP)
-	RET
-
 // The kernel computes, for four (re, im) pairs at a time, the
 // probabilities p = re·re + im·im as the Go code does: two VMULPD and one
 // VHADDPD (re² + im², in that order; no FMA, so p is the Go value bit for

@@ -270,12 +270,11 @@ const DefaultSavedStateBytes = 256 << 20
 //
 // A trajectory agrees with the ideal circuit up to its first error, and
 // its error draws do not depend on the state, so an instance first replays
-// its error streams to learn every trajectory's first erroneous gate
-// (firstErrors), keeps the ideal state before the gates where trajectories
-// branch off (checkpointsFor), and starts each trajectory from the last
-// one at or before its first error instead of from |0…0⟩: the same gate
-// calls on the same amplitudes, so its state, and so the output, is the
-// same bit for bit.
+// its error streams to learn where every trajectory branches off
+// (branchPoints), keeps the ideal state there (checkpointsFor), and starts
+// each trajectory from the last one at or before its branch point instead
+// of from |0…0⟩: the same values as the same gate calls on the same
+// amplitudes, so its state, and so the output, is the same bit for bit.
 func (c *Config) savedStates() int {
 	if !c.HasGateErrors() {
 		return 0
@@ -291,14 +290,14 @@ func (c *Config) savedStates() int {
 }
 
 // checkpointsFor returns at most m gate counts, ascending, after which the
-// ideal run keeps its state, chosen among the first erroneous gates firsts
-// of the trajectories (−1 for a trajectory without errors) so as to
-// minimise the gates the trajectories re-run: a trajectory whose first error
-// is gate f starts from the largest checkpoint c ≤ f and re-runs f − c
-// gates before it (from |0…0⟩, c = 0). With room for every distinct first
-// error that is all of them; otherwise the choice is the exact optimum of a
-// dynamic programme over the k distinct first errors, O(m·k²) steps with
-// k ≤ the trajectories.
+// ideal run keeps its state, chosen among the branch points firsts of the
+// trajectories (branchPoint; −1 for a trajectory without errors) so as to
+// minimise the gates the trajectories re-run: a trajectory branching at b
+// starts from the largest checkpoint c ≤ b and re-runs b − c gates before
+// it (from |0…0⟩, c = 0). With room for every distinct branch point that is
+// all of them; otherwise the choice is the exact optimum of a dynamic
+// programme over the k distinct branch points, O(m·k²) steps with k ≤ the
+// trajectories.
 func checkpointsFor(firsts []int, m int) []int {
 	var sorted []int
 	for _, f := range firsts {
@@ -499,6 +498,8 @@ type worker struct {
 	// Config.savedStates.
 	at    []int
 	saved [][]complex128
+	// pairs[k] holds the qubits (A, B) of gate k of the current instance.
+	pairs [][2]int
 	// dressing holds the single-qubit error rates and matrices, nil
 	// without single-qubit errors.
 	dressing *dressing
@@ -517,23 +518,25 @@ func newWorker(c *Config, workers int) (*worker, error) {
 	return w, nil
 }
 
-// firstErrors replays the error streams of instance id (ErrorStream and,
+// branchPoints replays the error streams of instance id (ErrorStream and,
 // with single-qubit errors, SingleErrorStream) as the trajectories will
-// draw them and returns the first erroneous gate of each of t trajectories
-// (GateCount for an error in the final layer only, −1 for none). The draws
-// do not depend on the state, so the replay costs no simulation.
-func (w *worker) firstErrors(circ *Circuit, rates []float64, singles *singleErrors, id, t int) []int {
+// draw them and returns the branch point (branchPoint) of each of t
+// trajectories, −1 for a trajectory without errors. The draws do not
+// depend on the state, so the replay costs no simulation.
+func (w *worker) branchPoints(circ *Circuit, rates []float64, singles *singleErrors, id, t int) []int {
 	c := w.c
 	errs := ErrorStream(c.Seed, id, c.Depth)
 	var singleRng *rand.Rand
 	if singles != nil {
 		singleRng = SingleErrorStream(c.Seed, id, c.Depth)
 	}
-	firsts := make([]int, t)
-	for j := range firsts {
+	paulis := make([]uint8, len(rates))
+	points := make([]int, t)
+	for j := range points {
 		first := -1
 		for i := range rates {
-			if drawPauli(errs, rates[i]) != 0 && first < 0 {
+			paulis[i] = uint8(drawPauli(errs, rates[i]))
+			if paulis[i] != 0 && first < 0 {
 				first = i
 			}
 		}
@@ -542,9 +545,60 @@ func (w *worker) firstErrors(circ *Circuit, rates []float64, singles *singleErro
 				first = f
 			}
 		}
-		firsts[j] = first
+		points[j] = -1
+		if first >= 0 {
+			points[j] = w.branchPoint(first, paulis, singles)
+		}
 	}
-	return firsts
+	return points
+}
+
+// branchPoint returns the number of gates b after which the trajectory
+// whose first error is gate first (GateCount for the final layer) leaves
+// the ideal circuit for good: up to gate b its state is the ideal state
+// after b gates with its Pauli errors so far applied to it (applyPauli), so
+// it can start there. That holds up to the first later gate that touches a
+// qubit an error acted on, or that has a single-qubit error (not a Pauli
+// once moved past G), or the final layer: any other gate acts on qubits the
+// Paulis leave alone, on groups of amplitudes that the Paulis permute and
+// multiply by a sign, and a product or sum of negated values is the negated
+// result, bit for bit. A phase ±i (an odd number of Y factors so far) would
+// need the kernels to treat real and imaginary parts alike, which nothing
+// promises, so the trajectory branches at the next gate then.
+func (w *worker) branchPoint(first int, paulis []uint8, s *singleErrors) int {
+	dressed := func(k int) bool { return s != nil && s.gate != nil && s.gate[k] != 0 }
+	if first >= len(w.pairs) || dressed(first) {
+		return first
+	}
+	var support uint64 // qubits an error acted on
+	ys := 0            // Y factors so far
+	add := func(k int) {
+		p := paulis[k]
+		if p/4 != 0 {
+			support |= 1 << w.pairs[k][0]
+		}
+		if p%4 != 0 {
+			support |= 1 << w.pairs[k][1]
+		}
+		ys += b2i(p/4 == 2) + b2i(p%4 == 2)
+	}
+	add(first)
+	for k := first + 1; k < len(w.pairs); k++ {
+		if ys%2 == 1 || dressed(k) || support&(1<<w.pairs[k][0]|1<<w.pairs[k][1]) != 0 {
+			return k
+		}
+		if paulis[k] != 0 {
+			add(k)
+		}
+	}
+	return len(w.pairs)
+}
+
+func b2i(b bool) int {
+	if b {
+		return 1
+	}
+	return 0
 }
 
 // runIdeal resets w.st and runs the noiseless circuit, gate by gate as
@@ -578,12 +632,13 @@ func (w *worker) runIdeal(ctx context.Context, circ *Circuit) bool {
 
 // runTrajectory sets w.st to the state of the trajectory whose first error
 // is gate first, with the errors paulis and singles: from the last saved
-// ideal state at or before first (or |0…0⟩), the remaining gates with
+// ideal state at or before its branch point (or |0…0⟩) with the Paulis
+// before that state applied to it, the remaining gates with
 // their errors in the order of Circuit.runNoisy, then the final layer.
 // The two-qubit Paulis go through applyPauli rather than a 4×4 product:
 // the same amplitudes (see applyPauli) at a fraction of a gate's cost.
 func (w *worker) runTrajectory(ctx context.Context, circ *Circuit, first int, paulis []uint8, singles *singleErrors) bool {
-	j, found := slices.BinarySearch(w.at, first)
+	j, found := slices.BinarySearch(w.at, w.branchPoint(first, paulis, singles))
 	if !found {
 		j--
 	}
@@ -593,6 +648,12 @@ func (w *worker) runTrajectory(ctx context.Context, circ *Circuit, first int, pa
 	} else {
 		from = w.at[j]
 		copy(w.st.Amp, w.saved[j])
+		// Between first and the branch point every error is a Pauli.
+		for k := first; k < from; k++ {
+			if paulis[k] != 0 {
+				applyPauli(w.st.Amp, w.pairs[k][0], w.pairs[k][1], paulis[k])
+			}
+		}
 	}
 	st, k := w.st, 0
 	for _, step := range circ.Steps {
@@ -688,7 +749,13 @@ func (w *worker) instance(ctx context.Context, id int) (r *Result, ok bool) {
 	branch := c.savedStates() > 0
 	w.at = nil
 	if branch {
-		w.at = checkpointsFor(w.firstErrors(circ, rates, singles, id, r.Trajectories), c.savedStates())
+		w.pairs = w.pairs[:0]
+		for _, step := range circ.Steps {
+			for _, g := range step {
+				w.pairs = append(w.pairs, [2]int{g.A, g.B})
+			}
+		}
+		w.at = checkpointsFor(w.branchPoints(circ, rates, singles, id, r.Trajectories), c.savedStates())
 		if !w.runIdeal(ctx, circ) {
 			return nil, false
 		}

@@ -556,8 +556,12 @@ func (w *worker) branchPoints(circ *Circuit, rates []float64, singles *singleErr
 // branchPoint returns the number of gates b after which the trajectory
 // whose first error is gate first (GateCount for the final layer) leaves
 // the ideal circuit for good: up to gate b its state is the ideal state
-// after b gates with its Pauli errors so far applied to it (applyPauli), so
-// it can start there. That holds up to the first later gate that touches a
+// after b gates with its Pauli errors so far applied to it, so
+// it can start there. A Pauli's 4×4 product (sim.State.Apply2) multiplies
+// each amplitude by ±1 or ±i, exactly, and the others by 0, adding only
+// zeros: it gives a signed permutation of the amplitudes whichever state it
+// acts on, up to the signs of zeros, which no later product or sum, nor any
+// probability, can tell. That holds up to the first later gate that touches a
 // qubit an error acted on, or that has a single-qubit error (not a Pauli
 // once moved past G), or the final layer: any other gate acts on qubits the
 // Paulis leave alone, on groups of amplitudes that the Paulis permute and
@@ -635,8 +639,6 @@ func (w *worker) runIdeal(ctx context.Context, circ *Circuit) bool {
 // ideal state at or before its branch point (or |0…0⟩) with the Paulis
 // before that state applied to it, the remaining gates with
 // their errors in the order of Circuit.runNoisy, then the final layer.
-// The two-qubit Paulis go through applyPauli rather than a 4×4 product:
-// the same amplitudes (see applyPauli) at a fraction of a gate's cost.
 func (w *worker) runTrajectory(ctx context.Context, circ *Circuit, first int, paulis []uint8, singles *singleErrors) bool {
 	j, found := slices.BinarySearch(w.at, w.branchPoint(first, paulis, singles))
 	if !found {
@@ -651,7 +653,7 @@ func (w *worker) runTrajectory(ctx context.Context, circ *Circuit, first int, pa
 		// Between first and the branch point every error is a Pauli.
 		for k := first; k < from; k++ {
 			if paulis[k] != 0 {
-				applyPauli(w.st.Amp, w.pairs[k][0], w.pairs[k][1], paulis[k])
+				w.st.Apply2(w.pairs[k][0], w.pairs[k][1], &pauliMatrices[paulis[k]], w.workers)
 			}
 		}
 	}
@@ -675,7 +677,7 @@ func (w *worker) runTrajectory(ctx context.Context, circ *Circuit, first int, pa
 				st.Apply2(g.A, g.B, &singles.mats[k][singles.gate[k]], w.workers)
 			}
 			if paulis[k] != 0 {
-				applyPauli(st.Amp, g.A, g.B, paulis[k])
+				st.Apply2(g.A, g.B, &pauliMatrices[paulis[k]], w.workers)
 			}
 			k++
 		}
@@ -687,47 +689,6 @@ func (w *worker) runTrajectory(ctx context.Context, circ *Circuit, first int, pa
 		}
 	}
 	return true
-}
-
-// applyPauli applies the two-qubit Pauli p = 4·p_A + p_B (pauliMatrices)
-// on qubits (a, b) to amp as what it is, a permutation of the amplitudes
-// times ±1 or ±i. The product by pauliMatrices[p] in sim.State.Apply2 gives
-// the same values: each output is a sum of the products of one input by
-// ±1 or ±i, exact, and of the others by 0, which add only zeros; at most
-// the sign of a zero can differ, which no later product or sum, nor any
-// probability, can tell. Measured on the demo chip (16 qubits): about a
-// tenth of the time of the product.
-func applyPauli(amp []complex128, a, b int, p uint8) {
-	if p/4 != 0 {
-		applyPauli1(amp, a, p/4)
-	}
-	if p%4 != 0 {
-		applyPauli1(amp, b, p%4)
-	}
-}
-
-// applyPauli1 applies X (1), Y (2) or Z (3) to qubit q of amp.
-func applyPauli1(amp []complex128, q int, p uint8) {
-	bit := 1 << q
-	for base := 0; base < len(amp); base += 2 * bit {
-		lo, hi := amp[base:base+bit], amp[base+bit:base+2*bit]
-		switch p {
-		case 1: // X
-			for i := range lo {
-				lo[i], hi[i] = hi[i], lo[i]
-			}
-		case 2: // Y = [[0, −i], [i, 0]]: |0⟩ ← −i·a₁, |1⟩ ← i·a₀
-			for i := range lo {
-				z0, z1 := lo[i], hi[i]
-				lo[i] = complex(imag(z1), -real(z1))
-				hi[i] = complex(-imag(z0), real(z0))
-			}
-		case 3: // Z
-			for i := range hi {
-				hi[i] = -hi[i]
-			}
-		}
-	}
 }
 
 // instance runs instance id; ok is false when ctx was cancelled first.

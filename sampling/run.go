@@ -46,9 +46,10 @@ type Config struct {
 	// DefaultTrajectories. See TrajectoryShots for the split of the shots.
 	Trajectories int
 	// SavedStateBytes bounds the memory of the ideal states an instance
-	// with gate errors keeps at step boundaries, so that each trajectory
-	// starts from the last one before its first error instead of from
-	// |0…0⟩ (the output is the same bit for bit either way): 0 means
+	// with gate errors keeps before the gates where its trajectories have
+	// their first errors, so that each trajectory starts from the last one
+	// at or before its first error instead of from |0…0⟩ (the output is the
+	// same bit for bit either way; see savedStates): 0 means
 	// DefaultSavedStateBytes, a negative value keeps none.
 	SavedStateBytes int64
 	// Workers bounds the goroutines; 0 or less means 1.
@@ -247,15 +248,15 @@ func keyedStream(tag string, seed uint64, instance, depth int) *rand.Rand {
 
 // bytesPerInstance is the memory one instance in flight needs: the state,
 // the ideal probabilities and their alias table, and with gate errors one
-// more probability vector and alias table for the trajectories, plus the
-// recorded shots.
+// more probability vector and alias table for the trajectories, the saved
+// ideal states (at most savedStates), plus the recorded shots.
 func (c *Config) bytesPerInstance() float64 {
 	dim := float64(uint64(1) << c.Qubits)
 	need := sim.StateBytes(c.Qubits) + 8*dim + 16*dim
 	if c.HasGateErrors() {
 		need += 8*dim + 16*dim
 	}
-	need += float64(len(c.checkpoints())) * sim.StateBytes(c.Qubits)
+	need += float64(c.savedStates()) * sim.StateBytes(c.Qubits)
 	return need + 16*float64(c.Shots)
 }
 
@@ -263,34 +264,121 @@ func (c *Config) bytesPerInstance() float64 {
 // instance with gate errors when Config.SavedStateBytes is 0: 256 MiB.
 const DefaultSavedStateBytes = 256 << 20
 
-// checkpoints returns the step counts after which an instance with gate
-// errors keeps a copy of its ideal state, ascending: every step boundary
-// when they fit in SavedStateBytes, else as many as fit, evenly spaced
-// (none for states larger than the budget). A trajectory agrees with the ideal
-// circuit up to its first error, so it starts from the last copy before
-// that error instead of from |0…0⟩, with the same gates applied in the same
-// order to the same amplitudes: its state, and so the output, is the same
-// bit for bit.
-func (c *Config) checkpoints() []int {
-	if !c.HasGateErrors() || c.Depth < 2 {
-		return nil
+// savedStates returns the largest number of ideal states an instance with
+// gate errors keeps: as many as fit in SavedStateBytes, and no more than
+// one per trajectory (0 for a negative budget or without gate errors).
+//
+// A trajectory agrees with the ideal circuit up to its first error, and
+// its error draws do not depend on the state, so an instance first replays
+// its error streams to learn where every trajectory branches off
+// (branchPoints), keeps the ideal state there (checkpointsFor), and starts
+// each trajectory from the last one at or before its branch point instead
+// of from |0…0⟩: the same values as the same gate calls on the same
+// amplitudes, so its state, and so the output, is the same bit for bit.
+func (c *Config) savedStates() int {
+	if !c.HasGateErrors() {
+		return 0
 	}
 	budget := c.SavedStateBytes
 	switch {
 	case budget < 0:
-		return nil
+		return 0
 	case budget == 0:
 		budget = DefaultSavedStateBytes
 	}
-	m := min(c.Depth-1, int(float64(budget)/sim.StateBytes(c.Qubits)))
-	pos := make([]int, 0, m)
-	for j := range m {
-		p := (j + 1) * c.Depth / (m + 1)
-		if p >= 1 && (len(pos) == 0 || p > pos[len(pos)-1]) {
-			pos = append(pos, p)
+	return min(c.TrajectoriesPerInstance(), int(float64(budget)/sim.StateBytes(c.Qubits)))
+}
+
+// checkpointsFor returns at most m gate counts, ascending, after which the
+// ideal run keeps its state, chosen among the branch points firsts of the
+// trajectories (branchPoint; −1 for a trajectory without errors) so as to
+// minimise the gates the trajectories re-run: a trajectory branching at b
+// starts from the largest checkpoint c ≤ b and re-runs b − c gates before
+// it (from |0…0⟩, c = 0). With room for every distinct branch point that is
+// all of them; otherwise the choice is the exact optimum of a dynamic
+// programme over the k distinct branch points, O(m·k²) steps with k ≤ the
+// trajectories.
+func checkpointsFor(firsts []int, m int) []int {
+	var sorted []int
+	for _, f := range firsts {
+		if f > 0 {
+			sorted = append(sorted, f)
 		}
 	}
-	return pos
+	slices.Sort(sorted)
+	var pos, count []int // distinct first errors > 0, ascending, and their trajectories
+	for _, f := range sorted {
+		if len(pos) > 0 && pos[len(pos)-1] == f {
+			count[len(count)-1]++
+			continue
+		}
+		pos, count = append(pos, f), append(count, 1)
+	}
+	if m <= 0 || len(pos) == 0 {
+		return nil
+	}
+	if m >= len(pos) {
+		return pos
+	}
+	k := len(pos)
+	// Prefix sums: n[j] trajectories and g[j] gates Σ count·pos over pos[..j).
+	n, g := make([]int, k+1), make([]int, k+1)
+	for x := range k {
+		n[x+1], g[x+1] = n[x]+count[x], g[x]+count[x]*pos[x]
+	}
+	// span(i, j): the gates re-run by the trajectories with first errors
+	// pos[i..j) when they start from pos[i] (from 0 for i = −1).
+	span := func(i, j int) int {
+		if i < 0 {
+			return g[j]
+		}
+		return g[j] - g[i] - pos[i]*(n[j]-n[i])
+	}
+	const inf = int(^uint(0) >> 1)
+	// best[u][i]: the least cost of the trajectories with first errors
+	// pos[..i) using u checkpoints, the last at pos[i−1] (u ≥ 1), and from[u][i]
+	// the position of the previous one (0 for none).
+	best := make([][]int, m+1)
+	from := make([][]int, m+1)
+	for u := range best {
+		best[u] = make([]int, k+1)
+		from[u] = make([]int, k+1)
+		for i := range best[u] {
+			best[u][i] = inf
+		}
+	}
+	best[0][0] = 0
+	for u := 1; u <= m; u++ {
+		for i := u; i <= k; i++ { // last checkpoint pos[i−1]
+			for j := u - 1; j < i; j++ { // previous last checkpoint pos[j−1] (none for j = 0)
+				if best[u-1][j] == inf {
+					continue
+				}
+				if v := best[u-1][j] + span(j-1, i-1); v < best[u][i] {
+					best[u][i], from[u][i] = v, j
+				}
+			}
+		}
+	}
+	// The trajectories after the last checkpoint pos[i−1] re-run from it.
+	bu, bi, bv := 0, 0, span(-1, k)
+	for u := 1; u <= m; u++ {
+		for i := u; i <= k; i++ {
+			if best[u][i] == inf {
+				continue
+			}
+			if v := best[u][i] + span(i-1, k); v < bv {
+				bu, bi, bv = u, i, v
+			}
+		}
+	}
+	out := make([]int, 0, bu)
+	for u, i := bu, bi; u > 0; u-- {
+		out = append(out, pos[i-1])
+		i = from[u][i]
+	}
+	slices.Reverse(out)
+	return out
 }
 
 // Run simulates and samples the instances of c. It calls emit with each
@@ -405,9 +493,13 @@ type worker struct {
 	ideal, noisy []float64
 	idealTable   Alias
 	noisyTable   Alias
-	// saved[j] is the ideal state after at[j] steps (Config.checkpoints).
+	// saved[j] is the ideal state after the first at[j] gates of the
+	// current instance (checkpointsFor); buffers grow up to
+	// Config.savedStates.
 	at    []int
 	saved [][]complex128
+	// pairs[k] holds the qubits (A, B) of gate k of the current instance.
+	pairs [][2]int
 	// dressing holds the single-qubit error rates and matrices, nil
 	// without single-qubit errors.
 	dressing *dressing
@@ -418,61 +510,224 @@ func newWorker(c *Config, workers int) (*worker, error) {
 	if err != nil {
 		return nil, err
 	}
-	w := &worker{c: c, workers: workers, st: st, ideal: make([]float64, len(st.Amp)), at: c.checkpoints()}
+	w := &worker{c: c, workers: workers, st: st, ideal: make([]float64, len(st.Amp))}
 	if c.HasGateErrors() {
 		w.noisy = make([]float64, len(st.Amp))
 		w.dressing = newDressing(c)
 	}
-	for range w.at {
-		w.saved = append(w.saved, make([]complex128, len(st.Amp)))
-	}
 	return w, nil
 }
 
-// save is called by the ideal run after each step: it copies the state at
-// the checkpoints.
-func (w *worker) save(done int) {
-	if j, ok := slices.BinarySearch(w.at, done); ok {
-		copy(w.saved[j], w.st.Amp)
+// branchPoints replays the error streams of instance id (ErrorStream and,
+// with single-qubit errors, SingleErrorStream) as the trajectories will
+// draw them and returns the branch point (branchPoint) of each of t
+// trajectories, −1 for a trajectory without errors. The draws do not
+// depend on the state, so the replay costs no simulation.
+func (w *worker) branchPoints(circ *Circuit, rates []float64, singles *singleErrors, id, t int) []int {
+	c := w.c
+	errs := ErrorStream(c.Seed, id, c.Depth)
+	var singleRng *rand.Rand
+	if singles != nil {
+		singleRng = SingleErrorStream(c.Seed, id, c.Depth)
 	}
+	paulis := make([]uint8, len(rates))
+	points := make([]int, t)
+	for j := range points {
+		first := -1
+		for i := range rates {
+			paulis[i] = uint8(drawPauli(errs, rates[i]))
+			if paulis[i] != 0 && first < 0 {
+				first = i
+			}
+		}
+		if singles != nil {
+			if f := singles.draw(singleRng); f >= 0 && (first < 0 || f < first) {
+				first = f
+			}
+		}
+		points[j] = -1
+		if first >= 0 {
+			points[j] = w.branchPoint(first, paulis, singles)
+		}
+	}
+	return points
 }
 
-// restore sets w.st to the latest saved ideal state before the step that
-// holds gate first (in circuit order) and returns its step count, or
-// resets it to |0…0⟩ and returns 0 when none is saved that early.
-func (w *worker) restore(circ *Circuit, first int) int {
-	step := 0
-	for k := first; step < len(circ.Steps) && k >= len(circ.Steps[step]); step++ {
-		k -= len(circ.Steps[step])
+// branchPoint returns the number of gates b after which the trajectory
+// whose first error is gate first (GateCount for the final layer) leaves
+// the ideal circuit for good: up to gate b its state is the ideal state
+// after b gates with its Pauli errors so far applied to it, so
+// it can start there. A Pauli's 4×4 product (sim.State.Apply2) multiplies
+// each amplitude by ±1 or ±i, exactly, and the others by 0, adding only
+// zeros: it gives a signed permutation of the amplitudes whichever state it
+// acts on, up to the signs of zeros, which no later product or sum, nor any
+// probability, can tell. That holds up to the first later gate that touches a
+// qubit an error acted on, or that has a single-qubit error (not a Pauli
+// once moved past G), or the final layer: any other gate acts on qubits the
+// Paulis leave alone, on groups of amplitudes that the Paulis permute and
+// multiply by a sign, and a product or sum of negated values is the negated
+// result, bit for bit. A phase ±i (an odd number of Y factors so far) would
+// need the kernels to treat real and imaginary parts alike, which nothing
+// promises, so the trajectory branches at the next gate then.
+func (w *worker) branchPoint(first int, paulis []uint8, s *singleErrors) int {
+	dressed := func(k int) bool { return s != nil && s.gate != nil && s.gate[k] != 0 }
+	if first >= len(w.pairs) || dressed(first) {
+		return first
 	}
-	// The last checkpoint at or before step: the steps before it hold no
-	// error.
-	j, found := slices.BinarySearch(w.at, step)
+	var support uint64 // qubits an error acted on
+	ys := 0            // Y factors so far
+	add := func(k int) {
+		p := paulis[k]
+		if p/4 != 0 {
+			support |= 1 << w.pairs[k][0]
+		}
+		if p%4 != 0 {
+			support |= 1 << w.pairs[k][1]
+		}
+		ys += b2i(p/4 == 2) + b2i(p%4 == 2)
+	}
+	add(first)
+	for k := first + 1; k < len(w.pairs); k++ {
+		if ys%2 == 1 || dressed(k) || support&(1<<w.pairs[k][0]|1<<w.pairs[k][1]) != 0 {
+			return k
+		}
+		if paulis[k] != 0 {
+			add(k)
+		}
+	}
+	return len(w.pairs)
+}
+
+func b2i(b bool) int {
+	if b {
+		return 1
+	}
+	return 0
+}
+
+// runIdeal resets w.st and runs the noiseless circuit, gate by gate as
+// Circuit.runNoisy does, copying the state after the first w.at[j] gates
+// into w.saved[j].
+func (w *worker) runIdeal(ctx context.Context, circ *Circuit) bool {
+	for len(w.saved) < len(w.at) {
+		w.saved = append(w.saved, make([]complex128, len(w.st.Amp)))
+	}
+	w.st.Reset()
+	k, j := 0, 0
+	for _, step := range circ.Steps {
+		if ctx.Err() != nil {
+			return false
+		}
+		for i := range step {
+			g := &step[i]
+			w.st.Apply2(g.A, g.B, &g.M, w.workers)
+			k++
+			if j < len(w.at) && w.at[j] == k {
+				copy(w.saved[j], w.st.Amp)
+				j++
+			}
+		}
+	}
+	for q := range circ.Final {
+		w.st.Apply1(q, &circ.Final[q], w.workers)
+	}
+	return true
+}
+
+// runTrajectory sets w.st to the state of the trajectory whose first error
+// is gate first, with the errors paulis and singles: from the last saved
+// ideal state at or before its branch point (or |0…0⟩) with the Paulis
+// before that state applied to it, the remaining gates with
+// their errors in the order of Circuit.runNoisy, then the final layer.
+func (w *worker) runTrajectory(ctx context.Context, circ *Circuit, first int, paulis []uint8, singles *singleErrors) bool {
+	j, found := slices.BinarySearch(w.at, w.branchPoint(first, paulis, singles))
 	if !found {
 		j--
 	}
+	from := 0
 	if j < 0 {
 		w.st.Reset()
-		return 0
+	} else {
+		from = w.at[j]
+		copy(w.st.Amp, w.saved[j])
+		// Between first and the branch point every error is a Pauli.
+		for k := first; k < from; k++ {
+			if paulis[k] != 0 {
+				w.st.Apply2(w.pairs[k][0], w.pairs[k][1], &pauliMatrices[paulis[k]], w.workers)
+			}
+		}
 	}
-	copy(w.st.Amp, w.saved[j])
-	return w.at[j]
+	st, k := w.st, 0
+	for _, step := range circ.Steps {
+		if k+len(step) <= from {
+			k += len(step)
+			continue
+		}
+		if ctx.Err() != nil {
+			return false
+		}
+		for i := range step {
+			if k < from {
+				k++
+				continue
+			}
+			g := &step[i]
+			st.Apply2(g.A, g.B, &g.M, w.workers)
+			if singles != nil && singles.gate != nil && singles.gate[k] != 0 {
+				st.Apply2(g.A, g.B, &singles.mats[k][singles.gate[k]], w.workers)
+			}
+			if paulis[k] != 0 {
+				st.Apply2(g.A, g.B, &pauliMatrices[paulis[k]], w.workers)
+			}
+			k++
+		}
+	}
+	for q := range circ.Final {
+		st.Apply1(q, &circ.Final[q], w.workers)
+		if singles != nil && singles.final != nil && singles.final[q] != 0 {
+			st.Apply1(q, &onePauli[singles.final[q]], w.workers)
+		}
+	}
+	return true
 }
 
 // instance runs instance id; ok is false when ctx was cancelled first.
 func (w *worker) instance(ctx context.Context, id int) (r *Result, ok bool) {
 	c := w.c
 	circ := Build(c.Schedule, c.Ensemble, c.Qubits, c.Seed, id, c.Depth)
-	w.st.Reset()
-	var save func(int)
-	if len(w.at) > 0 {
-		save = w.save
+	r = &Result{Circuit: circ, Trajectories: c.TrajectoriesPerInstance()}
+	var rates []float64
+	var singles *singleErrors
+	if r.Trajectories > 0 {
+		rates = w.gateRates(circ)
+		if w.dressing != nil {
+			singles = w.dressing.errors(circ)
+		}
 	}
-	if !circ.runFrom(ctx, w.st, 0, nil, w.workers, save) {
-		return nil, false
+	// Without saved states (SavedStateBytes < 0) every trajectory runs
+	// from |0…0⟩ through Circuit.runNoisy: the method the saved states
+	// are checked against.
+	branch := c.savedStates() > 0
+	w.at = nil
+	if branch {
+		w.pairs = w.pairs[:0]
+		for _, step := range circ.Steps {
+			for _, g := range step {
+				w.pairs = append(w.pairs, [2]int{g.A, g.B})
+			}
+		}
+		w.at = checkpointsFor(w.branchPoints(circ, rates, singles, id, r.Trajectories), c.savedStates())
+		if !w.runIdeal(ctx, circ) {
+			return nil, false
+		}
+	} else {
+		w.st.Reset()
+		if !circ.runFrom(ctx, w.st, 0, nil, w.workers, nil) {
+			return nil, false
+		}
 	}
 	w.ideal = w.st.Probabilities(w.ideal, w.workers)
-	r = &Result{Circuit: circ, Collision: stats.Collision(w.ideal), Trajectories: c.TrajectoriesPerInstance()}
+	r.Collision = stats.Collision(w.ideal)
 	shots := ShotStream(c.Seed, id, c.Depth)
 	out := make([]uint64, 0, c.Shots)
 	w.idealTable.Reset(w.ideal)
@@ -481,11 +736,8 @@ func (w *worker) instance(ctx context.Context, id int) (r *Result, ok bool) {
 	} else {
 		errs := ErrorStream(c.Seed, id, c.Depth)
 		paulis := make([]uint8, circ.GateCount())
-		rates := w.gateRates(circ)
-		var singles *singleErrors
 		var singleRng *rand.Rand
-		if w.dressing != nil {
-			singles = w.dressing.errors(circ)
+		if singles != nil {
 			singleRng = SingleErrorStream(c.Seed, id, c.Depth)
 		}
 		for _, k := range TrajectoryShots(c.Shots, r.Trajectories) {
@@ -506,9 +758,15 @@ func (w *worker) instance(ctx context.Context, id int) (r *Result, ok bool) {
 			}
 			table := &w.idealTable
 			if first >= 0 { // a trajectory without errors is the ideal circuit
-				from := w.restore(circ, first)
-				if !circ.runNoisy(ctx, w.st, from, paulis, singles, w.workers, nil) {
-					return nil, false
+				if branch {
+					if !w.runTrajectory(ctx, circ, first, paulis, singles) {
+						return nil, false
+					}
+				} else {
+					w.st.Reset()
+					if !circ.runNoisy(ctx, w.st, 0, paulis, singles, w.workers, nil) {
+						return nil, false
+					}
 				}
 				w.noisy = w.st.Probabilities(w.noisy, w.workers)
 				w.noisyTable.Reset(w.noisy)

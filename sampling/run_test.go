@@ -509,25 +509,25 @@ func TestScoreByHand(t *testing.T) {
 }
 
 // TestTrajectoryCheckpoints: trajectories that start from a saved ideal
-// state (Config.checkpoints) give the same outcomes bit for bit as
+// state (checkpointsFor) give the same outcomes bit for bit as
 // trajectories run from |0…0⟩, the definition: both apply the same gates in
-// the same order to the same amplitudes. Checked with a checkpoint at every
-// step, with two checkpoints (a budget of two states), on a gate set with a
-// final single-qubit layer, and at a high error rate so that first errors
-// fall in every step, including the first.
+// the same order to the same amplitudes. Checked with room for every first
+// error, with a budget of one and of two states, on a gate set with a final
+// single-qubit layer, and at a high error rate so that first errors fall
+// on every gate, including the first.
 func TestTrajectoryCheckpoints(t *testing.T) {
 	for _, gates := range []string{"haar", "cz+haar1"} {
 		c := testConfig(t, "grid:3x3", gates, 9, 3, 120, Noise{Fidelity: 1, GateError: 0.03})
 		c.Trajectories = 60
 		c.SavedStateBytes = -1
-		if len(c.checkpoints()) != 0 {
-			t.Fatalf("checkpoints with no budget: %v", c.checkpoints())
+		if c.savedStates() != 0 {
+			t.Fatalf("%d saved states with no budget", c.savedStates())
 		}
 		want := runAll(t, c)
-		for _, budget := range []float64{2, 100} {
+		for _, budget := range []float64{1, 2, 100} {
 			c.SavedStateBytes = int64(budget * sim.StateBytes(c.Qubits))
-			if got := len(c.checkpoints()); got != min(int(budget), c.Depth-1) {
-				t.Fatalf("budget of %g states: %d checkpoints", budget, got)
+			if got := c.savedStates(); got != min(int(budget), c.Trajectories) {
+				t.Fatalf("budget of %g states: %d saved states", budget, got)
 			}
 			got := runAll(t, c)
 			for i := range want {

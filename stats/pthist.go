@@ -281,7 +281,7 @@ func (h *HaarKS) finish(pass ProbabilityPass, apass AmplitudePass) (ks float64, 
 			r.collect(pass, apass, cands)
 			return r.best, passes + 1
 		}
-		r.split(pass, cands)
+		r.split(pass, apass, cands)
 		passes++
 	}
 }
@@ -548,8 +548,12 @@ func (r *ksRefiner) leaf(k uint64) int {
 }
 
 // split divides each candidate into at most per children of 2^shift keys
-// and counts them in one pass.
-func (r *ksRefiner) split(pass ProbabilityPass, cands []int32) {
+// and counts them in one pass over the probabilities or, when apass is not
+// nil, over the amplitudes. That pass skips the values of idle level-0 bins
+// with the collect pass's filter (ksFilterPairs) and routes only the kept
+// ones to their leaves, so that it runs near the collect pass's speed
+// instead of walking from the level-0 bin of every value.
+func (r *ksRefiner) split(pass ProbabilityPass, apass AmplitudePass, cands []int32) {
 	per := uint64(max(2, min(ksMaxLeaves, max(256, r.dim/32))/len(cands)))
 	first := len(r.nodes)
 	for _, ci := range cands {
@@ -573,18 +577,32 @@ func (r *ksRefiner) split(pass ProbabilityPass, cands []int32) {
 	r.markActive()
 	slots := len(r.nodes) - first
 	counts := make([][]uint32, r.workers)
-	pass(func(w int, p []float64) {
-		c := counts[w]
-		if c == nil {
-			c = make([]uint32, slots)
-			counts[w] = c
-		}
+	route := func(c []uint32, p []float64) {
 		for _, v := range p {
 			if i := r.leaf(ksKey(v)); i >= first {
 				c[i-first]++ // the new leaves are the only ksCount nodes
 			}
 		}
-	})
+	}
+	if apass != nil {
+		r.filterPass(apass, func(w int, kept []float64) {
+			c := counts[w]
+			if c == nil {
+				c = make([]uint32, slots)
+				counts[w] = c
+			}
+			route(c, kept)
+		})
+	} else {
+		pass(func(w int, p []float64) {
+			c := counts[w]
+			if c == nil {
+				c = make([]uint32, slots)
+				counts[w] = c
+			}
+			route(c, p)
+		})
+	}
 	for _, ci := range cands {
 		nd := r.nodes[ci]
 		below := nd.below
@@ -634,7 +652,6 @@ func (r *ksRefiner) collect(pass ProbabilityPass, apass AmplitudePass, cands []i
 	// the uniform bins, the bitmap for the outer ones) and its leaf is a
 	// candidate.
 	pos, shift, act := r.lo0&^(1<<63), r.shift, r.act0
-	span := [2]int{r.actLo, r.actHi}
 	keep := func(buf []float64, v float64) []float64 {
 		k := ksKey(v)
 		if i := r.bin0(k); r.active[i>>6]>>(i&63)&1 != 0 {
@@ -645,21 +662,10 @@ func (r *ksRefiner) collect(pass ProbabilityPass, apass AmplitudePass, cands []i
 		return buf
 	}
 	if apass != nil {
-		if r.kept == nil {
-			r.kept = make([][]float64, r.workers)
-		}
-		apass(func(w int, a []float64) {
-			buf, out := r.vals[w], r.kept[w]
-			if out == nil {
-				out = make([]float64, ksFilterBlock)
-				r.kept[w] = out
-			}
-			for len(a) >= 2 {
-				m := min(len(a), 2*ksFilterBlock) &^ 1
-				for _, v := range out[:ksFilterPairs(a[:m], pos, shift, act, span, out)] {
-					buf = keep(buf, v)
-				}
-				a = a[m:]
+		r.filterPass(apass, func(w int, kept []float64) {
+			buf := r.vals[w]
+			for _, v := range kept {
+				buf = keep(buf, v)
 			}
 			r.vals[w] = buf
 		})
@@ -734,6 +740,31 @@ func (r *ksRefiner) collect(pass ProbabilityPass, apass AmplitudePass, cands []i
 		}
 		r.refine(vs, r.tmp[:len(vs)], nd.below, nd.lo, nd.hi, ft, fu)
 	}
+}
+
+// filterPass runs a pass over the amplitudes apass that hands visit, per
+// block of at most ksFilterBlock pairs, the probabilities ksFilterPairs
+// keeps with the active level-0 bins of the last markActive: those of the
+// active bins, and every value outside the uniform bins. kept is reused
+// once visit returns.
+func (r *ksRefiner) filterPass(apass AmplitudePass, visit func(w int, kept []float64)) {
+	if r.kept == nil {
+		r.kept = make([][]float64, r.workers)
+	}
+	pos, shift, act := r.lo0&^(1<<63), r.shift, r.act0
+	span := [2]int{r.actLo, r.actHi}
+	apass(func(w int, a []float64) {
+		out := r.kept[w] // worker w alone touches kept[w]
+		if out == nil {
+			out = make([]float64, ksFilterBlock)
+			r.kept[w] = out
+		}
+		for len(a) >= 2 {
+			m := min(len(a), 2*ksFilterBlock) &^ 1
+			visit(w, out[:ksFilterPairs(a[:m], pos, shift, act, span, out)])
+			a = a[m:]
+		}
+	})
 }
 
 // ksRefineSort is the number of values below which refine sorts them

@@ -375,6 +375,11 @@ type ksRefiner struct {
 	fsub [][2]float64 // the CDF at their smallest and largest keys
 	// kept holds each worker's values kept by ksFilterPairs in a block.
 	kept [][]float64
+	// scounts and dcounts are split's counts per worker (dcounts its dense
+	// ones), kept for the next split; sused and dused mark those a split's
+	// pass has cleared for its use.
+	scounts, dcounts [][]uint32
+	sused, dused     []bool
 }
 
 const ksSlack = 1e-12 // candidates keep U_j ≥ L − slack, so rounding in the bounds never drops the supremum's bin
@@ -506,7 +511,13 @@ type ksUpper struct {
 	u    float64
 }
 
-// markActive rebuilds the table of level-0 nodes that are not idle.
+// markActive rebuilds the table of level-0 nodes that are not idle: a
+// level-0 node is active when it is a counted or collected leaf, or when it
+// was split and one of its descendants is. A split node whose descendants
+// are all idle again is left out, so that the passes after a split skip its
+// values in the filter instead of walking each to an idle leaf (at 2^24
+// values and 2^12 bins per octave, 15% of the values lie in bins split by
+// the first refinement, and the collect pass kept them all).
 func (r *ksRefiner) markActive() {
 	n0 := r.n0
 	if r.active == nil {
@@ -519,7 +530,7 @@ func (r *ksRefiner) markActive() {
 	clear(r.active)
 	r.actLo, r.actHi = r.nb0, -1
 	for i := 0; i < n0; i++ {
-		on := r.state[i] != ksIdle
+		on := r.live(i)
 		if on {
 			r.active[i>>6] |= 1 << (i & 63)
 		}
@@ -531,6 +542,24 @@ func (r *ksRefiner) markActive() {
 			}
 		}
 	}
+}
+
+// live reports whether node i is a counted or collected leaf or has one
+// among its descendants.
+func (r *ksRefiner) live(i int) bool {
+	switch r.state[i] {
+	case ksIdle:
+		return false
+	case ksSplit:
+		nd := &r.nodes[i]
+		for j := nd.child; j < nd.child+nd.nchild; j++ {
+			if r.live(int(j)) {
+				return true
+			}
+		}
+		return false
+	}
+	return true
 }
 
 // leaf walks from the level-0 bin of key k down to its leaf and returns the
@@ -576,40 +605,75 @@ func (r *ksRefiner) split(pass ProbabilityPass, apass AmplitudePass, cands []int
 	}
 	r.markActive()
 	slots := len(r.nodes) - first
-	counts := make([][]uint32, r.workers)
-	route := func(c []uint32, p []float64) {
+	// In the first split every candidate is a level-0 node, and the uniform
+	// ones all get children of 2^cs keys: their children's counts are then
+	// held in one array indexed by the value's bits from the first active
+	// uniform bin, as the count pass indexes its bins, with no walk down the
+	// nodes; the values outside (outer bins) take leaf. The array also has
+	// slots for the idle bins between candidates, which are not read.
+	cs := uint(bits.Len64((uint64(1)<<r.shift+per-1)/per - 1))
+	dense := r.actLo <= r.actHi
+	for _, ci := range cands {
+		dense = dense && int(ci) < r.n0
+	}
+	var dlen int
+	var dpos uint64
+	if dense {
+		dlen = (r.actHi - r.actLo + 1) << (r.shift - cs)
+		dpos = (r.lo0 + uint64(r.actLo)<<r.shift) &^ (1 << 63)
+		dense = dlen <= ksMaxDense
+	}
+	if r.scounts == nil {
+		r.scounts, r.dcounts = make([][]uint32, r.workers), make([][]uint32, r.workers)
+		r.sused, r.dused = make([]bool, r.workers), make([]bool, r.workers)
+	}
+	counts, dcounts := r.scounts, r.dcounts
+	clear(r.sused)
+	clear(r.dused)
+	route := func(w int, p []float64) {
+		c := counts[w]
+		if !r.sused[w] {
+			c = ksCounters(c, slots)
+			counts[w], r.sused[w] = c, true
+		}
+		if !dense {
+			for _, v := range p {
+				if i := r.leaf(ksKey(v)); i >= first {
+					c[i-first]++ // the new leaves are the only ksCount nodes
+				}
+			}
+			return
+		}
+		dc := dcounts[w]
+		if !r.dused[w] {
+			dc = ksCounters(dc, dlen)
+			dcounts[w], r.dused[w] = dc, true
+		}
 		for _, v := range p {
-			if i := r.leaf(ksKey(v)); i >= first {
-				c[i-first]++ // the new leaves are the only ksCount nodes
+			if j := (math.Float64bits(v) - dpos) >> (cs & 63); j < uint64(len(dc)) {
+				dc[j]++
+			} else if i := r.leaf(ksKey(v)); i >= first {
+				c[i-first]++
 			}
 		}
 	}
 	if apass != nil {
-		r.filterPass(apass, func(w int, kept []float64) {
-			c := counts[w]
-			if c == nil {
-				c = make([]uint32, slots)
-				counts[w] = c
-			}
-			route(c, kept)
-		})
+		r.filterPass(apass, route)
 	} else {
-		pass(func(w int, p []float64) {
-			c := counts[w]
-			if c == nil {
-				c = make([]uint32, slots)
-				counts[w] = c
-			}
-			route(c, p)
-		})
+		pass(route)
 	}
 	for _, ci := range cands {
 		nd := r.nodes[ci]
 		below := nd.below
+		u := int(ci) - 3 - r.actLo // the bin's place in the dense array
+		fromDense := dense && int(ci) >= 3 && int(ci) < 3+r.nb0
 		for j := nd.child; j < nd.child+nd.nchild; j++ {
 			ch := &r.nodes[j]
 			for w := range counts {
-				if counts[w] != nil {
+				switch {
+				case fromDense && r.dused[w]:
+					ch.count += int64(dcounts[w][u<<(r.shift-cs)+int(j-nd.child)])
+				case !fromDense && r.sused[w]:
 					ch.count += int64(counts[w][int(j)-first])
 				}
 			}
@@ -618,6 +682,19 @@ func (r *ksRefiner) split(pass ProbabilityPass, apass AmplitudePass, cands []int
 		}
 	}
 }
+
+// ksCounters returns n zero counters, in c when it has the room.
+func ksCounters(c []uint32, n int) []uint32 {
+	if cap(c) < n {
+		return make([]uint32, n)
+	}
+	c = c[:n]
+	clear(c)
+	return c
+}
+
+// ksMaxDense bounds the dense counts of a first split (4 MiB per worker).
+const ksMaxDense = 1 << 20
 
 // collect gathers the values of the candidate leaves and takes the exact
 // terms of the statistic from them, in a pass over the probabilities or,

@@ -74,7 +74,7 @@ func KSHaarPasses(dim, workers, budget int, pass ProbabilityPass) (ks float64, p
 //
 // The level-0 bins are fixed by D: uniform in the bits of the float64
 // value, 2^b bins per octave of D·p over [2^−12, 2^6), with b from 4 to 14
-// growing like log2(D)/2 (at most about e^−1·2^−b of the Porter–Thomas
+// growing with D (at most about e^−1·2^−b of the Porter–Thomas
 // mass in a bin), so a value is binned by integer operations on its bits
 // and the CDF at every bin edge is evaluated once, in NewHaarKS.
 type HaarKS struct {
@@ -385,27 +385,27 @@ type ksRefiner struct {
 const ksSlack = 1e-12 // candidates keep U_j ≥ L − slack, so rounding in the bounds never drops the supremum's bin
 
 // ksBinBits returns the number of bits b of 2^b level-0 bins per octave for
-// dim = 2^n values: b = n/2 + 2 (n/2 + 1 below n = 14), from 2^4 to 2^14
-// bins per octave. The mass of a bin near the mode of the Porter–Thomas
-// law (≲ e^−1·ln 2·2^−b) then falls like the statistic's typical size
-// 1/√D, so that about the same share of the values stays in candidate bins
-// after the first pass at every size, while the counters of the first pass
-// grow only like √D. The earlier rule of dim/2^7 bins per octave kept
-// 2^14 bins from 2^22 values on; this one was measured faster on
-// BenchmarkReader (scan, two workers, AMD EPYC Zen 5, best b of 4 to 14 per
-// size, median of 3 or 4 alternating runs): n = 12: b = 7, 32.6 µs against
-// 48.0 µs at b = 5; n = 16: b = 10, 0.28 ms against 0.35 ms at b = 9;
-// n = 20: b = 12, 2.3 ms against 3.4 ms at b = 13; n = 22: b = 12, 8.8 ms
-// against 10.8 ms at b = 14 (b = 13: 9.7 ms); n = 24: b = 14, 42 ms
+// dim = 2^n values: b = min(n − 7, n/2 + 2), from 2^4 to 2^14 bins per
+// octave. From n = 20 on, the n/2 + 2 term applies: the mass of a bin near
+// the mode of the Porter–Thomas law (≲ e^−1·ln 2·2^−b) then falls like the
+// statistic's typical size 1/√D, so that about the same share of the values
+// stays in candidate bins after the first pass, while the counters of the
+// first pass grow only like √D; the earlier rule, n − 7 (dim/2^7 bins per
+// octave), kept 2^14 bins from n = 21 on. Measured on BenchmarkReader (scan,
+// two workers, AMD EPYC Zen 5, median of 4 alternating runs per b): n = 20:
+// b = 12, 2.3 ms against 3.4 ms at b = 13 (b = 11: 2.4 ms); n = 22: b = 13,
+// 9.7 ms against 10.8 ms at b = 14 (b = 12: 8.8 ms); n = 24: b = 14, 42 ms
 // against 49 ms at b = 13 and 61 ms at b = 12, where coarser bins leave
-// more than D/16 candidate values and need a split pass.
+// more than D/16 candidate values and need a split pass. Up to n = 18 the
+// n − 7 term is kept: at n = 16 a finer b = 10 was faster on
+// BenchmarkReader (0.28 against 0.35 ms), but the demo scan (n = 16, one
+// worker per read-out) ran 1.37 billion instructions in the per-bin loops
+// (select_, finish, bounds, markActive) against 0.73 billion at b = 9
+// (callgrind, 40 instances), so it stays at b = 9. (Tuned first on the demo scan: dim/2^9 and dim/2^5 bins per
+// octave were both slower.)
 func ksBinBits(dim int) uint {
 	n := bits.Len(uint(dim)) - 1
-	b := n/2 + 1
-	if n >= 14 {
-		b++
-	}
-	return uint(min(ksMaxBinBits, max(4, b)))
+	return uint(min(ksMaxBinBits, max(4, min(n-7, n/2+2))))
 }
 
 func newKSRefiner(dim, workers int) *ksRefiner {

@@ -73,10 +73,10 @@ func KSHaarPasses(dim, workers, budget int, pass ProbabilityPass) (ks float64, p
 // HaarKS ready for the next state.
 //
 // The level-0 bins are fixed by D: uniform in the bits of the float64
-// value, 2^b bins per octave of D·p over [2^−24, 2^8), with b from 4 to 12
-// growing with D (at most about e^−1·2^−b of the Porter–Thomas mass in a
-// bin), so a value is binned by integer operations on its bits and the
-// CDF at every bin edge is evaluated once, in NewHaarKS.
+// value, 2^b bins per octave of D·p over [2^−12, 2^6), with b from 4 to 14
+// growing with D (at most about e^−1·2^−b of the Porter–Thomas
+// mass in a bin), so a value is binned by integer operations on its bits
+// and the CDF at every bin edge is evaluated once, in NewHaarKS.
 type HaarKS struct {
 	r      *ksRefiner
 	counts [][]uint32 // level-0 counts per worker
@@ -281,7 +281,7 @@ func (h *HaarKS) finish(pass ProbabilityPass, apass AmplitudePass) (ks float64, 
 			r.collect(pass, apass, cands)
 			return r.best, passes + 1
 		}
-		r.split(pass, cands)
+		r.split(pass, apass, cands)
 		passes++
 	}
 }
@@ -375,19 +375,37 @@ type ksRefiner struct {
 	fsub [][2]float64 // the CDF at their smallest and largest keys
 	// kept holds each worker's values kept by ksFilterPairs in a block.
 	kept [][]float64
+	// scounts and dcounts are split's counts per worker (dcounts its dense
+	// ones), kept for the next split; sused and dused mark those a split's
+	// pass has cleared for its use.
+	scounts, dcounts [][]uint32
+	sused, dused     []bool
 }
 
 const ksSlack = 1e-12 // candidates keep U_j ≥ L − slack, so rounding in the bounds never drops the supremum's bin
 
 // ksBinBits returns the number of bits b of 2^b level-0 bins per octave for
-// dim values: about dim/2^7 bins per octave, from 2^4 to 2^14, so that a bin
-// near the mode of the Porter–Thomas law holds some tens of values (some
-// hundreds from 2^22 values on) and much less mass (≲ e^−1·ln 2·2^−b) than
-// the statistic's typical size 1/√D: few bins then remain candidates after
-// the first pass. (Tuned on the demo scan: dim/2^9 and dim/2^5 bins per
+// dim = 2^n values: b = min(n − 7, n/2 + 2), from 2^4 to 2^14 bins per
+// octave. From n = 20 on, the n/2 + 2 term applies: the mass of a bin near
+// the mode of the Porter–Thomas law (≲ e^−1·ln 2·2^−b) then falls like the
+// statistic's typical size 1/√D, so that about the same share of the values
+// stays in candidate bins after the first pass, while the counters of the
+// first pass grow only like √D; the earlier rule, n − 7 (dim/2^7 bins per
+// octave), kept 2^14 bins from n = 21 on. Measured on BenchmarkReader (scan,
+// two workers, AMD EPYC Zen 5, median of 4 alternating runs per b): n = 20:
+// b = 12, 2.3 ms against 3.4 ms at b = 13 (b = 11: 2.4 ms); n = 22: b = 13,
+// 9.7 ms against 10.8 ms at b = 14 (b = 12: 8.8 ms); n = 24: b = 14, 42 ms
+// against 49 ms at b = 13 and 61 ms at b = 12, where coarser bins leave
+// more than D/16 candidate values and need a split pass. Up to n = 18 the
+// n − 7 term is kept: at n = 16 a finer b = 10 was faster on
+// BenchmarkReader (0.28 against 0.35 ms), but the demo scan (n = 16, one
+// worker per read-out) ran 1.37 billion instructions in the per-bin loops
+// (select_, finish, bounds, markActive) against 0.73 billion at b = 9
+// (callgrind, 40 instances), so it stays at b = 9. (Tuned first on the demo scan: dim/2^9 and dim/2^5 bins per
 // octave were both slower.)
 func ksBinBits(dim int) uint {
-	return uint(min(ksMaxBinBits, max(4, bits.Len(uint(dim))-8)))
+	n := bits.Len(uint(dim)) - 1
+	return uint(min(ksMaxBinBits, max(4, min(n-7, n/2+2))))
 }
 
 func newKSRefiner(dim, workers int) *ksRefiner {
@@ -506,7 +524,13 @@ type ksUpper struct {
 	u    float64
 }
 
-// markActive rebuilds the table of level-0 nodes that are not idle.
+// markActive rebuilds the table of level-0 nodes that are not idle: a
+// level-0 node is active when it is a counted or collected leaf, or when it
+// was split and one of its descendants is. A split node whose descendants
+// are all idle again is left out, so that the passes after a split skip its
+// values in the filter instead of walking each to an idle leaf (at 2^24
+// values and 2^12 bins per octave, 15% of the values lie in bins split by
+// the first refinement, and the collect pass kept them all).
 func (r *ksRefiner) markActive() {
 	n0 := r.n0
 	if r.active == nil {
@@ -519,7 +543,7 @@ func (r *ksRefiner) markActive() {
 	clear(r.active)
 	r.actLo, r.actHi = r.nb0, -1
 	for i := 0; i < n0; i++ {
-		on := r.state[i] != ksIdle
+		on := r.live(i)
 		if on {
 			r.active[i>>6] |= 1 << (i & 63)
 		}
@@ -531,6 +555,24 @@ func (r *ksRefiner) markActive() {
 			}
 		}
 	}
+}
+
+// live reports whether node i is a counted or collected leaf or has one
+// among its descendants.
+func (r *ksRefiner) live(i int) bool {
+	switch r.state[i] {
+	case ksIdle:
+		return false
+	case ksSplit:
+		nd := &r.nodes[i]
+		for j := nd.child; j < nd.child+nd.nchild; j++ {
+			if r.live(int(j)) {
+				return true
+			}
+		}
+		return false
+	}
+	return true
 }
 
 // leaf walks from the level-0 bin of key k down to its leaf and returns the
@@ -548,8 +590,12 @@ func (r *ksRefiner) leaf(k uint64) int {
 }
 
 // split divides each candidate into at most per children of 2^shift keys
-// and counts them in one pass.
-func (r *ksRefiner) split(pass ProbabilityPass, cands []int32) {
+// and counts them in one pass over the probabilities or, when apass is not
+// nil, over the amplitudes. That pass skips the values of idle level-0 bins
+// with the collect pass's filter (ksFilterPairs) and routes only the kept
+// ones to their leaves, so that it runs near the collect pass's speed
+// instead of walking from the level-0 bin of every value.
+func (r *ksRefiner) split(pass ProbabilityPass, apass AmplitudePass, cands []int32) {
 	per := uint64(max(2, min(ksMaxLeaves, max(256, r.dim/32))/len(cands)))
 	first := len(r.nodes)
 	for _, ci := range cands {
@@ -572,26 +618,75 @@ func (r *ksRefiner) split(pass ProbabilityPass, cands []int32) {
 	}
 	r.markActive()
 	slots := len(r.nodes) - first
-	counts := make([][]uint32, r.workers)
-	pass(func(w int, p []float64) {
+	// In the first split every candidate is a level-0 node, and the uniform
+	// ones all get children of 2^cs keys: their children's counts are then
+	// held in one array indexed by the value's bits from the first active
+	// uniform bin, as the count pass indexes its bins, with no walk down the
+	// nodes; the values outside (outer bins) take leaf. The array also has
+	// slots for the idle bins between candidates, which are not read.
+	cs := uint(bits.Len64((uint64(1)<<r.shift+per-1)/per - 1))
+	dense := r.actLo <= r.actHi
+	for _, ci := range cands {
+		dense = dense && int(ci) < r.n0
+	}
+	var dlen int
+	var dpos uint64
+	if dense {
+		dlen = (r.actHi - r.actLo + 1) << (r.shift - cs)
+		dpos = (r.lo0 + uint64(r.actLo)<<r.shift) &^ (1 << 63)
+		dense = dlen <= ksMaxDense
+	}
+	if r.scounts == nil {
+		r.scounts, r.dcounts = make([][]uint32, r.workers), make([][]uint32, r.workers)
+		r.sused, r.dused = make([]bool, r.workers), make([]bool, r.workers)
+	}
+	counts, dcounts := r.scounts, r.dcounts
+	clear(r.sused)
+	clear(r.dused)
+	route := func(w int, p []float64) {
 		c := counts[w]
-		if c == nil {
-			c = make([]uint32, slots)
-			counts[w] = c
+		if !r.sused[w] {
+			c = ksCounters(c, slots)
+			counts[w], r.sused[w] = c, true
+		}
+		if !dense {
+			for _, v := range p {
+				if i := r.leaf(ksKey(v)); i >= first {
+					c[i-first]++ // the new leaves are the only ksCount nodes
+				}
+			}
+			return
+		}
+		dc := dcounts[w]
+		if !r.dused[w] {
+			dc = ksCounters(dc, dlen)
+			dcounts[w], r.dused[w] = dc, true
 		}
 		for _, v := range p {
-			if i := r.leaf(ksKey(v)); i >= first {
-				c[i-first]++ // the new leaves are the only ksCount nodes
+			if j := (math.Float64bits(v) - dpos) >> (cs & 63); j < uint64(len(dc)) {
+				dc[j]++
+			} else if i := r.leaf(ksKey(v)); i >= first {
+				c[i-first]++
 			}
 		}
-	})
+	}
+	if apass != nil {
+		r.filterPass(apass, route)
+	} else {
+		pass(route)
+	}
 	for _, ci := range cands {
 		nd := r.nodes[ci]
 		below := nd.below
+		u := int(ci) - 3 - r.actLo // the bin's place in the dense array
+		fromDense := dense && int(ci) >= 3 && int(ci) < 3+r.nb0
 		for j := nd.child; j < nd.child+nd.nchild; j++ {
 			ch := &r.nodes[j]
 			for w := range counts {
-				if counts[w] != nil {
+				switch {
+				case fromDense && r.dused[w]:
+					ch.count += int64(dcounts[w][u<<(r.shift-cs)+int(j-nd.child)])
+				case !fromDense && r.sused[w]:
 					ch.count += int64(counts[w][int(j)-first])
 				}
 			}
@@ -600,6 +695,19 @@ func (r *ksRefiner) split(pass ProbabilityPass, cands []int32) {
 		}
 	}
 }
+
+// ksCounters returns n zero counters, in c when it has the room.
+func ksCounters(c []uint32, n int) []uint32 {
+	if cap(c) < n {
+		return make([]uint32, n)
+	}
+	c = c[:n]
+	clear(c)
+	return c
+}
+
+// ksMaxDense bounds the dense counts of a first split (4 MiB per worker).
+const ksMaxDense = 1 << 20
 
 // collect gathers the values of the candidate leaves and takes the exact
 // terms of the statistic from them, in a pass over the probabilities or,
@@ -634,7 +742,6 @@ func (r *ksRefiner) collect(pass ProbabilityPass, apass AmplitudePass, cands []i
 	// the uniform bins, the bitmap for the outer ones) and its leaf is a
 	// candidate.
 	pos, shift, act := r.lo0&^(1<<63), r.shift, r.act0
-	span := [2]int{r.actLo, r.actHi}
 	keep := func(buf []float64, v float64) []float64 {
 		k := ksKey(v)
 		if i := r.bin0(k); r.active[i>>6]>>(i&63)&1 != 0 {
@@ -645,21 +752,10 @@ func (r *ksRefiner) collect(pass ProbabilityPass, apass AmplitudePass, cands []i
 		return buf
 	}
 	if apass != nil {
-		if r.kept == nil {
-			r.kept = make([][]float64, r.workers)
-		}
-		apass(func(w int, a []float64) {
-			buf, out := r.vals[w], r.kept[w]
-			if out == nil {
-				out = make([]float64, ksFilterBlock)
-				r.kept[w] = out
-			}
-			for len(a) >= 2 {
-				m := min(len(a), 2*ksFilterBlock) &^ 1
-				for _, v := range out[:ksFilterPairs(a[:m], pos, shift, act, span, out)] {
-					buf = keep(buf, v)
-				}
-				a = a[m:]
+		r.filterPass(apass, func(w int, kept []float64) {
+			buf := r.vals[w]
+			for _, v := range kept {
+				buf = keep(buf, v)
 			}
 			r.vals[w] = buf
 		})
@@ -734,6 +830,31 @@ func (r *ksRefiner) collect(pass ProbabilityPass, apass AmplitudePass, cands []i
 		}
 		r.refine(vs, r.tmp[:len(vs)], nd.below, nd.lo, nd.hi, ft, fu)
 	}
+}
+
+// filterPass runs a pass over the amplitudes apass that hands visit, per
+// block of at most ksFilterBlock pairs, the probabilities ksFilterPairs
+// keeps with the active level-0 bins of the last markActive: those of the
+// active bins, and every value outside the uniform bins. kept is reused
+// once visit returns.
+func (r *ksRefiner) filterPass(apass AmplitudePass, visit func(w int, kept []float64)) {
+	if r.kept == nil {
+		r.kept = make([][]float64, r.workers)
+	}
+	pos, shift, act := r.lo0&^(1<<63), r.shift, r.act0
+	span := [2]int{r.actLo, r.actHi}
+	apass(func(w int, a []float64) {
+		out := r.kept[w] // worker w alone touches kept[w]
+		if out == nil {
+			out = make([]float64, ksFilterBlock)
+			r.kept[w] = out
+		}
+		for len(a) >= 2 {
+			m := min(len(a), 2*ksFilterBlock) &^ 1
+			visit(w, out[:ksFilterPairs(a[:m], pos, shift, act, span, out)])
+			a = a[m:]
+		}
+	})
 }
 
 // ksRefineSort is the number of values below which refine sorts them

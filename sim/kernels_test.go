@@ -7,7 +7,6 @@ import (
 	"math/cmplx"
 	"math/rand/v2"
 	"runtime"
-	"syscall"
 	"testing"
 	"time"
 	"unsafe"
@@ -444,17 +443,6 @@ func BenchmarkFusedTargets(b *testing.B) {
 			b.ReportMetric(best[1]/best[0], "fused-old/fused")
 		})
 	}
-}
-
-// cpuSeconds returns the user and system CPU time of the process: under
-// load from other processes it counts only the time this one ran, a
-// steadier comparison than wall time (all workers' time added).
-func cpuSeconds() float64 {
-	var ru syscall.Rusage
-	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
-		return math.NaN()
-	}
-	return float64(ru.Utime.Nano()+ru.Stime.Nano()) / 1e9
 }
 
 var fusedRounds = flag.Int("rounds", 3, "rounds of BenchmarkFusedTargets")

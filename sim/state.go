@@ -51,7 +51,7 @@ func (s *State) Reset() {
 func (s *State) Norm() float64 {
 	var sum float64
 	for _, v := range s.Amp {
-		sum += real(v)*real(v) + imag(v)*imag(v)
+		sum += float64(real(v)*real(v)) + float64(imag(v)*imag(v))
 	}
 	return sum
 }
@@ -83,8 +83,11 @@ func (s *State) Probabilities(dst []float64, workers int) []float64 {
 	}
 	dst = dst[:len(s.Amp)]
 	fill := func(lo, hi int) {
+		// float64(…) rounds each square on its own: no platform may fuse
+		// it into the add (arm64 and GOAMD64=v3 would), so a probability
+		// is the same value on every machine and in every read-out path.
 		for i, v := range s.Amp[lo:hi] {
-			dst[lo+i] = real(v)*real(v) + imag(v)*imag(v)
+			dst[lo+i] = float64(real(v)*real(v)) + float64(imag(v)*imag(v))
 		}
 	}
 	parallelFor(len(s.Amp), workers, s.Qubits >= ParallelQubits, fill)
@@ -201,12 +204,12 @@ func squares[T amplitude](src []T, p []float64) {
 	switch v := any(src).(type) {
 	case []complex128:
 		for i, a := range v {
-			p[i] = real(a)*real(a) + imag(a)*imag(a)
+			p[i] = float64(real(a)*real(a)) + float64(imag(a)*imag(a))
 		}
 	case []complex64:
 		for i, a := range v {
 			re, im := float64(real(a)), float64(imag(a))
-			p[i] = re*re + im*im
+			p[i] = float64(re*re) + float64(im*im)
 		}
 	}
 }

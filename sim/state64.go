@@ -49,7 +49,7 @@ func (s *State64) Norm() float64 {
 	var sum float64
 	for _, v := range s.Amp {
 		re, im := float64(real(v)), float64(imag(v))
-		sum += re*re + im*im
+		sum += float64(re*re) + float64(im*im)
 	}
 	return sum
 }
@@ -99,7 +99,7 @@ func (s *State64) Probabilities(dst []float64, workers int) []float64 {
 	parallelFor(len(s.Amp), workers, s.Qubits >= ParallelQubits, func(lo, hi int) {
 		for i, v := range s.Amp[lo:hi] {
 			re, im := float64(real(v)), float64(imag(v))
-			dst[lo+i] = re*re + im*im
+			dst[lo+i] = float64(re*re) + float64(im*im)
 		}
 	})
 	return dst

@@ -100,7 +100,7 @@ func TestNormPreserved(t *testing.T) {
 	sum := 0.0
 	for i, v := range p {
 		sum += v
-		if a := s.Amp[i]; v != real(a)*real(a)+imag(a)*imag(a) {
+		if a := s.Amp[i]; v != float64(real(a)*real(a))+float64(imag(a)*imag(a)) {
 			t.Fatalf("p[%d] = %g, |amp|² = %g", i, v, cmplx.Abs(a)*cmplx.Abs(a))
 		}
 	}

@@ -22,13 +22,16 @@ func sumSquares(p []float64) float64 {
 		var s0, s1, s2, s3 float64
 		i := 0
 		for ; i+4 <= len(p); i += 4 {
-			s0 += p[i] * p[i]
-			s1 += p[i+1] * p[i+1]
-			s2 += p[i+2] * p[i+2]
-			s3 += p[i+3] * p[i+3]
+			// float64(…) rounds each product on its own, so no platform
+			// fuses it into the add and the sum is the same everywhere
+			// (and equal to HaarKS.CountAmplitudes's bit for bit).
+			s0 += float64(p[i] * p[i])
+			s1 += float64(p[i+1] * p[i+1])
+			s2 += float64(p[i+2] * p[i+2])
+			s3 += float64(p[i+3] * p[i+3])
 		}
 		for ; i < len(p); i++ {
-			s0 += p[i] * p[i]
+			s0 += float64(p[i] * p[i])
 		}
 		return (s0 + s1) + (s2 + s3)
 	}

@@ -18,7 +18,7 @@ func haarProbs(rng *rand.Rand, d int) []float64 {
 	var s float64
 	for i := range p {
 		re, im := rng.NormFloat64(), rng.NormFloat64()
-		p[i] = re*re + im*im
+		p[i] = float64(re*re) + float64(im*im) // rounded apart, as the read-out does
 		s += p[i]
 	}
 	floats.Scale(1/s, p)

@@ -171,14 +171,19 @@ func (h *HaarKS) leafCount(w int, c []uint32, a []float64) float64 {
 	i := 0
 	for ; i+8 <= len(a); i += 8 {
 		q := a[i : i+8 : i+8]
-		p0 := q[0]*q[0] + q[1]*q[1]
-		p1 := q[2]*q[2] + q[3]*q[3]
-		p2 := q[4]*q[4] + q[5]*q[5]
-		p3 := q[6]*q[6] + q[7]*q[7]
-		s0 += p0 * p0
-		s1 += p1 * p1
-		s2 += p2 * p2
-		s3 += p3 * p3
+		// Every product is rounded on its own (the conversions forbid the
+		// compiler to fuse a multiply and an add, as it may on arm64 or with
+		// GOAMD64=v3): the values must equal the AVX2 filter's bit for bit,
+		// or a value near a bin edge would be counted in one bin and
+		// collected from another.
+		p0 := float64(q[0]*q[0]) + float64(q[1]*q[1])
+		p1 := float64(q[2]*q[2]) + float64(q[3]*q[3])
+		p2 := float64(q[4]*q[4]) + float64(q[5]*q[5])
+		p3 := float64(q[6]*q[6]) + float64(q[7]*q[7])
+		s0 += float64(p0 * p0)
+		s1 += float64(p1 * p1)
+		s2 += float64(p2 * p2)
+		s3 += float64(p3 * p3)
 		if j := (math.Float64bits(p0) - pos) >> (shift & 63); j < uint64(len(u)) {
 			u[j]++
 		} else {
@@ -201,8 +206,8 @@ func (h *HaarKS) leafCount(w int, c []uint32, a []float64) float64 {
 		}
 	}
 	for ; i+2 <= len(a); i += 2 {
-		p := a[i]*a[i] + a[i+1]*a[i+1]
-		s0 += p * p
+		p := float64(a[i]*a[i]) + float64(a[i+1]*a[i+1])
+		s0 += float64(p * p)
 		if j := (math.Float64bits(p) - pos) >> (shift & 63); j < uint64(len(u)) {
 			u[j]++
 		} else {
@@ -250,7 +255,7 @@ func (h *HaarKS) FinishAmplitudes(pass AmplitudePass) (ks float64, passes int) {
 			}
 			p := h.bufs[w][:len(a)/2]
 			for i := range p {
-				p[i] = a[2*i]*a[2*i] + a[2*i+1]*a[2*i+1]
+				p[i] = float64(a[2*i]*a[2*i]) + float64(a[2*i+1]*a[2*i+1])
 			}
 			visit(w, p)
 		})
@@ -1014,7 +1019,7 @@ func ksFilterPairs(a []float64, pos uint64, shift uint, act []uint8, span [2]int
 		a = a[8*g:]
 	}
 	for i := 1; i < len(a); i += 2 {
-		v := a[i-1]*a[i-1] + a[i]*a[i]
+		v := float64(a[i-1]*a[i-1]) + float64(a[i]*a[i])
 		if j := (math.Float64bits(v) - pos) >> (shift & 63); j >= uint64(len(act)) || act[j] != 0 {
 			out[n] = v
 			n++

@@ -223,7 +223,7 @@ func TestCountAmplitudes(t *testing.T) {
 			}
 			p := make([]float64, d)
 			for i := range p {
-				p[i] = a[2*i]*a[2*i] + a[2*i+1]*a[2*i+1]
+				p[i] = float64(a[2*i]*a[2*i]) + float64(a[2*i+1]*a[2*i+1])
 			}
 			// A budget of 16 values forces refinement passes before the collect.
 			h := NewHaarKS(d, 2, []int{16, 0, 0}[kind])

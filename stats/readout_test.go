@@ -15,7 +15,7 @@ import (
 func filterReference(r *ksRefiner, a []float64, act []uint8) []float64 {
 	var out []float64
 	for i := 1; i < len(a); i += 2 {
-		v := a[i-1]*a[i-1] + a[i]*a[i]
+		v := float64(a[i-1]*a[i-1]) + float64(a[i]*a[i]) // each square rounded, as the kernel does
 		if j := r.bin0(ksKey(v)); j < 3 || j >= 3+r.nb0 || act[j-3] != 0 {
 			out = append(out, v)
 		}
@@ -213,7 +213,7 @@ func TestReadoutPaths(t *testing.T) {
 		d := len(st.a) / 2
 		p := make([]float64, d)
 		for i := range p {
-			p[i] = st.a[2*i]*st.a[2*i] + st.a[2*i+1]*st.a[2*i+1]
+			p[i] = float64(st.a[2*i]*st.a[2*i]) + float64(st.a[2*i+1]*st.a[2*i+1])
 		}
 		saved := ksUseAVX2
 		ksUseAVX2 = false

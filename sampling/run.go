@@ -46,10 +46,11 @@ type Config struct {
 	// DefaultTrajectories. See TrajectoryShots for the split of the shots.
 	Trajectories int
 	// SavedStateBytes bounds the memory of the ideal states an instance
-	// with gate errors keeps before the gates where its trajectories have
-	// their first errors, so that each trajectory starts from the last one
-	// at or before its first error instead of from |0…0⟩ (the output is the
-	// same bit for bit either way; see savedStates): 0 means
+	// with gate errors keeps where its trajectories branch off (at their
+	// first errors, or later while their Paulis commute with the gates bit
+	// for bit), so that each trajectory starts from the last one at or
+	// before its branch point instead of from |0…0⟩ (the output is the same
+	// bit for bit either way; see savedStates): 0 means
 	// DefaultSavedStateBytes, a negative value keeps none.
 	SavedStateBytes int64
 	// Workers bounds the goroutines; 0 or less means 1.

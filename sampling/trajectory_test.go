@@ -1,6 +1,7 @@
 package sampling
 
 import (
+	"context"
 	"math/rand/v2"
 	"slices"
 	"testing"
@@ -134,6 +135,93 @@ func TestTrajectoryBranchesSameShots(t *testing.T) {
 					}
 				}
 			}
+		}
+	}
+}
+
+// trajectoryAmplitudes runs every trajectory with an error of c's instances
+// twice, from its saved branch point (runTrajectory) and from |0…0⟩
+// (Circuit.runNoisy, the definition), and returns how many it compared and
+// how many final states differ in any bit of any amplitude.
+func trajectoryAmplitudes(t *testing.T, c *Config) (checked, differ int) {
+	t.Helper()
+	w, err := newWorker(c, 1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ctx := context.Background()
+	for _, id := range c.Instances {
+		circ := Build(c.Schedule, c.Ensemble, c.Qubits, c.Seed, id, c.Depth)
+		trajectories := c.TrajectoriesPerInstance()
+		rates := w.gateRates(circ)
+		var singles *singleErrors
+		if w.dressing != nil {
+			singles = w.dressing.errors(circ)
+		}
+		w.pairs = w.pairs[:0]
+		for _, step := range circ.Steps {
+			for _, g := range step {
+				w.pairs = append(w.pairs, [2]int{g.A, g.B})
+			}
+		}
+		w.at = checkpointsFor(w.branchPoints(circ, rates, singles, id, trajectories), 1000)
+		w.runIdeal(ctx, circ)
+		errs := ErrorStream(c.Seed, id, c.Depth)
+		singleRng := SingleErrorStream(c.Seed, id, c.Depth)
+		paulis := make([]uint8, circ.GateCount())
+		for range trajectories {
+			first := -1
+			for i := range paulis {
+				paulis[i] = uint8(drawPauli(errs, rates[i]))
+				if first < 0 && paulis[i] != 0 {
+					first = i
+				}
+			}
+			if singles != nil {
+				if f := singles.draw(singleRng); f >= 0 && (first < 0 || f < first) {
+					first = f
+				}
+			}
+			if first < 0 {
+				continue
+			}
+			w.runTrajectory(ctx, circ, first, paulis, singles)
+			got := slices.Clone(w.st.Amp)
+			w.st.Reset()
+			circ.runNoisy(ctx, w.st, 0, paulis, singles, 1, nil)
+			checked++
+			if !slices.Equal(got, w.st.Amp) {
+				differ++
+				t.Logf("instance %d, first error at gate %d, branch point %d: the states differ", id, first, w.branchPoint(first, paulis, singles))
+			}
+		}
+	}
+	return checked, differ
+}
+
+// TestTrajectoryAmplitudesBitIdentical checks the claim behind the branch
+// points on the states themselves, where a last-bit difference shows (drawn
+// shots would almost never reveal one): every trajectory started from its
+// saved branch point ends in exactly (==) the state of the same trajectory
+// run from |0…0⟩, for Haar, cz+haar1 and iswap+haar1 gates, uniform Pauli
+// noise and a chip with single-qubit and readout errors. The reference is
+// the definition of a trajectory (common practice: quantum trajectories as
+// the circuit with its sampled Pauli errors inserted).
+func TestTrajectoryAmplitudesBitIdentical(t *testing.T) {
+	for _, gates := range []string{"haar", "cz+haar1", "iswap+haar1"} {
+		c := testConfig(t, "grid:3x4", gates, 14, 3, 400, Noise{Fidelity: 1, GateError: 0.03})
+		c.Trajectories = 200
+		n1, d1 := trajectoryAmplitudes(t, c)
+		chip := chipConfig(t, "grid:3x4", gates, 10, 2, 300, func(g *circuits.Graph) *circuits.ChipNoise {
+			return circuits.UniformNoise(g, 0.02, 0.01, 0.02, 0.05, 0.9)
+		})
+		chip.Trajectories = 150
+		n2, d2 := trajectoryAmplitudes(t, chip)
+		if n1 == 0 || n2 == 0 {
+			t.Fatalf("%s: no trajectory with an error was compared (%d, %d)", gates, n1, n2)
+		}
+		if d1+d2 > 0 {
+			t.Errorf("%s: %d of %d trajectories (uniform noise) and %d of %d (chip noise) end in another state than from |0…0⟩", gates, d1, n1, d2, n2)
 		}
 	}
 }

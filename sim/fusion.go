@@ -390,8 +390,9 @@ func applyWhole[T amplitude](n int, amp []T, kops []localOp, workers int) {
 // runPass executes one pass over the blocks of a state larger than a block:
 // each block (one setting of the qubits outside p.qubits) is gathered into
 // a buffer in 2^(k−low) runs of 2^low consecutive amplitudes, the kernels
-// act on the buffer, and it is scattered back. Workers take contiguous
-// ranges of blocks, so neighbouring blocks share pages.
+// act on the buffer, and it is scattered back; a block of the lowest k
+// qubits is contiguous and the kernels act on it in place. Workers take
+// contiguous ranges of blocks, so neighbouring blocks share pages.
 func runPass[T amplitude](n int, amp []T, p *pass, kops []localOp, bufs [][]T) {
 	workers := len(bufs)
 	k := len(p.qubits)
@@ -420,9 +421,11 @@ func runPass[T amplitude](n int, amp []T, p *pass, kops []localOp, bufs [][]T) {
 		if low == k {
 			// The block is the lowest k qubits: 2^k consecutive amplitudes,
 			// which the kernels take in place. The same operations on the
-			// same values as through the buffer, without the two copies
-			// (measured on a scan of grid:4x6 reading out every depth,
-			// where half the passes of a layer are of this kind).
+			// same values as through the buffer, without the two copies:
+			// a scan of grid:4x6 reading out every depth 1..20 (2 instances,
+			// where half the passes of a layer are of this kind) took 3.51,
+			// 3.61, 3.56 s against 3.82, 3.63, 3.81 s with the copies, in
+			// alternating runs on a quiet 2-core machine.
 			for blk := from; blk < to; blk++ {
 				base := blk << k
 				applyLocal(amp[base:base+1<<k:base+1<<k], k, kops)

@@ -542,7 +542,8 @@ func (r *ksRefiner) markActive() {
 		r.active = make([]uint64, (n0+63)/64)
 	}
 	if r.act0 == nil {
-		// Three bytes of padding for the four-byte gathers of ksFilterAVX2.
+		// Zero padding past the table: ksFilterAVX2 reads act[nb] for the
+		// lanes outside the active span.
 		r.act0 = make([]uint8, r.nb0, r.nb0+ksActPad)
 	}
 	clear(r.active)
@@ -992,8 +993,9 @@ func ksSkip(p []float64, pos uint64, shift uint, act []uint8) int {
 // the collect pass (a buffer of 8 KiB per worker, in the first-level cache).
 const ksFilterBlock = 1 << 10
 
-// ksActPad is the padding past the act table that ksFilterAVX2's
-// four-byte gathers need.
+// ksActPad is the zero padding past the act table: ksFilterAVX2 reads the
+// byte act[nb] for lanes outside the active span (one byte would do; eight
+// keep the table's end on a word).
 const ksActPad = 8
 
 // ksFilterPairs writes to out, in order, the probabilities re·re + im·im of

@@ -189,7 +189,8 @@ func TestKernels64PortableMatchVector(t *testing.T) {
 // one-gate kernel, and any change of operation order would show as a
 // last-bit difference on some of the 2^n random amplitudes). Every ordered
 // pair of positions on 5 to 8 qubits, and sub-ranges of groups that
-// start and end on multiples of 8, as parallelFor splits them.
+// start and end on multiples of 8, as parallelFor splits them, or only of 4
+// or 2, where the dispatch falls back to the narrower kernels.
 func TestX2BitIdentical(t *testing.T) {
 	if !useAVX512 {
 		t.Skip("no AVX-512 on this processor: the x2 kernels never run")
@@ -212,7 +213,7 @@ func TestX2BitIdentical(t *testing.T) {
 					m[i] = complex(rng.NormFloat64(), rng.NormFloat64()) / 2
 				}
 				k := newKernel2(a, b, &m)
-				for _, r := range [][2]int{{0, groups}, {8, groups}, {0, groups - 8}} {
+				for _, r := range [][2]int{{0, groups}, {8, groups}, {0, groups - 8}, {4, groups - 4}, {2, groups - 2}} {
 					want := append([]complex128(nil), amp...)
 					useX2 = false
 					apply2Kernel(want, &k, r[0], r[1])

@@ -146,6 +146,23 @@ func TestExtrapolateGridCurves(t *testing.T) {
 			if math.Abs(c.Ratio[0]-want) > 1e-12*want {
 				t.Errorf("%s depth 1: stored %.15g, closed form %.15g", c.Graph, c.Ratio[0], want)
 			}
+			if g.Qubits <= 12 {
+				// A second, independent engine: the MPS at a bond that
+				// truncates nothing (2^6 ≥ every Schmidt rank of 12
+				// qubits) reproduces the vector engine to 1e-10 (the
+				// tolerance of TestMPSExactBond).
+				s, _ := circuits.NewSchedule(circuits.KindLayered, g)
+				m, err := Exact(context.Background(), g, s, circuits.Haar{}, doc.Depths, ExactCurveOnly(),
+					ExactEngine(EngineMPS), ExactBondDim(64))
+				if err != nil {
+					t.Fatal(err)
+				}
+				for i, x := range m.Ratio {
+					if math.Abs(x-c.Ratio[i]) > 1e-10*x {
+						t.Errorf("%s depth %d: stored %.15g, MPS engine at bond 64 %.15g", c.Graph, doc.Depths[i], c.Ratio[i], x)
+					}
+				}
+			}
 			if *updateExtrap || (g.Qubits > 16 && !heavy) {
 				continue // just written, or too large for the default run
 			}

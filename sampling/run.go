@@ -534,24 +534,34 @@ func (w *worker) branchPoints(circ *Circuit, rates []float64, singles *singleErr
 	paulis := make([]uint8, len(rates))
 	points := make([]int, t)
 	for j := range points {
-		first := -1
-		for i := range rates {
-			paulis[i] = uint8(drawPauli(errs, rates[i]))
-			if paulis[i] != 0 && first < 0 {
-				first = i
-			}
-		}
-		if singles != nil {
-			if f := singles.draw(singleRng); f >= 0 && (first < 0 || f < first) {
-				first = f
-			}
-		}
+		first := drawTrajectory(errs, singleRng, rates, singles, paulis)
 		points[j] = -1
 		if first >= 0 {
 			points[j] = w.branchPoint(first, paulis, singles)
 		}
 	}
 	return points
+}
+
+// drawTrajectory draws one trajectory's errors: the Pauli of every gate
+// into paulis (rate rates[i], from errs) and, with singles, its
+// single-qubit errors (from singleRng, into singles), and returns the first
+// gate with an error of either kind, −1 for none. branchPoints and the
+// trajectories both draw through it, so the replay sees the same errors.
+func drawTrajectory(errs, singleRng *rand.Rand, rates []float64, singles *singleErrors, paulis []uint8) int {
+	first := -1
+	for i := range paulis {
+		paulis[i] = uint8(drawPauli(errs, rates[i]))
+		if first < 0 && paulis[i] != 0 {
+			first = i
+		}
+	}
+	if singles != nil {
+		if f := singles.draw(singleRng); f >= 0 && (first < 0 || f < first) {
+			first = f
+		}
+	}
+	return first
 }
 
 // branchPoint returns the number of gates b after which the trajectory
@@ -745,18 +755,7 @@ func (w *worker) instance(ctx context.Context, id int) (r *Result, ok bool) {
 			if ctx.Err() != nil {
 				return nil, false
 			}
-			first := -1 // the first gate with an error
-			for i := range paulis {
-				paulis[i] = uint8(drawPauli(errs, rates[i]))
-				if first < 0 && paulis[i] != 0 {
-					first = i
-				}
-			}
-			if singles != nil {
-				if f := singles.draw(singleRng); f >= 0 && (first < 0 || f < first) {
-					first = f
-				}
-			}
+			first := drawTrajectory(errs, singleRng, rates, singles, paulis)
 			table := &w.idealTable
 			if first >= 0 { // a trajectory without errors is the ideal circuit
 				if branch {

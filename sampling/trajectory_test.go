@@ -170,18 +170,7 @@ func trajectoryAmplitudes(t *testing.T, c *Config) (checked, differ int) {
 		singleRng := SingleErrorStream(c.Seed, id, c.Depth)
 		paulis := make([]uint8, circ.GateCount())
 		for range trajectories {
-			first := -1
-			for i := range paulis {
-				paulis[i] = uint8(drawPauli(errs, rates[i]))
-				if first < 0 && paulis[i] != 0 {
-					first = i
-				}
-			}
-			if singles != nil {
-				if f := singles.draw(singleRng); f >= 0 && (first < 0 || f < first) {
-					first = f
-				}
-			}
+			first := drawTrajectory(errs, singleRng, rates, singles, paulis)
 			if first < 0 {
 				continue
 			}

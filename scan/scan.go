@@ -125,6 +125,9 @@ type vector interface {
 	Run(ctx context.Context, ops []sim.Op, workers int) error
 	Probabilities(dst []float64, workers int) []float64
 	ProbabilityBlocks(workers int, visit func(w, off int, p []float64))
+	// RunVisit is sim.State.RunVisit (x amplitude pairs) or
+	// sim.State64.RunVisit (x probabilities).
+	RunVisit(ctx context.Context, ops []sim.Op, workers int, visit func(w, off int, x []float64)) error
 }
 
 // newVector allocates the n-qubit state of c's precision.
@@ -277,14 +280,16 @@ func runInstance(ctx context.Context, c *Config, id, n int, st vector, ro *reado
 		for q := range final {
 			ops = append(ops, sim.Op{Single: true, A: q, U: final[q]})
 		}
-		if st.Run(ctx, ops, ro.workers) != nil {
+		// The read-out's first pass runs inside the last pass of the gates
+		// where it can (sim.State.RunVisit).
+		if ro.run(ctx, st, ops) != nil {
 			return nil, false
 		}
 		ops = ops[:0]
 		for q := range final {
 			ops = append(ops, sim.Op{Single: true, A: q, U: adjoint2(&final[q])})
 		}
-		z, ks := ro.read(st)
+		z, ks := ro.finish(st)
 		recs = append(recs, Record{
 			Depth:     step,
 			GateCount: c.Schedule.GateCount(step),
@@ -319,31 +324,65 @@ type amplitudeVector interface {
 	AmplitudeBlocks(workers int, visit func(w, off int, a []float64))
 }
 
+// foldReadout is false in the tests that compare the folded read-out with
+// the read-out in passes of its own.
+var foldReadout = true
+
 // read returns the collision probability and the Porter–Thomas distance of
-// st. The distance is stats.HaarKS's: a histogram pass, then usually one
-// pass that collects the values of the few bins that can hold the
-// supremum (equal to the sort of stats.KSHaar to rounding). The first pass
-// also adds Σp² per chunk of sim.ProbabilityChunk values, pairwise as
-// stats.Collision adds; on a double-precision state it is one loop over the
-// amplitudes that squares, sums and bins (stats.HaarKS.CountAmplitudes),
-// and the collect pass squares and tests them in one loop too.
-// The chunk sums are then added pairwise: up to ExactKSQubits by halves, so
-// that the result is stats.Collision of the array of all probabilities bit
-// for bit, as the scan computed it when it kept that array; above, as
-// pairwiseSum adds. Neither depends on the worker count.
+// st: run with no gates, then finish.
 func (r *readout) read(st vector) (z, ks float64) {
-	if av, ok := st.(amplitudeVector); ok {
-		av.AmplitudeBlocks(r.workers, func(w, off int, a []float64) {
+	_ = r.run(context.Background(), st, nil)
+	return r.finish(st)
+}
+
+// run applies ops to st and runs the first pass of the read-out of the
+// resulting state, folded into the gates' last pass where sim's RunVisit
+// can fold it (the fold changes neither the amplitudes nor the chunks, so
+// the statistics are the same bits): a histogram count (stats.HaarKS)
+// that also adds Σp² per chunk of sim.ProbabilityChunk values in the order
+// of stats.Collision; on a double-precision state one loop over the
+// amplitudes squares, sums and bins (stats.HaarKS.CountAmplitudes).
+func (r *readout) run(ctx context.Context, st vector, ops []sim.Op) error {
+	var visit func(w, off int, x []float64)
+	if _, ok := st.(amplitudeVector); ok {
+		visit = func(w, off int, a []float64) {
 			r.partial[off/sim.ProbabilityChunk] = r.ks.CountAmplitudes(w, a)
-		})
+		}
+	} else {
+		visit = func(w, off int, p []float64) {
+			r.partial[off/sim.ProbabilityChunk] = stats.Collision(p)
+			r.ks.Count(w, p)
+		}
+	}
+	if !foldReadout {
+		if err := st.Run(ctx, ops, r.workers); err != nil {
+			return err
+		}
+		if av, ok := st.(amplitudeVector); ok {
+			av.AmplitudeBlocks(r.workers, visit)
+		} else {
+			st.ProbabilityBlocks(r.workers, visit)
+		}
+		return nil
+	}
+	return st.RunVisit(ctx, ops, r.workers, visit)
+}
+
+// finish completes the read-out counted by run: the Porter–Thomas distance
+// is stats.HaarKS's, usually after one more pass that collects the values
+// of the few bins that can hold the supremum (equal to the sort of
+// stats.KSHaar to rounding; on a double-precision state it squares and
+// tests the amplitudes in one loop). The chunk sums are added pairwise: up
+// to ExactKSQubits by halves, so that the result is stats.Collision of the
+// array of all probabilities bit for bit, as the scan computed it when it
+// kept that array; above, as pairwiseSum adds. Neither depends on the
+// worker count.
+func (r *readout) finish(st vector) (z, ks float64) {
+	if av, ok := st.(amplitudeVector); ok {
 		ks, _ = r.ks.FinishAmplitudes(func(visit func(w int, a []float64)) {
 			av.AmplitudeBlocks(r.workers, func(w, _ int, a []float64) { visit(w, a) })
 		})
 	} else {
-		st.ProbabilityBlocks(r.workers, func(w, off int, p []float64) {
-			r.partial[off/sim.ProbabilityChunk] = stats.Collision(p)
-			r.ks.Count(w, p)
-		})
 		ks, _ = r.ks.Finish(func(visit func(w int, p []float64)) {
 			st.ProbabilityBlocks(r.workers, func(w, _ int, p []float64) { visit(w, p) })
 		})

@@ -52,8 +52,9 @@ func TestStreamedReadout(t *testing.T) {
 	}
 }
 
-// checkingVector calls read once before each readout of the scan (the first
-// ProbabilityBlocks after a Run).
+// checkingVector calls read once before each readout of the scan (in
+// RunVisit, after the gates, or at the first ProbabilityBlocks or
+// AmplitudeBlocks after a Run).
 type checkingVector struct {
 	vector
 	read    func()
@@ -63,6 +64,22 @@ type checkingVector struct {
 func (c *checkingVector) Run(ctx context.Context, ops []sim.Op, workers int) error {
 	c.pending = true
 	return c.vector.Run(ctx, ops, workers)
+}
+
+// RunVisit applies the gates, reads, and visits the chunks in a pass of
+// their own (not folded, which TestFoldedReadout compares).
+func (c *checkingVector) RunVisit(ctx context.Context, ops []sim.Op, workers int, visit func(w, off int, x []float64)) error {
+	if err := c.vector.Run(ctx, ops, workers); err != nil {
+		return err
+	}
+	c.pending = false
+	c.read()
+	if av, ok := c.vector.(amplitudeVector); ok {
+		av.AmplitudeBlocks(workers, visit)
+	} else {
+		c.vector.ProbabilityBlocks(workers, visit)
+	}
+	return nil
 }
 
 func (c *checkingVector) AmplitudeBlocks(workers int, visit func(w, off int, a []float64)) {

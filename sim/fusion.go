@@ -255,6 +255,82 @@ func (s *State) Run(ctx context.Context, ops []Op, workers int) error {
 	return runOps(ctx, s.Qubits, s.Amp, ops, workers)
 }
 
+// RunVisit is Run followed by AmplitudeBlocks(workers, visit), with the
+// visit folded into the last pass where it can be: when that pass's blocks
+// hold whole chunks in contiguous runs (the lowest ProbabilityChunk
+// qubits are in every block: always for a block of the lowest qubits,
+// taken in place), visit(w, off, a) is called on each chunk of a block
+// right after the pass has applied its gates to it, while the block is in
+// cache, so the read-out of a depth costs no pass of its own. Otherwise
+// (no gates, one whole-state pass, or a last pass gathered in shorter runs)
+// the chunks are visited by a separate pass after the gates, as
+// AmplitudeBlocks visits them.
+//
+// Either way the amplitudes are those of Run bit for bit, every chunk of
+// ProbabilityChunk amplitudes starting at a multiple of ProbabilityChunk
+// (the whole state when it is smaller) is visited exactly once with its
+// offset off, a holds amp[off:off+len(a)/2] as (real, imaginary) float64
+// pairs, and w is in [0, max(workers, 1)); calls with distinct w may run
+// concurrently, and the order of the chunks is unspecified. visit must not
+// modify a. When ctx is cancelled RunVisit returns ctx.Err(), possibly
+// before visiting every chunk.
+func (s *State) RunVisit(ctx context.Context, ops []Op, workers int, visit func(w, off int, a []float64)) error {
+	return runOpsVisit(ctx, s.Qubits, s.Amp, ops, workers, func(w, off int, x []complex128) {
+		visit(w, off, floatPairs(x))
+	})
+}
+
+// RunVisit is State64.Run followed by State64.ProbabilityBlocks(workers,
+// visit), with the visit folded into the last pass where it can be, as
+// State.RunVisit folds it: p holds the probabilities |amp[off+i]|² (in
+// float64, as ProbabilityBlocks computes them) of one chunk, in a buffer of
+// the worker w that is reused once visit returns. The amplitudes are those
+// of Run bit for bit, and every chunk is visited exactly once.
+func (s *State64) RunVisit(ctx context.Context, ops []Op, workers int, visit func(w, off int, p []float64)) error {
+	bufs := make([][]float64, max(workers, 1))
+	return runOpsVisit(ctx, s.Qubits, s.Amp, ops, workers, func(w, off int, x []complex64) {
+		if bufs[w] == nil {
+			bufs[w] = make([]float64, ProbabilityChunk)
+		}
+		p := bufs[w][:len(x)]
+		squares(x, p)
+		visit(w, off, p)
+	})
+}
+
+// visitFolds reports whether runOpsVisit folds a chunk visit into the last pass
+// of ops on n qubits (for the tests).
+func visitFolds(n int, ops []Op) bool {
+	p := lastPass(planPasses(n, ops, passQubits(n)))
+	return p != nil && foldable(n, p)
+}
+
+// passQubits is the block size of runOps's passes on n qubits.
+func passQubits(n int) int {
+	if n < fuseMinQubits {
+		return n // one whole-state pass: gates one by one, single-qubit ones folded
+	}
+	return BlockQubits
+}
+
+// lastPass returns the last pass with gates, or nil.
+func lastPass(passes []pass) *pass {
+	for i := len(passes) - 1; i >= 0; i-- {
+		if len(passes[i].ops) > 0 {
+			return &passes[i]
+		}
+	}
+	return nil
+}
+
+// foldable reports whether a chunk visit can run inside the block pass p:
+// its blocks are gathered in runs of 2^p.low consecutive amplitudes (or
+// taken in place when p.low is the block size), which hold whole chunks
+// when p.low ≥ probabilityChunkQubits.
+func foldable(n int, p *pass) bool {
+	return len(p.qubits) < n && p.low >= probabilityChunkQubits
+}
+
 // checkOps panics on ops whose qubits are invalid for n qubits.
 func checkOps(n int, ops []Op) {
 	for i := range ops {
@@ -325,20 +401,31 @@ func applyLocal[T amplitude](x []T, k int, ops []localOp) {
 	}
 }
 
+// chunkVisit is called on a chunk amp[off:off+len(x)] of the state (see
+// State.RunVisit).
+type chunkVisit[T amplitude] func(w, off int, x []T)
+
 // runOps plans and executes ops on the amplitudes amp of n qubits.
 func runOps[T amplitude](ctx context.Context, n int, amp []T, ops []Op, workers int) error {
+	return runOpsVisit(ctx, n, amp, ops, workers, nil)
+}
+
+// runOpsVisit is runOps; when visit is not nil it then visits every chunk
+// once, inside the last pass where foldable allows it, else in a pass of
+// its own (visitChunks).
+func runOpsVisit[T amplitude](ctx context.Context, n int, amp []T, ops []Op, workers int, visit chunkVisit[T]) error {
 	checkOps(n, ops)
 	var zero T
 	_, single64 := any(zero).(complex64)
 	var bufs [][]T // one block buffer per worker, kept across passes
-	k := BlockQubits
-	if n < fuseMinQubits {
-		k = n // one whole-state pass: gates one by one, single-qubit ones folded
-	}
-	for _, p := range planPasses(n, ops, k) {
+	passes := planPasses(n, ops, passQubits(n))
+	last := lastPass(passes)
+	folded := false
+	for i := range passes {
 		if err := ctx.Err(); err != nil {
 			return err
 		}
+		p := &passes[i]
 		kops := p.kernels(single64)
 		if len(kops) == 0 {
 			continue
@@ -350,7 +437,17 @@ func runOps[T amplitude](ctx context.Context, n int, amp []T, ops []Op, workers 
 		if bufs == nil {
 			bufs = make([][]T, max(workers, 1))
 		}
-		runPass(n, amp, &p, kops, bufs)
+		var v chunkVisit[T]
+		if visit != nil && p == last && foldable(n, p) {
+			v, folded = visit, true
+		}
+		runPass(n, amp, p, kops, bufs, v)
+	}
+	if visit != nil && !folded {
+		if err := ctx.Err(); err != nil {
+			return err
+		}
+		visitChunks(amp, n, workers, visit)
 	}
 	return nil
 }
@@ -392,8 +489,11 @@ func applyWhole[T amplitude](n int, amp []T, kops []localOp, workers int) {
 // a buffer in 2^(k−low) runs of 2^low consecutive amplitudes, the kernels
 // act on the buffer, and it is scattered back; a block of the lowest k
 // qubits is contiguous and the kernels act on it in place. Workers take
-// contiguous ranges of blocks, so neighbouring blocks share pages.
-func runPass[T amplitude](n int, amp []T, p *pass, kops []localOp, bufs [][]T) {
+// contiguous ranges of blocks, so neighbouring blocks share pages. When
+// visit is not nil (only where foldable(n, p) holds), each block's chunks
+// of ProbabilityChunk amplitudes are visited right after its gates, from
+// the block in place or from the buffer before it is scattered back.
+func runPass[T amplitude](n int, amp []T, p *pass, kops []localOp, bufs [][]T, visit chunkVisit[T]) {
 	workers := len(bufs)
 	k := len(p.qubits)
 	low := p.low
@@ -429,6 +529,11 @@ func runPass[T amplitude](n int, amp []T, p *pass, kops []localOp, bufs [][]T) {
 			for blk := from; blk < to; blk++ {
 				base := blk << k
 				applyLocal(amp[base:base+1<<k:base+1<<k], k, kops)
+				if visit != nil {
+					for c := base; c < base+1<<k; c += ProbabilityChunk {
+						visit(w, c, amp[c:c+ProbabilityChunk:c+ProbabilityChunk])
+					}
+				}
 			}
 			return
 		}
@@ -445,6 +550,15 @@ func runPass[T amplitude](n int, amp []T, p *pass, kops []localOp, bufs [][]T) {
 				copy(buf[r*run:(r+1)*run], amp[base+o:base+o+run])
 			}
 			applyLocal(buf, k, kops)
+			if visit != nil {
+				// Each run holds whole chunks (low ≥ probabilityChunkQubits).
+				for r, o := range offs {
+					for c := 0; c < run; c += ProbabilityChunk {
+						x := r*run + c
+						visit(w, base+o+c, buf[x:x+ProbabilityChunk:x+ProbabilityChunk])
+					}
+				}
+			}
 			for r, o := range offs {
 				copy(amp[base+o:base+o+run], buf[r*run:(r+1)*run])
 			}

@@ -2,9 +2,12 @@ package sim_test
 
 import (
 	"context"
+	"fmt"
 	"math"
 	"math/cmplx"
 	"math/rand/v2"
+	"slices"
+	"sync"
 	"testing"
 
 	"mixdepth/circuits"
@@ -152,4 +155,203 @@ func maxDiff(x, y []complex128) float64 {
 		d = max(d, cmplx.Abs(x[i]-y[i]))
 	}
 	return d
+}
+
+// visitCase is a circuit for the RunVisit tests, with whether its last
+// pass takes the fold (in place, gathered in runs of whole chunks) or the
+// separate pass.
+type visitCase struct {
+	name    string
+	n       int
+	ops     []sim.Op
+	workers int
+	folds   bool
+	either  bool // random gates: the fold may or may not be taken
+}
+
+// visitCases covers every way RunVisit visits: blocks of the lowest
+// qubits in place (gates on qubits < BlockQubits only), blocks gathered in
+// runs of 2^13 amplitudes (a gate on (0, n−1) after gates on all of the
+// lowest BlockQubits: a last pass on the block {0..12, n−1}), and the
+// separate pass after a last pass gathered in runs of 2^11 (the block
+// {0..10, 12, 13, n−1}), after no gates, after one whole-state pass (n ≤ BlockQubits)
+// and on a state smaller than a chunk; sizes 10–21 qubits, 1 and 2 workers.
+// Block passes run from 15 qubits on (FuseMinQubits lowered) and, at 21,
+// by default.
+func visitCases(rng *rand.Rand) []visitCase {
+	low := func(n, count int) []sim.Op { // gates within the lowest BlockQubits qubits
+		ops := randomOps(rng, sim.BlockQubits, count)
+		for i := range ops {
+			ops[i].A, ops[i].B = ops[i].A%n, ops[i].B%n
+		}
+		return ops
+	}
+	var cs []visitCase
+	for _, workers := range []int{1, 2} {
+		for _, n := range []int{15, 16, 18, 21} {
+			gate := func(a, b int) sim.Op {
+				o := sim.Op{A: a, B: b}
+				circuits.HaarUnitary(rng, 4, o.M[:])
+				return o
+			}
+			edge := low(n, 20)
+			for q := 0; q < sim.BlockQubits; q += 2 { // all of them: later gates are blocked
+				edge = append(edge, gate(q, q+1))
+			}
+			short := append(slices.Clone(edge), gate(12, n-1), gate(13, n-1)) // block {0..10, 12, 13, n−1}
+			cs = append(cs,
+				visitCase{"in place", n, low(n, 40), workers, true, false},
+				visitCase{"gathered", n, append(edge, gate(0, n-1)), workers, true, false},
+				visitCase{"short runs", n, short, workers, false, false},
+				visitCase{"random", n, randomOps(rng, n, 60), workers, false, true},
+				visitCase{"no gates", n, nil, workers, false, false},
+			)
+		}
+		cs = append(cs,
+			visitCase{"whole state", sim.BlockQubits, randomOps(rng, sim.BlockQubits, 40), workers, false, false},
+			visitCase{"below a chunk", 10, randomOps(rng, 10, 40), workers, false, false},
+		)
+	}
+	return cs
+}
+
+// TestRunVisitChunks: State.RunVisit leaves the amplitudes of Run bit for
+// bit and visits every chunk of ProbabilityChunk amplitudes exactly once,
+// from a worker index in [0, workers), with the chunk's own amplitudes
+// (checked bit for bit against the state after Run, as AmplitudeBlocks
+// hands them out: the definition of a chunk, common practice), whether the
+// visit is folded into the last pass or not; and the fold is taken exactly
+// where the cases expect it (sim.VisitFolds), so both paths are tested.
+func TestRunVisitChunks(t *testing.T) {
+	defer func(v int) { *sim.FuseMinQubits = v }(*sim.FuseMinQubits)
+	*sim.FuseMinQubits = sim.BlockQubits + 1
+	rng := rand.New(rand.NewPCG(61, 62))
+	for _, tc := range visitCases(rng) {
+		if *sim.FuseMinQubits = sim.BlockQubits + 1; tc.n == 21 {
+			*sim.FuseMinQubits = 21 // the default
+		}
+		if got := sim.VisitFolds(tc.n, tc.ops); got != tc.folds && !tc.either {
+			t.Fatalf("%s n=%d: VisitFolds = %v, the case expects %v", tc.name, tc.n, got, tc.folds)
+		}
+		ref, got := newState(t, tc.n), newState(t, tc.n)
+		randomState(rng, ref)
+		copy(got.Amp, ref.Amp)
+		if err := ref.Run(context.Background(), tc.ops, tc.workers); err != nil {
+			t.Fatal(err)
+		}
+		chunks := (len(ref.Amp) + sim.ProbabilityChunk - 1) / sim.ProbabilityChunk
+		wantLen := min(sim.ProbabilityChunk, len(ref.Amp))
+		var mu sync.Mutex
+		seen := make([]int, chunks)
+		var bad []string
+		err := got.RunVisit(context.Background(), tc.ops, tc.workers, func(w, off int, a []float64) {
+			mu.Lock()
+			defer mu.Unlock()
+			if w < 0 || w >= tc.workers || off%sim.ProbabilityChunk != 0 || off < 0 || off >= len(ref.Amp) || len(a) != 2*wantLen {
+				bad = append(bad, fmt.Sprintf("w=%d off=%d len=%d", w, off, len(a)))
+				return
+			}
+			seen[off/sim.ProbabilityChunk]++
+			for i := 0; i < len(a); i += 2 {
+				v := ref.Amp[off+i/2]
+				if math.Float64bits(a[i]) != math.Float64bits(real(v)) || math.Float64bits(a[i+1]) != math.Float64bits(imag(v)) {
+					bad = append(bad, fmt.Sprintf("chunk %d: amplitude %d is %v, %v after Run", off, off+i/2, complex(a[i], a[i+1]), v))
+					return
+				}
+			}
+		})
+		if err != nil {
+			t.Fatal(err)
+		}
+		name := fmt.Sprintf("%s n=%d workers=%d", tc.name, tc.n, tc.workers)
+		for _, b := range bad[:min(len(bad), 3)] {
+			t.Errorf("%s: %s", name, b)
+		}
+		for c, k := range seen {
+			if k != 1 {
+				t.Errorf("%s: chunk %d visited %d times", name, c, k)
+			}
+		}
+		if !identical(got.Amp, ref.Amp) {
+			t.Errorf("%s: RunVisit's amplitudes differ from Run's", name)
+		}
+	}
+}
+
+// TestRunVisitChunks64 is TestRunVisitChunks for State64.RunVisit, whose
+// visit gets the probabilities float64(re)² + float64(im)² of the chunk's
+// amplitudes after Run (each square rounded on its own, as
+// ProbabilityBlocks computes them), bit for bit.
+func TestRunVisitChunks64(t *testing.T) {
+	defer func(v int) { *sim.FuseMinQubits = v }(*sim.FuseMinQubits)
+	rng := rand.New(rand.NewPCG(63, 64))
+	for _, tc := range visitCases(rng) {
+		if *sim.FuseMinQubits = sim.BlockQubits + 1; tc.n == 21 {
+			*sim.FuseMinQubits = 21
+		}
+		ref, err := sim.NewState64(tc.n, 0)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got, err := sim.NewState64(tc.n, 0)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for i := range ref.Amp {
+			ref.Amp[i] = complex(float32(rng.NormFloat64()), float32(rng.NormFloat64()))
+		}
+		copy(got.Amp, ref.Amp)
+		if err := ref.Run(context.Background(), tc.ops, tc.workers); err != nil {
+			t.Fatal(err)
+		}
+		chunks := (len(ref.Amp) + sim.ProbabilityChunk - 1) / sim.ProbabilityChunk
+		var mu sync.Mutex
+		seen := make([]int, chunks)
+		var bad []string
+		err = got.RunVisit(context.Background(), tc.ops, tc.workers, func(w, off int, p []float64) {
+			mu.Lock()
+			defer mu.Unlock()
+			if w < 0 || w >= tc.workers || off%sim.ProbabilityChunk != 0 || off < 0 || off >= len(ref.Amp) || len(p) != min(sim.ProbabilityChunk, len(ref.Amp)) {
+				bad = append(bad, fmt.Sprintf("w=%d off=%d len=%d", w, off, len(p)))
+				return
+			}
+			seen[off/sim.ProbabilityChunk]++
+			for i, v := range p {
+				a := ref.Amp[off+i]
+				re, im := float64(real(a)), float64(imag(a))
+				if want := float64(re*re) + float64(im*im); math.Float64bits(v) != math.Float64bits(want) {
+					bad = append(bad, fmt.Sprintf("chunk %d: probability %d is %v, want %v", off, off+i, v, want))
+					return
+				}
+			}
+		})
+		if err != nil {
+			t.Fatal(err)
+		}
+		name := fmt.Sprintf("%s n=%d workers=%d", tc.name, tc.n, tc.workers)
+		for _, b := range bad[:min(len(bad), 3)] {
+			t.Errorf("%s: %s", name, b)
+		}
+		for c, k := range seen {
+			if k != 1 {
+				t.Errorf("%s: chunk %d visited %d times", name, c, k)
+			}
+		}
+		for i := range ref.Amp {
+			if ref.Amp[i] != got.Amp[i] {
+				t.Errorf("%s: RunVisit's amplitude %d is %v, Run's %v", name, i, got.Amp[i], ref.Amp[i])
+				break
+			}
+		}
+	}
+}
+
+// identical reports whether x and y hold the same bits.
+func identical(x, y []complex128) bool {
+	for i := range x {
+		if math.Float64bits(real(x[i])) != math.Float64bits(real(y[i])) || math.Float64bits(imag(x[i])) != math.Float64bits(imag(y[i])) {
+			return false
+		}
+	}
+	return len(x) == len(y)
 }

@@ -121,7 +121,11 @@ const parallelAlign = 64
 
 // ProbabilityChunk is the length of the chunks ProbabilityBlocks visits
 // (the last one of a state smaller than a chunk is the whole state).
-const ProbabilityChunk = 1 << 12
+const ProbabilityChunk = 1 << probabilityChunkQubits
+
+// probabilityChunkQubits is log2(ProbabilityChunk): a chunk is one setting
+// of the qubits from this one up.
+const probabilityChunkQubits = 12
 
 // ProbabilityBlocks computes the probabilities |amp|² chunk by chunk, in a
 // buffer of ProbabilityChunk values per worker, and calls visit(w, off, p)
@@ -170,9 +174,24 @@ func probabilityBlocks[T amplitude](amp []T, n, workers int, visit func(w, off i
 // with no buffer. visit must not modify a. Calls with distinct w in
 // [0, workers) may run concurrently, split as ProbabilityBlocks splits.
 func (s *State) AmplitudeBlocks(workers int, visit func(w, off int, a []float64)) {
-	amp := s.Amp
+	visitChunks(s.Amp, s.Qubits, workers, func(w, off int, x []complex128) {
+		visit(w, off, floatPairs(x))
+	})
+}
+
+// floatPairs returns the amplitudes x as (real, imaginary) float64 pairs,
+// in x's own memory.
+func floatPairs(x []complex128) []float64 {
+	return unsafe.Slice((*float64)(unsafe.Pointer(&x[0])), 2*len(x))
+}
+
+// visitChunks calls visit(w, off, amp[off:off+ProbabilityChunk]) for the
+// chunks of the n-qubit state amp (one chunk when it is smaller), split
+// into contiguous ranges of chunks across workers goroutines from
+// ParallelQubits qubits on, w the range's index.
+func visitChunks[T amplitude](amp []T, n, workers int, visit chunkVisit[T]) {
 	chunks := (len(amp) + ProbabilityChunk - 1) / ProbabilityChunk
-	if workers <= 1 || s.Qubits < ParallelQubits || chunks < 2 {
+	if workers <= 1 || n < ParallelQubits || chunks < 2 {
 		workers = 1
 	}
 	workers = min(workers, chunks)
@@ -184,8 +203,7 @@ func (s *State) AmplitudeBlocks(workers int, visit func(w, off int, a []float64)
 		body := func() {
 			for c := from; c < to; c++ {
 				off := c * ProbabilityChunk
-				src := amp[off:min(off+ProbabilityChunk, len(amp))]
-				visit(w, off, unsafe.Slice((*float64)(unsafe.Pointer(&src[0])), 2*len(src)))
+				visit(w, off, amp[off:min(off+ProbabilityChunk, len(amp))])
 			}
 		}
 		if workers == 1 {

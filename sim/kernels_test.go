@@ -3,6 +3,7 @@ package sim
 import (
 	"context"
 	"flag"
+	"fmt"
 	"math"
 	"math/cmplx"
 	"math/rand/v2"
@@ -447,3 +448,36 @@ func BenchmarkFusedTargets(b *testing.B) {
 }
 
 var fusedRounds = flag.Int("rounds", 3, "rounds of BenchmarkFusedTargets")
+
+// BenchmarkKernelClass times one Haar gate per qubit-pair class on a block
+// of 2^BlockQubits amplitudes that stays in cache (one core, apply2Kernel
+// as a fused pass calls it), with the x2 kernels and with the one-iteration
+// ones (one): ns/amp is the time per gate per amplitude. The classes are
+// those apply2Kernel tells apart: the pairs (0, 1), (0, q ≥ 2), (1, 2),
+// (1, q ≥ 3) and two runs pairs (lo ≥ 2).
+func BenchmarkKernelClass(b *testing.B) {
+	const k = BlockQubits
+	rng := rand.New(rand.NewPCG(83, 84))
+	x := make([]complex128, 1<<k)
+	for i := range x {
+		x[i] = complex(rng.NormFloat64(), rng.NormFloat64()) / 128
+	}
+	defer func() { useX2 = true }()
+	for _, pair := range [][2]int{{0, 1}, {0, 5}, {1, 2}, {1, 5}, {2, 3}, {4, 9}} {
+		var m [16]complex128
+		circuits.HaarUnitary(rng, 4, m[:])
+		kn := newKernel2(pair[0], pair[1], &m)
+		for _, mode := range []struct {
+			name string
+			x2   bool
+		}{{"x2", true}, {"one", false}} {
+			b.Run(fmt.Sprintf("%d-%d/%s", pair[0], pair[1], mode.name), func(b *testing.B) {
+				useX2 = mode.x2
+				for b.Loop() {
+					apply2Kernel(x, &kn, 0, 1<<(k-2))
+				}
+				b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(len(x)), "ns/amp")
+			})
+		}
+	}
+}

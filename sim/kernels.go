@@ -223,6 +223,8 @@ func apply2Kernel(amp []complex128, k *kernel2, from, to int) {
 			apply2Q0AVX512x2(x, uint(k.hi), from, to, &k.cz)
 		case k.lo == 0 && useAVX512 && k.hi >= 2 && from%2 == 0 && to%2 == 0:
 			apply2Q0AVX512(x, uint(k.hi), from, to, &k.cz)
+		case k.lo == 0 && useAVX512 && useX2 && from%4 == 0 && to%4 == 0:
+			apply2Q01AVX512x2(x, from, to, &k.cz) // k.hi == 1
 		case k.lo == 0 && useAVX512 && useX2 && from%2 == 0 && to%2 == 0:
 			apply2Q0AVXx2(x, uint(k.hi), from, to, &k.c)
 		case k.lo == 0:
@@ -231,6 +233,8 @@ func apply2Kernel(amp []complex128, k *kernel2, from, to int) {
 			apply2RunsAVX512x2(x, uint(k.lo), uint(k.hi), from, to, &k.cz)
 		case useAVX512 && k.lo >= 2 && from%4 == 0 && to%4 == 0:
 			apply2RunsAVX512(x, uint(k.lo), uint(k.hi), from, to, &k.cz)
+		case useAVX512 && useX2 && k.lo == 1 && from%8 == 0 && to%8 == 0:
+			apply2R1AVX512x2(x, uint(k.hi), from, to, &k.cz)
 		case useAVX512 && useX2 && from%4 == 0 && to%4 == 0:
 			apply2RunsAVXx2(x, uint(k.lo), uint(k.hi), from, to, &k.c)
 		default:

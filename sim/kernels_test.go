@@ -451,8 +451,9 @@ var fusedRounds = flag.Int("rounds", 3, "rounds of BenchmarkFusedTargets")
 
 // BenchmarkKernelClass times one Haar gate per qubit-pair class on a block
 // of 2^BlockQubits amplitudes that stays in cache (one core, apply2Kernel
-// as a fused pass calls it), with the x2 kernels and with the one-iteration
-// ones (one): ns/amp is the time per gate per amplitude. The classes are
+// as a fused pass calls it), with the x2 kernels, with the 256-bit x2
+// kernels that the pairs with qubit 1 took before (x2-256, useX2Low off) and
+// with the one-iteration ones (one): ns/amp is the time per gate per amplitude. The classes are
 // those apply2Kernel tells apart: the pairs (0, 1), (0, q ≥ 2), (1, 2),
 // (1, q ≥ 3) and two runs pairs (lo ≥ 2).
 func BenchmarkKernelClass(b *testing.B) {
@@ -462,17 +463,20 @@ func BenchmarkKernelClass(b *testing.B) {
 	for i := range x {
 		x[i] = complex(rng.NormFloat64(), rng.NormFloat64()) / 128
 	}
-	defer func() { useX2 = true }()
+	defer func() { useX2, useX2Low = true, true }()
 	for _, pair := range [][2]int{{0, 1}, {0, 5}, {1, 2}, {1, 5}, {2, 3}, {4, 9}} {
 		var m [16]complex128
 		circuits.HaarUnitary(rng, 4, m[:])
 		kn := newKernel2(pair[0], pair[1], &m)
 		for _, mode := range []struct {
-			name string
-			x2   bool
-		}{{"x2", true}, {"one", false}} {
+			name      string
+			x2, x2Low bool
+		}{{"x2", true, true}, {"x2-256", true, false}, {"one", false, false}} {
+			if mode.name == "x2-256" && pair[0] != 1 && pair != [2]int{0, 1} {
+				continue // the same kernel as x2
+			}
 			b.Run(fmt.Sprintf("%d-%d/%s", pair[0], pair[1], mode.name), func(b *testing.B) {
-				useX2 = mode.x2
+				useX2, useX2Low = mode.x2, mode.x2Low
 				for b.Loop() {
 					apply2Kernel(x, &kn, 0, 1<<(k-2))
 				}

@@ -182,7 +182,9 @@ func TestKernels64PortableMatchVector(t *testing.T) {
 }
 
 // TestX2BitIdentical: the x2 kernels (apply2RunsAVX512x2, apply2Q0AVX512x2,
-// apply2RunsAVXx2, apply2Q0AVXx2) perform, lane by lane, the arithmetic of
+// apply2RunsAVXx2, apply2Q0AVXx2, and the shuffling apply2R1AVX512x2 and
+// apply2Q01AVX512x2 of the pairs (1, q) and (0, 1), with useX2Low on and
+// off) perform, lane by lane, the arithmetic of
 // the one-iteration kernels they replace, and apply2RunsAVX512 and
 // apply2Q0AVX512 that of apply2RunsAVX and apply2Q0AVX, in the same order,
 // so the amplitudes
@@ -196,7 +198,7 @@ func TestX2BitIdentical(t *testing.T) {
 	if !useAVX512 {
 		t.Skip("no AVX-512 on this processor: the x2 kernels never run")
 	}
-	defer func() { useX2 = true }()
+	defer func() { useX2, useX2Low = true, true }()
 	rng := rand.New(rand.NewPCG(71, 72))
 	for n := 5; n <= 8; n++ {
 		amp := make([]complex128, 1<<n)
@@ -229,10 +231,16 @@ func TestX2BitIdentical(t *testing.T) {
 					got := append([]complex128(nil), amp...)
 					useX2 = true
 					apply2Kernel(got, &k, r[0], r[1])
+					// The 256-bit x2 kernels that the new 512-bit ones of
+					// qubit 1 and of (0, 1) replace.
+					low := append([]complex128(nil), amp...)
+					useX2Low = false
+					apply2Kernel(low, &k, r[0], r[1])
+					useX2Low = true
 					for i := range got {
-						if got[i] != want[i] || alt[i] != want[i] {
-							t.Fatalf("n=%d gate (%d,%d) groups %v: amplitude %d is %v (x2), %v (512), %v (256)",
-								n, a, b, r, i, got[i], want[i], alt[i])
+						if got[i] != want[i] || alt[i] != want[i] || low[i] != want[i] {
+							t.Fatalf("n=%d gate (%d,%d) groups %v: amplitude %d is %v (x2), %v (x2, 256-bit low pairs), %v (512), %v (256)",
+								n, a, b, r, i, got[i], low[i], want[i], alt[i])
 						}
 					}
 				}
@@ -256,7 +264,7 @@ func TestRunBitIdenticalToApply2(t *testing.T) {
 	defer func(v int) { fuseMinQubits = v }(fuseMinQubits)
 	fuseMinQubits = BlockQubits + 1
 	has, has512 := useAVX, useAVX512
-	defer func() { useAVX, useAVX512, useX2 = has, has512, true }()
+	defer func() { useAVX, useAVX512, useX2, useX2Low = has, has512, true, true }()
 	rng := rand.New(rand.NewPCG(73, 74))
 	const n = BlockQubits + 3
 	var line, grid []Op
@@ -299,8 +307,9 @@ func TestRunBitIdenticalToApply2(t *testing.T) {
 		for _, mode := range []struct {
 			name    string
 			avx, x2 bool
-		}{{"vector x2", true, true}, {"vector", true, false}, {"portable", false, false}} {
-			useAVX, useAVX512, useX2 = mode.avx && has, mode.avx && has512, false
+			low     bool
+		}{{"vector x2", true, true, true}, {"vector x2 256-bit low pairs", true, true, false}, {"vector", true, false, true}, {"portable", false, false, true}} {
+			useAVX, useAVX512, useX2, useX2Low = mode.avx && has, mode.avx && has512, false, mode.low
 			ref := &State{Qubits: n, Amp: append([]complex128(nil), amp...)}
 			var gates int
 			for _, p := range planPasses(n, circ.ops, BlockQubits) {

@@ -380,17 +380,19 @@ func BenchmarkBlockPass(b *testing.B) {
 // BenchmarkFusedTargets measures the fused-brickwork targets of
 // scripts/bench (fused_speedup_line:26, fused_speedup_grid:5x5: 20 layers of
 // the layered schedule with Haar gates, the target's seed) in one run,
-// alternating four timings per round so that load from other processes
+// alternating six timings per round so that load from other processes
 // hits them alike: Run with the x2 kernels (fused) and with the
-// one-iteration kernels they replace (fused-old, today's kernels), and
-// Apply2 gate by gate with each (one-by-one, one-by-one-old); best of
+// one-iteration kernels they replace (fused-old), and Apply2 gate by gate
+// with each (one-by-one, one-by-one-old), and both with the 256-bit x2
+// kernels for the pairs (1, q) and (0, 1) (fused-256low, one-by-one-256low,
+// useX2Low off: the kernels before apply2R1AVX512x2 and apply2Q01AVX512x2); best of
 // -rounds. It reports ms per gate, the speed-ups one-by-one/fused (the
 // target, ≥ 2) and fused-old/fused, and the CPU time per gate of each
 // (cpu-ms/gate, both workers' time added). A 26-qubit state takes 1 GiB;
 // run it with -benchtime 1x.
 func BenchmarkFusedTargets(b *testing.B) {
 	workers := runtime.NumCPU()
-	defer func() { useX2 = true }()
+	defer func() { useX2, useX2Low = true, true }()
 	for _, spec := range []string{"line:26", "grid:5x5"} {
 		b.Run(spec, func(b *testing.B) {
 			g, err := circuits.ParseGraph(spec)
@@ -417,9 +419,10 @@ func BenchmarkFusedTargets(b *testing.B) {
 				b.Fatal(err)
 			}
 			kinds := []struct {
-				name         string
-				x2, oneByOne bool
-			}{{"fused", true, false}, {"fused-old", false, false}, {"one-by-one", true, true}, {"one-by-one-old", false, true}}
+				name              string
+				x2, oneByOne, low bool
+			}{{"fused", true, false, true}, {"fused-old", false, false, true}, {"one-by-one", true, true, true}, {"one-by-one-old", false, true, true},
+				{"fused-256low", true, false, false}, {"one-by-one-256low", true, true, false}}
 			best, bestCPU := make([]float64, len(kinds)), make([]float64, len(kinds))
 			for i := range best {
 				best[i], bestCPU[i] = math.Inf(1), math.Inf(1)
@@ -428,7 +431,7 @@ func BenchmarkFusedTargets(b *testing.B) {
 				for r := range *fusedRounds {
 					for j := range kinds {
 						kk := kinds[(j+r)%len(kinds)] // rotate which goes first
-						useX2 = kk.x2
+						useX2, useX2Low = kk.x2, kk.low
 						start, cpu0 := time.Now(), cpuSeconds()
 						if kk.oneByOne {
 							for i := range ops {
@@ -452,6 +455,8 @@ func BenchmarkFusedTargets(b *testing.B) {
 			b.ReportMetric(best[2]/best[0], "target-speedup")
 			b.ReportMetric(best[3]/best[1], "old-target-speedup")
 			b.ReportMetric(best[1]/best[0], "fused-old/fused")
+			b.ReportMetric(best[5]/best[4], "256low-target-speedup")
+			b.ReportMetric(best[4]/best[0], "fused-256low/fused")
 		})
 	}
 }

@@ -210,7 +210,9 @@ func split1Q0(m *[4]complex128, c *coef1) {
 }
 
 // apply2Kernel applies k to the groups [from, to) of amp (complex128), with
-// the AVX kernels when they are in use. Group boundaries must be even when
+// the AVX kernels when they are in use: with AVX-512 and useX2, every pair
+// class takes a 512-bit x2 kernel when the range is aligned to its eight
+// (runs, (1, q)) or four ((0, q), (0, 1)) groups, else a narrower one. Group boundaries must be even when
 // k.lo ≥ 1 and the AVX kernels run; parallelFor keeps them so.
 func apply2Kernel(amp []complex128, k *kernel2, from, to int) {
 	if from >= to {
@@ -397,8 +399,9 @@ func apply1Single(amp []complex64, q int, m *[4]complex64, from, to int) {
 }
 
 // useX2 selects the x2 kernels (apply2RunsAVX512x2, apply2Q0AVX512x2,
-// apply2RunsAVXx2, apply2Q0AVXx2: two iterations' groups per coefficient
-// load) over the one-iteration forms where both apply; tests and
+// apply2R1AVX512x2, apply2Q01AVX512x2, apply2RunsAVXx2, apply2Q0AVXx2: two
+// iterations' groups per coefficient load) over the one-iteration forms
+// where both apply; tests and
 // benchmarks switch it off to compare them.
 var useX2 = true
 

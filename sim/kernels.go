@@ -210,7 +210,9 @@ func split1Q0(m *[4]complex128, c *coef1) {
 }
 
 // apply2Kernel applies k to the groups [from, to) of amp (complex128), with
-// the AVX kernels when they are in use. Group boundaries must be even when
+// the AVX kernels when they are in use: with AVX-512 and useX2, every pair
+// class takes a 512-bit x2 kernel when the range is aligned to its eight
+// (runs, (1, q)) or four ((0, q), (0, 1)) groups, else a narrower one. Group boundaries must be even when
 // k.lo ≥ 1 and the AVX kernels run; parallelFor keeps them so.
 func apply2Kernel(amp []complex128, k *kernel2, from, to int) {
 	if from >= to {
@@ -223,6 +225,8 @@ func apply2Kernel(amp []complex128, k *kernel2, from, to int) {
 			apply2Q0AVX512x2(x, uint(k.hi), from, to, &k.cz)
 		case k.lo == 0 && useAVX512 && k.hi >= 2 && from%2 == 0 && to%2 == 0:
 			apply2Q0AVX512(x, uint(k.hi), from, to, &k.cz)
+		case k.lo == 0 && useAVX512 && useX2 && useX2Low && from%4 == 0 && to%4 == 0:
+			apply2Q01AVX512x2(x, from, to, &k.cz) // k.hi == 1
 		case k.lo == 0 && useAVX512 && useX2 && from%2 == 0 && to%2 == 0:
 			apply2Q0AVXx2(x, uint(k.hi), from, to, &k.c)
 		case k.lo == 0:
@@ -231,6 +235,8 @@ func apply2Kernel(amp []complex128, k *kernel2, from, to int) {
 			apply2RunsAVX512x2(x, uint(k.lo), uint(k.hi), from, to, &k.cz)
 		case useAVX512 && k.lo >= 2 && from%4 == 0 && to%4 == 0:
 			apply2RunsAVX512(x, uint(k.lo), uint(k.hi), from, to, &k.cz)
+		case useAVX512 && useX2 && useX2Low && k.lo == 1 && from%8 == 0 && to%8 == 0:
+			apply2R1AVX512x2(x, uint(k.hi), from, to, &k.cz)
 		case useAVX512 && useX2 && from%4 == 0 && to%4 == 0:
 			apply2RunsAVXx2(x, uint(k.lo), uint(k.hi), from, to, &k.c)
 		default:
@@ -393,7 +399,14 @@ func apply1Single(amp []complex64, q int, m *[4]complex64, from, to int) {
 }
 
 // useX2 selects the x2 kernels (apply2RunsAVX512x2, apply2Q0AVX512x2,
-// apply2RunsAVXx2, apply2Q0AVXx2: two iterations' groups per coefficient
-// load) over the one-iteration forms where both apply; tests and
+// apply2R1AVX512x2, apply2Q01AVX512x2, apply2RunsAVXx2, apply2Q0AVXx2: two
+// iterations' groups per coefficient load) over the one-iteration forms
+// where both apply; tests and
 // benchmarks switch it off to compare them.
 var useX2 = true
+
+// useX2Low selects, when useX2 is on, the 512-bit x2 kernels of the pairs
+// with qubit 1 as the lower position and of (0, 1) (apply2R1AVX512x2,
+// apply2Q01AVX512x2) over the 256-bit x2 ones (apply2RunsAVXx2,
+// apply2Q0AVXx2); benchmarks switch it off to compare them in one run.
+var useX2Low = true

@@ -25,6 +25,12 @@ func apply2Q0AVX512(x *complex128, hi uint, from, to int, c *coef2z)
 func apply2Q0AVX512x2(x *complex128, hi uint, from, to int, c *coef2z)
 
 //go:noescape
+func apply2R1AVX512x2(x *complex128, hi uint, from, to int, c *coef2z)
+
+//go:noescape
+func apply2Q01AVX512x2(x *complex128, from, to int, c *coef2z)
+
+//go:noescape
 func apply2RunsAVXx2(x *complex128, lo, hi uint, from, to int, c *coef2)
 
 //go:noescape

@@ -1253,3 +1253,274 @@ yq02Loop:
 yq02Done:
 	VZEROUPPER
 	RET
+
+// Z2_HALFSWAP, Z2_ROWS01 and Z2_ROWS23 are the arithmetic of
+// apply2RunsAVX512x2 and apply2Q0AVX512x2 once their eight input vectors are
+// in Z0–Z3 and Z12–Z15: the re/im swaps into Z4–Z7 and Z16–Z19, then the
+// multiply-adds of rows 0–1 (into Z8, Z9 and Z20, Z21) and 2–3 (Z10, Z11 and
+// Z22, Z23) with the 64-byte coefficient vectors at SI, in the same order as
+// those kernels, for the kernels below that gather their inputs by shuffles.
+#define Z2_HALFSWAP \
+	VPERMILPD $0x55, Z0, Z4; \
+	VPERMILPD $0x55, Z1, Z5; \
+	VPERMILPD $0x55, Z2, Z6; \
+	VPERMILPD $0x55, Z3, Z7; \
+	VPERMILPD $0x55, Z12, Z16; \
+	VPERMILPD $0x55, Z13, Z17; \
+	VPERMILPD $0x55, Z14, Z18; \
+	VPERMILPD $0x55, Z15, Z19
+
+#define Z2_ROWS01 \
+	VMOVUPD 0(SI), Z24; \
+	VMULPD Z24, Z0, Z8; \
+	VMULPD Z24, Z12, Z20; \
+	VMOVUPD 64(SI), Z25; \
+	VFMADD231PD Z25, Z4, Z8; \
+	VFMADD231PD Z25, Z16, Z20; \
+	VMOVUPD 128(SI), Z24; \
+	VFMADD231PD Z24, Z1, Z8; \
+	VFMADD231PD Z24, Z13, Z20; \
+	VMOVUPD 192(SI), Z25; \
+	VFMADD231PD Z25, Z5, Z8; \
+	VFMADD231PD Z25, Z17, Z20; \
+	VMOVUPD 256(SI), Z24; \
+	VFMADD231PD Z24, Z2, Z8; \
+	VFMADD231PD Z24, Z14, Z20; \
+	VMOVUPD 320(SI), Z25; \
+	VFMADD231PD Z25, Z6, Z8; \
+	VFMADD231PD Z25, Z18, Z20; \
+	VMOVUPD 384(SI), Z24; \
+	VFMADD231PD Z24, Z3, Z8; \
+	VFMADD231PD Z24, Z15, Z20; \
+	VMOVUPD 448(SI), Z25; \
+	VFMADD231PD Z25, Z7, Z8; \
+	VFMADD231PD Z25, Z19, Z20; \
+	VMOVUPD 512(SI), Z24; \
+	VMULPD Z24, Z0, Z9; \
+	VMULPD Z24, Z12, Z21; \
+	VMOVUPD 576(SI), Z25; \
+	VFMADD231PD Z25, Z4, Z9; \
+	VFMADD231PD Z25, Z16, Z21; \
+	VMOVUPD 640(SI), Z24; \
+	VFMADD231PD Z24, Z1, Z9; \
+	VFMADD231PD Z24, Z13, Z21; \
+	VMOVUPD 704(SI), Z25; \
+	VFMADD231PD Z25, Z5, Z9; \
+	VFMADD231PD Z25, Z17, Z21; \
+	VMOVUPD 768(SI), Z24; \
+	VFMADD231PD Z24, Z2, Z9; \
+	VFMADD231PD Z24, Z14, Z21; \
+	VMOVUPD 832(SI), Z25; \
+	VFMADD231PD Z25, Z6, Z9; \
+	VFMADD231PD Z25, Z18, Z21; \
+	VMOVUPD 896(SI), Z24; \
+	VFMADD231PD Z24, Z3, Z9; \
+	VFMADD231PD Z24, Z15, Z21; \
+	VMOVUPD 960(SI), Z25; \
+	VFMADD231PD Z25, Z7, Z9; \
+	VFMADD231PD Z25, Z19, Z21
+
+#define Z2_ROWS23 \
+	VMOVUPD 1024(SI), Z24; \
+	VMULPD Z24, Z0, Z10; \
+	VMULPD Z24, Z12, Z22; \
+	VMOVUPD 1088(SI), Z25; \
+	VFMADD231PD Z25, Z4, Z10; \
+	VFMADD231PD Z25, Z16, Z22; \
+	VMOVUPD 1152(SI), Z24; \
+	VFMADD231PD Z24, Z1, Z10; \
+	VFMADD231PD Z24, Z13, Z22; \
+	VMOVUPD 1216(SI), Z25; \
+	VFMADD231PD Z25, Z5, Z10; \
+	VFMADD231PD Z25, Z17, Z22; \
+	VMOVUPD 1280(SI), Z24; \
+	VFMADD231PD Z24, Z2, Z10; \
+	VFMADD231PD Z24, Z14, Z22; \
+	VMOVUPD 1344(SI), Z25; \
+	VFMADD231PD Z25, Z6, Z10; \
+	VFMADD231PD Z25, Z18, Z22; \
+	VMOVUPD 1408(SI), Z24; \
+	VFMADD231PD Z24, Z3, Z10; \
+	VFMADD231PD Z24, Z15, Z22; \
+	VMOVUPD 1472(SI), Z25; \
+	VFMADD231PD Z25, Z7, Z10; \
+	VFMADD231PD Z25, Z19, Z22; \
+	VMOVUPD 1536(SI), Z24; \
+	VMULPD Z24, Z0, Z11; \
+	VMULPD Z24, Z12, Z23; \
+	VMOVUPD 1600(SI), Z25; \
+	VFMADD231PD Z25, Z4, Z11; \
+	VFMADD231PD Z25, Z16, Z23; \
+	VMOVUPD 1664(SI), Z24; \
+	VFMADD231PD Z24, Z1, Z11; \
+	VFMADD231PD Z24, Z13, Z23; \
+	VMOVUPD 1728(SI), Z25; \
+	VFMADD231PD Z25, Z5, Z11; \
+	VFMADD231PD Z25, Z17, Z23; \
+	VMOVUPD 1792(SI), Z24; \
+	VFMADD231PD Z24, Z2, Z11; \
+	VFMADD231PD Z24, Z14, Z23; \
+	VMOVUPD 1856(SI), Z25; \
+	VFMADD231PD Z25, Z6, Z11; \
+	VFMADD231PD Z25, Z18, Z23; \
+	VMOVUPD 1920(SI), Z24; \
+	VFMADD231PD Z24, Z3, Z11; \
+	VFMADD231PD Z24, Z15, Z23; \
+	VMOVUPD 1984(SI), Z25; \
+	VFMADD231PD Z25, Z7, Z11; \
+	VFMADD231PD Z25, Z19, Z23
+
+// func apply2R1AVX512x2(x *complex128, hi uint, from, to int, c *coef2z)
+//
+// apply2RunsAVX for lo = 1 and hi ≥ 2 on eight groups per iteration, from
+// and to multiples of 8, in 512-bit vectors. With lo = 1 a run is two groups
+// long: the even group g and g+1 have base index p = insert(2g, hi), and the
+// 64 bytes at p hold [v0(g), v0(g+1), v1(g), v1(g+1)] (at p + 2^hi the same
+// of v2, v3). VSHUFF64X2 gathers two such runs into the vectors of
+// apply2RunsAVX512 ([v0] of four groups, then [v1]), the arithmetic is that
+// of apply2RunsAVX512x2 (coefficients loaded once for both halves), and the
+// outputs are shuffled back. The shuffles only move whole amplitudes and
+// every lane sees the instructions of apply2RunsAVX in the same order, so the
+// results are bit-identical to it. c is the coef2z of splitRuns.
+TEXT ·apply2R1AVX512x2(SB), NOSPLIT, $0-40
+	MOVQ x+0(FP), DI
+	MOVQ hi+8(FP), CX
+	MOVQ from+16(FP), R10      // k
+	MOVQ to+24(FP), R11        // end
+	MOVQ c+32(FP), SI
+	MOVQ $1, AX
+	SHLXQ CX, AX, R15          // 2^hi
+	MOVQ R15, R9
+	NEGQ R9                    // ^(2^hi − 1)
+	SHLQ $4, R15               // byte offset of bit hi
+	CMPQ R10, R11
+	JGE  zr12Done
+
+zr12Loop:
+	// p(g) = 2g + (2g &^ (2^hi − 1)) for g = k, k+2, k+4, k+6
+	LEAQ (R10)(R10*1), AX
+	MOVQ AX, CX
+	ANDQ R9, CX
+	ADDQ CX, AX
+	SHLQ $4, AX
+	ADDQ DI, AX                // groups k, k+1
+	LEAQ 4(R10)(R10*1), BX
+	MOVQ BX, CX
+	ANDQ R9, CX
+	ADDQ CX, BX
+	SHLQ $4, BX
+	ADDQ DI, BX                // groups k+2, k+3
+	LEAQ 8(R10)(R10*1), DX
+	MOVQ DX, CX
+	ANDQ R9, CX
+	ADDQ CX, DX
+	SHLQ $4, DX
+	ADDQ DI, DX                // groups k+4, k+5
+	LEAQ 12(R10)(R10*1), R13
+	MOVQ R13, CX
+	ANDQ R9, CX
+	ADDQ CX, R13
+	SHLQ $4, R13
+	ADDQ DI, R13               // groups k+6, k+7
+
+	VMOVUPD (AX), Z26
+	VMOVUPD (BX), Z27
+	VMOVUPD (AX)(R15*1), Z28
+	VMOVUPD (BX)(R15*1), Z29
+	VSHUFF64X2 $0x44, Z27, Z26, Z0   // v0 of k…k+3
+	VSHUFF64X2 $0xee, Z27, Z26, Z1   // v1
+	VSHUFF64X2 $0x44, Z29, Z28, Z2   // v2
+	VSHUFF64X2 $0xee, Z29, Z28, Z3   // v3
+	VMOVUPD (DX), Z26
+	VMOVUPD (R13), Z27
+	VMOVUPD (DX)(R15*1), Z28
+	VMOVUPD (R13)(R15*1), Z29
+	VSHUFF64X2 $0x44, Z27, Z26, Z12  // v0 of k+4…k+7
+	VSHUFF64X2 $0xee, Z27, Z26, Z13
+	VSHUFF64X2 $0x44, Z29, Z28, Z14
+	VSHUFF64X2 $0xee, Z29, Z28, Z15
+	Z2_HALFSWAP
+	Z2_ROWS01
+	Z2_ROWS23
+
+	VSHUFF64X2 $0x44, Z9, Z8, Z26
+	VSHUFF64X2 $0xee, Z9, Z8, Z27
+	VSHUFF64X2 $0x44, Z11, Z10, Z28
+	VSHUFF64X2 $0xee, Z11, Z10, Z29
+	VMOVUPD Z26, (AX)
+	VMOVUPD Z27, (BX)
+	VMOVUPD Z28, (AX)(R15*1)
+	VMOVUPD Z29, (BX)(R15*1)
+	VSHUFF64X2 $0x44, Z21, Z20, Z26
+	VSHUFF64X2 $0xee, Z21, Z20, Z27
+	VSHUFF64X2 $0x44, Z23, Z22, Z28
+	VSHUFF64X2 $0xee, Z23, Z22, Z29
+	VMOVUPD Z26, (DX)
+	VMOVUPD Z27, (R13)
+	VMOVUPD Z28, (DX)(R15*1)
+	VMOVUPD Z29, (R13)(R15*1)
+
+	ADDQ $8, R10
+	CMPQ R10, R11
+	JLT  zr12Loop
+
+zr12Done:
+	VZEROUPPER
+	RET
+
+// func apply2Q01AVX512x2(x *complex128, from, to int, c *coef2z)
+//
+// apply2Q0AVX for the pair (0, 1) on four groups per iteration, from and to
+// multiples of 4, in 512-bit vectors. Group g is the 64 bytes at 4g,
+// [v0, v1, v2, v3]; VSHUFF64X2 gathers two groups into the vectors of
+// apply2Q0AVX512 (P = [v0, v1] of both, Q = [v2, v3], and the half-swapped
+// Ps, Qs), the arithmetic is that of apply2Q0AVX512x2 (coefficients loaded
+// once for both halves), and P', Q' are shuffled back. The shuffles only
+// move whole amplitudes and every lane sees the instructions of apply2Q0AVX
+// in the same order, so the results are bit-identical to it. c is the
+// coef2z of splitQ0.
+TEXT ·apply2Q01AVX512x2(SB), NOSPLIT, $0-32
+	MOVQ x+0(FP), DI
+	MOVQ from+8(FP), R10
+	MOVQ to+16(FP), R11
+	MOVQ c+24(FP), SI
+	CMPQ R10, R11
+	JGE  zq012Done
+	MOVQ R10, AX
+	SHLQ $6, AX
+	ADDQ DI, AX                // &x[4k]
+	SUBQ R10, R11
+	SHRQ $2, R11               // iterations
+
+zq012Loop:
+	VMOVUPD 0(AX), Z26         // group k
+	VMOVUPD 64(AX), Z27        // group k+1
+	VMOVUPD 128(AX), Z28
+	VMOVUPD 192(AX), Z29
+	VSHUFF64X2 $0x44, Z27, Z26, Z0   // P
+	VSHUFF64X2 $0x11, Z27, Z26, Z1   // Ps
+	VSHUFF64X2 $0xee, Z27, Z26, Z2   // Q
+	VSHUFF64X2 $0xbb, Z27, Z26, Z3   // Qs
+	VSHUFF64X2 $0x44, Z29, Z28, Z12
+	VSHUFF64X2 $0x11, Z29, Z28, Z13
+	VSHUFF64X2 $0xee, Z29, Z28, Z14
+	VSHUFF64X2 $0xbb, Z29, Z28, Z15
+	Z2_HALFSWAP
+	Z2_ROWS01
+
+	VSHUFF64X2 $0x44, Z9, Z8, Z26
+	VSHUFF64X2 $0xee, Z9, Z8, Z27
+	VSHUFF64X2 $0x44, Z21, Z20, Z28
+	VSHUFF64X2 $0xee, Z21, Z20, Z29
+	VMOVUPD Z26, 0(AX)
+	VMOVUPD Z27, 64(AX)
+	VMOVUPD Z28, 128(AX)
+	VMOVUPD Z29, 192(AX)
+
+	ADDQ $256, AX
+	DECQ R11
+	JNZ  zq012Loop
+
+zq012Done:
+	VZEROUPPER
+	RET

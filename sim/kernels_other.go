@@ -30,6 +30,14 @@ func apply2Q0AVX512x2(x *complex128, hi uint, from, to int, c *coef2z) {
 	panic("sim: no AVX kernels on this architecture")
 }
 
+func apply2R1AVX512x2(x *complex128, hi uint, from, to int, c *coef2z) {
+	panic("sim: no AVX kernels on this architecture")
+}
+
+func apply2Q01AVX512x2(x *complex128, from, to int, c *coef2z) {
+	panic("sim: no AVX kernels on this architecture")
+}
+
 func apply2RunsAVXx2(x *complex128, lo, hi uint, from, to int, c *coef2) {
 	panic("sim: no AVX kernels on this architecture")
 }

@@ -3,6 +3,7 @@ package sim
 import (
 	"context"
 	"flag"
+	"fmt"
 	"math"
 	"math/cmplx"
 	"math/rand/v2"
@@ -181,7 +182,9 @@ func TestKernels64PortableMatchVector(t *testing.T) {
 }
 
 // TestX2BitIdentical: the x2 kernels (apply2RunsAVX512x2, apply2Q0AVX512x2,
-// apply2RunsAVXx2, apply2Q0AVXx2) perform, lane by lane, the arithmetic of
+// apply2RunsAVXx2, apply2Q0AVXx2, and the shuffling apply2R1AVX512x2 and
+// apply2Q01AVX512x2 of the pairs (1, q) and (0, 1), with useX2Low on and
+// off) perform, lane by lane, the arithmetic of
 // the one-iteration kernels they replace, and apply2RunsAVX512 and
 // apply2Q0AVX512 that of apply2RunsAVX and apply2Q0AVX, in the same order,
 // so the amplitudes
@@ -195,7 +198,7 @@ func TestX2BitIdentical(t *testing.T) {
 	if !useAVX512 {
 		t.Skip("no AVX-512 on this processor: the x2 kernels never run")
 	}
-	defer func() { useX2 = true }()
+	defer func() { useX2, useX2Low = true, true }()
 	rng := rand.New(rand.NewPCG(71, 72))
 	for n := 5; n <= 8; n++ {
 		amp := make([]complex128, 1<<n)
@@ -228,10 +231,16 @@ func TestX2BitIdentical(t *testing.T) {
 					got := append([]complex128(nil), amp...)
 					useX2 = true
 					apply2Kernel(got, &k, r[0], r[1])
+					// The 256-bit x2 kernels that the new 512-bit ones of
+					// qubit 1 and of (0, 1) replace.
+					low := append([]complex128(nil), amp...)
+					useX2Low = false
+					apply2Kernel(low, &k, r[0], r[1])
+					useX2Low = true
 					for i := range got {
-						if got[i] != want[i] || alt[i] != want[i] {
-							t.Fatalf("n=%d gate (%d,%d) groups %v: amplitude %d is %v (x2), %v (512), %v (256)",
-								n, a, b, r, i, got[i], want[i], alt[i])
+						if got[i] != want[i] || alt[i] != want[i] || low[i] != want[i] {
+							t.Fatalf("n=%d gate (%d,%d) groups %v: amplitude %d is %v (x2), %v (x2, 256-bit low pairs), %v (512), %v (256)",
+								n, a, b, r, i, got[i], low[i], want[i], alt[i])
 						}
 					}
 				}
@@ -255,7 +264,7 @@ func TestRunBitIdenticalToApply2(t *testing.T) {
 	defer func(v int) { fuseMinQubits = v }(fuseMinQubits)
 	fuseMinQubits = BlockQubits + 1
 	has, has512 := useAVX, useAVX512
-	defer func() { useAVX, useAVX512, useX2 = has, has512, true }()
+	defer func() { useAVX, useAVX512, useX2, useX2Low = has, has512, true, true }()
 	rng := rand.New(rand.NewPCG(73, 74))
 	const n = BlockQubits + 3
 	var line, grid []Op
@@ -298,8 +307,9 @@ func TestRunBitIdenticalToApply2(t *testing.T) {
 		for _, mode := range []struct {
 			name    string
 			avx, x2 bool
-		}{{"vector x2", true, true}, {"vector", true, false}, {"portable", false, false}} {
-			useAVX, useAVX512, useX2 = mode.avx && has, mode.avx && has512, false
+			low     bool
+		}{{"vector x2", true, true, true}, {"vector x2 256-bit low pairs", true, true, false}, {"vector", true, false, true}, {"portable", false, false, true}} {
+			useAVX, useAVX512, useX2, useX2Low = mode.avx && has, mode.avx && has512, false, mode.low
 			ref := &State{Qubits: n, Amp: append([]complex128(nil), amp...)}
 			var gates int
 			for _, p := range planPasses(n, circ.ops, BlockQubits) {
@@ -370,17 +380,19 @@ func BenchmarkBlockPass(b *testing.B) {
 // BenchmarkFusedTargets measures the fused-brickwork targets of
 // scripts/bench (fused_speedup_line:26, fused_speedup_grid:5x5: 20 layers of
 // the layered schedule with Haar gates, the target's seed) in one run,
-// alternating four timings per round so that load from other processes
+// alternating six timings per round so that load from other processes
 // hits them alike: Run with the x2 kernels (fused) and with the
-// one-iteration kernels they replace (fused-old, today's kernels), and
-// Apply2 gate by gate with each (one-by-one, one-by-one-old); best of
+// one-iteration kernels they replace (fused-old), and Apply2 gate by gate
+// with each (one-by-one, one-by-one-old), and both with the 256-bit x2
+// kernels for the pairs (1, q) and (0, 1) (fused-256low, one-by-one-256low,
+// useX2Low off: the kernels before apply2R1AVX512x2 and apply2Q01AVX512x2); best of
 // -rounds. It reports ms per gate, the speed-ups one-by-one/fused (the
 // target, ≥ 2) and fused-old/fused, and the CPU time per gate of each
 // (cpu-ms/gate, both workers' time added). A 26-qubit state takes 1 GiB;
 // run it with -benchtime 1x.
 func BenchmarkFusedTargets(b *testing.B) {
 	workers := runtime.NumCPU()
-	defer func() { useX2 = true }()
+	defer func() { useX2, useX2Low = true, true }()
 	for _, spec := range []string{"line:26", "grid:5x5"} {
 		b.Run(spec, func(b *testing.B) {
 			g, err := circuits.ParseGraph(spec)
@@ -407,9 +419,10 @@ func BenchmarkFusedTargets(b *testing.B) {
 				b.Fatal(err)
 			}
 			kinds := []struct {
-				name         string
-				x2, oneByOne bool
-			}{{"fused", true, false}, {"fused-old", false, false}, {"one-by-one", true, true}, {"one-by-one-old", false, true}}
+				name              string
+				x2, oneByOne, low bool
+			}{{"fused", true, false, true}, {"fused-old", false, false, true}, {"one-by-one", true, true, true}, {"one-by-one-old", false, true, true},
+				{"fused-256low", true, false, false}, {"one-by-one-256low", true, true, false}}
 			best, bestCPU := make([]float64, len(kinds)), make([]float64, len(kinds))
 			for i := range best {
 				best[i], bestCPU[i] = math.Inf(1), math.Inf(1)
@@ -418,7 +431,7 @@ func BenchmarkFusedTargets(b *testing.B) {
 				for r := range *fusedRounds {
 					for j := range kinds {
 						kk := kinds[(j+r)%len(kinds)] // rotate which goes first
-						useX2 = kk.x2
+						useX2, useX2Low = kk.x2, kk.low
 						start, cpu0 := time.Now(), cpuSeconds()
 						if kk.oneByOne {
 							for i := range ops {
@@ -442,8 +455,47 @@ func BenchmarkFusedTargets(b *testing.B) {
 			b.ReportMetric(best[2]/best[0], "target-speedup")
 			b.ReportMetric(best[3]/best[1], "old-target-speedup")
 			b.ReportMetric(best[1]/best[0], "fused-old/fused")
+			b.ReportMetric(best[5]/best[4], "256low-target-speedup")
+			b.ReportMetric(best[4]/best[0], "fused-256low/fused")
 		})
 	}
 }
 
 var fusedRounds = flag.Int("rounds", 3, "rounds of BenchmarkFusedTargets")
+
+// BenchmarkKernelClass times one Haar gate per qubit-pair class on a block
+// of 2^BlockQubits amplitudes that stays in cache (one core, apply2Kernel
+// as a fused pass calls it), with the x2 kernels, with the 256-bit x2
+// kernels that the pairs with qubit 1 took before (x2-256, useX2Low off) and
+// with the one-iteration ones (one): ns/amp is the time per gate per amplitude. The classes are
+// those apply2Kernel tells apart: the pairs (0, 1), (0, q ≥ 2), (1, 2),
+// (1, q ≥ 3) and two runs pairs (lo ≥ 2).
+func BenchmarkKernelClass(b *testing.B) {
+	const k = BlockQubits
+	rng := rand.New(rand.NewPCG(83, 84))
+	x := make([]complex128, 1<<k)
+	for i := range x {
+		x[i] = complex(rng.NormFloat64(), rng.NormFloat64()) / 128
+	}
+	defer func() { useX2, useX2Low = true, true }()
+	for _, pair := range [][2]int{{0, 1}, {0, 5}, {1, 2}, {1, 5}, {2, 3}, {4, 9}} {
+		var m [16]complex128
+		circuits.HaarUnitary(rng, 4, m[:])
+		kn := newKernel2(pair[0], pair[1], &m)
+		for _, mode := range []struct {
+			name      string
+			x2, x2Low bool
+		}{{"x2", true, true}, {"x2-256", true, false}, {"one", false, false}} {
+			if mode.name == "x2-256" && pair[0] != 1 && pair != [2]int{0, 1} {
+				continue // the same kernel as x2
+			}
+			b.Run(fmt.Sprintf("%d-%d/%s", pair[0], pair[1], mode.name), func(b *testing.B) {
+				useX2, useX2Low = mode.x2, mode.x2Low
+				for b.Loop() {
+					apply2Kernel(x, &kn, 0, 1<<(k-2))
+				}
+				b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(len(x)), "ns/amp")
+			})
+		}
+	}
+}

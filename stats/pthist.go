@@ -18,9 +18,9 @@ type ProbabilityPass func(visit func(w int, p []float64))
 // values, 32 MiB.
 const DefaultKSBudget = 1 << 22
 
-// ksMaxBinBits caps the number of level-0 bins per octave of probability
-// (2^14, 18·2^14 counters, 1.2 MiB per worker): each holds at most about
-// e^−1·ln 2·2^−14 ≈ 1.6e−5 of the Porter–Thomas mass.
+// ksMaxBinBits caps the number of fine bins per octave of probability that
+// the count pass counts (2^14, 18·2^14 counters, 1.2 MiB per worker): each
+// holds at most about e^−1·2^−14 ≈ 2.2e−5 of the Porter–Thomas mass.
 const ksMaxBinBits = 14
 
 // ksMinCollect is the number of candidate values always small enough to
@@ -72,11 +72,13 @@ func KSHaarPasses(dim, workers, budget int, pass ProbabilityPass) (ks float64, p
 // of a circuit). Finish then runs the refinement passes and makes the
 // HaarKS ready for the next state.
 //
-// The level-0 bins are fixed by D: uniform in the bits of the float64
-// value, 2^b bins per octave of D·p over [2^−12, 2^6), with b from 4 to 14
-// growing with D (at most about e^−1·2^−b of the Porter–Thomas
-// mass in a bin), so a value is binned by integer operations on its bits
-// and the CDF at every bin edge is evaluated once, in NewHaarKS.
+// The bins are fixed by D. The count pass counts fine bins, uniform in the
+// bits of the float64 value, 2^b per octave of D·p over [2^−12, 2^6), with
+// b from 4 to 14 growing with D (at most about e^−1·2^−b of the
+// Porter–Thomas mass in a bin), so a value is binned by integer operations
+// on its bits. Its counts are then summed into the level-0 bins, which are
+// runs of fine bins of about equal mass (ksOctaveBits), and the CDF at
+// every level-0 edge is evaluated once, in NewHaarKS.
 type HaarKS struct {
 	r      *ksRefiner
 	counts [][]uint32 // level-0 counts per worker
@@ -403,20 +405,29 @@ const (
 )
 
 // ksOctaveBits returns the number of bits of 2^bits level-0 bins in the
-// octave [2^k, 2^(k+1)) of D·p, for b bits in the octaves of the mode.
+// octave [2^k, 2^(k+1)) of D·p, for b bits of fine bins per octave.
 //
 // What decides how many values stay candidates after the first pass is a
 // bin's probability mass against the statistic (~1/√D), not its width: the
 // bounds L_j and U_j differ by about the bin's mass. Under the Porter–Thomas
-// law (density e^−x in x = D·p), a bin of 2^−b of the octave from 2^k holds
-// at most 2^k·e^(−2^k)·2^−b of the mass, e^−1·2^−b at k = 0, far less in the
-// low octaves (2^−12 of it at k = −12) and the high ones. Each octave gets
-// the fewest bins that keep its bins' mass at most the largest, e^−1·2^−b:
-// b − floor(log2(e^−1/(2^k·e^(−2^k)))), at least one bin. That is 2^b bins
-// in the four octaves from 1/4 to 4, 2^(b−1) from 1/8, 2^(b−2) from 1/16
-// and from 4, …: about 5.3·2^b counters instead of 18·2^b (86k counters,
-// 345 KiB, at n = 24 instead of 1.2 MiB, so that they fit in the 1 MiB
-// second-level cache of the Zen 5 this was measured on).
+// law (density e^−x in x = D·p), a fine bin of 2^−b of the octave from 2^k
+// holds at most 2^k·e^(−2^k)·2^−b of the mass, e^−1·2^−b at k = 0, far less
+// in the low octaves (2^−12 of it at k = −12) and the high ones. Each
+// octave gets the fewest level-0 bins that keep their mass at most the
+// largest, e^−1·2^−b: b − floor(log2(e^−1/(2^k·e^(−2^k)))), at least one.
+// That is 2^b bins in the four octaves from 1/4 to 4, 2^(b−1) from 1/8,
+// 2^(b−2) from 1/16 and from 4, …: about 5.3·2^b bins instead of 18·2^b.
+//
+// The count pass still counts the fine bins: its cost is the random
+// increments of the counters, and those follow the mass, which lies in the
+// same few octaves whichever layout counts it. Counting into the level-0
+// bins themselves (an index from a table per octave) took 2.3 against 1.9
+// ns per amplitude at n = 24 and 1.2–1.3 against 0.8–0.9 at n = 16 on one
+// core of an AMD EPYC Zen 5 (BenchmarkReadoutCPU/count, CPU time): the
+// extra table look-up and variable shift cost more than the 3.4 times
+// smaller table saved. The per-bin loops after the pass (gather, select_,
+// bounds, markActive, reset: 20% of a read-out at n = 20) are what the
+// level-0 layout makes cheaper.
 func ksOctaveBits(k int, b uint) uint {
 	r := math.Floor((math.Ldexp(1, k)-1)/math.Ln2 - float64(k)) // log2(e^−1/(2^k·e^(−2^k)))
 	return uint(max(0, int(b)-int(r)))
@@ -424,9 +435,9 @@ func ksOctaveBits(k int, b uint) uint {
 
 const ksSlack = 1e-12 // candidates keep U_j ≥ L − slack, so rounding in the bounds never drops the supremum's bin
 
-// ksBinBits returns the number of bits b of 2^b level-0 bins per octave for
-// dim = 2^n values: b = min(n − 7, n/2 + 2), from 2^4 to 2^14 bins per
-// octave. From n = 20 on, the n/2 + 2 term applies: the mass of a bin near
+// ksBinBits returns the number of bits b of 2^b fine bins per octave for
+// dim = 2^n values (and of level-0 bins in the octaves of the mode):
+// b = min(n − 6, n/2 + 2), from 2^4 to 2^14 bins per octave. From n = 20 on, the n/2 + 2 term applies: the mass of a bin near
 // the mode of the Porter–Thomas law (≲ e^−1·ln 2·2^−b) then falls like the
 // statistic's typical size 1/√D, so that about the same share of the values
 // stays in candidate bins after the first pass, while the counters of the
@@ -441,11 +452,16 @@ const ksSlack = 1e-12 // candidates keep U_j ≥ L − slack, so rounding in the
 // BenchmarkReader (0.28 against 0.35 ms), but the demo scan (n = 16, one
 // worker per read-out) ran 1.37 billion instructions in the per-bin loops
 // (select_, finish, bounds, markActive) against 0.73 billion at b = 9
-// (callgrind, 40 instances), so it stays at b = 9. (Tuned first on the demo scan: dim/2^9 and dim/2^5 bins per
-// octave were both slower.)
+// (callgrind, 40 instances), so it stayed at b = 9. (Tuned first on the demo scan: dim/2^9 and dim/2^5 bins per
+// octave were both slower.) Since the level-0 bins follow the mass
+// (ksOctaveBits), the per-bin loops go over 3.4 times fewer bins, and the
+// rule became n − 6 (b = 10 at n = 16, 8 at n = 14): a read-out on one
+// worker (BenchmarkReadoutCPU, CPU time of the thread, 4 alternating runs)
+// took 6.6 against 8.7 ns per amplitude at n = 12, 2.8 against 3.3 at
+// n = 14 and 2.8 against 3.2 at n = 16 (medians) with n − 6 than with n − 7.
 func ksBinBits(dim int) uint {
 	n := bits.Len(uint(dim)) - 1
-	return uint(min(ksMaxBinBits, max(4, min(n-7, n/2+2))))
+	return uint(min(ksMaxBinBits, max(4, min(n-6, n/2+2))))
 }
 
 func newKSRefiner(dim, workers int) *ksRefiner {

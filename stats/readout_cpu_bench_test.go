@@ -32,7 +32,7 @@ func threadCPU() int64 {
 // FinishAmplitudes), and reports the thread's CPU time per amplitude
 // (cpu-ns/amp) besides the wall time, which a loaded machine inflates.
 func BenchmarkReadoutCPU(b *testing.B) {
-	for _, n := range []int{16, 20, 22, 24} {
+	for _, n := range []int{12, 14, 16, 18, 20, 22, 24} {
 		d := 1 << n
 		rng := rand.New(rand.NewPCG(uint64(n), 9))
 		a := make([]float64, 2*d)

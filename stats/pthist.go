@@ -18,9 +18,9 @@ type ProbabilityPass func(visit func(w int, p []float64))
 // values, 32 MiB.
 const DefaultKSBudget = 1 << 22
 
-// ksMaxBinBits caps the number of level-0 bins per octave of probability
-// (2^14, 18·2^14 counters, 1.2 MiB per worker): each holds at most about
-// e^−1·ln 2·2^−14 ≈ 1.6e−5 of the Porter–Thomas mass.
+// ksMaxBinBits caps the number of fine bins per octave of probability that
+// the count pass counts (2^14, 18·2^14 counters, 1.2 MiB per worker): each
+// holds at most about e^−1·2^−14 ≈ 2.2e−5 of the Porter–Thomas mass.
 const ksMaxBinBits = 14
 
 // ksMinCollect is the number of candidate values always small enough to
@@ -72,11 +72,13 @@ func KSHaarPasses(dim, workers, budget int, pass ProbabilityPass) (ks float64, p
 // of a circuit). Finish then runs the refinement passes and makes the
 // HaarKS ready for the next state.
 //
-// The level-0 bins are fixed by D: uniform in the bits of the float64
-// value, 2^b bins per octave of D·p over [2^−12, 2^6), with b from 4 to 14
-// growing with D (at most about e^−1·2^−b of the Porter–Thomas
-// mass in a bin), so a value is binned by integer operations on its bits
-// and the CDF at every bin edge is evaluated once, in NewHaarKS.
+// The bins are fixed by D. The count pass counts fine bins, uniform in the
+// bits of the float64 value, 2^b per octave of D·p over [2^−12, 2^6), with
+// b from 4 to 14 growing with D (at most about e^−1·2^−b of the
+// Porter–Thomas mass in a bin), so a value is binned by integer operations
+// on its bits. Its counts are then summed into the level-0 bins, which are
+// runs of fine bins of about equal mass (ksOctaveBits), and the CDF at
+// every level-0 edge is evaluated once, in NewHaarKS.
 type HaarKS struct {
 	r      *ksRefiner
 	counts [][]uint32 // level-0 counts per worker
@@ -101,7 +103,7 @@ func NewHaarKS(dim, workers, budget int) *HaarKS {
 	r := newKSRefiner(dim, workers)
 	h := &HaarKS{r: r, counts: make([][]uint32, workers), nans: make([]bool, workers), budget: budget}
 	for w := range h.counts {
-		h.counts[w] = make([]uint32, r.n0)
+		h.counts[w] = make([]uint32, r.nbf+4)
 	}
 	return h
 }
@@ -117,7 +119,7 @@ func (h *HaarKS) Count(w int, p []float64) {
 	// the difference of the bits and pos = lo0 without the sign bit; a
 	// negative v or a NaN gives a difference of at least 2^62, beyond the
 	// uniform bins.
-	pos, shift, u := r.lo0&^(1<<63), r.shift&63, c[3:3+r.nb0]
+	pos, shift, u := r.lo0&^(1<<63), r.shift&63, c[3:3+r.nbf]
 	for _, v := range p {
 		if i := (math.Float64bits(v) - pos) >> (shift & 63); i < uint64(len(u)) {
 			u[i]++ // the comparison is the bounds check
@@ -139,7 +141,7 @@ func (h *HaarKS) CountAmplitudes(w int, a []float64) float64 {
 	if len(a)%2 != 0 {
 		panic("stats: CountAmplitudes of an odd number of floats")
 	}
-	c := h.counts[w][:h.r.n0]
+	c := h.counts[w][:h.r.nbf+4]
 	return h.sumCount(w, c, a)
 }
 
@@ -164,9 +166,19 @@ func (h *HaarKS) leafCount(w int, c []uint32, a []float64) float64 {
 	// measured slower than this one: 9.9 ms against 7.9 ms for 2^22 pairs
 	// on one core of an AMD EPYC Zen 5 (BenchmarkReadoutPasses/count), as
 	// the time goes to the random increments of the counters, which this
-	// loop overlaps with the arithmetic.
+	// loop overlaps with the arithmetic. So was an assembly loop with
+	// VHADDPD squares and the bins found and incremented in general
+	// registers, no value on the stack, the outer values out of line: 2.9
+	// against 2.5 ns per amplitude at n = 24 and 1.1–1.4 against 0.8–0.9
+	// at n = 16 (BenchmarkReadoutCPU/count, CPU time, alternating runs).
+	// With the counters in the first-level cache the pass costs about
+	// 0.85 ns per amplitude at n = 24 (2^9 bins per octave, 36 KiB),
+	// against 1.9 ns with the 2^14 it needs: the increments to the
+	// second-level cache are the cost, and a table of the same hot size
+	// (the octaves of the mode) costs the same whether it is 0.3 or 1.2 MiB
+	// in all (2^12 bins per octave took 2.1 ns).
 	r := h.r
-	pos, shift, u := r.lo0&^(1<<63), r.shift&63, c[3:3+r.nb0]
+	pos, shift, u := r.lo0&^(1<<63), r.shift&63, c[3:3+r.nbf]
 	var s0, s1, s2, s3 float64
 	i := 0
 	for ; i+8 <= len(a); i += 8 {
@@ -223,7 +235,7 @@ func (h *HaarKS) countOuter(w int, c []uint32, v float64) {
 		h.nans[w] = true
 		return
 	}
-	c[h.r.bin0(ksKey(v))]++
+	c[h.r.fine0(ksKey(v))]++
 }
 
 // Finish returns the statistic of the probabilities counted since the last
@@ -348,12 +360,19 @@ type ksRefiner struct {
 	nodes   []ksNode
 	state   []uint8
 	// Level-0 bins: node 0 negative values, 1 exact zeros, 2 positive values
-	// below lo0, 3…3+nb0−1 the uniform bins of width 2^shift from lo0, and
-	// the last one everything above; n0 = nb0+4 of them. f0[i] holds the
-	// CDF at the smallest and the largest value of level-0 node i.
+	// below lo0, 3…3+nb0−1 the bins of the ksOctaves octaves from lo0 (see
+	// ksOctaveBits), and the last one everything above; n0 = nb0+4 of them.
+	// oct[o] holds, for octave o, the index from node 3 of its first bin
+	// shifted left by 8, or'ed with the shift that turns the mantissa bits
+	// of a key into the bin's place in the octave. The filters see the
+	// octaves as nbf fine bins of 2^shift keys, the width of the bins of
+	// the finest octave: every level-0 bin is a run of fine bins. f0[i]
+	// holds the CDF at the smallest and the largest value of level-0 node i.
 	lo0, kzero uint64
 	shift      uint
 	nb0, n0    int
+	nbf        int
+	oct        [ksOctaves]uint64
 	f0         [][2]float64
 	// lower is L, the running lower bound; best the largest exact term found.
 	lower, best float64
@@ -361,11 +380,11 @@ type ksRefiner struct {
 	// active has bit b set when level-0 node b is not idle: a pass rejects
 	// most values with this table, before touching any node.
 	active []uint64
-	// act0 holds 1 for each uniform level-0 bin (node 3+i) that is not
-	// idle, the byte the collect pass reads per value.
+	// act0 holds 1 for each fine bin whose level-0 bin is not idle, the
+	// byte the collect pass reads per value.
 	act0 []uint8
-	// actLo and actHi span the active uniform bins (actLo > actHi when
-	// there is none): ksFilterAVX2 looks up act0 only inside the span.
+	// actLo and actHi span the active fine bins (actLo > actHi when there
+	// is none): ksFilterAVX2 looks up act0 only inside the span.
 	actLo, actHi int
 	ups          []ksUpper // select_'s buffer
 	// vals, all and offs are the collect pass's buffers, kept for the next
@@ -387,11 +406,48 @@ type ksRefiner struct {
 	sused, dused     []bool
 }
 
+// ksOctaves is the number of octaves of D·p covered by the level-0 bins,
+// from 2^ksOctaveLo; ksMant masks the mantissa bits of a key.
+const (
+	ksOctaves  = 18
+	ksOctaveLo = -12
+	ksMant     = 1<<52 - 1
+)
+
+// ksOctaveBits returns the number of bits of 2^bits level-0 bins in the
+// octave [2^k, 2^(k+1)) of D·p, for b bits of fine bins per octave.
+//
+// What decides how many values stay candidates after the first pass is a
+// bin's probability mass against the statistic (~1/√D), not its width: the
+// bounds L_j and U_j differ by about the bin's mass. Under the Porter–Thomas
+// law (density e^−x in x = D·p), a fine bin of 2^−b of the octave from 2^k
+// holds at most 2^k·e^(−2^k)·2^−b of the mass, e^−1·2^−b at k = 0, far less
+// in the low octaves (2^−12 of it at k = −12) and the high ones. Each
+// octave gets the fewest level-0 bins that keep their mass at most the
+// largest, e^−1·2^−b: b − floor(log2(e^−1/(2^k·e^(−2^k)))), at least one.
+// That is 2^b bins in the four octaves from 1/4 to 4, 2^(b−1) from 1/8,
+// 2^(b−2) from 1/16 and from 4, …: about 5.3·2^b bins instead of 18·2^b.
+//
+// The count pass still counts the fine bins: its cost is the random
+// increments of the counters, and those follow the mass, which lies in the
+// same few octaves whichever layout counts it. Counting into the level-0
+// bins themselves (an index from a table per octave) took 2.3 against 1.9
+// ns per amplitude at n = 24 and 1.2–1.3 against 0.8–0.9 at n = 16 on one
+// core of an AMD EPYC Zen 5 (BenchmarkReadoutCPU/count, CPU time): the
+// extra table look-up and variable shift cost more than the 3.4 times
+// smaller table saved. The per-bin loops after the pass (gather, select_,
+// bounds, markActive, reset: 20% of a read-out at n = 20) are what the
+// level-0 layout makes cheaper.
+func ksOctaveBits(k int, b uint) uint {
+	r := math.Floor((math.Ldexp(1, k)-1)/math.Ln2 - float64(k)) // log2(e^−1/(2^k·e^(−2^k)))
+	return uint(max(0, int(b)-int(r)))
+}
+
 const ksSlack = 1e-12 // candidates keep U_j ≥ L − slack, so rounding in the bounds never drops the supremum's bin
 
-// ksBinBits returns the number of bits b of 2^b level-0 bins per octave for
-// dim = 2^n values: b = min(n − 7, n/2 + 2), from 2^4 to 2^14 bins per
-// octave. From n = 20 on, the n/2 + 2 term applies: the mass of a bin near
+// ksBinBits returns the number of bits b of 2^b fine bins per octave for
+// dim = 2^n values (and of level-0 bins in the octaves of the mode):
+// b = min(n − 6, n/2 + 2), from 2^4 to 2^14 bins per octave. From n = 20 on, the n/2 + 2 term applies: the mass of a bin near
 // the mode of the Porter–Thomas law (≲ e^−1·ln 2·2^−b) then falls like the
 // statistic's typical size 1/√D, so that about the same share of the values
 // stays in candidate bins after the first pass, while the counters of the
@@ -406,36 +462,47 @@ const ksSlack = 1e-12 // candidates keep U_j ≥ L − slack, so rounding in the
 // BenchmarkReader (0.28 against 0.35 ms), but the demo scan (n = 16, one
 // worker per read-out) ran 1.37 billion instructions in the per-bin loops
 // (select_, finish, bounds, markActive) against 0.73 billion at b = 9
-// (callgrind, 40 instances), so it stays at b = 9. (Tuned first on the demo scan: dim/2^9 and dim/2^5 bins per
-// octave were both slower.)
+// (callgrind, 40 instances), so it stayed at b = 9. (Tuned first on the demo scan: dim/2^9 and dim/2^5 bins per
+// octave were both slower.) Since the level-0 bins follow the mass
+// (ksOctaveBits), the per-bin loops go over 3.4 times fewer bins, and the
+// rule became n − 6 (b = 10 at n = 16, 8 at n = 14): a read-out on one
+// worker (BenchmarkReadoutCPU, CPU time of the thread, 4 alternating runs)
+// took 6.6 against 8.7 ns per amplitude at n = 12, 2.8 against 3.3 at
+// n = 14 and 2.8 against 3.2 at n = 16 (medians) with n − 6 than with n − 7.
 func ksBinBits(dim int) uint {
 	n := bits.Len(uint(dim)) - 1
-	return uint(min(ksMaxBinBits, max(4, min(n-7, n/2+2))))
+	return uint(min(ksMaxBinBits, max(4, min(n-6, n/2+2))))
 }
 
 func newKSRefiner(dim, workers int) *ksRefiner {
 	h := HaarProb{Dim: float64(dim)}
-	r := &ksRefiner{dim: dim, workers: workers, cdf: h.CDF, shift: 52 - ksBinBits(dim)}
-	// Uniform bins over D·p in [2^−12, 2^6): 18 octaves, which hold all but
-	// about 2^−12 of the Porter–Thomas mass; the rest falls in the two
+	b := ksBinBits(dim)
+	r := &ksRefiner{dim: dim, workers: workers, cdf: h.CDF, shift: 52 - b}
+	// Bins over D·p in [2^−12, 2^6): ksOctaves = 18 octaves, which hold all
+	// but about 2^−12 of the Porter–Thomas mass; the rest falls in the two
 	// outer bins, refined like any other when they can hold the supremum.
-	lo := ksKey(math.Ldexp(1, -12) / float64(dim))
-	hi := ksKey(math.Ldexp(1, 6) / float64(dim))
-	r.lo0 = lo &^ (1<<r.shift - 1)
-	r.nb0 = int((hi-r.lo0)>>r.shift) + 1
-	r.n0 = r.nb0 + 4
+	// 2^−12/D is a power of two, so lo0 is the key of the first value of
+	// an octave and the octave of a key k ≥ lo0 is (k − lo0) >> 52.
+	r.lo0 = ksKey(math.Ldexp(1, ksOctaveLo) / float64(dim))
+	r.nbf = ksOctaves << b
 	r.kzero = ksKey(0)
-	top := r.lo0 + uint64(r.nb0)<<r.shift
-	r.nodes = make([]ksNode, 0, r.n0)
+	top := r.lo0 + uint64(ksOctaves)<<52
+	r.nodes = make([]ksNode, 0, 4+r.nbf)
 	r.nodes = append(r.nodes,
 		ksNode{lo: ksKey(math.Inf(-1)), hi: r.kzero},
 		ksNode{lo: r.kzero, hi: r.kzero + 1},
 		ksNode{lo: r.kzero + 1, hi: r.lo0},
 	)
-	for i := 0; i < r.nb0; i++ {
-		l := r.lo0 + uint64(i)<<r.shift
-		r.nodes = append(r.nodes, ksNode{lo: l, hi: l + 1<<r.shift})
+	for o := range ksOctaves {
+		bo := ksOctaveBits(o+ksOctaveLo, b)
+		r.oct[o] = uint64(len(r.nodes)-3)<<8 | uint64(52-bo)
+		for i := range 1 << bo {
+			l := r.lo0 + uint64(o)<<52 + uint64(i)<<(52-bo)
+			r.nodes = append(r.nodes, ksNode{lo: l, hi: l + 1<<(52-bo)})
+		}
 	}
+	r.nb0 = len(r.nodes) - 3
+	r.n0 = r.nb0 + 4
 	r.nodes = append(r.nodes, ksNode{lo: top, hi: ksKey(math.Inf(1)) + 1})
 	r.state = make([]uint8, len(r.nodes))
 	r.f0 = make([][2]float64, r.n0)
@@ -443,6 +510,22 @@ func newKSRefiner(dim, workers int) *ksRefiner {
 		r.f0[i] = [2]float64{r.cdf(ksValue(r.nodes[i].lo)), r.cdf(ksValue(r.nodes[i].hi - 1))}
 	}
 	return r
+}
+
+// fine0 returns the first pass's counter of key k: 0, 1 and 2 those of
+// level-0 nodes 0, 1 and 2, 3+j that of fine bin j, and 3+nbf that of the
+// last level-0 node.
+func (r *ksRefiner) fine0(k uint64) int {
+	if k < r.lo0 {
+		switch {
+		case k < r.kzero:
+			return 0
+		case k == r.kzero:
+			return 1
+		}
+		return 2
+	}
+	return 3 + int(min((k-r.lo0)>>r.shift, uint64(r.nbf)))
 }
 
 // bin0 returns the level-0 node of key k.
@@ -456,7 +539,12 @@ func (r *ksRefiner) bin0(k uint64) int {
 		}
 		return 2
 	}
-	return 3 + min(int((k-r.lo0)>>r.shift), r.nb0)
+	d := k - r.lo0
+	if d>>52 >= ksOctaves {
+		return 3 + r.nb0
+	}
+	e := r.oct[d>>52]
+	return 3 + int(e>>8+(d&ksMant)>>(e&63))
 }
 
 // gather adds the level-0 counts of the workers into the nodes and makes
@@ -464,8 +552,33 @@ func (r *ksRefiner) bin0(k uint64) int {
 func (r *ksRefiner) gather(counts [][]uint32, nans []bool) {
 	for w := range counts {
 		r.nan = r.nan || nans[w]
-		for i, v := range counts[w] {
-			r.nodes[i].count += int64(v)
+		c := counts[w]
+		for i := range 3 {
+			r.nodes[i].count += int64(c[i])
+		}
+		r.nodes[r.n0-1].count += int64(c[3+r.nbf])
+		// The fine counters of each octave's bins: a bin of octave o holds
+		// 2^(bits of the finest octave − bits of o) of them.
+		b := 52 - r.shift
+		f, u := c[3:3+r.nbf], r.nodes[3:3+r.nb0]
+		for o := range ksOctaves {
+			e := r.oct[o]
+			run := 1 << (b - (52 - uint(e&63)))
+			fo := f[o<<b : (o+1)<<b]
+			uo := u[e>>8 : int(e>>8)+len(fo)/run]
+			if run == 1 {
+				for i, v := range fo {
+					uo[i].count += int64(v)
+				}
+				continue
+			}
+			for i := range uo {
+				var t int64
+				for _, v := range fo[i*run : (i+1)*run] {
+					t += int64(v)
+				}
+				uo[i].count += t
+			}
 		}
 	}
 	var below int64
@@ -544,20 +657,31 @@ func (r *ksRefiner) markActive() {
 	if r.act0 == nil {
 		// Zero padding past the table: ksFilterAVX2 reads act[nb] for the
 		// lanes outside the active span.
-		r.act0 = make([]uint8, r.nb0, r.nb0+ksActPad)
+		r.act0 = make([]uint8, r.nbf, r.nbf+ksActPad)
 	}
 	clear(r.active)
-	r.actLo, r.actHi = r.nb0, -1
+	r.actLo, r.actHi = r.nbf, -1
 	for i := 0; i < n0; i++ {
 		on := r.live(i)
 		if on {
 			r.active[i>>6] |= 1 << (i & 63)
 		}
 		if i >= 3 && i < 3+r.nb0 {
-			r.act0[i-3] = 0
+			// The fine bins of node i.
+			nd := &r.nodes[i]
+			flo, fhi := int((nd.lo-r.lo0)>>r.shift), int((nd.hi-r.lo0)>>r.shift)
+			var a uint8
 			if on {
-				r.act0[i-3] = 1
-				r.actLo, r.actHi = min(r.actLo, i-3), i-3
+				a = 1
+				r.actLo, r.actHi = min(r.actLo, flo), fhi-1
+			}
+			if fhi-flo == 1 {
+				r.act0[flo] = a
+			} else {
+				act := r.act0[flo:fhi]
+				for j := range act {
+					act[j] = a
+				}
 			}
 		}
 	}
@@ -624,22 +748,30 @@ func (r *ksRefiner) split(pass ProbabilityPass, apass AmplitudePass, cands []int
 	}
 	r.markActive()
 	slots := len(r.nodes) - first
-	// In the first split every candidate is a level-0 node, and the uniform
-	// ones all get children of 2^cs keys: their children's counts are then
-	// held in one array indexed by the value's bits from the first active
-	// uniform bin, as the count pass indexes its bins, with no walk down the
-	// nodes; the values outside (outer bins) take leaf. The array also has
-	// slots for the idle bins between candidates, which are not read.
-	cs := uint(bits.Len64((uint64(1)<<r.shift+per-1)/per - 1))
-	dense := r.actLo <= r.actHi
+	// In the first split every candidate is a level-0 node. The counts of
+	// the children of those in the octaves are then held in one array of
+	// cells of 2^cs keys, cs the smallest shift of their children, indexed
+	// by the value's bits from the first such candidate, as the count pass
+	// indexes its bins, with no walk down the nodes; the values outside
+	// (outer bins) take leaf. A child's count is the sum of its cells (one
+	// when the candidates lie in octaves of the same width). Every level-0
+	// bin and child starts on a multiple of 2^cs keys from lo0, so the cells
+	// tile them. The array also has cells for the idle bins between
+	// candidates, which are not read.
+	dense := true
+	cs, dlo, dhi := uint(64), uint64(math.MaxUint64), uint64(0)
 	for _, ci := range cands {
 		dense = dense && int(ci) < r.n0
+		if ci >= 3 && int(ci) < 3+r.nb0 {
+			nd := &r.nodes[ci]
+			cs, dlo, dhi = min(cs, uint(nd.shift)), min(dlo, nd.lo), max(dhi, nd.hi)
+		}
 	}
 	var dlen int
 	var dpos uint64
-	if dense {
-		dlen = (r.actHi - r.actLo + 1) << (r.shift - cs)
-		dpos = (r.lo0 + uint64(r.actLo)<<r.shift) &^ (1 << 63)
+	if dense = dense && dlo < dhi; dense {
+		dlen = int(min((dhi-dlo)>>cs, ksMaxDense+1))
+		dpos = dlo &^ (1 << 63)
 		dense = dlen <= ksMaxDense
 	}
 	if r.scounts == nil {
@@ -684,14 +816,15 @@ func (r *ksRefiner) split(pass ProbabilityPass, apass AmplitudePass, cands []int
 	for _, ci := range cands {
 		nd := r.nodes[ci]
 		below := nd.below
-		u := int(ci) - 3 - r.actLo // the bin's place in the dense array
 		fromDense := dense && int(ci) >= 3 && int(ci) < 3+r.nb0
 		for j := nd.child; j < nd.child+nd.nchild; j++ {
 			ch := &r.nodes[j]
 			for w := range counts {
 				switch {
 				case fromDense && r.dused[w]:
-					ch.count += int64(dcounts[w][u<<(r.shift-cs)+int(j-nd.child)])
+					for _, c := range dcounts[w][(ch.lo-dlo)>>cs : (ch.hi-dlo)>>cs] {
+						ch.count += int64(c)
+					}
 				case !fromDense && r.sused[w]:
 					ch.count += int64(counts[w][int(j)-first])
 				}

@@ -8,15 +8,16 @@ import (
 	"testing"
 )
 
-// filterReference is the collect pass's rule written from the level-0 bins
-// of the refiner (bin0 on the ordered key, not the shifted difference of
-// the kernels): a value is kept when its level-0 node is not a uniform bin,
-// or is a uniform bin marked in act.
+// filterReference is the collect pass's rule written from the ordered keys
+// of the refiner (comparisons of keys with the edges of the octaves, not
+// the shifted difference of the kernels): a value is kept when it lies
+// outside the octaves of the level-0 bins, or in a fine bin marked in act.
 func filterReference(r *ksRefiner, a []float64, act []uint8) []float64 {
 	var out []float64
+	top := r.lo0 + uint64(ksOctaves)<<52
 	for i := 1; i < len(a); i += 2 {
 		v := float64(a[i-1]*a[i-1]) + float64(a[i]*a[i]) // each square rounded, as the kernel does
-		if j := r.bin0(ksKey(v)); j < 3 || j >= 3+r.nb0 || act[j-3] != 0 {
+		if k := ksKey(v); v != v || k < r.lo0 || k >= top || act[(k-r.lo0)>>r.shift] != 0 {
 			out = append(out, v)
 		}
 	}
@@ -52,7 +53,7 @@ func TestFilterPairsPaths(t *testing.T) {
 				}
 			}
 			for kind := 0; kind < 4; kind++ {
-				act := make([]uint8, r.nb0, r.nb0+ksActPad)
+				act := make([]uint8, r.nbf, r.nbf+ksActPad)
 				for j := range act {
 					switch kind {
 					case 1:
@@ -60,14 +61,14 @@ func TestFilterPairsPaths(t *testing.T) {
 							act[j] = 1
 						}
 					case 2:
-						if j >= r.nb0/3 && j < r.nb0/3+r.nb0/20 {
+						if j >= r.nbf/3 && j < r.nbf/3+r.nbf/20 {
 							act[j] = 1
 						}
 					case 3:
 						act[j] = 1
 					}
 				}
-				span := [2]int{r.nb0, -1}
+				span := [2]int{r.nbf, -1}
 				for j, on := range act {
 					if on != 0 {
 						span = [2]int{min(span[0], j), j}

@@ -1,0 +1,70 @@
+//go:build linux
+
+package stats
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"runtime"
+	"syscall"
+	"testing"
+	"unsafe"
+)
+
+// threadCPU returns the CPU time of the calling OS thread in nanoseconds
+// (clock_gettime of CLOCK_THREAD_CPUTIME_ID, 3 on Linux): on a machine
+// shared with other jobs it counts the time this thread ran, not the time
+// it waited for a core, so that benchmarks taken under load stay
+// comparable.
+func threadCPU() int64 {
+	var ts syscall.Timespec
+	if _, _, e := syscall.Syscall(syscall.SYS_CLOCK_GETTIME, 3, uintptr(unsafe.Pointer(&ts)), 0); e != 0 {
+		panic(e)
+	}
+	return ts.Nano()
+}
+
+// BenchmarkReadoutCPU times the read-out of HaarKS over a Porter–Thomas
+// state of 2^n amplitudes on one worker, the count pass alone (count:
+// CountAmplitudes over blocks of 4096 amplitudes, as the simulator hands
+// them) and the whole read-out (readout: the count pass, then
+// FinishAmplitudes), and reports the thread's CPU time per amplitude
+// (cpu-ns/amp) besides the wall time, which a loaded machine inflates.
+func BenchmarkReadoutCPU(b *testing.B) {
+	for _, n := range []int{12, 14, 16, 18, 20, 22, 24} {
+		d := 1 << n
+		rng := rand.New(rand.NewPCG(uint64(n), 9))
+		a := make([]float64, 2*d)
+		s := math.Sqrt(0.5 / float64(d))
+		for i := range a {
+			a[i] = s * rng.NormFloat64()
+		}
+		h := NewHaarKS(d, 1, 0)
+		pass := func(visit func(w int, a []float64)) {
+			for off := 0; off < len(a); off += 8192 {
+				visit(0, a[off:off+8192])
+			}
+		}
+		count := func(w int, q []float64) { h.CountAmplitudes(w, q) }
+		for _, part := range []string{"count", "readout"} {
+			b.Run(fmt.Sprintf("n=%d/%s", n, part), func(b *testing.B) {
+				runtime.LockOSThread()
+				defer runtime.UnlockOSThread()
+				b.SetBytes(16 * int64(d))
+				var cpu int64
+				for b.Loop() {
+					t0 := threadCPU()
+					pass(count)
+					if part == "readout" {
+						h.FinishAmplitudes(pass)
+					} else {
+						h.reset()
+					}
+					cpu += threadCPU() - t0
+				}
+				b.ReportMetric(float64(cpu)/float64(b.N)/float64(d), "cpu-ns/amp")
+			})
+		}
+	}
+}

@@ -16,6 +16,7 @@ import (
 	"strings"
 
 	"mixdepth/internal/inputfile"
+	"mixdepth/internal/pinned"
 )
 
 // Sentinel errors of gate-set specs and files, wrapped by *ParseError.
@@ -571,7 +572,7 @@ func kron2(dst *[16]complex128, a, b *[4]complex128) {
 		for j := 0; j < 2; j++ {
 			for k := 0; k < 2; k++ {
 				for l := 0; l < 2; l++ {
-					dst[(2*i+j)*4+2*k+l] = a[2*i+k] * b[2*j+l]
+					dst[(2*i+j)*4+2*k+l] = pinned.Mul(a[2*i+k], b[2*j+l])
 				}
 			}
 		}
@@ -584,7 +585,7 @@ func mul4(dst, a, b *[16]complex128) {
 		for j := 0; j < 4; j++ {
 			var s complex128
 			for k := 0; k < 4; k++ {
-				s += a[i*4+k] * b[k*4+j]
+				s += pinned.Mul(a[i*4+k], b[k*4+j])
 			}
 			dst[i*4+j] = s
 		}

@@ -4,6 +4,8 @@ import (
 	"math"
 	"math/cmplx"
 	"math/rand/v2"
+
+	"mixdepth/internal/pinned"
 )
 
 // HaarUnitary fills u (row-major d×d, len(u) == d*d) with a Haar-random
@@ -28,21 +30,20 @@ func HaarUnitary(rng *rand.Rand, d int, u []complex128) {
 			for k := 0; k < j; k++ {
 				var dot complex128 // ⟨q_k, a_j⟩
 				for i := 0; i < d; i++ {
-					dot += cmplx.Conj(u[i*d+k]) * u[i*d+j]
+					dot += pinned.Mul(cmplx.Conj(u[i*d+k]), u[i*d+j])
 				}
 				for i := 0; i < d; i++ {
-					u[i*d+j] -= dot * u[i*d+k]
+					u[i*d+j] -= pinned.Mul(dot, u[i*d+k])
 				}
 			}
 		}
 		var norm float64
 		for i := 0; i < d; i++ {
-			v := u[i*d+j]
-			norm += real(v)*real(v) + imag(v)*imag(v)
+			norm += pinned.Abs2(u[i*d+j])
 		}
 		inv := complex(1/math.Sqrt(norm), 0)
 		for i := 0; i < d; i++ {
-			u[i*d+j] *= inv
+			u[i*d+j] = pinned.Mul(u[i*d+j], inv)
 		}
 	}
 }

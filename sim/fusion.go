@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math/bits"
 	"mixdepth/internal/crash"
+	"mixdepth/internal/pinned"
 	"slices"
 
 	"golang.org/x/sync/errgroup"
@@ -182,8 +183,8 @@ func (p *pass) add(op *Op) {
 // mul2 returns x·y for 2×2 matrices.
 func mul2(x, y *[4]complex128) [4]complex128 {
 	return [4]complex128{
-		x[0]*y[0] + x[1]*y[2], x[0]*y[1] + x[1]*y[3],
-		x[2]*y[0] + x[3]*y[2], x[2]*y[1] + x[3]*y[3],
+		pinned.Mul(x[0], y[0]) + pinned.Mul(x[1], y[2]), pinned.Mul(x[0], y[1]) + pinned.Mul(x[1], y[3]),
+		pinned.Mul(x[2], y[0]) + pinned.Mul(x[3], y[2]), pinned.Mul(x[2], y[1]) + pinned.Mul(x[3], y[3]),
 	}
 }
 
@@ -194,7 +195,7 @@ func mul4(x, y *[16]complex128) [16]complex128 {
 		for c := range 4 {
 			var s complex128
 			for l := range 4 {
-				s += x[4*r+l] * y[4*l+c]
+				s += pinned.Mul(x[4*r+l], y[4*l+c])
 			}
 			z[4*r+c] = s
 		}

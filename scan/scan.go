@@ -45,8 +45,9 @@ type Config struct {
 // probabilities (the scan kept that array up to this size; the sums, and
 // so the tables, are unchanged bit for bit); above it they are added as
 // pairwiseSum adds. At every size the read-out keeps no probability array
-// (see readout.read), and stats.HaarKS gives the statistic of the sort of
-// stats.KSHaar to rounding in usually two passes.
+// (see readout.run and readout.finish), and stats.HaarKS gives the
+// statistic of the sort of stats.KSHaar to rounding in usually two passes
+// after the gates (one when the count is folded into the last gate pass).
 const ExactKSQubits = 20
 
 // maxWindow bounds the gates collected between two readouts before they are

@@ -54,7 +54,9 @@ func TestStreamedReadout(t *testing.T) {
 
 // checkingVector calls read once before each readout of the scan (in
 // RunVisit, after the gates, or at the first ProbabilityBlocks or
-// AmplitudeBlocks after a Run).
+// AmplitudeBlocks after a Run). It wraps a *sim.State only: it always has
+// AmplitudeBlocks, so the read-out would take a State64's probabilities
+// from RunVisit for amplitude pairs.
 type checkingVector struct {
 	vector
 	read    func()

@@ -258,8 +258,8 @@ func (s *State) Run(ctx context.Context, ops []Op, workers int) error {
 
 // RunVisit is Run followed by AmplitudeBlocks(workers, visit), with the
 // visit folded into the last pass where it can be: when that pass's blocks
-// hold whole chunks in contiguous runs (the lowest ProbabilityChunk
-// qubits are in every block: always for a block of the lowest qubits,
+// hold whole chunks in contiguous runs (the lowest probabilityChunkQubits
+// (12) qubits are in every block: always for a block of the lowest qubits,
 // taken in place), visit(w, off, a) is called on each chunk of a block
 // right after the pass has applied its gates to it, while the block is in
 // cache, so the read-out of a depth costs no pass of its own. Otherwise

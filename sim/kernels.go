@@ -210,10 +210,11 @@ func split1Q0(m *[4]complex128, c *coef1) {
 }
 
 // apply2Kernel applies k to the groups [from, to) of amp (complex128), with
-// the AVX kernels when they are in use: with AVX-512 and useX2, every pair
-// class takes a 512-bit x2 kernel when the range is aligned to its eight
-// (runs, (1, q)) or four ((0, q), (0, 1)) groups, else a narrower one. Group boundaries must be even when
-// k.lo ≥ 1 and the AVX kernels run; parallelFor keeps them so.
+// the AVX kernels when they are in use: with AVX-512 and useX2 (and
+// useX2Low for the pairs (1, q) and (0, 1)), every pair class takes a 512-bit
+// x2 kernel when the range is aligned to its eight (runs, (1, q)) or four
+// ((0, q), (0, 1)) groups, else a narrower one. Group boundaries must be
+// even when k.lo ≥ 1 and the AVX kernels run; parallelFor keeps them so.
 func apply2Kernel(amp []complex128, k *kernel2, from, to int) {
 	if from >= to {
 		return

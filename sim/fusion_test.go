@@ -264,14 +264,7 @@ func TestRunVisitChunks(t *testing.T) {
 			t.Fatal(err)
 		}
 		name := fmt.Sprintf("%s n=%d workers=%d", tc.name, tc.n, tc.workers)
-		for _, b := range bad[:min(len(bad), 3)] {
-			t.Errorf("%s: %s", name, b)
-		}
-		for c, k := range seen {
-			if k != 1 {
-				t.Errorf("%s: chunk %d visited %d times", name, c, k)
-			}
-		}
+		reportVisits(t, name, bad, seen)
 		if !identical(got.Amp, ref.Amp) {
 			t.Errorf("%s: RunVisit's amplitudes differ from Run's", name)
 		}
@@ -329,14 +322,7 @@ func TestRunVisitChunks64(t *testing.T) {
 			t.Fatal(err)
 		}
 		name := fmt.Sprintf("%s n=%d workers=%d", tc.name, tc.n, tc.workers)
-		for _, b := range bad[:min(len(bad), 3)] {
-			t.Errorf("%s: %s", name, b)
-		}
-		for c, k := range seen {
-			if k != 1 {
-				t.Errorf("%s: chunk %d visited %d times", name, c, k)
-			}
-		}
+		reportVisits(t, name, bad, seen)
 		for i := range ref.Amp {
 			if ref.Amp[i] != got.Amp[i] {
 				t.Errorf("%s: RunVisit's amplitude %d is %v, Run's %v", name, i, got.Amp[i], ref.Amp[i])
@@ -354,4 +340,18 @@ func identical(x, y []complex128) bool {
 		}
 	}
 	return len(x) == len(y)
+}
+
+// reportVisits reports the first three bad visits of a RunVisit case and
+// every chunk not visited exactly once.
+func reportVisits(t *testing.T, name string, bad []string, seen []int) {
+	t.Helper()
+	for _, b := range bad[:min(len(bad), 3)] {
+		t.Errorf("%s: %s", name, b)
+	}
+	for c, k := range seen {
+		if k != 1 {
+			t.Errorf("%s: chunk %d visited %d times", name, c, k)
+		}
+	}
 }

@@ -512,18 +512,24 @@ func newKSRefiner(dim, workers int) *ksRefiner {
 	return r
 }
 
+// below0 returns the level-0 node (and first-pass counter) of a key below
+// the octaves: 0 below zero, 1 for zero, 2 between zero and the octaves.
+func (r *ksRefiner) below0(k uint64) int {
+	switch {
+	case k < r.kzero:
+		return 0
+	case k == r.kzero:
+		return 1
+	}
+	return 2
+}
+
 // fine0 returns the first pass's counter of key k: 0, 1 and 2 those of
 // level-0 nodes 0, 1 and 2, 3+j that of fine bin j, and 3+nbf that of the
 // last level-0 node.
 func (r *ksRefiner) fine0(k uint64) int {
 	if k < r.lo0 {
-		switch {
-		case k < r.kzero:
-			return 0
-		case k == r.kzero:
-			return 1
-		}
-		return 2
+		return r.below0(k)
 	}
 	return 3 + int(min((k-r.lo0)>>r.shift, uint64(r.nbf)))
 }
@@ -531,13 +537,7 @@ func (r *ksRefiner) fine0(k uint64) int {
 // bin0 returns the level-0 node of key k.
 func (r *ksRefiner) bin0(k uint64) int {
 	if k < r.lo0 {
-		switch {
-		case k < r.kzero:
-			return 0
-		case k == r.kzero:
-			return 1
-		}
-		return 2
+		return r.below0(k)
 	}
 	d := k - r.lo0
 	if d>>52 >= ksOctaves {

@@ -481,8 +481,12 @@ func newKSRefiner(dim, workers int) *ksRefiner {
 	// Bins over D·p in [2^−12, 2^6): ksOctaves = 18 octaves, which hold all
 	// but about 2^−12 of the Porter–Thomas mass; the rest falls in the two
 	// outer bins, refined like any other when they can hold the supremum.
-	// 2^−12/D is a power of two, so lo0 is the key of the first value of
-	// an octave and the octave of a key k ≥ lo0 is (k − lo0) >> 52.
+	// For D a power of two (a state's) 2^−12/D is one too, so lo0 is the
+	// key of the first value of an octave and the octave of a key k ≥ lo0
+	// is (k − lo0) >> 52. For other D the same arithmetic still cuts the
+	// keys into contiguous runs, only off the octaves, and the statistic
+	// stays exact (checked against the sort for D = 1000, 3000, 65537 and
+	// 100000 while writing this).
 	r.lo0 = ksKey(math.Ldexp(1, ksOctaveLo) / float64(dim))
 	r.nbf = ksOctaves << b
 	r.kzero = ksKey(0)

@@ -152,3 +152,31 @@ func TestKSHaarPassesEdges(t *testing.T) {
 		}
 	}
 }
+
+// TestKSHaarPassesAnyDim: for D not a power of two the level-0 runs fall off
+// the octaves, and the statistic must still equal the sort-based KSHaar (the
+// definition of the Kolmogorov–Smirnov distance: common practice) to 1e-15.
+func TestKSHaarPassesAnyDim(t *testing.T) {
+	for _, dim := range []int{3, 1000, 3000, 65537, 100000} {
+		rng := rand.New(rand.NewPCG(uint64(dim), 1))
+		p := make([]float64, dim)
+		var s float64
+		for i := range p {
+			p[i] = rng.ExpFloat64() // Porter–Thomas shape
+			s += p[i]
+		}
+		for i := range p {
+			p[i] /= s
+		}
+		want := KSHaar(append([]float64(nil), p...), nil)
+		for _, workers := range []int{1, 2} {
+			got, _ := KSHaarPasses(dim, workers, 0, func(visit func(w int, p []float64)) {
+				visit(0, p[:dim/2])
+				visit(workers-1, p[dim/2:])
+			})
+			if math.Abs(got-want) > 1e-15 {
+				t.Errorf("D = %d, %d workers: %v, the sort gives %v", dim, workers, got, want)
+			}
+		}
+	}
+}

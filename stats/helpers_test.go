@@ -71,3 +71,23 @@ func mustPanic(f func()) (panicked bool) {
 	f()
 	return false
 }
+
+// gaussianAmplitudes returns the 2d float parts of d amplitudes whose real
+// and imaginary parts are i.i.d. normal with variance 1/(2d) (a Haar-like
+// state of norm about 1, Porter–Thomas probabilities), drawn from a PCG
+// seeded (s1, s2), and the pass that hands them to a read-out in blocks of
+// 4096 amplitudes on worker 0, as the simulator does.
+func gaussianAmplitudes(d int, s1, s2 uint64) ([]float64, AmplitudePass) {
+	rng := rand.New(rand.NewPCG(s1, s2))
+	a := make([]float64, 2*d)
+	s := math.Sqrt(0.5 / float64(d))
+	for i := range a {
+		a[i] = s * rng.NormFloat64()
+	}
+	pass := func(visit func(w int, a []float64)) {
+		for off := 0; off < len(a); off += 8192 {
+			visit(0, a[off:min(off+8192, len(a))])
+		}
+	}
+	return a, pass
+}

@@ -2,8 +2,6 @@ package stats
 
 import (
 	"fmt"
-	"math"
-	"math/rand/v2"
 	"testing"
 )
 
@@ -19,19 +17,9 @@ func BenchmarkReadoutPasses(b *testing.B) {
 }
 
 func benchReadoutPasses(b *testing.B, d int) {
-	rng := rand.New(rand.NewPCG(7, 8))
-	a := make([]float64, 2*d)
-	s := math.Sqrt(0.5 / float64(d))
-	for i := range a {
-		a[i] = s * rng.NormFloat64()
-	}
+	a, pass := gaussianAmplitudes(d, 7, 8)
 	h := NewHaarKS(d, 1, 0)
 	// The active bins of this state: those of its collect pass.
-	pass := func(visit func(w int, a []float64)) {
-		for off := 0; off < len(a); off += 8192 {
-			visit(0, a[off:off+8192])
-		}
-	}
 	pass(func(w int, q []float64) { h.CountAmplitudes(w, q) })
 	h.r.gather(h.counts, h.nans)
 	cands, _ := h.r.select_()

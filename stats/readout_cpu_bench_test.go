@@ -4,8 +4,6 @@ package stats
 
 import (
 	"fmt"
-	"math"
-	"math/rand/v2"
 	"runtime"
 	"syscall"
 	"testing"
@@ -34,18 +32,8 @@ func threadCPU() int64 {
 func BenchmarkReadoutCPU(b *testing.B) {
 	for _, n := range []int{12, 14, 16, 18, 20, 22, 24} {
 		d := 1 << n
-		rng := rand.New(rand.NewPCG(uint64(n), 9))
-		a := make([]float64, 2*d)
-		s := math.Sqrt(0.5 / float64(d))
-		for i := range a {
-			a[i] = s * rng.NormFloat64()
-		}
+		_, pass := gaussianAmplitudes(d, uint64(n), 9)
 		h := NewHaarKS(d, 1, 0)
-		pass := func(visit func(w int, a []float64)) {
-			for off := 0; off < len(a); off += 8192 {
-				visit(0, a[off:off+8192])
-			}
-		}
 		count := func(w int, q []float64) { h.CountAmplitudes(w, q) }
 		for _, part := range []string{"count", "readout"} {
 			b.Run(fmt.Sprintf("n=%d/%s", n, part), func(b *testing.B) {

@@ -386,7 +386,9 @@ type ksRefiner struct {
 	// actLo and actHi span the active fine bins (actLo > actHi when there
 	// is none): ksFilterAVX2 looks up act0 only inside the span.
 	actLo, actHi int
-	ups          []ksUpper // select_'s buffer
+	// filt is the collect pass's filter of the last markActive.
+	filt ksFilter
+	ups  []ksUpper // select_'s buffer
 	// vals, all and offs are the collect pass's buffers, kept for the next
 	// state.
 	vals [][]float64
@@ -399,6 +401,11 @@ type ksRefiner struct {
 	fsub [][2]float64 // the CDF at their smallest and largest keys
 	// kept holds each worker's values kept by ksFilterPairs in a block.
 	kept [][]float64
+	// runs, gaps and order are markActive's buffers for the filter's
+	// intervals (see ksFilter.set).
+	runs  [][2]int
+	gaps  []int64
+	order []int
 	// scounts and dcounts are split's counts per worker (dcounts its dense
 	// ones), kept for the next split; sused and dused mark those a split's
 	// pass has cleared for its use.
@@ -664,6 +671,10 @@ func (r *ksRefiner) markActive() {
 	}
 	clear(r.active)
 	r.actLo, r.actHi = r.nbf, -1
+	// The runs of active fine bins for the filter's intervals, and the
+	// values between consecutive runs (the cost of merging them).
+	runs, gaps := r.runs[:0], r.gaps[:0]
+	var gap int64
 	for i := 0; i < n0; i++ {
 		on := r.live(i)
 		if on {
@@ -677,6 +688,18 @@ func (r *ksRefiner) markActive() {
 			if on {
 				a = 1
 				r.actLo, r.actHi = min(r.actLo, flo), fhi-1
+				switch {
+				case len(runs) > 0 && runs[len(runs)-1][1] == flo:
+					runs[len(runs)-1][1] = fhi
+				default:
+					if len(runs) > 0 {
+						gaps = append(gaps, gap)
+					}
+					runs = append(runs, [2]int{flo, fhi})
+				}
+				gap = 0
+			} else {
+				gap += nd.count
 			}
 			if fhi-flo == 1 {
 				r.act0[flo] = a
@@ -688,6 +711,8 @@ func (r *ksRefiner) markActive() {
 			}
 		}
 	}
+	r.runs, r.gaps = runs, gaps
+	r.filt.set(r.lo0&^(1<<63), r.shift, r.act0, [2]int{r.actLo, r.actHi}, runs, gaps, &r.order)
 }
 
 // live reports whether node i is a counted or collected leaf or has one
@@ -983,8 +1008,7 @@ func (r *ksRefiner) filterPass(apass AmplitudePass, visit func(w int, kept []flo
 	if r.kept == nil {
 		r.kept = make([][]float64, r.workers)
 	}
-	pos, shift, act := r.lo0&^(1<<63), r.shift, r.act0
-	span := [2]int{r.actLo, r.actHi}
+	f := &r.filt
 	apass(func(w int, a []float64) {
 		out := r.kept[w] // worker w alone touches kept[w]
 		if out == nil {
@@ -993,7 +1017,7 @@ func (r *ksRefiner) filterPass(apass AmplitudePass, visit func(w int, kept []flo
 		}
 		for len(a) >= 2 {
 			m := min(len(a), 2*ksFilterBlock) &^ 1
-			visit(w, out[:ksFilterPairs(a[:m], pos, shift, act, span, out)])
+			visit(w, out[:ksFilterPairs(a[:m], f, out)])
 			a = a[m:]
 		}
 	})
@@ -1134,28 +1158,131 @@ const ksFilterBlock = 1 << 10
 // keep the table's end on a word).
 const ksActPad = 8
 
+// ksFilterIntervals is the number of intervals of fine bins the AVX-512
+// filter tests each value against, the last always the values outside the
+// uniform bins (j ≥ nbf).
+const ksFilterIntervals = 8
+
+// ksFilter is the collect pass's filter: the rule of ksFilterPairs (keep a
+// value outside the uniform level-0 bins or in a fine bin j with
+// act[j] ≠ 0) in the forms its kernels take. pos and shift are as for
+// Count; act has capacity len(act)+ksActPad, with zeros past its end; span
+// holds the first and the last j with act[j] ≠ 0 (first > last when there
+// is none), for the AVX2 kernel. iv holds ksFilterIntervals intervals of j
+// for the AVX-512 kernel, their first bins iv[k] and widths iv[8+k] (a
+// value is in interval k when j − iv[k] ≤ iv[8+k] as unsigned integers):
+// a superset of the active bins and the outer values, equal to them when
+// exact.
+type ksFilter struct {
+	pos   uint64
+	shift uint
+	act   []uint8
+	span  [2]int
+	iv    [2 * ksFilterIntervals]uint64
+	exact bool
+}
+
+// set makes f the filter of the active table act, whose active bins form
+// the runs [runs[i][0], runs[i][1]) in increasing order, none adjacent to
+// the next, with gaps[i] values (or any cost) between run i and run i+1.
+// When there are more runs than the ksFilterIntervals−1 intervals left
+// beside the outer one, the runs are merged across all gaps but the
+// ksFilterIntervals−2 dearest, which keeps the fewest extra values (the
+// cost of merging across one gap does not depend on the others), and f is
+// not exact. order is a buffer.
+func (f *ksFilter) set(pos uint64, shift uint, act []uint8, span [2]int, runs [][2]int, gaps []int64, order *[]int) {
+	f.pos, f.shift, f.act, f.span = pos, shift, act, span
+	nbf := uint64(len(act))
+	// The outer values, in every unused slot too.
+	for k := range ksFilterIntervals {
+		f.iv[k], f.iv[ksFilterIntervals+k] = nbf, math.MaxUint64-nbf
+	}
+	f.exact = len(runs) < ksFilterIntervals
+	if len(runs) == 0 {
+		return
+	}
+	// The keep dearest gaps stay; o lists them in order.
+	keep := len(runs) - 1
+	if !f.exact {
+		keep = ksFilterIntervals - 2
+	}
+	o := (*order)[:0]
+	for i := range gaps {
+		o = append(o, i)
+	}
+	if keep < len(gaps) {
+		slices.SortStableFunc(o, func(a, b int) int { return cmpDesc(gaps[a], gaps[b]) })
+		o = o[:keep]
+		slices.Sort(o)
+	}
+	*order = o
+	k, lo := 0, runs[0][0]
+	for _, g := range o {
+		f.iv[k], f.iv[ksFilterIntervals+k] = uint64(lo), uint64(runs[g][1]-1-lo)
+		k, lo = k+1, runs[g+1][0]
+	}
+	f.iv[k], f.iv[ksFilterIntervals+k] = uint64(lo), uint64(runs[len(runs)-1][1]-1-lo)
+}
+
+// cmpDesc orders int64 values from the largest.
+func cmpDesc(a, b int64) int {
+	switch {
+	case a > b:
+		return -1
+	case a < b:
+		return 1
+	}
+	return 0
+}
+
+// keeps reports whether the filter's rule keeps value v.
+func (f *ksFilter) keeps(v float64) bool {
+	j := (math.Float64bits(v) - f.pos) >> (f.shift & 63)
+	return j >= uint64(len(f.act)) || f.act[j] != 0
+}
+
 // ksFilterPairs writes to out, in order, the probabilities re·re + im·im of
-// the pairs a that fall outside the uniform level-0 bins or in a bin j with
-// act[j] ≠ 0, and returns their number: the collect pass's filter, which
-// keeps about one value in 16 of a Porter–Thomas state and skips the rest
-// without a branch per value in the AVX2 kernel. out has room for
-// len(a)/2 values; act has capacity len(act)+ksActPad, with zeros past its
-// end; span holds the first and the last j with act[j] ≠ 0 (first > last
-// when there is none). pos and shift are as for Count.
-func ksFilterPairs(a []float64, pos uint64, shift uint, act []uint8, span [2]int, out []float64) int {
+// the pairs a that f keeps (those outside the uniform level-0 bins or in a
+// bin j with act[j] ≠ 0), and returns their number: the collect pass's
+// filter, which keeps about one value in 16 of a Porter–Thomas state and
+// skips the rest without a branch per value in the assembly kernels. out
+// has room for len(a)/2 values. The AVX-512 kernel keeps the values of f's
+// intervals; when they are not exact, the values it kept from bins between
+// merged runs (few: the merged gaps are the cheapest) are dropped here.
+func ksFilterPairs(a []float64, f *ksFilter, out []float64) int {
 	n := 0
-	if ksUseAVX2 && len(a) >= 8 {
-		if cap(act) < len(act)+ksActPad || len(out) < len(a)/2 {
+	act := f.act
+	if len(out) < len(a)/2 {
+		panic("stats: ksFilterPairs buffers too small")
+	}
+	switch {
+	case ksUseAVX512 && len(a) >= 16:
+		g := len(a) / 16
+		n = ksFilterAVX512(&a[0], g, f.pos, uint64(f.shift), &f.iv, &out[0])
+		if !f.exact {
+			m := 0
+			for _, v := range out[:n] {
+				out[m] = v
+				if f.keeps(v) {
+					m++
+				}
+			}
+			n = m
+		}
+		a = a[16*g:]
+	case ksUseAVX2 && len(a) >= 8:
+		if cap(act) < len(act)+ksActPad {
 			panic("stats: ksFilterPairs buffers too small")
 		}
 		g := len(a) / 8
-		lo, hi := span[0], span[1]
+		lo, hi := f.span[0], f.span[1]
 		if lo > hi {
 			lo, hi = 1, 0
 		}
-		n = ksFilterAVX2(&a[0], g, pos, uint64(shift), &act[:1][0], uint64(len(act)), uint64(lo), uint64(hi), &out[0])
+		n = ksFilterAVX2(&a[0], g, f.pos, uint64(f.shift), &act[:1][0], uint64(len(act)), uint64(lo), uint64(hi), &out[0])
 		a = a[8*g:]
 	}
+	pos, shift := f.pos, f.shift
 	for i := 1; i < len(a); i += 2 {
 		v := float64(a[i-1]*a[i-1]) + float64(a[i]*a[i])
 		if j := (math.Float64bits(v) - pos) >> (shift & 63); j >= uint64(len(act)) || act[j] != 0 {

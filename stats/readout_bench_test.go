@@ -6,10 +6,10 @@ import (
 )
 
 // BenchmarkReadoutPasses times the two read-out passes of HaarKS over the
-// amplitudes of a Porter–Thomas state of 2^22 outputs, one worker, with the
-// AVX2 kernel and with the Go loop: count is CountAmplitudes over blocks
-// of 4096 amplitudes (Go only), filter the collect pass's ksFilterPairs
-// with the active bins of that state.
+// amplitudes of a Porter–Thomas state of 2^n outputs, one worker, with
+// every filter of ksKernels: count is CountAmplitudes over blocks of 4096
+// amplitudes (Go only), filter the collect pass's ksFilterPairs with the
+// active bins of that state.
 func BenchmarkReadoutPasses(b *testing.B) {
 	for _, n := range []int{16, 22} {
 		b.Run(fmt.Sprintf("n=%d", n), func(b *testing.B) { benchReadoutPasses(b, 1<<n) })
@@ -27,10 +27,9 @@ func benchReadoutPasses(b *testing.B, d int) {
 		h.r.state[ci] = ksCollect
 	}
 	h.r.markActive()
-	act, span := h.r.act0, [2]int{h.r.actLo, h.r.actHi}
+	f := h.r.filt
 	h.reset()
 	out := make([]float64, 4096)
-	pos := h.r.lo0 &^ (1 << 63)
 	b.Run("count", func(b *testing.B) {
 		b.SetBytes(16 * int64(d))
 		for b.Loop() {
@@ -38,21 +37,15 @@ func benchReadoutPasses(b *testing.B, d int) {
 			h.reset()
 		}
 	})
-	for _, asm := range []bool{true, false} {
-		if asm && !ksUseAVX2 {
-			continue
-		}
-		name := map[bool]string{true: "avx2", false: "go"}[asm]
-		saved := ksUseAVX2
-		b.Run("filter/"+name, func(b *testing.B) {
-			ksUseAVX2 = asm
-			defer func() { ksUseAVX2 = saved }()
+	for _, k := range ksKernels() {
+		b.Run("filter/"+k, func(b *testing.B) {
+			defer useKernel(k)()
 			b.SetBytes(16 * int64(d))
 			kept := 0
 			for b.Loop() {
 				kept = 0
 				for off := 0; off < len(a); off += 8192 {
-					kept += ksFilterPairs(a[off:off+8192], pos, h.r.shift, act, span, out)
+					kept += ksFilterPairs(a[off:off+8192], &f, out)
 				}
 			}
 			b.ReportMetric(float64(kept)/float64(d), "kept/value")

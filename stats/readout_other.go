@@ -9,3 +9,9 @@ var ksUseAVX2 = false
 func ksFilterAVX2(a *float64, groups int, pos, shift uint64, act *uint8, nb, lo, hi uint64, out *float64) int {
 	panic("stats: no AVX2 kernels on this architecture")
 }
+
+var ksUseAVX512 = false
+
+func ksFilterAVX512(a *float64, groups int, pos, shift uint64, iv *[2 * ksFilterIntervals]uint64, out *float64) int {
+	panic("stats: no AVX-512 kernels on this architecture")
+}

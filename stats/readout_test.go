@@ -24,18 +24,170 @@ func filterReference(r *ksRefiner, a []float64, act []uint8) []float64 {
 	return out
 }
 
-// TestFilterPairsPaths checks ksFilterPairs, with the AVX2 kernel and with
-// the Go loop, against filterReference bit for bit (the same values in the
+// ksKernels lists the collect-pass filters this processor runs: the Go
+// loop always, and the AVX2 and AVX-512 kernels where they are selected.
+func ksKernels() []string {
+	k := []string{"go"}
+	if ksUseAVX2 {
+		k = append(k, "avx2")
+	}
+	if ksUseAVX512 {
+		k = append(k, "avx512")
+	}
+	return k
+}
+
+// useKernel makes ksFilterPairs take the filter k of ksKernels and returns
+// the function that restores the choice before.
+func useKernel(k string) (restore func()) {
+	a2, a5 := ksUseAVX2, ksUseAVX512
+	ksUseAVX2, ksUseAVX512 = k == "avx2", k == "avx512"
+	return func() { ksUseAVX2, ksUseAVX512 = a2, a5 }
+}
+
+// testFilter returns the ksFilter of the act table act of refiner r, its
+// runs found by scanning act and the cost of a gap its length in bins
+// (markActive uses the values counted in it; any cost gives the same kept
+// values, only more or fewer for ksFilterPairs to drop).
+func testFilter(r *ksRefiner, act []uint8) *ksFilter {
+	var runs [][2]int
+	var gaps []int64
+	span := [2]int{len(act), -1}
+	for j := 0; j < len(act); j++ {
+		if act[j] == 0 {
+			continue
+		}
+		e := j
+		for e < len(act) && act[e] != 0 {
+			e++
+		}
+		if len(runs) > 0 {
+			gaps = append(gaps, int64(j-runs[len(runs)-1][1]))
+		}
+		runs = append(runs, [2]int{j, e})
+		span = [2]int{min(span[0], j), e - 1}
+		j = e
+	}
+	f := new(ksFilter)
+	var order []int
+	f.set(r.lo0&^(1<<63), r.shift, act, span, runs, gaps, &order)
+	return f
+}
+
+// inIntervals reports whether fine-bin index j lies in one of f's intervals.
+func inIntervals(f *ksFilter, j uint64) bool {
+	for k := range ksFilterIntervals {
+		if j-f.iv[k] <= f.iv[ksFilterIntervals+k] {
+			return true
+		}
+	}
+	return false
+}
+
+// filterActs returns act tables of nbf bins for the filter tests: empty,
+// sparse at random (hundreds of runs, merged into the intervals), one run,
+// full, alternating bins (every bin edge separates a kept and a skipped
+// bin), and three runs (exact intervals).
+func filterActs(rng *rand.Rand, nbf int) [][]uint8 {
+	var acts [][]uint8
+	for kind := 0; kind < 6; kind++ {
+		act := make([]uint8, nbf, nbf+ksActPad)
+		for j := range act {
+			on := false
+			switch kind {
+			case 1:
+				on = rng.IntN(30) == 0
+			case 2:
+				on = j >= nbf/3 && j < nbf/3+nbf/20
+			case 3:
+				on = true
+			case 4:
+				on = j%2 == 1
+			case 5:
+				on = j == 5 || (j >= nbf/2 && j < nbf/2+7) || j == nbf-1
+			}
+			if on {
+				act[j] = 1
+			}
+		}
+		acts = append(acts, act)
+	}
+	return acts
+}
+
+// TestFilterIntervals checks the intervals of ksFilter.set against the
+// act tables: every active bin and every index past the uniform bins is in
+// an interval, and when the filter says it is exact, no idle bin is.
+func TestFilterIntervals(t *testing.T) {
+	rng := rand.New(rand.NewPCG(55, 56))
+	for _, d := range []int{1 << 10, 1 << 16} {
+		r := newKSRefiner(d, 1)
+		for kind, act := range filterActs(rng, r.nbf) {
+			f := testFilter(r, act)
+			runs := 0
+			for j := range act {
+				if act[j] != 0 && (j == 0 || act[j-1] == 0) {
+					runs++
+				}
+			}
+			if want := runs < ksFilterIntervals; f.exact != want {
+				t.Errorf("D=%d act %d: %d runs, exact %v", d, kind, runs, f.exact)
+			}
+			for j := range act {
+				if in := inIntervals(f, uint64(j)); (act[j] != 0 && !in) || (f.exact && act[j] == 0 && in) {
+					t.Errorf("D=%d act %d: bin %d (act %d) in the intervals: %v", d, kind, j, act[j], in)
+					break
+				}
+			}
+			for _, j := range []uint64{uint64(r.nbf), uint64(r.nbf) + 1, 1 << 20, math.MaxUint64 >> r.shift} {
+				if !inIntervals(f, j) {
+					t.Errorf("D=%d act %d: outer index %d not in the intervals", d, kind, j)
+				}
+			}
+		}
+	}
+}
+
+// edgeAmplitudes returns pairs (re, 0) whose squares re·re lie on a fine
+// bin edge of r or one key beside it, for every 97th fine bin: the values a
+// kernel that binned a value off by one key would keep or skip wrongly.
+func edgeAmplitudes(r *ksRefiner) []float64 {
+	var a []float64
+	pos := r.lo0 &^ (1 << 63)
+	for j := 0; j <= r.nbf; j += 97 {
+		e := pos + uint64(j)<<r.shift
+		x := math.Sqrt(math.Float64frombits(e))
+		for range 8 {
+			x = math.Nextafter(x, 0)
+		}
+		for range 16 {
+			if b := math.Float64bits(float64(x * x)); b+1 >= e && b <= e+1 {
+				a = append(a, x, 0)
+			}
+			x = math.Nextafter(x, 1)
+		}
+	}
+	return a
+}
+
+// TestFilterPairsPaths checks ksFilterPairs, with every kernel of
+// ksKernels, against filterReference bit for bit (the same values in the
 // same order): Porter–Thomas amplitudes with zeros, subnormal squares,
-// infinities and NaNs mixed in, lengths that are not multiples of the
-// kernel's four pairs, and act tables that are empty, sparse, in one run,
-// or full.
+// infinities and NaNs mixed in, runs of equal probabilities, values on the
+// fine bin edges and one key beside them, lengths that leave every tail of
+// 0 to 15 pairs past the kernels' groups of four and eight, and the act
+// tables of filterActs.
 func TestFilterPairsPaths(t *testing.T) {
 	rng := rand.New(rand.NewPCG(51, 52))
 	for _, d := range []int{1 << 10, 1 << 16} {
 		r := newKSRefiner(d, 1)
 		s := math.Sqrt(0.5 / float64(d))
-		for _, npairs := range []int{0, 1, 3, 4, 7, 64, 1023, 1024} {
+		lengths := []int{0, 1, 3, 4, 7, 64, 1023, 1024}
+		for tail := range 16 {
+			lengths = append(lengths, 32+tail)
+		}
+		var inputs [][]float64
+		for _, npairs := range lengths {
 			a := make([]float64, 2*npairs)
 			for i := range a {
 				a[i] = s * rng.NormFloat64()
@@ -50,47 +202,31 @@ func TestFilterPairsPaths(t *testing.T) {
 					a[i] = math.NaN()
 				case 4:
 					a[i] *= 1e5
+				case 5:
+					a[i] = s // equal probabilities 2·s² or s² with a zero
 				}
 			}
-			for kind := 0; kind < 4; kind++ {
-				act := make([]uint8, r.nbf, r.nbf+ksActPad)
-				for j := range act {
-					switch kind {
-					case 1:
-						if rng.IntN(30) == 0 {
-							act[j] = 1
-						}
-					case 2:
-						if j >= r.nbf/3 && j < r.nbf/3+r.nbf/20 {
-							act[j] = 1
-						}
-					case 3:
-						act[j] = 1
-					}
-				}
-				span := [2]int{r.nbf, -1}
-				for j, on := range act {
-					if on != 0 {
-						span = [2]int{min(span[0], j), j}
-					}
-				}
+			inputs = append(inputs, a)
+		}
+		edges := edgeAmplitudes(r)
+		inputs = append(inputs, edges, edges[:len(edges)-6])
+		for _, a := range inputs {
+			npairs := len(a) / 2
+			for kind, act := range filterActs(rng, r.nbf) {
+				f := testFilter(r, act)
 				want := filterReference(r, a, act)
-				for _, asm := range []bool{false, true} {
-					if asm && !ksUseAVX2 {
-						continue
-					}
-					saved := ksUseAVX2
-					ksUseAVX2 = asm
+				for _, k := range ksKernels() {
+					restore := useKernel(k)
 					out := make([]float64, npairs)
-					got := out[:ksFilterPairs(a, r.lo0&^(1<<63), r.shift, act, span, out)]
-					ksUseAVX2 = saved
+					got := out[:ksFilterPairs(a, f, out)]
+					restore()
 					if len(got) != len(want) {
-						t.Errorf("D=%d pairs=%d act %d asm=%v: kept %d values, want %d", d, npairs, kind, asm, len(got), len(want))
+						t.Errorf("D=%d pairs=%d act %d %s: kept %d values, want %d", d, npairs, kind, k, len(got), len(want))
 						continue
 					}
 					for i := range got {
 						if math.Float64bits(got[i]) != math.Float64bits(want[i]) {
-							t.Errorf("D=%d pairs=%d act %d asm=%v: value %d is %g, want %g", d, npairs, kind, asm, i, got[i], want[i])
+							t.Errorf("D=%d pairs=%d act %d %s: value %d is %g, want %g", d, npairs, kind, k, i, got[i], want[i])
 							break
 						}
 					}
@@ -162,8 +298,8 @@ func readoutRun(h *HaarKS, a []float64) (sums []float64, ks float64, kept []floa
 	return sums, ks, kept
 }
 
-// TestReadoutPaths runs the read-out of HaarKS with the AVX2 kernel and with
-// the Go loops on the same states and requires the same block sums, the
+// TestReadoutPaths runs the read-out of HaarKS with every filter of
+// ksKernels on the same states and requires the same block sums, the
 // same kept values and the same statistic bit for bit; each block sum must
 // also equal Collision of its probabilities bit for bit (the order of
 // stats.Collision, as the scan tables need), the whole sum Collision of all
@@ -216,19 +352,24 @@ func TestReadoutPaths(t *testing.T) {
 		for i := range p {
 			p[i] = float64(st.a[2*i]*st.a[2*i]) + float64(st.a[2*i+1]*st.a[2*i+1])
 		}
-		saved := ksUseAVX2
-		ksUseAVX2 = false
+		restore := useKernel("go")
 		sumsGo, ksGo, keptGo := readoutRun(NewHaarKS(d, 2, 0), st.a)
-		ksUseAVX2 = saved
-		sumsAsm, ksAsm, keptAsm := readoutRun(NewHaarKS(d, 2, 0), st.a)
-		if math.Float64bits(ksGo) != math.Float64bits(ksAsm) {
-			t.Errorf("%s n=%d: statistic %.17g with the kernel, %.17g with the Go loop", st.name, st.n, ksAsm, ksGo)
-		}
-		if !slices.Equal(sumsGo, sumsAsm) {
-			t.Errorf("%s n=%d: block sums differ between the kernel and the Go loop", st.name, st.n)
-		}
-		if !slices.Equal(keptGo, keptAsm) {
-			t.Errorf("%s n=%d: the collect pass kept %d values with the kernel, %d with the Go loop (or other values)", st.name, st.n, len(keptAsm), len(keptGo))
+		restore()
+		sumsAsm, ksAsm := sumsGo, ksGo
+		for _, k := range ksKernels()[1:] {
+			restore := useKernel(k)
+			sums, ks, kept := readoutRun(NewHaarKS(d, 2, 0), st.a)
+			restore()
+			if math.Float64bits(ksGo) != math.Float64bits(ks) {
+				t.Errorf("%s n=%d: statistic %.17g with the %s kernel, %.17g with the Go loop", st.name, st.n, ks, k, ksGo)
+			}
+			if !slices.Equal(sumsGo, sums) {
+				t.Errorf("%s n=%d: block sums differ between the %s kernel and the Go loop", st.name, st.n, k)
+			}
+			if !slices.Equal(keptGo, kept) {
+				t.Errorf("%s n=%d: the collect pass kept %d values with the %s kernel, %d with the Go loop (or other values)", st.name, st.n, len(kept), k, len(keptGo))
+			}
+			sumsAsm, ksAsm = sums, ks
 		}
 		const block = 4096
 		for k, z := range sumsAsm {

@@ -1011,12 +1011,12 @@ func (r *ksRefiner) filterPass(apass AmplitudePass, visit func(w int, kept []flo
 	f := &r.filt
 	apass(func(w int, a []float64) {
 		out := r.kept[w] // worker w alone touches kept[w]
-		if out == nil {
-			out = make([]float64, ksFilterBlock)
+		if len(out) < ksStreams*ksFilterBlock {
+			out = make([]float64, ksStreams*ksFilterBlock)
 			r.kept[w] = out
 		}
 		for len(a) >= 2 {
-			m := min(len(a), 2*ksFilterBlock) &^ 1
+			m := min(len(a), 2*len(out)) &^ 1
 			visit(w, out[:ksFilterPairs(a[:m], f, out)])
 			a = a[m:]
 		}
@@ -1153,6 +1153,9 @@ func ksSkip(p []float64, pos uint64, shift uint, act []uint8) int {
 // the collect pass (a buffer of 8 KiB per worker, in the first-level cache).
 const ksFilterBlock = 1 << 10
 
+// ksStreams is the number of streams the AVX-512 filter reads at once.
+var ksStreams = 4
+
 // ksActPad is the zero padding past the act table: ksFilterAVX2 reads the
 // byte act[nb] for lanes outside the active span (one byte would do; eight
 // keep the table's end on a word).
@@ -1257,8 +1260,21 @@ func ksFilterPairs(a []float64, f *ksFilter, out []float64) int {
 	}
 	switch {
 	case ksUseAVX512 && len(a) >= 16:
-		g := len(a) / 16
-		n = ksFilterAVX512(&a[0], g, f.pos, uint64(f.shift), &f.iv, &out[0])
+		if ksStreams > 1 && len(a) >= 64 {
+			// Four streams of q pairs, each with its region of out.
+			q := len(a) / 64 * 8
+			var c [4]int
+			ksFilterAVX512x4(&a[0], q/8, 16*q, f.pos, uint64(f.shift), &f.iv, &out[0], 8*q, &c)
+			n = c[0]
+			for s := 1; s < 4; s++ {
+				n += copy(out[n:], out[s*q:s*q+c[s]])
+			}
+			a = a[8*q:]
+		}
+		if g := len(a) / 16; g > 0 {
+			n += ksFilterAVX512(&a[0], g, f.pos, uint64(f.shift), &f.iv, &out[n])
+			a = a[16*g:]
+		}
 		if !f.exact {
 			m := 0
 			for _, v := range out[:n] {
@@ -1269,7 +1285,6 @@ func ksFilterPairs(a []float64, f *ksFilter, out []float64) int {
 			}
 			n = m
 		}
-		a = a[16*g:]
 	case ksUseAVX2 && len(a) >= 8:
 		if cap(act) < len(act)+ksActPad {
 			panic("stats: ksFilterPairs buffers too small")

@@ -17,3 +17,6 @@ func ksFilterAVX512(a *float64, groups int, pos, shift uint64, iv *[2 * ksFilter
 // golang.org/x/sys/cpu checks in XCR0 before it reports HasAVX512F; POPCNT
 // comes with every AVX-512 processor.
 var ksUseAVX512 = cpu.X86.HasAVX512F && cpu.X86.HasPOPCNT
+
+//go:noescape
+func ksFilterAVX512x4(a *float64, groups, stride int, pos, shift uint64, iv *[2 * ksFilterIntervals]uint64, out *float64, ostride int, n *[4]int)

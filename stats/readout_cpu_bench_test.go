@@ -5,6 +5,7 @@ package stats
 import (
 	"fmt"
 	"runtime"
+	"strings"
 	"syscall"
 	"testing"
 	"unsafe"
@@ -27,7 +28,7 @@ func threadCPU() int64 {
 // state of 2^n amplitudes on one worker, the count pass alone (count:
 // CountAmplitudes over blocks of 4096 amplitudes, as the simulator hands
 // them) and the whole read-out (readout: the count pass, then
-// FinishAmplitudes), and reports the thread's CPU time per amplitude
+// FinishAmplitudes, with each filter of ksKernels), and reports the thread's CPU time per amplitude
 // (cpu-ns/amp) besides the wall time, which a loaded machine inflates.
 func BenchmarkReadoutCPU(b *testing.B) {
 	for _, n := range []int{12, 14, 16, 18, 20, 22, 24} {
@@ -35,16 +36,23 @@ func BenchmarkReadoutCPU(b *testing.B) {
 		_, pass := gaussianAmplitudes(d, uint64(n), 9)
 		h := NewHaarKS(d, 1, 0)
 		count := func(w int, q []float64) { h.CountAmplitudes(w, q) }
-		for _, part := range []string{"count", "readout"} {
+		parts := []string{"count"}
+		for _, k := range ksKernels() {
+			parts = append(parts, "readout/"+k)
+		}
+		for _, part := range parts {
 			b.Run(fmt.Sprintf("n=%d/%s", n, part), func(b *testing.B) {
 				runtime.LockOSThread()
 				defer runtime.UnlockOSThread()
+				if k, ok := strings.CutPrefix(part, "readout/"); ok {
+					defer useKernel(k)()
+				}
 				b.SetBytes(16 * int64(d))
 				var cpu int64
 				for b.Loop() {
 					t0 := threadCPU()
 					pass(count)
-					if part == "readout" {
+					if part != "count" {
 						h.FinishAmplitudes(pass)
 					} else {
 						h.reset()

@@ -25,14 +25,15 @@ func filterReference(r *ksRefiner, a []float64, act []uint8) []float64 {
 }
 
 // ksKernels lists the collect-pass filters this processor runs: the Go
-// loop always, and the AVX2 and AVX-512 kernels where they are selected.
+// loop always, and the AVX2 and AVX-512 kernels where they are selected,
+// the latter reading one stream (avx512x1) or four.
 func ksKernels() []string {
 	k := []string{"go"}
 	if ksUseAVX2 {
 		k = append(k, "avx2")
 	}
 	if ksUseAVX512 {
-		k = append(k, "avx512")
+		k = append(k, "avx512x1", "avx512")
 	}
 	return k
 }
@@ -40,9 +41,12 @@ func ksKernels() []string {
 // useKernel makes ksFilterPairs take the filter k of ksKernels and returns
 // the function that restores the choice before.
 func useKernel(k string) (restore func()) {
-	a2, a5 := ksUseAVX2, ksUseAVX512
-	ksUseAVX2, ksUseAVX512 = k == "avx2", k == "avx512"
-	return func() { ksUseAVX2, ksUseAVX512 = a2, a5 }
+	a2, a5, st := ksUseAVX2, ksUseAVX512, ksStreams
+	ksUseAVX2, ksUseAVX512, ksStreams = k == "avx2", k == "avx512" || k == "avx512x1", 4
+	if k == "avx512x1" {
+		ksStreams = 1
+	}
+	return func() { ksUseAVX2, ksUseAVX512, ksStreams = a2, a5, st }
 }
 
 // testFilter returns the ksFilter of the act table act of refiner r, its

@@ -399,3 +399,57 @@ func pairwiseBlocks(x []float64) float64 {
 	m := len(x) / 2
 	return pairwiseBlocks(x[:m]) + pairwiseBlocks(x[m:])
 }
+
+// TestMarkActiveReuse reads out states one after another with one HaarKS,
+// as the scan does, and after each markActive requires act0 to mark exactly
+// the fine bins of the live level-0 nodes (markActive clears only the runs
+// of the call before, so a bin left over from an earlier state would show
+// here), the span to be that of the marked bins, and the filter's runs to
+// be the maximal runs of marked bins.
+func TestMarkActiveReuse(t *testing.T) {
+	const d = 1 << 14
+	h := NewHaarKS(d, 1, 0)
+	for seed := range uint64(6) {
+		_, pass := gaussianAmplitudes(d, seed, 10)
+		pass(func(w int, q []float64) { h.CountAmplitudes(w, q) })
+		r := h.r
+		r.gather(h.counts, h.nans)
+		cands, _ := r.select_()
+		for k, ci := range cands {
+			if int(seed)%2 == 0 || k%3 != 0 { // some states mark fewer bins
+				r.state[ci] = ksCollect
+			}
+		}
+		r.markActive()
+		want := make([]uint8, r.nbf)
+		for i := 3; i < 3+r.nb0; i++ {
+			if r.live(i) {
+				nd := &r.nodes[i]
+				for j := (nd.lo - r.lo0) >> r.shift; j < (nd.hi-r.lo0)>>r.shift; j++ {
+					want[j] = 1
+				}
+			}
+		}
+		if !slices.Equal(r.act0, want) {
+			t.Errorf("state %d: act0 differs from the live nodes' bins", seed)
+		}
+		f := testFilter(r, want)
+		if f.span != [2]int{r.actLo, r.actHi} || r.filt.exact != f.exact {
+			t.Errorf("state %d: span %d..%d exact %v, want %v exact %v", seed, r.actLo, r.actHi, r.filt.exact, f.span, f.exact)
+		}
+		var runs [][2]int
+		for j := 0; j < len(want); j++ {
+			if want[j] != 0 && (j == 0 || want[j-1] == 0) {
+				e := j
+				for e < len(want) && want[e] != 0 {
+					e++
+				}
+				runs = append(runs, [2]int{j, e})
+			}
+		}
+		if !slices.Equal(r.runs, runs) {
+			t.Errorf("state %d: runs %v, want %v", seed, r.runs, runs)
+		}
+		h.reset()
+	}
+}

@@ -1160,7 +1160,10 @@ func ksSkip(p []float64, pos uint64, shift uint, act []uint8) int {
 // the collect pass (a buffer of 8 KiB per worker, in the first-level cache).
 const ksFilterBlock = 1 << 10
 
-// ksStreams is the number of streams the AVX-512 filter reads at once.
+// ksStreams is the number of streams the AVX-512 filter reads at once: 4
+// (ksFilterAVX512x4, the block split in four quarters, their kept values
+// joined in order), or 1 in the tests and benchmarks that compare the two
+// (see readout_avx512_amd64.go for the measurements).
 var ksStreams = 4
 
 // ksActPad is the zero padding past the act table: ksFilterAVX2 reads the
@@ -1169,8 +1172,8 @@ var ksStreams = 4
 const ksActPad = 8
 
 // ksFilterIntervals is the number of intervals of fine bins the AVX-512
-// filter tests each value against, the last always the values outside the
-// uniform bins (j ≥ nbf).
+// kernel tests each value against, one of them always the values outside
+// the uniform bins (j ≥ nbf).
 const ksFilterIntervals = 8
 
 // ksFilter is the collect pass's filter: the rule of ksFilterPairs (keep a
@@ -1178,8 +1181,8 @@ const ksFilterIntervals = 8
 // act[j] ≠ 0) in the forms its kernels take. pos and shift are as for
 // Count; act has capacity len(act)+ksActPad, with zeros past its end; span
 // holds the first and the last j with act[j] ≠ 0 (first > last when there
-// is none), for the AVX2 kernel. iv holds ksFilterIntervals intervals of j
-// for the AVX-512 kernel, their first bins iv[k] and widths iv[8+k] (a
+// is none), for the AVX2 kernel. iv holds ksFilterIntervals intervals of
+// j for the AVX-512 kernel, their first bins iv[k] and widths iv[8+k] (a
 // value is in interval k when j − iv[k] ≤ iv[8+k] as unsigned integers):
 // a superset of the active bins and the outer values, equal to them when
 // exact.
@@ -1251,14 +1254,29 @@ func (f *ksFilter) keeps(v float64) bool {
 	return j >= uint64(len(f.act)) || f.act[j] != 0
 }
 
+// recheck moves the values of vs that f keeps to its front, in order, and
+// returns their number: the exact test after a kernel that kept the values
+// of merged intervals.
+func (f *ksFilter) recheck(vs []float64) int {
+	m := 0
+	for _, v := range vs {
+		vs[m] = v
+		if f.keeps(v) {
+			m++
+		}
+	}
+	return m
+}
+
 // ksFilterPairs writes to out, in order, the probabilities re·re + im·im of
 // the pairs a that f keeps (those outside the uniform level-0 bins or in a
 // bin j with act[j] ≠ 0), and returns their number: the collect pass's
 // filter, which keeps about one value in 16 of a Porter–Thomas state and
 // skips the rest without a branch per value in the assembly kernels. out
-// has room for len(a)/2 values. The AVX-512 kernel keeps the values of f's
-// intervals; when they are not exact, the values it kept from bins between
-// merged runs (few: the merged gaps are the cheapest) are dropped here.
+// has room for len(a)/2 values. The AVX-512 kernel keeps the values of
+// f's intervals; when they are not exact, the values it kept from bins
+// between merged runs (few: the merged gaps are the cheapest) are dropped
+// here.
 func ksFilterPairs(a []float64, f *ksFilter, out []float64) int {
 	n := 0
 	act := f.act
@@ -1283,14 +1301,7 @@ func ksFilterPairs(a []float64, f *ksFilter, out []float64) int {
 			a = a[16*g:]
 		}
 		if !f.exact {
-			m := 0
-			for _, v := range out[:n] {
-				out[m] = v
-				if f.keeps(v) {
-					m++
-				}
-			}
-			n = m
+			n = f.recheck(out[:n])
 		}
 	case ksUseAVX2 && len(a) >= 8:
 		if cap(act) < len(act)+ksActPad {

@@ -3,8 +3,9 @@ package stats
 import "golang.org/x/sys/cpu"
 
 // The AVX2 kernel of readout_amd64.s for the collect pass of HaarKS over
-// amplitudes: ksFilterAVX2 keeps the values of the active bins
-// (ksFilterPairs). The count pass stays in Go (see leafCount).
+// amplitudes, used where the AVX-512 one (readout_avx512_amd64.s) cannot
+// run: ksFilterAVX2 keeps the values of the active bins (ksFilterPairs).
+// The count pass stays in Go (see leafCount).
 
 //go:noescape
 func ksFilterAVX2(a *float64, groups int, pos, shift uint64, act *uint8, nb, lo, hi uint64, out *float64) int

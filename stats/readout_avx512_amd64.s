@@ -23,10 +23,10 @@ DATA ksPermOdd<>+48(SB)/8, $13
 DATA ksPermOdd<>+56(SB)/8, $15
 GLOBL ksPermOdd<>(SB), RODATA|NOPTR, $64
 
-
 // KSGROUP filters the eight pairs at src into the output at dst, whose
-// count is cnt: the loop body of ksFilterAVX512, for the four streams of
-// ksFilterAVX512x4.
+// count is cnt (see ksFilterAVX512): the loop body of both kernels. The
+// mask operations are the 16-bit KORW and KMOVW of AVX-512 F (a compare of
+// eight lanes leaves the upper mask bits zero), so that no DQ is needed.
 #define KSGROUP(src, dst, cnt) \
 	VMOVUPD (src), Z0 \
 	VMOVUPD 64(src), Z1 \
@@ -52,16 +52,16 @@ GLOBL ksPermOdd<>(SB), RODATA|NOPTR, $64
 	VPCMPUQ $2, Z29, Z7, K6 \
 	VPSUBQ  Z22, Z5, Z8 \
 	VPCMPUQ $2, Z30, Z8, K7 \
-	KORB    K2, K1, K1 \
+	KORW    K2, K1, K1 \
 	VPSUBQ  Z23, Z5, Z9 \
 	VPCMPUQ $2, Z31, Z9, K2 \
-	KORB    K4, K3, K3 \
-	KORB    K6, K5, K5 \
-	KORB    K2, K7, K7 \
-	KORB    K3, K1, K1 \
-	KORB    K7, K5, K5 \
-	KORB    K5, K1, K1 \
-	KMOVB   K1, R8 \
+	KORW    K4, K3, K3 \
+	KORW    K6, K5, K5 \
+	KORW    K2, K7, K7 \
+	KORW    K3, K1, K1 \
+	KORW    K7, K5, K5 \
+	KORW    K5, K1, K1 \
+	KMOVW   K1, R8 \
 	POPCNTL R8, R8 \
 	VCOMPRESSPD Z0, K1, Z10 \
 	VMOVUPD Z10, (dst)(cnt*8) \

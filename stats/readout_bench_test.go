@@ -19,16 +19,7 @@ func BenchmarkReadoutPasses(b *testing.B) {
 func benchReadoutPasses(b *testing.B, d int) {
 	a, pass := gaussianAmplitudes(d, 7, 8)
 	h := NewHaarKS(d, 1, 0)
-	// The active bins of this state: those of its collect pass.
-	pass(func(w int, q []float64) { h.CountAmplitudes(w, q) })
-	h.r.gather(h.counts, h.nans)
-	cands, _ := h.r.select_()
-	for _, ci := range cands {
-		h.r.state[ci] = ksCollect
-	}
-	h.r.markActive()
-	f := h.r.filt
-	h.reset()
+	f := activeFilter(h, pass)
 	out := make([]float64, 4096)
 	b.Run("count", func(b *testing.B) {
 		b.SetBytes(16 * int64(d))
@@ -43,14 +34,36 @@ func benchReadoutPasses(b *testing.B, d int) {
 			b.SetBytes(16 * int64(d))
 			kept := 0
 			for b.Loop() {
-				kept = 0
-				for off := 0; off < len(a); off += 8192 {
-					kept += ksFilterPairs(a[off:off+8192], &f, out)
-				}
+				kept = filterAll(a, f, out)
 			}
 			b.ReportMetric(float64(kept)/float64(d), "kept/value")
 		})
 	}
+}
+
+// activeFilter returns the filter of the collect pass of HaarKS h (of one
+// worker) for the state that pass hands out, and leaves h reset.
+func activeFilter(h *HaarKS, pass AmplitudePass) *ksFilter {
+	pass(func(w int, q []float64) { h.CountAmplitudes(w, q) })
+	h.r.gather(h.counts, h.nans)
+	cands, _ := h.r.select_()
+	for _, ci := range cands {
+		h.r.state[ci] = ksCollect
+	}
+	h.r.markActive()
+	f := h.r.filt
+	h.reset()
+	return &f
+}
+
+// filterAll runs ksFilterPairs over the amplitudes a in blocks of 4096
+// pairs into out (4096 values) and returns the number kept.
+func filterAll(a []float64, f *ksFilter, out []float64) int {
+	kept := 0
+	for off := 0; off < len(a); off += 8192 {
+		kept += ksFilterPairs(a[off:min(off+8192, len(a))], f, out)
+	}
+	return kept
 }
 
 // BenchmarkReadoutStream is the floor of BenchmarkReadoutPasses: Collision

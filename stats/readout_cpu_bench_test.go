@@ -27,39 +27,50 @@ func threadCPU() int64 {
 // BenchmarkReadoutCPU times the read-out of HaarKS over a Porter–Thomas
 // state of 2^n amplitudes on one worker, the count pass alone (count:
 // CountAmplitudes over blocks of 4096 amplitudes, as the simulator hands
-// them) and the whole read-out (readout: the count pass, then
-// FinishAmplitudes, with each filter of ksKernels), and reports the thread's CPU time per amplitude
+// them), the whole read-out (readout: the count pass, then
+// FinishAmplitudes) and the collect pass's filter alone (filter:
+// ksFilterPairs with the state's active bins), these two with each filter
+// of ksKernels, and reports the thread's CPU time per amplitude
 // (cpu-ns/amp) besides the wall time, which a loaded machine inflates.
 func BenchmarkReadoutCPU(b *testing.B) {
 	for _, n := range []int{12, 14, 16, 18, 20, 22, 24} {
 		d := 1 << n
-		_, pass := gaussianAmplitudes(d, uint64(n), 9)
+		a, pass := gaussianAmplitudes(d, uint64(n), 9)
 		h := NewHaarKS(d, 1, 0)
 		count := func(w int, q []float64) { h.CountAmplitudes(w, q) }
+		f, out := activeFilter(h, pass), make([]float64, 4096)
 		parts := []string{"count"}
 		for _, k := range ksKernels() {
-			parts = append(parts, "readout/"+k)
+			parts = append(parts, "readout/"+k, "filter/"+k)
 		}
 		for _, part := range parts {
 			b.Run(fmt.Sprintf("n=%d/%s", n, part), func(b *testing.B) {
 				runtime.LockOSThread()
 				defer runtime.UnlockOSThread()
-				if k, ok := strings.CutPrefix(part, "readout/"); ok {
+				if _, k, ok := strings.Cut(part, "/"); ok {
 					defer useKernel(k)()
 				}
 				b.SetBytes(16 * int64(d))
 				var cpu int64
+				kept, filter := 0, strings.HasPrefix(part, "filter/")
 				for b.Loop() {
 					t0 := threadCPU()
-					pass(count)
-					if part != "count" {
-						h.FinishAmplitudes(pass)
+					if filter {
+						kept = filterAll(a, f, out)
 					} else {
-						h.reset()
+						pass(count)
+						if part == "count" {
+							h.reset()
+						} else {
+							h.FinishAmplitudes(pass)
+						}
 					}
 					cpu += threadCPU() - t0
 				}
 				b.ReportMetric(float64(cpu)/float64(b.N)/float64(d), "cpu-ns/amp")
+				if kept > 0 {
+					b.ReportMetric(float64(kept)/float64(d), "kept/value")
+				}
 			})
 		}
 	}

@@ -85,6 +85,9 @@ type HaarKS struct {
 	nans   []bool
 	budget int
 	bufs   [][]float64 // FinishAmplitudes's probabilities per worker
+	// ksums and kouter are each worker's leaf sums and outer values of
+	// the AVX-512 count kernel (leavesCount).
+	ksums, kouter [][]float64
 }
 
 // NewHaarKS returns a HaarKS for states of dim probabilities whose passes
@@ -101,9 +104,13 @@ func NewHaarKS(dim, workers, budget int) *HaarKS {
 		budget = DefaultKSBudget
 	}
 	r := newKSRefiner(dim, workers)
-	h := &HaarKS{r: r, counts: make([][]uint32, workers), nans: make([]bool, workers), budget: budget}
+	h := &HaarKS{r: r, counts: make([][]uint32, workers), nans: make([]bool, workers), budget: budget,
+		ksums: make([][]float64, workers), kouter: make([][]float64, workers)}
 	for w := range h.counts {
-		h.counts[w] = make([]uint32, r.nbf+4)
+		// The counters of the first pass (see fine0), and a spare one
+		// that the AVX-512 kernel increments for the values it hands to
+		// countOuter.
+		h.counts[w] = make([]uint32, r.nbf+5)
 	}
 	return h
 }
@@ -141,8 +148,18 @@ func (h *HaarKS) CountAmplitudes(w int, a []float64) float64 {
 	if len(a)%2 != 0 {
 		panic("stats: CountAmplitudes of an odd number of floats")
 	}
-	c := h.counts[w][:h.r.nbf+4]
-	return h.sumCount(w, c, a)
+	c := h.counts[w][:h.r.nbf+5]
+	n := len(a) / 2
+	if !ksUseAVX512 || n < 4*pairwiseBlock {
+		return h.sumCount(w, c, a)
+	}
+	nl := (n + pairwiseBlock - 1) / pairwiseBlock
+	if cap(h.ksums[w]) < nl {
+		h.ksums[w] = make([]float64, nl)
+	}
+	sums := h.ksums[w][:nl]
+	h.leavesCount(w, c, a, sums)
+	return leafTree(sums, n)
 }
 
 // sumCount mirrors sumSquares over the probabilities of the pairs a.
@@ -227,6 +244,67 @@ func (h *HaarKS) leafCount(w int, c []uint32, a []float64) float64 {
 		}
 	}
 	return (s0 + s1) + (s2 + s3)
+}
+
+// ksCountBatch is the number of leaves the AVX-512 count kernel takes in
+// one call (4096 pairs, the simulator's chunk).
+const ksCountBatch = 32
+
+// ksCountInterleave makes the AVX-512 kernel take the four leaves of a
+// group a quarter of its batch apart instead of side by side.
+var ksCountInterleave = true
+
+// leavesCount counts the probabilities of the pairs a, as leafCount does,
+// and writes the collision sum of every leaf of pairwiseBlock pairs (the
+// last one possibly shorter) to sums, one per leaf: the AVX-512 kernel
+// takes the full leaves four at a time, leafCount the others.
+func (h *HaarKS) leavesCount(w int, c []uint32, a []float64, sums []float64) {
+	r := h.r
+	pos, shift := r.lo0&^(1<<63), uint64(r.shift)
+	if h.kouter[w] == nil {
+		h.kouter[w] = make([]float64, ksCountBatch*pairwiseBlock)
+	}
+	outer := h.kouter[w]
+	var tmp [ksCountBatch]float64
+	full := len(a) / (2 * pairwiseBlock)
+	l := 0
+	for full-l >= 4 {
+		nb := min(ksCountBatch, (full-l)&^3)
+		g := nb / 4
+		ls, gs := 1, 4 // leaves between a group's leaves, and between groups
+		if ksCountInterleave {
+			ls, gs = g, 1
+		}
+		const leafBytes = 2 * pairwiseBlock * 8
+		k := ksCountAVX512(&a[2*pairwiseBlock*l], g, uintptr(ls*leafBytes), uintptr(gs*leafBytes),
+			pos, shift, &c[3], uint64(r.nbf), &tmp[0], &outer[0])
+		for _, v := range outer[:k] {
+			h.countOuter(w, c, v)
+		}
+		for i := range g {
+			for j := range 4 {
+				sums[l+i*gs+j*ls] = tmp[4*i+j]
+			}
+		}
+		l += nb
+	}
+	for ; l < len(sums); l++ {
+		end := min(len(a), 2*pairwiseBlock*(l+1))
+		sums[l] = h.leafCount(w, c, a[2*pairwiseBlock*l:end])
+	}
+}
+
+// leafTree adds the leaf sums of n pairs in the order in which sumCount
+// (and sumSquares) adds its leaves.
+func leafTree(sums []float64, n int) float64 {
+	if n <= pairwiseBlock {
+		return sums[0]
+	}
+	m := (n / 2 / pairwiseBlock) * pairwiseBlock
+	if m == 0 {
+		m = pairwiseBlock
+	}
+	return leafTree(sums[:m/pairwiseBlock], m) + leafTree(sums[m/pairwiseBlock:], n-m)
 }
 
 // countOuter counts a value outside the uniform level-0 bins.

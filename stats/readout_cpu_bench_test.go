@@ -27,32 +27,44 @@ func threadCPU() int64 {
 // state of 2^n amplitudes on one worker, the count pass alone (count:
 // CountAmplitudes over blocks of 4096 amplitudes, as the simulator hands
 // them) and the whole read-out (readout: the count pass, then
-// FinishAmplitudes), and reports the thread's CPU time per amplitude
-// (cpu-ns/amp) besides the wall time, which a loaded machine inflates.
+// FinishAmplitudes), with the count pass's Go loop (go) and, where the
+// processor has it, its AVX-512 kernel (avx512), in the same rounds so that
+// the two can be compared on a loaded machine. It reports the thread's CPU
+// time per amplitude (cpu-ns/amp) besides the wall time, which a loaded
+// machine inflates.
 func BenchmarkReadoutCPU(b *testing.B) {
+	kernels := []string{"go"}
+	if ksUseAVX512 {
+		kernels = append(kernels, "avx512")
+	}
+	saved := ksUseAVX512
+	defer func() { ksUseAVX512 = saved }()
 	for _, n := range []int{12, 14, 16, 18, 20, 22, 24} {
 		d := 1 << n
 		_, pass := gaussianAmplitudes(d, uint64(n), 9)
 		h := NewHaarKS(d, 1, 0)
 		count := func(w int, q []float64) { h.CountAmplitudes(w, q) }
 		for _, part := range []string{"count", "readout"} {
-			b.Run(fmt.Sprintf("n=%d/%s", n, part), func(b *testing.B) {
-				runtime.LockOSThread()
-				defer runtime.UnlockOSThread()
-				b.SetBytes(16 * int64(d))
-				var cpu int64
-				for b.Loop() {
-					t0 := threadCPU()
-					pass(count)
-					if part == "readout" {
-						h.FinishAmplitudes(pass)
-					} else {
-						h.reset()
+			for _, k := range kernels {
+				b.Run(fmt.Sprintf("n=%d/%s/%s", n, part, k), func(b *testing.B) {
+					ksUseAVX512 = k == "avx512"
+					runtime.LockOSThread()
+					defer runtime.UnlockOSThread()
+					b.SetBytes(16 * int64(d))
+					var cpu int64
+					for b.Loop() {
+						t0 := threadCPU()
+						pass(count)
+						if part == "readout" {
+							h.FinishAmplitudes(pass)
+						} else {
+							h.reset()
+						}
+						cpu += threadCPU() - t0
 					}
-					cpu += threadCPU() - t0
-				}
-				b.ReportMetric(float64(cpu)/float64(b.N)/float64(d), "cpu-ns/amp")
-			})
+					b.ReportMetric(float64(cpu)/float64(b.N)/float64(d), "cpu-ns/amp")
+				})
+			}
 		}
 	}
 }

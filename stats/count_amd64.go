@@ -3,7 +3,7 @@ package stats
 import "golang.org/x/sys/cpu"
 
 // ksCountAVX512 is the AVX-512 count kernel of count_amd64.s over groups
-// of four leaves (see leavesCount).
+// of eight leaves (see leavesCount).
 //
 //go:noescape
 func ksCountAVX512(a *float64, groups int, leafStride, groupStride uintptr, pos, shift uint64, u *uint32, nb uint64, sums *float64, outer *float64) int

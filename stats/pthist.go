@@ -143,7 +143,7 @@ func (h *HaarKS) Count(w int, p []float64) {
 // probabilities re·re + im·im bit for bit. One loop squares, sums and bins,
 // so a state's first read-out pass is one pass over its amplitudes with no
 // buffer of probabilities. Where the processor has AVX-512, blocks of at
-// least four leaves of pairwiseBlock pairs take the kernel of
+// least ksCountGroup leaves of pairwiseBlock pairs take the kernel of
 // count_amd64.s (leavesCount), with the same sums and counts bit for bit.
 // It panics if len(a) is odd or w is outside [0, workers).
 func (h *HaarKS) CountAmplitudes(w int, a []float64) float64 {
@@ -152,7 +152,7 @@ func (h *HaarKS) CountAmplitudes(w int, a []float64) float64 {
 	}
 	c := h.counts[w][:h.r.nbf+5]
 	n := len(a) / 2
-	if !ksUseAVX512 || n < 4*pairwiseBlock {
+	if !ksUseAVX512 || n < ksCountGroup*pairwiseBlock {
 		return h.sumCount(w, c, a)
 	}
 	nl := (n + pairwiseBlock - 1) / pairwiseBlock
@@ -200,7 +200,7 @@ func (h *HaarKS) leafCount(w int, c []uint32, a []float64) float64 {
 	// On an Intel Xeon of the Sapphire Rapids class (2 shared cores, one
 	// thread pinned, BenchmarkReadoutCPU/count, CPU time, medians of 6
 	// alternating runs) the AVX-512 kernel of count_amd64.s, which
-	// leavesCount calls instead of this loop for four leaves at a time,
+	// leavesCount calls instead of this loop for eight leaves at a time,
 	// takes 0.68–0.84 of this loop's time per pair of runs from n = 14 to
 	// n = 24 (n = 16: 1.71 against 2.41 ns per amplitude; n = 22: 2.33
 	// against 3.88; n = 24: 3.36 against 4.31); at n = 12 the two were
@@ -266,23 +266,22 @@ func (h *HaarKS) leafCount(w int, c []uint32, a []float64) float64 {
 // one call (4096 pairs, the simulator's chunk).
 const ksCountBatch = 32
 
-// ksCountInterleave makes the AVX-512 kernel take the four leaves of a
-// group a quarter of its batch apart (16 KiB for a batch of 32 leaves)
-// instead of side by side, so that it reads four streams at once, which
-// raises one core's read bandwidth on the machine it was measured on by
-// about 1.4 times. With the state out of cache (n = 20, 22) the count
-// took 1.90 and 2.60 ns per amplitude interleaved against 2.39 and 3.07
-// side by side, at n = 24 3.64 against 3.56, at n ≤ 16 (in cache) 0.1–0.3
-// ns more (BenchmarkReadoutCPU's count in an exploratory copy, medians of
-// 5 rounds with the interleaved form run first in each, Intel Sapphire
-// Rapids class, one pinned thread). Tests switch it to check that both
-// give the same counts.
-var ksCountInterleave = true
+// ksCountGroup is the number of leaves of a group of the AVX-512 count
+// kernel. It takes them an eighth of its batch apart (a leaf of four
+// groups: 8 KiB for a full batch), so that it reads eight streams at once:
+// one core reads several interleaved streams faster than one. Four leaves
+// a quarter of the batch apart took 0.71–0.81 of the time of four side by
+// side from n = 16 to 24 (medians of pair ratios over 6 alternating runs)
+// and eight leaves 0.75–0.93 of the time of those four from n = 12 to 24
+// (the same way; an exploratory copy of BenchmarkReadoutCPU's count on an
+// Intel Sapphire Rapids class core, one pinned thread).
+const ksCountGroup = 8
 
 // leavesCount counts the probabilities of the pairs a, as leafCount does,
 // and writes the collision sum of every leaf of pairwiseBlock pairs (the
 // last one possibly shorter) to sums, one per leaf: the AVX-512 kernel
-// takes the full leaves four at a time, leafCount the others.
+// takes the full leaves in batches of a multiple of ksCountGroup leaves,
+// leafCount the others.
 func (h *HaarKS) leavesCount(w int, c []uint32, a []float64, sums []float64) {
 	r := h.r
 	pos, shift := r.lo0&^(1<<63), uint64(r.shift)
@@ -291,24 +290,20 @@ func (h *HaarKS) leavesCount(w int, c []uint32, a []float64, sums []float64) {
 	}
 	outer := h.kouter[w]
 	var tmp [ksCountBatch]float64
+	const leafBytes = 2 * pairwiseBlock * 8
 	full := len(a) / (2 * pairwiseBlock)
 	l := 0
-	for full-l >= 4 {
-		nb := min(ksCountBatch, (full-l)&^3)
-		g := nb / 4
-		ls, gs := 1, 4 // leaves between a group's leaves, and between groups
-		if ksCountInterleave {
-			ls, gs = g, 1
-		}
-		const leafBytes = 2 * pairwiseBlock * 8
-		k := ksCountAVX512(&a[2*pairwiseBlock*l], g, uintptr(ls*leafBytes), uintptr(gs*leafBytes),
+	for full-l >= ksCountGroup {
+		nb := min(ksCountBatch, (full-l)/ksCountGroup*ksCountGroup)
+		g := nb / ksCountGroup // groups; leaf j of group i is leaf i + j·g
+		k := ksCountAVX512(&a[2*pairwiseBlock*l], g, uintptr(g*leafBytes), leafBytes,
 			pos, shift, &c[3], uint64(r.nbf), &tmp[0], &outer[0])
 		for _, v := range outer[:k] {
 			h.countOuter(w, c, v)
 		}
 		for i := range g {
-			for j := range 4 {
-				sums[l+i*gs+j*ls] = tmp[4*i+j]
+			for j := range ksCountGroup {
+				sums[l+i+j*g] = tmp[ksCountGroup*i+j]
 			}
 		}
 		l += nb

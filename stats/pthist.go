@@ -198,18 +198,22 @@ func (h *HaarKS) leafCount(w int, c []uint32, a []float64) float64 {
 	// in all (2^12 bins per octave took 2.1 ns).
 	//
 	// On an Intel Xeon of the Sapphire Rapids class (2 shared cores, one
-	// thread pinned, BenchmarkReadoutCPU/count, CPU time, medians of 6
-	// alternating runs) the AVX-512 kernel of count_amd64.s, which
-	// leavesCount calls instead of this loop for eight leaves at a time,
-	// takes 0.68–0.84 of this loop's time per pair of runs from n = 14 to
-	// n = 24 (n = 16: 1.71 against 2.41 ns per amplitude; n = 22: 2.33
-	// against 3.88; n = 24: 3.36 against 4.31); at n = 12 the two were
-	// within the noise. The kernel squares, sums and bins in vectors and
-	// increments from a buffer of indices: without the increments it takes
-	// about 0.75 ns per amplitude at n = 16, so the increments are still
-	// the larger part. 8- and 16-bit counters with a carry into these
-	// (halving or quartering the hot table) gained 3% and 13% at n = 22
-	// and 24 and lost at n ≤ 16 (medians of 7); not kept.
+	// thread pinned, BenchmarkReadoutCPU/count, CPU time, 6 alternating
+	// runs) the AVX-512 kernel of count_amd64.s, which leavesCount calls
+	// instead of this loop for eight leaves at a time, takes 0.65–0.84 of
+	// this loop's time (medians of the pair ratios) from n = 14 to n = 24
+	// (n = 16: 1.36 against 2.02 ns per amplitude; n = 22: 2.05 against
+	// 2.83; n = 24: 2.54 against 2.95), and the whole read-out 0.86–0.95
+	// from n = 16 on; at n = 12, one call per state, the count took 1.29
+	// times as long (1.04–2.11) and the read-out the same. The kernel
+	// squares, sums and bins in vectors and increments from a buffer of
+	// indices: without the increments its four-leaf form took about 0.75
+	// ns per amplitude at n = 16 against 1.5 with them, so the increments
+	// are still the larger part. 8-bit counters with a carry into these
+	// (a hot table a quarter the size) took 0.97 and 0.87 of the time at
+	// n = 22 and 24, 16-bit ones 1.09 and 0.92, and both 1.2–1.3 times as
+	// long at n = 12 (four-leaf form, ratios of medians of 5–7 runs, each
+	// run in one order); not kept.
 	r := h.r
 	pos, shift, u := r.lo0&^(1<<63), r.shift&63, c[3:3+r.nbf]
 	var s0, s1, s2, s3 float64

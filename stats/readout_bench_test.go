@@ -8,7 +8,8 @@ import (
 // BenchmarkReadoutPasses times the two read-out passes of HaarKS over the
 // amplitudes of a Porter–Thomas state of 2^n outputs, one worker, with
 // every filter of ksKernels: count is CountAmplitudes over blocks of 4096
-// amplitudes (Go only), filter the collect pass's ksFilterPairs with the
+// amplitudes (with the kernel CountAmplitudes picks: AVX-512 where the
+// processor has it, see count_amd64.go), filter the collect pass's ksFilterPairs with the
 // active bins of that state.
 func BenchmarkReadoutPasses(b *testing.B) {
 	for _, n := range []int{16, 22} {

@@ -25,21 +25,32 @@ func threadCPU() int64 {
 }
 
 // BenchmarkReadoutCPU times the read-out of HaarKS over a Porter–Thomas
-// state of 2^n amplitudes on one worker, the count pass alone (count:
+// state of 2^n amplitudes on one worker: the count pass alone (count:
 // CountAmplitudes over blocks of 4096 amplitudes, as the simulator hands
-// them), the whole read-out (readout: the count pass, then
-// FinishAmplitudes) and the collect pass's filter alone (filter:
+// them) with its Go loop (count/go) and, where the processor has it, its
+// AVX-512 kernel (count/avx512); the whole read-out (readout: the count
+// pass, then FinishAmplitudes) and the collect pass's filter alone (filter:
 // ksFilterPairs with the state's active bins), these two with each filter
-// of ksKernels, and reports the thread's CPU time per amplitude
+// of ksKernels. All run in the same rounds, so that they can be compared on
+// a loaded machine. It reports the thread's CPU time per amplitude
 // (cpu-ns/amp) besides the wall time, which a loaded machine inflates.
 func BenchmarkReadoutCPU(b *testing.B) {
+	counts := []string{"go"}
+	if ksCountAVX512On {
+		counts = append(counts, "avx512")
+	}
+	saved := ksCountAVX512On
+	defer func() { ksCountAVX512On = saved }()
 	for _, n := range []int{12, 14, 16, 18, 20, 22, 24} {
 		d := 1 << n
 		a, pass := gaussianAmplitudes(d, uint64(n), 9)
 		h := NewHaarKS(d, 1, 0)
 		count := func(w int, q []float64) { h.CountAmplitudes(w, q) }
 		f, out := activeFilter(h, pass), make([]float64, 4096)
-		parts := []string{"count"}
+		var parts []string
+		for _, k := range counts {
+			parts = append(parts, "count/"+k)
+		}
 		for _, k := range ksKernels() {
 			parts = append(parts, "readout/"+k, "filter/"+k)
 		}
@@ -47,23 +58,27 @@ func BenchmarkReadoutCPU(b *testing.B) {
 			b.Run(fmt.Sprintf("n=%d/%s", n, part), func(b *testing.B) {
 				runtime.LockOSThread()
 				defer runtime.UnlockOSThread()
-				if _, k, ok := strings.Cut(part, "/"); ok {
+				what, k, _ := strings.Cut(part, "/")
+				if what == "count" {
+					ksCountAVX512On = k == "avx512"
+					defer func() { ksCountAVX512On = saved }()
+				} else {
 					defer useKernel(k)()
 				}
 				b.SetBytes(16 * int64(d))
 				var cpu int64
-				kept, filter := 0, strings.HasPrefix(part, "filter/")
+				kept := 0
 				for b.Loop() {
 					t0 := threadCPU()
-					if filter {
+					switch what {
+					case "filter":
 						kept = filterAll(a, f, out)
-					} else {
+					case "count":
 						pass(count)
-						if part == "count" {
-							h.reset()
-						} else {
-							h.FinishAmplitudes(pass)
-						}
+						h.reset()
+					default:
+						pass(count)
+						h.FinishAmplitudes(pass)
 					}
 					cpu += threadCPU() - t0
 				}

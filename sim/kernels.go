@@ -232,6 +232,8 @@ func apply2Kernel(amp []complex128, k *kernel2, from, to int) {
 			apply2Q0AVXx2(x, uint(k.hi), from, to, &k.c)
 		case k.lo == 0:
 			apply2Q0AVX(x, uint(k.hi), from, to, &k.c)
+		case useAVX512 && useX2 && useX4 && k.lo >= 2 && from%16 == 0 && to%16 == 0:
+			apply2RunsAVX512x4(x, uint(k.lo), uint(k.hi), from, to, &k.cz)
 		case useAVX512 && useX2 && k.lo >= 2 && from%8 == 0 && to%8 == 0:
 			apply2RunsAVX512x2(x, uint(k.lo), uint(k.hi), from, to, &k.cz)
 		case useAVX512 && k.lo >= 2 && from%4 == 0 && to%4 == 0:
@@ -411,3 +413,9 @@ var useX2 = true
 // apply2Q01AVX512x2) over the 256-bit x2 ones (apply2RunsAVXx2,
 // apply2Q0AVXx2); benchmarks switch it off to compare them in one run.
 var useX2Low = true
+
+// useX4 selects, when useX2 is on, apply2RunsAVX512x4 (sixteen groups per
+// iteration, column by column) over apply2RunsAVX512x2 for the runs pairs
+// where the range is aligned to sixteen groups; tests and benchmarks switch
+// it off to compare them in one run.
+var useX4 = true

@@ -1524,3 +1524,135 @@ zq012Loop:
 zq012Done:
 	VZEROUPPER
 	RET
+
+// X4_LOADSWAP loads input vector j of the four quarters of an iteration of
+// apply2RunsAVX512x4 (from the operands A, B, C, D) into Z16, Z18, Z20, Z22
+// and their re/im-swapped forms into Z17, Z19, Z21, Z23.
+#define X4_LOADSWAP(A, B, C, D) \
+	VMOVUPD A, Z16; \
+	VMOVUPD B, Z18; \
+	VMOVUPD C, Z20; \
+	VMOVUPD D, Z22; \
+	VPERMILPD $0x55, Z16, Z17; \
+	VPERMILPD $0x55, Z18, Z19; \
+	VPERMILPD $0x55, Z20, Z21; \
+	VPERMILPD $0x55, Z22, Z23
+
+// X4_COL is one column of apply2RunsAVX512x4: the coefficient vectors of
+// rows 0–3 at OFF, OFF+512, OFF+1024, OFF+1536 (SI) times the input of each
+// quarter (VA…VD), by OP (VMULPD for column 0, else VFMADD231PD) into the
+// accumulators of rows 0–3 of the quarters: Z0–Z3, Z4–Z7, Z8–Z11, Z12–Z15.
+// Consecutive instructions update different accumulators, so each one's
+// chain waits on an instruction sixteen places back.
+#define X4_COL(OP, OFF0, OFF1, OFF2, OFF3, VA, VB, VC, VD) \
+	VMOVUPD OFF0(SI), Z24; \
+	VMOVUPD OFF1(SI), Z25; \
+	VMOVUPD OFF2(SI), Z26; \
+	VMOVUPD OFF3(SI), Z27; \
+	OP Z24, VA, Z0; \
+	OP Z24, VB, Z4; \
+	OP Z24, VC, Z8; \
+	OP Z24, VD, Z12; \
+	OP Z25, VA, Z1; \
+	OP Z25, VB, Z5; \
+	OP Z25, VC, Z9; \
+	OP Z25, VD, Z13; \
+	OP Z26, VA, Z2; \
+	OP Z26, VB, Z6; \
+	OP Z26, VC, Z10; \
+	OP Z26, VD, Z14; \
+	OP Z27, VA, Z3; \
+	OP Z27, VB, Z7; \
+	OP Z27, VC, Z11; \
+	OP Z27, VD, Z15
+
+// X4_INSERT sets R to &x[insert(insert(k+G, lo), hi)] (k in R10), as
+// apply2RunsAVX512x2 computes its base addresses.
+#define X4_INSERT(G, R) \
+	LEAQ G(R10), R; \
+	MOVQ R, CX; \
+	ANDQ R8, CX; \
+	ADDQ CX, R; \
+	MOVQ R, CX; \
+	ANDQ R9, CX; \
+	ADDQ CX, R; \
+	SHLQ $4, R; \
+	ADDQ DI, R
+
+// func apply2RunsAVX512x4(x *complex128, lo, hi uint, from, to int, c *coef2z)
+//
+// apply2RunsAVX512 on sixteen groups per iteration, four quarters
+// (k…k+3), …, (k+12…k+15), from and to multiples of 16 and 2 ≤ lo < hi. The
+// multiply-adds go column by column: the coefficient vectors of one input
+// (rows 0–3) are loaded once and applied to all four quarters, sixteen
+// independent accumulation chains, and consecutive instructions belong to
+// different chains. Inputs are loaded (and re/im-swapped) just before their
+// two columns, so the 32 vector registers hold the sixteen accumulators,
+// the current input of each quarter and its swap, and four coefficients.
+// Each lane's chain (a multiply, then seven multiply-adds in the column
+// order v0, v0s, v1, v1s, v2, v2s, v3, v3s) is that of apply2RunsAVX512, so
+// the results are bit-identical to it.
+TEXT ·apply2RunsAVX512x4(SB), NOSPLIT, $0-48
+	MOVQ x+0(FP), DI
+	MOVQ lo+8(FP), CX
+	MOVQ hi+16(FP), DX
+	MOVQ from+24(FP), R10      // k
+	MOVQ to+32(FP), R11        // end
+	MOVQ c+40(FP), SI
+	MOVQ $1, AX
+	SHLXQ CX, AX, R14          // 2^lo
+	MOVQ $1, AX
+	SHLXQ DX, AX, R15          // 2^hi
+	MOVQ R14, R8
+	NEGQ R8                    // ^(2^lo − 1)
+	MOVQ R15, R9
+	NEGQ R9                    // ^(2^hi − 1)
+	SHLQ $4, R14               // byte offset of bit lo
+	SHLQ $4, R15               // byte offset of bit hi
+	LEAQ (R14)(R15*1), R12     // byte offset of both bits
+	CMPQ R10, R11
+	JGE  z4runsDone
+
+z4runsLoop:
+	X4_INSERT(0, AX)
+	X4_INSERT(4, BX)
+	X4_INSERT(8, DX)
+	X4_INSERT(12, R13)
+
+	X4_LOADSWAP((AX), (BX), (DX), (R13))
+	X4_COL(VMULPD, 0, 512, 1024, 1536, Z16, Z18, Z20, Z22)
+	X4_COL(VFMADD231PD, 64, 576, 1088, 1600, Z17, Z19, Z21, Z23)
+	X4_LOADSWAP((AX)(R14*1), (BX)(R14*1), (DX)(R14*1), (R13)(R14*1))
+	X4_COL(VFMADD231PD, 128, 640, 1152, 1664, Z16, Z18, Z20, Z22)
+	X4_COL(VFMADD231PD, 192, 704, 1216, 1728, Z17, Z19, Z21, Z23)
+	X4_LOADSWAP((AX)(R15*1), (BX)(R15*1), (DX)(R15*1), (R13)(R15*1))
+	X4_COL(VFMADD231PD, 256, 768, 1280, 1792, Z16, Z18, Z20, Z22)
+	X4_COL(VFMADD231PD, 320, 832, 1344, 1856, Z17, Z19, Z21, Z23)
+	X4_LOADSWAP((AX)(R12*1), (BX)(R12*1), (DX)(R12*1), (R13)(R12*1))
+	X4_COL(VFMADD231PD, 384, 896, 1408, 1920, Z16, Z18, Z20, Z22)
+	X4_COL(VFMADD231PD, 448, 960, 1472, 1984, Z17, Z19, Z21, Z23)
+
+	VMOVUPD Z0, (AX)
+	VMOVUPD Z1, (AX)(R14*1)
+	VMOVUPD Z2, (AX)(R15*1)
+	VMOVUPD Z3, (AX)(R12*1)
+	VMOVUPD Z4, (BX)
+	VMOVUPD Z5, (BX)(R14*1)
+	VMOVUPD Z6, (BX)(R15*1)
+	VMOVUPD Z7, (BX)(R12*1)
+	VMOVUPD Z8, (DX)
+	VMOVUPD Z9, (DX)(R14*1)
+	VMOVUPD Z10, (DX)(R15*1)
+	VMOVUPD Z11, (DX)(R12*1)
+	VMOVUPD Z12, (R13)
+	VMOVUPD Z13, (R13)(R14*1)
+	VMOVUPD Z14, (R13)(R15*1)
+	VMOVUPD Z15, (R13)(R12*1)
+
+	ADDQ $16, R10
+	CMPQ R10, R11
+	JLT  z4runsLoop
+
+z4runsDone:
+	VZEROUPPER
+	RET

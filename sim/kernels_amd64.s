@@ -1370,6 +1370,39 @@ yq02Done:
 	VFMADD231PD Z25, Z7, Z11; \
 	VFMADD231PD Z25, Z19, Z23
 
+// Z2_COL is one column of the column-by-column form of Z2_ROWS01 and
+// Z2_ROWS23: the coefficient vectors of rows 0–3 at OFF0…OFF3 (SI) times
+// the input VA of the first half and VB of the second, by OP (VMULPD for
+// column 0, else VFMADD231PD), into the accumulators Z8–Z11 and Z20–Z23.
+// Consecutive instructions update different accumulators, so each chain
+// waits on an instruction eight places back instead of two.
+#define Z2_COL(OP, OFF0, OFF1, OFF2, OFF3, VA, VB) \
+	VMOVUPD OFF0(SI), Z24; \
+	VMOVUPD OFF1(SI), Z25; \
+	VMOVUPD OFF2(SI), Z26; \
+	VMOVUPD OFF3(SI), Z27; \
+	OP Z24, VA, Z8; \
+	OP Z24, VB, Z20; \
+	OP Z25, VA, Z9; \
+	OP Z25, VB, Z21; \
+	OP Z26, VA, Z10; \
+	OP Z26, VB, Z22; \
+	OP Z27, VA, Z11; \
+	OP Z27, VB, Z23
+
+// Z2_COLS is Z2_ROWS01 then Z2_ROWS23 column by column: every lane's chain
+// (a multiply, then seven multiply-adds over v0, v0s, v1, v1s, v2, v2s, v3,
+// v3s) is unchanged, so are the results, bit for bit.
+#define Z2_COLS \
+	Z2_COL(VMULPD, 0, 512, 1024, 1536, Z0, Z12); \
+	Z2_COL(VFMADD231PD, 64, 576, 1088, 1600, Z4, Z16); \
+	Z2_COL(VFMADD231PD, 128, 640, 1152, 1664, Z1, Z13); \
+	Z2_COL(VFMADD231PD, 192, 704, 1216, 1728, Z5, Z17); \
+	Z2_COL(VFMADD231PD, 256, 768, 1280, 1792, Z2, Z14); \
+	Z2_COL(VFMADD231PD, 320, 832, 1344, 1856, Z6, Z18); \
+	Z2_COL(VFMADD231PD, 384, 896, 1408, 1920, Z3, Z15); \
+	Z2_COL(VFMADD231PD, 448, 960, 1472, 1984, Z7, Z19)
+
 // func apply2R1AVX512x2(x *complex128, hi uint, from, to int, c *coef2z)
 //
 // apply2RunsAVX for lo = 1 and hi ≥ 2 on eight groups per iteration, from
@@ -1440,8 +1473,7 @@ zr12Loop:
 	VSHUFF64X2 $0x44, Z29, Z28, Z14
 	VSHUFF64X2 $0xee, Z29, Z28, Z15
 	Z2_HALFSWAP
-	Z2_ROWS01
-	Z2_ROWS23
+	Z2_COLS
 
 	VSHUFF64X2 $0x44, Z9, Z8, Z26
 	VSHUFF64X2 $0xee, Z9, Z8, Z27
@@ -1465,6 +1497,105 @@ zr12Loop:
 	JLT  zr12Loop
 
 zr12Done:
+	VZEROUPPER
+	RET
+
+// TEMPORARY: the row-order R1 kernel, for the A/B measurement only.
+// func apply2R1AVX512x2rows(x *complex128, hi uint, from, to int, c *coef2z)
+//
+// apply2RunsAVX for lo = 1 and hi ≥ 2 on eight groups per iteration, from
+// and to multiples of 8, in 512-bit vectors. With lo = 1 a run is two groups
+// long: the even group g and g+1 have base index p = insert(2g, hi), and the
+// 64 bytes at p hold [v0(g), v0(g+1), v1(g), v1(g+1)] (at p + 2^hi the same
+// of v2, v3). VSHUFF64X2 gathers two such runs into the vectors of
+// apply2RunsAVX512 ([v0] of four groups, then [v1]), the arithmetic is that
+// of apply2RunsAVX512x2 (coefficients loaded once for both halves), and the
+// outputs are shuffled back. The shuffles only move whole amplitudes and
+// every lane sees the instructions of apply2RunsAVX in the same order, so the
+// results are bit-identical to it. c is the coef2z of splitRuns.
+TEXT ·apply2R1AVX512x2rows(SB), NOSPLIT, $0-40
+	MOVQ x+0(FP), DI
+	MOVQ hi+8(FP), CX
+	MOVQ from+16(FP), R10      // k
+	MOVQ to+24(FP), R11        // end
+	MOVQ c+32(FP), SI
+	MOVQ $1, AX
+	SHLXQ CX, AX, R15          // 2^hi
+	MOVQ R15, R9
+	NEGQ R9                    // ^(2^hi − 1)
+	SHLQ $4, R15               // byte offset of bit hi
+	CMPQ R10, R11
+	JGE  zr12rDone
+
+zr12rLoop:
+	// p(g) = 2g + (2g &^ (2^hi − 1)) for g = k, k+2, k+4, k+6
+	LEAQ (R10)(R10*1), AX
+	MOVQ AX, CX
+	ANDQ R9, CX
+	ADDQ CX, AX
+	SHLQ $4, AX
+	ADDQ DI, AX                // groups k, k+1
+	LEAQ 4(R10)(R10*1), BX
+	MOVQ BX, CX
+	ANDQ R9, CX
+	ADDQ CX, BX
+	SHLQ $4, BX
+	ADDQ DI, BX                // groups k+2, k+3
+	LEAQ 8(R10)(R10*1), DX
+	MOVQ DX, CX
+	ANDQ R9, CX
+	ADDQ CX, DX
+	SHLQ $4, DX
+	ADDQ DI, DX                // groups k+4, k+5
+	LEAQ 12(R10)(R10*1), R13
+	MOVQ R13, CX
+	ANDQ R9, CX
+	ADDQ CX, R13
+	SHLQ $4, R13
+	ADDQ DI, R13               // groups k+6, k+7
+
+	VMOVUPD (AX), Z26
+	VMOVUPD (BX), Z27
+	VMOVUPD (AX)(R15*1), Z28
+	VMOVUPD (BX)(R15*1), Z29
+	VSHUFF64X2 $0x44, Z27, Z26, Z0   // v0 of k…k+3
+	VSHUFF64X2 $0xee, Z27, Z26, Z1   // v1
+	VSHUFF64X2 $0x44, Z29, Z28, Z2   // v2
+	VSHUFF64X2 $0xee, Z29, Z28, Z3   // v3
+	VMOVUPD (DX), Z26
+	VMOVUPD (R13), Z27
+	VMOVUPD (DX)(R15*1), Z28
+	VMOVUPD (R13)(R15*1), Z29
+	VSHUFF64X2 $0x44, Z27, Z26, Z12  // v0 of k+4…k+7
+	VSHUFF64X2 $0xee, Z27, Z26, Z13
+	VSHUFF64X2 $0x44, Z29, Z28, Z14
+	VSHUFF64X2 $0xee, Z29, Z28, Z15
+	Z2_HALFSWAP
+	Z2_ROWS01
+	Z2_ROWS23
+
+	VSHUFF64X2 $0x44, Z9, Z8, Z26
+	VSHUFF64X2 $0xee, Z9, Z8, Z27
+	VSHUFF64X2 $0x44, Z11, Z10, Z28
+	VSHUFF64X2 $0xee, Z11, Z10, Z29
+	VMOVUPD Z26, (AX)
+	VMOVUPD Z27, (BX)
+	VMOVUPD Z28, (AX)(R15*1)
+	VMOVUPD Z29, (BX)(R15*1)
+	VSHUFF64X2 $0x44, Z21, Z20, Z26
+	VSHUFF64X2 $0xee, Z21, Z20, Z27
+	VSHUFF64X2 $0x44, Z23, Z22, Z28
+	VSHUFF64X2 $0xee, Z23, Z22, Z29
+	VMOVUPD Z26, (DX)
+	VMOVUPD Z27, (R13)
+	VMOVUPD Z28, (DX)(R15*1)
+	VMOVUPD Z29, (R13)(R15*1)
+
+	ADDQ $8, R10
+	CMPQ R10, R11
+	JLT  zr12rLoop
+
+zr12rDone:
 	VZEROUPPER
 	RET
 

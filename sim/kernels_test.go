@@ -8,6 +8,7 @@ import (
 	"math/cmplx"
 	"math/rand/v2"
 	"runtime"
+	"slices"
 	"testing"
 	"time"
 	"unsafe"
@@ -531,4 +532,75 @@ func BenchmarkKernelClass(b *testing.B) {
 			})
 		}
 	}
+}
+
+// BenchmarkKernelAB compares, for a few pairs, the kernel apply2Kernel
+// takes (new) with the one it replaces (old: apply2RunsAVX512x2 for the
+// runs pairs, the row-order apply2R1AVX512x2rows for (1, q)) on one block
+// of 2^BlockQubits amplitudes in cache, alternating them every fraction of
+// a millisecond within one run: each round times reps gates with one
+// kernel, then reps with the other (which goes first alternates between
+// rounds), so that other load on the shared machine hits both alike. It
+// reports the median over rounds of each one's ns per gate per amplitude
+// and of the ratio old/new of the same round. Pin it to one core
+// (taskset).
+func BenchmarkKernelAB(b *testing.B) {
+	const k = BlockQubits
+	rng := rand.New(rand.NewPCG(85, 86))
+	x := make([]complex128, 1<<k)
+	for i := range x {
+		x[i] = complex(rng.NormFloat64(), rng.NormFloat64()) / 128
+	}
+	groups := 1 << (k - 2)
+	for _, pair := range [][2]int{{2, 3}, {4, 5}, {4, 9}, {8, 13}, {1, 2}, {1, 5}} {
+		var m [16]complex128
+		circuits.HaarUnitary(rng, 4, m[:])
+		kn := newKernel2(pair[0], pair[1], &m)
+		old := func() {
+			if kn.lo == 1 {
+				apply2R1AVX512x2rows(unsafe.SliceData(x), uint(kn.hi), 0, groups, &kn.cz)
+			} else {
+				apply2RunsAVX512x2(unsafe.SliceData(x), uint(kn.lo), uint(kn.hi), 0, groups, &kn.cz)
+			}
+		}
+		b.Run(fmt.Sprintf("%d-%d", pair[0], pair[1]), func(b *testing.B) {
+			const reps = 16
+			var tNew, tOld, ratio []float64
+			timed := func(isNew bool) float64 {
+				start := time.Now()
+				for range reps {
+					if isNew {
+						apply2Kernel(x, &kn, 0, groups)
+					} else {
+						old()
+					}
+				}
+				return float64(time.Since(start).Nanoseconds()) / reps / float64(len(x))
+			}
+			for r := 0; b.Loop(); r++ {
+				var a, c float64
+				if r%2 == 0 {
+					a = timed(true)
+					c = timed(false)
+				} else {
+					c = timed(false)
+					a = timed(true)
+				}
+				tNew, tOld, ratio = append(tNew, a), append(tOld, c), append(ratio, c/a)
+			}
+			b.ReportMetric(median(tNew), "new-ns/amp")
+			b.ReportMetric(median(tOld), "old-ns/amp")
+			b.ReportMetric(median(ratio), "old/new")
+		})
+	}
+}
+
+// median returns the median of v (v is reordered).
+func median(v []float64) float64 {
+	slices.Sort(v)
+	n := len(v)
+	if n%2 == 1 {
+		return v[n/2]
+	}
+	return (v[n/2-1] + v[n/2]) / 2
 }

@@ -75,6 +75,3 @@ var (
 
 //go:noescape
 func apply2RunsAVX512x4(x *complex128, lo, hi uint, from, to int, c *coef2z)
-
-//go:noescape
-func apply2R1AVX512x2rows(x *complex128, hi uint, from, to int, c *coef2z)

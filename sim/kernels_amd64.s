@@ -1,5 +1,52 @@
 #include "textflag.h"
 
+// RUNS_SETUP loads the arguments of the runs kernels with the signature
+// (x *complex128, lo, hi uint, from, to int, c) into DI, R10 (k), R11 (to)
+// and SI, sets R8 = ^(2^lo − 1), R9 = ^(2^hi − 1) and the byte offsets R14
+// (bit lo), R15 (bit hi) and R12 (both), and jumps to DONE when from ≥ to.
+#define RUNS_SETUP(DONE) \
+	MOVQ x+0(FP), DI; \
+	MOVQ lo+8(FP), CX; \
+	MOVQ hi+16(FP), DX; \
+	MOVQ from+24(FP), R10; \
+	MOVQ to+32(FP), R11; \
+	MOVQ c+40(FP), SI; \
+	MOVQ $1, AX; \
+	SHLXQ CX, AX, R14; \
+	MOVQ $1, AX; \
+	SHLXQ DX, AX, R15; \
+	MOVQ R14, R8; \
+	NEGQ R8; \
+	MOVQ R15, R9; \
+	NEGQ R9; \
+	SHLQ $4, R14; \
+	SHLQ $4, R15; \
+	LEAQ (R14)(R15*1), R12; \
+	CMPQ R10, R11; \
+	JGE  DONE
+
+// RUNS_STORE stores the four output vectors A, B, C, D of the groups with
+// base address R to their members: R, R + 2^lo, R + 2^hi, R + 2^lo + 2^hi
+// (byte offsets R14, R15 and R12 of RUNS_SETUP).
+#define RUNS_STORE(A, B, C, D, R) \
+	VMOVUPD A, (R); \
+	VMOVUPD B, (R)(R14*1); \
+	VMOVUPD C, (R)(R15*1); \
+	VMOVUPD D, (R)(R12*1)
+
+// RUNS_BASE sets R to &x[i] of group k+G (k in R10) after RUNS_SETUP:
+// the zero bits are inserted as i = g + (g &^ (2^p − 1)), p = lo then hi.
+#define RUNS_BASE(G, R) \
+	LEAQ G(R10), R; \
+	MOVQ R, CX; \
+	ANDQ R8, CX; \
+	ADDQ CX, R; \
+	MOVQ R, CX; \
+	ANDQ R9, CX; \
+	ADDQ CX, R; \
+	SHLQ $4, R; \
+	ADDQ DI, R
+
 // func apply2RunsAVX(x *complex128, lo, hi uint, from, to int, c *coef2)
 //
 // Applies the canonical 4×4 matrix whose split coefficients are in c to the
@@ -717,45 +764,11 @@ s0Done:
 // in the same order, so the results are bit-identical. The zero bits are
 // inserted as i = k + (k &^ (2^p − 1)), p = lo then hi.
 TEXT ·apply2RunsAVX512x2(SB), NOSPLIT, $0-48
-	MOVQ x+0(FP), DI
-	MOVQ lo+8(FP), CX
-	MOVQ hi+16(FP), DX
-	MOVQ from+24(FP), R10      // k
-	MOVQ to+32(FP), R11        // end
-	MOVQ c+40(FP), SI
-	MOVQ $1, AX
-	SHLXQ CX, AX, R14          // 2^lo
-	MOVQ $1, AX
-	SHLXQ DX, AX, R15          // 2^hi
-	MOVQ R14, R8
-	NEGQ R8                    // ^(2^lo − 1)
-	MOVQ R15, R9
-	NEGQ R9                    // ^(2^hi − 1)
-	SHLQ $4, R14               // byte offset of bit lo
-	SHLQ $4, R15               // byte offset of bit hi
-	LEAQ (R14)(R15*1), R12     // byte offset of both bits
-	CMPQ R10, R11
-	JGE  z2runsDone
+	RUNS_SETUP(z2runsDone)
 
 z2runsLoop:
-	MOVQ R10, AX
-	MOVQ AX, CX
-	ANDQ R8, CX
-	ADDQ CX, AX
-	MOVQ AX, CX
-	ANDQ R9, CX
-	ADDQ CX, AX
-	SHLQ $4, AX
-	ADDQ DI, AX                // &x[i] of group k
-	LEAQ 4(R10), BX
-	MOVQ BX, CX
-	ANDQ R8, CX
-	ADDQ CX, BX
-	MOVQ BX, CX
-	ANDQ R9, CX
-	ADDQ CX, BX
-	SHLQ $4, BX
-	ADDQ DI, BX                // &x[i] of group k+4
+	RUNS_BASE(0, AX)              // &x[i] of group k
+	RUNS_BASE(4, BX)              // &x[i] of group k+4
 
 	VMOVUPD (AX), Z0
 	VMOVUPD (AX)(R14*1), Z1
@@ -875,14 +888,8 @@ z2runsLoop:
 	VFMADD231PD Z25, Z7, Z11
 	VFMADD231PD Z25, Z19, Z23
 
-	VMOVUPD Z8, (AX)
-	VMOVUPD Z9, (AX)(R14*1)
-	VMOVUPD Z10, (AX)(R15*1)
-	VMOVUPD Z11, (AX)(R12*1)
-	VMOVUPD Z20, (BX)
-	VMOVUPD Z21, (BX)(R14*1)
-	VMOVUPD Z22, (BX)(R15*1)
-	VMOVUPD Z23, (BX)(R12*1)
+	RUNS_STORE(Z8, Z9, Z10, Z11, AX)
+	RUNS_STORE(Z20, Z21, Z22, Z23, BX)
 
 	ADDQ $8, R10
 	CMPQ R10, R11
@@ -1079,45 +1086,11 @@ zq02Done:
 // AVX-512 (EVEX encodings of Y16–Y25). Every lane sees the instructions of
 // apply2RunsAVX in the same order (bit-identical results).
 TEXT ·apply2RunsAVXx2(SB), NOSPLIT, $0-48
-	MOVQ x+0(FP), DI
-	MOVQ lo+8(FP), CX
-	MOVQ hi+16(FP), DX
-	MOVQ from+24(FP), R10      // k
-	MOVQ to+32(FP), R11        // end
-	MOVQ c+40(FP), SI
-	MOVQ $1, AX
-	SHLXQ CX, AX, R14          // 2^lo
-	MOVQ $1, AX
-	SHLXQ DX, AX, R15          // 2^hi
-	MOVQ R14, R8
-	NEGQ R8                    // ^(2^lo − 1)
-	MOVQ R15, R9
-	NEGQ R9                    // ^(2^hi − 1)
-	SHLQ $4, R14               // byte offset of bit lo
-	SHLQ $4, R15               // byte offset of bit hi
-	LEAQ (R14)(R15*1), R12     // byte offset of both bits
-	CMPQ R10, R11
-	JGE  y2runsDone
+	RUNS_SETUP(y2runsDone)
 
 y2runsLoop:
-	MOVQ R10, AX
-	MOVQ AX, CX
-	ANDQ R8, CX
-	ADDQ CX, AX
-	MOVQ AX, CX
-	ANDQ R9, CX
-	ADDQ CX, AX
-	SHLQ $4, AX
-	ADDQ DI, AX                // &x[i] of group k
-	LEAQ 2(R10), BX
-	MOVQ BX, CX
-	ANDQ R8, CX
-	ADDQ CX, BX
-	MOVQ BX, CX
-	ANDQ R9, CX
-	ADDQ CX, BX
-	SHLQ $4, BX
-	ADDQ DI, BX                // &x[i] of group k+2
+	RUNS_BASE(0, AX)              // &x[i] of group k
+	RUNS_BASE(2, BX)              // &x[i] of group k+2
 
 	VMOVUPD (AX), Y0
 	VMOVUPD (AX)(R14*1), Y1
@@ -1177,14 +1150,8 @@ y2runsLoop:
 	VFMADD231PD Y25, Y7, Y11
 	VFMADD231PD Y25, Y19, Y23
 
-	VMOVUPD Y8, (AX)
-	VMOVUPD Y9, (AX)(R14*1)
-	VMOVUPD Y10, (AX)(R15*1)
-	VMOVUPD Y11, (AX)(R12*1)
-	VMOVUPD Y20, (BX)
-	VMOVUPD Y21, (BX)(R14*1)
-	VMOVUPD Y22, (BX)(R15*1)
-	VMOVUPD Y23, (BX)(R12*1)
+	RUNS_STORE(Y8, Y9, Y10, Y11, AX)
+	RUNS_STORE(Y20, Y21, Y22, Y23, BX)
 
 	ADDQ $4, R10
 	CMPQ R10, R11
@@ -1254,12 +1221,11 @@ yq02Done:
 	VZEROUPPER
 	RET
 
-// Z2_HALFSWAP, Z2_ROWS01 and Z2_ROWS23 are the arithmetic of
-// apply2RunsAVX512x2 and apply2Q0AVX512x2 once their eight input vectors are
-// in Z0–Z3 and Z12–Z15: the re/im swaps into Z4–Z7 and Z16–Z19, then the
-// multiply-adds of rows 0–1 (into Z8, Z9 and Z20, Z21) and 2–3 (Z10, Z11 and
-// Z22, Z23) with the 64-byte coefficient vectors at SI, in the same order as
-// those kernels, for the kernels below that gather their inputs by shuffles.
+// Z2_HALFSWAP and Z2_ROWS01 are the arithmetic of apply2Q0AVX512x2 once its
+// eight input vectors are in Z0–Z3 and Z12–Z15: the re/im swaps into Z4–Z7
+// and Z16–Z19, then the multiply-adds of rows 0–1 (into Z8, Z9 and Z20,
+// Z21) with the 64-byte coefficient vectors at SI, in the same order as that
+// kernel, for the kernels below that gather their inputs by shuffles.
 #define Z2_HALFSWAP \
 	VPERMILPD $0x55, Z0, Z4; \
 	VPERMILPD $0x55, Z1, Z5; \
@@ -1320,67 +1286,23 @@ yq02Done:
 	VFMADD231PD Z25, Z7, Z9; \
 	VFMADD231PD Z25, Z19, Z21
 
-#define Z2_ROWS23 \
-	VMOVUPD 1024(SI), Z24; \
-	VMULPD Z24, Z0, Z10; \
-	VMULPD Z24, Z12, Z22; \
-	VMOVUPD 1088(SI), Z25; \
-	VFMADD231PD Z25, Z4, Z10; \
-	VFMADD231PD Z25, Z16, Z22; \
-	VMOVUPD 1152(SI), Z24; \
-	VFMADD231PD Z24, Z1, Z10; \
-	VFMADD231PD Z24, Z13, Z22; \
-	VMOVUPD 1216(SI), Z25; \
-	VFMADD231PD Z25, Z5, Z10; \
-	VFMADD231PD Z25, Z17, Z22; \
-	VMOVUPD 1280(SI), Z24; \
-	VFMADD231PD Z24, Z2, Z10; \
-	VFMADD231PD Z24, Z14, Z22; \
-	VMOVUPD 1344(SI), Z25; \
-	VFMADD231PD Z25, Z6, Z10; \
-	VFMADD231PD Z25, Z18, Z22; \
-	VMOVUPD 1408(SI), Z24; \
-	VFMADD231PD Z24, Z3, Z10; \
-	VFMADD231PD Z24, Z15, Z22; \
-	VMOVUPD 1472(SI), Z25; \
-	VFMADD231PD Z25, Z7, Z10; \
-	VFMADD231PD Z25, Z19, Z22; \
-	VMOVUPD 1536(SI), Z24; \
-	VMULPD Z24, Z0, Z11; \
-	VMULPD Z24, Z12, Z23; \
-	VMOVUPD 1600(SI), Z25; \
-	VFMADD231PD Z25, Z4, Z11; \
-	VFMADD231PD Z25, Z16, Z23; \
-	VMOVUPD 1664(SI), Z24; \
-	VFMADD231PD Z24, Z1, Z11; \
-	VFMADD231PD Z24, Z13, Z23; \
-	VMOVUPD 1728(SI), Z25; \
-	VFMADD231PD Z25, Z5, Z11; \
-	VFMADD231PD Z25, Z17, Z23; \
-	VMOVUPD 1792(SI), Z24; \
-	VFMADD231PD Z24, Z2, Z11; \
-	VFMADD231PD Z24, Z14, Z23; \
-	VMOVUPD 1856(SI), Z25; \
-	VFMADD231PD Z25, Z6, Z11; \
-	VFMADD231PD Z25, Z18, Z23; \
-	VMOVUPD 1920(SI), Z24; \
-	VFMADD231PD Z24, Z3, Z11; \
-	VFMADD231PD Z24, Z15, Z23; \
-	VMOVUPD 1984(SI), Z25; \
-	VFMADD231PD Z25, Z7, Z11; \
-	VFMADD231PD Z25, Z19, Z23
-
-// Z2_COL is one column of the column-by-column form of Z2_ROWS01 and
-// Z2_ROWS23: the coefficient vectors of rows 0–3 at OFF0…OFF3 (SI) times
-// the input VA of the first half and VB of the second, by OP (VMULPD for
-// column 0, else VFMADD231PD), into the accumulators Z8–Z11 and Z20–Z23.
-// Consecutive instructions update different accumulators, so each chain
-// waits on an instruction eight places back instead of two.
-#define Z2_COL(OP, OFF0, OFF1, OFF2, OFF3, VA, VB) \
+// COL_COEFS loads the coefficient vectors of one column, rows 0–3 at
+// OFF0…OFF3 (SI), into Z24–Z27 for Z2_COL and X4_COL.
+#define COL_COEFS(OFF0, OFF1, OFF2, OFF3) \
 	VMOVUPD OFF0(SI), Z24; \
 	VMOVUPD OFF1(SI), Z25; \
 	VMOVUPD OFF2(SI), Z26; \
-	VMOVUPD OFF3(SI), Z27; \
+	VMOVUPD OFF3(SI), Z27
+
+// Z2_COL is one column of the four-row arithmetic of apply2RunsAVX512x2
+// taken column by column: the coefficient vectors of rows 0–3 at OFF0…OFF3
+// (SI) times the input VA of the first half and VB of the second, by OP
+// (VMULPD for column 0, else VFMADD231PD), into the accumulators Z8–Z11 and
+// Z20–Z23.
+// Consecutive instructions update different accumulators, so each chain
+// waits on an instruction eight places back instead of two.
+#define Z2_COL(OP, OFF0, OFF1, OFF2, OFF3, VA, VB) \
+	COL_COEFS(OFF0, OFF1, OFF2, OFF3); \
 	OP Z24, VA, Z8; \
 	OP Z24, VB, Z20; \
 	OP Z25, VA, Z9; \
@@ -1390,9 +1312,10 @@ yq02Done:
 	OP Z27, VA, Z11; \
 	OP Z27, VB, Z23
 
-// Z2_COLS is Z2_ROWS01 then Z2_ROWS23 column by column: every lane's chain
-// (a multiply, then seven multiply-adds over v0, v0s, v1, v1s, v2, v2s, v3,
-// v3s) is unchanged, so are the results, bit for bit.
+// Z2_COLS is the arithmetic of apply2RunsAVX512x2's rows 0–3 (inputs in
+// Z0–Z3 and Z12–Z15, their swaps from Z2_HALFSWAP) column by column: every
+// lane's chain (a multiply, then seven multiply-adds over v0, v0s, v1, v1s,
+// v2, v2s, v3, v3s) is unchanged, so are the results, bit for bit.
 #define Z2_COLS \
 	Z2_COL(VMULPD, 0, 512, 1024, 1536, Z0, Z12); \
 	Z2_COL(VFMADD231PD, 64, 576, 1088, 1600, Z4, Z16); \
@@ -1411,10 +1334,14 @@ yq02Done:
 // 64 bytes at p hold [v0(g), v0(g+1), v1(g), v1(g+1)] (at p + 2^hi the same
 // of v2, v3). VSHUFF64X2 gathers two such runs into the vectors of
 // apply2RunsAVX512 ([v0] of four groups, then [v1]), the arithmetic is that
-// of apply2RunsAVX512x2 (coefficients loaded once for both halves), and the
+// of apply2RunsAVX512x2 (coefficients loaded once for both halves) taken
+// column by column (Z2_COLS, eight independent chains in turn), and the
 // outputs are shuffled back. The shuffles only move whole amplitudes and
 // every lane sees the instructions of apply2RunsAVX in the same order, so the
-// results are bit-identical to it. c is the coef2z of splitRuns.
+// results are bit-identical to it. The column order took 1.08–1.10 times
+// less time than the row order (BenchmarkKernelAB's form, pairs (1, 2) and
+// (1, 5), one core of the 2-core Xeon Sapphire Rapids guest, 2026-12-03). c
+// is the coef2z of splitRuns.
 TEXT ·apply2R1AVX512x2(SB), NOSPLIT, $0-40
 	MOVQ x+0(FP), DI
 	MOVQ hi+8(FP), CX
@@ -1500,105 +1427,6 @@ zr12Done:
 	VZEROUPPER
 	RET
 
-// TEMPORARY: the row-order R1 kernel, for the A/B measurement only.
-// func apply2R1AVX512x2rows(x *complex128, hi uint, from, to int, c *coef2z)
-//
-// apply2RunsAVX for lo = 1 and hi ≥ 2 on eight groups per iteration, from
-// and to multiples of 8, in 512-bit vectors. With lo = 1 a run is two groups
-// long: the even group g and g+1 have base index p = insert(2g, hi), and the
-// 64 bytes at p hold [v0(g), v0(g+1), v1(g), v1(g+1)] (at p + 2^hi the same
-// of v2, v3). VSHUFF64X2 gathers two such runs into the vectors of
-// apply2RunsAVX512 ([v0] of four groups, then [v1]), the arithmetic is that
-// of apply2RunsAVX512x2 (coefficients loaded once for both halves), and the
-// outputs are shuffled back. The shuffles only move whole amplitudes and
-// every lane sees the instructions of apply2RunsAVX in the same order, so the
-// results are bit-identical to it. c is the coef2z of splitRuns.
-TEXT ·apply2R1AVX512x2rows(SB), NOSPLIT, $0-40
-	MOVQ x+0(FP), DI
-	MOVQ hi+8(FP), CX
-	MOVQ from+16(FP), R10      // k
-	MOVQ to+24(FP), R11        // end
-	MOVQ c+32(FP), SI
-	MOVQ $1, AX
-	SHLXQ CX, AX, R15          // 2^hi
-	MOVQ R15, R9
-	NEGQ R9                    // ^(2^hi − 1)
-	SHLQ $4, R15               // byte offset of bit hi
-	CMPQ R10, R11
-	JGE  zr12rDone
-
-zr12rLoop:
-	// p(g) = 2g + (2g &^ (2^hi − 1)) for g = k, k+2, k+4, k+6
-	LEAQ (R10)(R10*1), AX
-	MOVQ AX, CX
-	ANDQ R9, CX
-	ADDQ CX, AX
-	SHLQ $4, AX
-	ADDQ DI, AX                // groups k, k+1
-	LEAQ 4(R10)(R10*1), BX
-	MOVQ BX, CX
-	ANDQ R9, CX
-	ADDQ CX, BX
-	SHLQ $4, BX
-	ADDQ DI, BX                // groups k+2, k+3
-	LEAQ 8(R10)(R10*1), DX
-	MOVQ DX, CX
-	ANDQ R9, CX
-	ADDQ CX, DX
-	SHLQ $4, DX
-	ADDQ DI, DX                // groups k+4, k+5
-	LEAQ 12(R10)(R10*1), R13
-	MOVQ R13, CX
-	ANDQ R9, CX
-	ADDQ CX, R13
-	SHLQ $4, R13
-	ADDQ DI, R13               // groups k+6, k+7
-
-	VMOVUPD (AX), Z26
-	VMOVUPD (BX), Z27
-	VMOVUPD (AX)(R15*1), Z28
-	VMOVUPD (BX)(R15*1), Z29
-	VSHUFF64X2 $0x44, Z27, Z26, Z0   // v0 of k…k+3
-	VSHUFF64X2 $0xee, Z27, Z26, Z1   // v1
-	VSHUFF64X2 $0x44, Z29, Z28, Z2   // v2
-	VSHUFF64X2 $0xee, Z29, Z28, Z3   // v3
-	VMOVUPD (DX), Z26
-	VMOVUPD (R13), Z27
-	VMOVUPD (DX)(R15*1), Z28
-	VMOVUPD (R13)(R15*1), Z29
-	VSHUFF64X2 $0x44, Z27, Z26, Z12  // v0 of k+4…k+7
-	VSHUFF64X2 $0xee, Z27, Z26, Z13
-	VSHUFF64X2 $0x44, Z29, Z28, Z14
-	VSHUFF64X2 $0xee, Z29, Z28, Z15
-	Z2_HALFSWAP
-	Z2_ROWS01
-	Z2_ROWS23
-
-	VSHUFF64X2 $0x44, Z9, Z8, Z26
-	VSHUFF64X2 $0xee, Z9, Z8, Z27
-	VSHUFF64X2 $0x44, Z11, Z10, Z28
-	VSHUFF64X2 $0xee, Z11, Z10, Z29
-	VMOVUPD Z26, (AX)
-	VMOVUPD Z27, (BX)
-	VMOVUPD Z28, (AX)(R15*1)
-	VMOVUPD Z29, (BX)(R15*1)
-	VSHUFF64X2 $0x44, Z21, Z20, Z26
-	VSHUFF64X2 $0xee, Z21, Z20, Z27
-	VSHUFF64X2 $0x44, Z23, Z22, Z28
-	VSHUFF64X2 $0xee, Z23, Z22, Z29
-	VMOVUPD Z26, (DX)
-	VMOVUPD Z27, (R13)
-	VMOVUPD Z28, (DX)(R15*1)
-	VMOVUPD Z29, (R13)(R15*1)
-
-	ADDQ $8, R10
-	CMPQ R10, R11
-	JLT  zr12rLoop
-
-zr12rDone:
-	VZEROUPPER
-	RET
-
 // func apply2Q01AVX512x2(x *complex128, from, to int, c *coef2z)
 //
 // apply2Q0AVX for the pair (0, 1) on four groups per iteration, from and to
@@ -1676,10 +1504,7 @@ zq012Done:
 // Consecutive instructions update different accumulators, so each one's
 // chain waits on an instruction sixteen places back.
 #define X4_COL(OP, OFF0, OFF1, OFF2, OFF3, VA, VB, VC, VD) \
-	VMOVUPD OFF0(SI), Z24; \
-	VMOVUPD OFF1(SI), Z25; \
-	VMOVUPD OFF2(SI), Z26; \
-	VMOVUPD OFF3(SI), Z27; \
+	COL_COEFS(OFF0, OFF1, OFF2, OFF3); \
 	OP Z24, VA, Z0; \
 	OP Z24, VB, Z4; \
 	OP Z24, VC, Z8; \
@@ -1697,19 +1522,6 @@ zq012Done:
 	OP Z27, VC, Z11; \
 	OP Z27, VD, Z15
 
-// X4_INSERT sets R to &x[insert(insert(k+G, lo), hi)] (k in R10), as
-// apply2RunsAVX512x2 computes its base addresses.
-#define X4_INSERT(G, R) \
-	LEAQ G(R10), R; \
-	MOVQ R, CX; \
-	ANDQ R8, CX; \
-	ADDQ CX, R; \
-	MOVQ R, CX; \
-	ANDQ R9, CX; \
-	ADDQ CX, R; \
-	SHLQ $4, R; \
-	ADDQ DI, R
-
 // func apply2RunsAVX512x4(x *complex128, lo, hi uint, from, to int, c *coef2z)
 //
 // apply2RunsAVX512 on sixteen groups per iteration, four quarters
@@ -1723,32 +1535,24 @@ zq012Done:
 // Each lane's chain (a multiply, then seven multiply-adds in the column
 // order v0, v0s, v1, v1s, v2, v2s, v3, v3s) is that of apply2RunsAVX512, so
 // the results are bit-identical to it.
+//
+// apply2RunsAVX512x2 issues its chains row after row, two at a time, so the
+// out-of-order window must hold all four rows to overlap them; here an
+// iteration is bound by its ports instead: 128 multiply-adds and 16 swaps
+// (VPERMILPD) for 64 amplitudes, all on the two 512-bit ports (0 and 5),
+// 1.125 cycles per amplitude. On one core of the 2-core Xeon Sapphire
+// Rapids guest (2026-12-03, BenchmarkKernelAB, alternating every 16 gates)
+// it took 0.53–0.58 ns per gate per amplitude against 0.71–0.79 for
+// apply2RunsAVX512x2 (ratio 1.29–1.38 over the pairs (2, 3), (4, 5),
+// (4, 9), (8, 13), three runs each).
 TEXT ·apply2RunsAVX512x4(SB), NOSPLIT, $0-48
-	MOVQ x+0(FP), DI
-	MOVQ lo+8(FP), CX
-	MOVQ hi+16(FP), DX
-	MOVQ from+24(FP), R10      // k
-	MOVQ to+32(FP), R11        // end
-	MOVQ c+40(FP), SI
-	MOVQ $1, AX
-	SHLXQ CX, AX, R14          // 2^lo
-	MOVQ $1, AX
-	SHLXQ DX, AX, R15          // 2^hi
-	MOVQ R14, R8
-	NEGQ R8                    // ^(2^lo − 1)
-	MOVQ R15, R9
-	NEGQ R9                    // ^(2^hi − 1)
-	SHLQ $4, R14               // byte offset of bit lo
-	SHLQ $4, R15               // byte offset of bit hi
-	LEAQ (R14)(R15*1), R12     // byte offset of both bits
-	CMPQ R10, R11
-	JGE  z4runsDone
+	RUNS_SETUP(z4runsDone)
 
 z4runsLoop:
-	X4_INSERT(0, AX)
-	X4_INSERT(4, BX)
-	X4_INSERT(8, DX)
-	X4_INSERT(12, R13)
+	RUNS_BASE(0, AX)
+	RUNS_BASE(4, BX)
+	RUNS_BASE(8, DX)
+	RUNS_BASE(12, R13)
 
 	X4_LOADSWAP((AX), (BX), (DX), (R13))
 	X4_COL(VMULPD, 0, 512, 1024, 1536, Z16, Z18, Z20, Z22)
@@ -1763,22 +1567,10 @@ z4runsLoop:
 	X4_COL(VFMADD231PD, 384, 896, 1408, 1920, Z16, Z18, Z20, Z22)
 	X4_COL(VFMADD231PD, 448, 960, 1472, 1984, Z17, Z19, Z21, Z23)
 
-	VMOVUPD Z0, (AX)
-	VMOVUPD Z1, (AX)(R14*1)
-	VMOVUPD Z2, (AX)(R15*1)
-	VMOVUPD Z3, (AX)(R12*1)
-	VMOVUPD Z4, (BX)
-	VMOVUPD Z5, (BX)(R14*1)
-	VMOVUPD Z6, (BX)(R15*1)
-	VMOVUPD Z7, (BX)(R12*1)
-	VMOVUPD Z8, (DX)
-	VMOVUPD Z9, (DX)(R14*1)
-	VMOVUPD Z10, (DX)(R15*1)
-	VMOVUPD Z11, (DX)(R12*1)
-	VMOVUPD Z12, (R13)
-	VMOVUPD Z13, (R13)(R14*1)
-	VMOVUPD Z14, (R13)(R15*1)
-	VMOVUPD Z15, (R13)(R12*1)
+	RUNS_STORE(Z0, Z1, Z2, Z3, AX)
+	RUNS_STORE(Z4, Z5, Z6, Z7, BX)
+	RUNS_STORE(Z8, Z9, Z10, Z11, DX)
+	RUNS_STORE(Z12, Z13, Z14, Z15, R13)
 
 	ADDQ $16, R10
 	CMPQ R10, R11

@@ -72,3 +72,6 @@ var (
 	useAVX    = detectAVX()
 	useAVX512 = detectAVX512()
 )
+
+//go:noescape
+func apply2RunsAVX512x4(x *complex128, lo, hi uint, from, to int, c *coef2z)

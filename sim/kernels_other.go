@@ -18,6 +18,10 @@ func apply2RunsAVX512x2(x *complex128, lo, hi uint, from, to int, c *coef2z) {
 	panic("sim: no AVX kernels on this architecture")
 }
 
+func apply2RunsAVX512x4(x *complex128, lo, hi uint, from, to int, c *coef2z) {
+	panic("sim: no AVX kernels on this architecture")
+}
+
 func apply2Q0AVX(x *complex128, hi uint, from, to int, c *coef2) {
 	panic("sim: no AVX kernels on this architecture")
 }

@@ -8,6 +8,7 @@ import (
 	"math/cmplx"
 	"math/rand/v2"
 	"runtime"
+	"slices"
 	"testing"
 	"time"
 	"unsafe"
@@ -184,7 +185,8 @@ func TestKernels64PortableMatchVector(t *testing.T) {
 // TestX2BitIdentical: the x2 kernels (apply2RunsAVX512x2, apply2Q0AVX512x2,
 // apply2RunsAVXx2, apply2Q0AVXx2, and the shuffling apply2R1AVX512x2 and
 // apply2Q01AVX512x2 of the pairs (1, q) and (0, 1), with useX2Low on and
-// off) perform, lane by lane, the arithmetic of
+// off) and the column-by-column apply2RunsAVX512x4 (useX4 on and off)
+// perform, lane by lane, the arithmetic of
 // the one-iteration kernels they replace, and apply2RunsAVX512 and
 // apply2Q0AVX512 that of apply2RunsAVX and apply2Q0AVX, in the same order,
 // so the amplitudes
@@ -192,13 +194,13 @@ func TestKernels64PortableMatchVector(t *testing.T) {
 // one-gate kernel, and any change of operation order would show as a
 // last-bit difference on some of the 2^n random amplitudes). Every ordered
 // pair of positions on 5 to 8 qubits, and sub-ranges of groups that
-// start and end on multiples of 8, as parallelFor splits them, or only of 4
-// or 2, where the dispatch falls back to the narrower kernels.
+// start and end on multiples of 16 or 8, as parallelFor splits them, or only
+// of 4 or 2, where the dispatch falls back to the narrower kernels.
 func TestX2BitIdentical(t *testing.T) {
 	if !useAVX512 {
 		t.Skip("no AVX-512 on this processor: the x2 kernels never run")
 	}
-	defer func() { useX2, useX2Low = true, true }()
+	defer func() { useX2, useX2Low, useX4 = true, true, true }()
 	rng := rand.New(rand.NewPCG(71, 72))
 	for n := 5; n <= 8; n++ {
 		amp := make([]complex128, 1<<n)
@@ -216,7 +218,10 @@ func TestX2BitIdentical(t *testing.T) {
 					m[i] = complex(rng.NormFloat64(), rng.NormFloat64()) / 2
 				}
 				k := newKernel2(a, b, &m)
-				for _, r := range [][2]int{{0, groups}, {8, groups}, {0, groups - 8}, {4, groups - 4}, {2, groups - 2}} {
+				for _, r := range [][2]int{{0, groups}, {16, groups}, {0, groups - 16}, {8, groups}, {0, groups - 8}, {4, groups - 4}, {2, groups - 2}} {
+					if r[0] >= r[1] {
+						continue
+					}
 					want := append([]complex128(nil), amp...)
 					useX2 = false
 					apply2Kernel(want, &k, r[0], r[1])
@@ -237,10 +242,16 @@ func TestX2BitIdentical(t *testing.T) {
 					useX2Low = false
 					apply2Kernel(low, &k, r[0], r[1])
 					useX2Low = true
+					// The eight-group runs kernel that apply2RunsAVX512x4
+					// replaces on ranges aligned to sixteen groups.
+					two := append([]complex128(nil), amp...)
+					useX4 = false
+					apply2Kernel(two, &k, r[0], r[1])
+					useX4 = true
 					for i := range got {
-						if got[i] != want[i] || alt[i] != want[i] || low[i] != want[i] {
-							t.Fatalf("n=%d gate (%d,%d) groups %v: amplitude %d is %v (x2), %v (x2, 256-bit low pairs), %v (512), %v (256)",
-								n, a, b, r, i, got[i], low[i], want[i], alt[i])
+						if got[i] != want[i] || alt[i] != want[i] || low[i] != want[i] || two[i] != want[i] {
+							t.Fatalf("n=%d gate (%d,%d) groups %v: amplitude %d is %v (x2), %v (x2, 256-bit low pairs), %v (x2, eight-group runs), %v (512), %v (256)",
+								n, a, b, r, i, got[i], low[i], two[i], want[i], alt[i])
 						}
 					}
 				}
@@ -357,10 +368,7 @@ func BenchmarkBlockPass(b *testing.B) {
 		}
 	}
 	p := newPass(k, allMask(k), ops)
-	x := make([]complex128, 1<<k)
-	for i := range x {
-		x[i] = complex(rng.NormFloat64(), rng.NormFloat64()) / 128
-	}
+	x := benchBlock(rng, k)
 	defer func() { useX2 = true }()
 	kops := p.kernels(false)
 	for _, mode := range []struct {
@@ -380,19 +388,19 @@ func BenchmarkBlockPass(b *testing.B) {
 // BenchmarkFusedTargets measures the fused-brickwork targets of
 // scripts/bench (fused_speedup_line:26, fused_speedup_grid:5x5: 20 layers of
 // the layered schedule with Haar gates, the target's seed) in one run,
-// alternating six timings per round so that load from other processes
-// hits them alike: Run with the x2 kernels (fused) and with the
-// one-iteration kernels they replace (fused-old), and Apply2 gate by gate
-// with each (one-by-one, one-by-one-old), and both with the 256-bit x2
-// kernels for the pairs (1, q) and (0, 1) (fused-256low, one-by-one-256low,
-// useX2Low off: the kernels before apply2R1AVX512x2 and apply2Q01AVX512x2); best of
-// -rounds. It reports ms per gate, the speed-ups one-by-one/fused (the
-// target, ≥ 2) and fused-old/fused, and the CPU time per gate of each
-// (cpu-ms/gate, both workers' time added). A 26-qubit state takes 1 GiB;
-// run it with -benchtime 1x.
+// alternating five timings per round so that load from other processes
+// hits them alike: Run with the kernels in use (fused) and with the
+// eight-group runs kernel that apply2RunsAVX512x4 replaces (fused-x2, useX4
+// off), Apply2 gate by gate with each (one-by-one, one-by-one-x2), and the
+// fused passes' data movement alone (moves: each pass's blocks gathered and
+// scattered back as Run does, with no gates applied); best of -rounds. It
+// reports ms per gate (moves: the passes' time over the circuit's gates),
+// the speed-ups one-by-one/fused (the target, ≥ 2) and fused-x2/fused, and
+// the CPU time per gate of each (cpu-ms/gate, both workers' time added). A
+// 26-qubit state takes 1 GiB; run it with -benchtime 1x.
 func BenchmarkFusedTargets(b *testing.B) {
 	workers := runtime.NumCPU()
-	defer func() { useX2, useX2Low = true, true }()
+	defer func() { useX4 = true }()
 	for _, spec := range []string{"line:26", "grid:5x5"} {
 		b.Run(spec, func(b *testing.B) {
 			g, err := circuits.ParseGraph(spec)
@@ -418,11 +426,26 @@ func BenchmarkFusedTargets(b *testing.B) {
 			if err != nil {
 				b.Fatal(err)
 			}
+			// The passes Run makes of ops, for the data movement alone.
+			passes := planPasses(g.Qubits, ops, passQubits(g.Qubits))
+			bufs := make([][]complex128, workers)
+			moves := func() {
+				for i := range passes {
+					if p := &passes[i]; len(p.ops) > 0 {
+						runPass(g.Qubits, s.Amp, p, nil, bufs, nil)
+					}
+				}
+			}
+			const (
+				run = iota
+				oneByOne
+				move
+			)
 			kinds := []struct {
-				name              string
-				x2, oneByOne, low bool
-			}{{"fused", true, false, true}, {"fused-old", false, false, true}, {"one-by-one", true, true, true}, {"one-by-one-old", false, true, true},
-				{"fused-256low", true, false, false}, {"one-by-one-256low", true, true, false}}
+				name string
+				x4   bool
+				what int
+			}{{"fused", true, run}, {"fused-x2", false, run}, {"one-by-one", true, oneByOne}, {"one-by-one-x2", false, oneByOne}, {"moves", true, move}}
 			best, bestCPU := make([]float64, len(kinds)), make([]float64, len(kinds))
 			for i := range best {
 				best[i], bestCPU[i] = math.Inf(1), math.Inf(1)
@@ -430,19 +453,22 @@ func BenchmarkFusedTargets(b *testing.B) {
 			for b.Loop() {
 				for r := range *fusedRounds {
 					for j := range kinds {
-						kk := kinds[(j+r)%len(kinds)] // rotate which goes first
-						useX2, useX2Low = kk.x2, kk.low
+						idx := (j + r) % len(kinds) // rotate which goes first
+						kk := kinds[idx]
+						useX4 = kk.x4
 						start, cpu0 := time.Now(), cpuSeconds()
-						if kk.oneByOne {
+						switch kk.what {
+						case oneByOne:
 							for i := range ops {
 								s.Apply2(ops[i].A, ops[i].B, &ops[i].M, workers)
 							}
-						} else {
+						case run:
 							_ = s.Run(context.Background(), ops, workers)
+						default:
+							moves()
 						}
 						t := time.Since(start).Seconds() * 1e3 / float64(len(ops))
 						c := (cpuSeconds() - cpu0) * 1e3 / float64(len(ops))
-						idx := (j + r) % len(kinds)
 						best[idx] = min(best[idx], t)
 						bestCPU[idx] = min(bestCPU[idx], c)
 					}
@@ -453,10 +479,9 @@ func BenchmarkFusedTargets(b *testing.B) {
 				b.ReportMetric(bestCPU[i], k.name+"-cpu-ms/gate")
 			}
 			b.ReportMetric(best[2]/best[0], "target-speedup")
-			b.ReportMetric(best[3]/best[1], "old-target-speedup")
-			b.ReportMetric(best[1]/best[0], "fused-old/fused")
-			b.ReportMetric(best[5]/best[4], "256low-target-speedup")
-			b.ReportMetric(best[4]/best[0], "fused-256low/fused")
+			b.ReportMetric(best[3]/best[1], "x2-target-speedup")
+			b.ReportMetric(best[1]/best[0], "fused-x2/fused")
+			b.ReportMetric(best[4]/best[0], "moves/fused")
 		})
 	}
 }
@@ -465,32 +490,35 @@ var fusedRounds = flag.Int("rounds", 3, "rounds of BenchmarkFusedTargets")
 
 // BenchmarkKernelClass times one Haar gate per qubit-pair class on a block
 // of 2^BlockQubits amplitudes that stays in cache (one core, apply2Kernel
-// as a fused pass calls it), with the x2 kernels, with the 256-bit x2
-// kernels that the pairs with qubit 1 took before (x2-256, useX2Low off) and
-// with the one-iteration ones (one): ns/amp is the time per gate per amplitude. The classes are
-// those apply2Kernel tells apart: the pairs (0, 1), (0, q ≥ 2), (1, 2),
-// (1, q ≥ 3) and two runs pairs (lo ≥ 2).
+// as a fused pass calls it), with the kernels in use (x2: for the runs
+// pairs apply2RunsAVX512x4), with the eight-group runs kernel it replaces
+// (x2-8, useX4 off), with the 256-bit x2 kernels that the pairs with qubit 1
+// took before (x2-256, useX2Low off) and with the one-iteration ones (one):
+// ns/amp is the time per gate per amplitude. The classes are those
+// apply2Kernel tells apart: the pairs (0, 1), (0, q ≥ 2), (1, 2), (1, q ≥ 3)
+// and two runs pairs (lo ≥ 2). -count repeats the modes in turn, so the
+// runs of x2 and x2-8 alternate.
 func BenchmarkKernelClass(b *testing.B) {
 	const k = BlockQubits
 	rng := rand.New(rand.NewPCG(83, 84))
-	x := make([]complex128, 1<<k)
-	for i := range x {
-		x[i] = complex(rng.NormFloat64(), rng.NormFloat64()) / 128
-	}
-	defer func() { useX2, useX2Low = true, true }()
+	x := benchBlock(rng, k)
+	defer func() { useX2, useX2Low, useX4 = true, true, true }()
 	for _, pair := range [][2]int{{0, 1}, {0, 5}, {1, 2}, {1, 5}, {2, 3}, {4, 9}} {
 		var m [16]complex128
 		circuits.HaarUnitary(rng, 4, m[:])
 		kn := newKernel2(pair[0], pair[1], &m)
 		for _, mode := range []struct {
-			name      string
-			x2, x2Low bool
-		}{{"x2", true, true}, {"x2-256", true, false}, {"one", false, false}} {
+			name          string
+			x2, x2Low, x4 bool
+		}{{"x2", true, true, true}, {"x2-8", true, true, false}, {"x2-256", true, false, true}, {"one", false, false, false}} {
 			if mode.name == "x2-256" && pair[0] != 1 && pair != [2]int{0, 1} {
 				continue // the same kernel as x2
 			}
+			if mode.name == "x2-8" && pair[0] < 2 {
+				continue // the same kernel as x2
+			}
 			b.Run(fmt.Sprintf("%d-%d/%s", pair[0], pair[1], mode.name), func(b *testing.B) {
-				useX2, useX2Low = mode.x2, mode.x2Low
+				useX2, useX2Low, useX4 = mode.x2, mode.x2Low, mode.x4
 				for b.Loop() {
 					apply2Kernel(x, &kn, 0, 1<<(k-2))
 				}
@@ -498,4 +526,78 @@ func BenchmarkKernelClass(b *testing.B) {
 			})
 		}
 	}
+}
+
+// BenchmarkKernelAB compares, for a few runs pairs, the kernel apply2Kernel
+// takes (new: apply2RunsAVX512x4) with the one it replaces (old:
+// apply2RunsAVX512x2) on one block of 2^BlockQubits amplitudes in cache,
+// alternating them every fraction of a millisecond within one run: each
+// round times reps gates with one kernel, then reps with the other (which
+// goes first alternates between rounds), so that other load on the shared
+// machine hits both alike. It reports the median over rounds of each one's
+// ns per gate per amplitude and of the ratio old/new of the same round. Pin
+// it to one core (taskset).
+func BenchmarkKernelAB(b *testing.B) {
+	const k = BlockQubits
+	rng := rand.New(rand.NewPCG(85, 86))
+	x := benchBlock(rng, k)
+	groups := 1 << (k - 2)
+	for _, pair := range [][2]int{{2, 3}, {4, 5}, {4, 9}, {8, 13}} {
+		var m [16]complex128
+		circuits.HaarUnitary(rng, 4, m[:])
+		kn := newKernel2(pair[0], pair[1], &m)
+		old := func() {
+			apply2RunsAVX512x2(unsafe.SliceData(x), uint(kn.lo), uint(kn.hi), 0, groups, &kn.cz)
+		}
+		b.Run(fmt.Sprintf("%d-%d", pair[0], pair[1]), func(b *testing.B) {
+			const reps = 16
+			var tNew, tOld, ratio []float64
+			timed := func(isNew bool) float64 {
+				start := time.Now()
+				for range reps {
+					if isNew {
+						apply2Kernel(x, &kn, 0, groups)
+					} else {
+						old()
+					}
+				}
+				return float64(time.Since(start).Nanoseconds()) / reps / float64(len(x))
+			}
+			for r := 0; b.Loop(); r++ {
+				var a, c float64
+				if r%2 == 0 {
+					a = timed(true)
+					c = timed(false)
+				} else {
+					c = timed(false)
+					a = timed(true)
+				}
+				tNew, tOld, ratio = append(tNew, a), append(tOld, c), append(ratio, c/a)
+			}
+			b.ReportMetric(median(tNew), "new-ns/amp")
+			b.ReportMetric(median(tOld), "old-ns/amp")
+			b.ReportMetric(median(ratio), "old/new")
+		})
+	}
+}
+
+// benchBlock returns 2^k random amplitudes of magnitude about 1/128 (no
+// subnormal values arise in a few thousand gates on them) for the kernel
+// benchmarks.
+func benchBlock(rng *rand.Rand, k int) []complex128 {
+	x := make([]complex128, 1<<k)
+	for i := range x {
+		x[i] = complex(rng.NormFloat64(), rng.NormFloat64()) / 128
+	}
+	return x
+}
+
+// median returns the median of v (v is reordered).
+func median(v []float64) float64 {
+	slices.Sort(v)
+	n := len(v)
+	if n%2 == 1 {
+		return v[n/2]
+	}
+	return (v[n/2-1] + v[n/2]) / 2
 }

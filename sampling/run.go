@@ -486,6 +486,9 @@ func Run(ctx context.Context, c *Config, emit func(*Result) error) (done []int, 
 	return done, ctx.Err()
 }
 
+// replayOff (TEMPORARY, for A/B benchmarks) builds the table per trajectory.
+var replayOff bool
+
 // worker holds the buffers of one goroutine.
 type worker struct {
 	c            *Config
@@ -494,6 +497,8 @@ type worker struct {
 	ideal, noisy []float64
 	idealTable   Alias
 	noisyTable   Alias
+	// replay draws a trajectory's few shots without building noisyTable.
+	replay aliasReplay
 	// saved[j] is the ideal state after the first at[j] gates of the
 	// current instance (checkpointsFor); buffers grow up to
 	// Config.savedStates.
@@ -769,8 +774,14 @@ func (w *worker) instance(ctx context.Context, id int) (r *Result, ok bool) {
 					}
 				}
 				w.noisy = w.st.Probabilities(w.noisy, w.workers)
-				w.noisyTable.Reset(w.noisy)
-				table = &w.noisyTable
+				if replayOff {
+					w.noisyTable.Reset(w.noisy)
+					out = DrawShots(out, shots, &w.noisyTable, c.Qubits, k, c.Noise)
+					continue
+				}
+				// The same shots as DrawShots from the table of w.noisy.
+				out = w.replay.drawShots(out, shots, w.noisy, &w.noisyTable, c.Qubits, k, c.Noise)
+				continue
 			}
 			out = DrawShots(out, shots, table, c.Qubits, k, c.Noise)
 		}

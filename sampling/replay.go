@@ -1,0 +1,324 @@
+package sampling
+
+import (
+	"math"
+	"math/bits"
+	"math/rand/v2"
+)
+
+// replayMaxShots is the largest number of shots aliasReplay draws without an
+// alias table. The replay stops at the lowest column asked for, so with k
+// columns it walks about k/(k+1) of the weights whatever k is, while each
+// column it resolves costs a look-up among the k: past a few dozen the table
+// (Reset, then O(1) draws) is as cheap and simpler.
+const replayMaxShots = 64
+
+// aliasReplay draws a few outcomes exactly as an Alias of the same weights
+// would, without building the table: the trajectories of a noisy run draw
+// about ten shots each from a fresh distribution over 2^n outcomes, where
+// Alias.Reset (a validating pass, a pass writing three arrays and the pairing
+// of Vose's method over them) cost more than the draws by far.
+//
+// An Alias draw takes a column i and a threshold u and gives i when u is
+// below the column's final probability, else the column's alias. Vose's
+// pairing in Alias.Reset visits the columns in a fixed order, the small ones
+// (scaled weight p < 1) from the highest index down, a large one (p ≥ 1)
+// going from the large stack, highest index first, to the top of the small
+// stack as soon as its residual falls below 1; each visit is one subtraction
+// on the residual of the current large column. aliasReplay repeats the same
+// subtractions in the same order on the same values, so every residual, and
+// so every column's final probability and alias, is the same bit for bit;
+// it only skips the stores, and stops when the columns asked for are known.
+// A small column whose threshold lies below its scaled weight gives itself
+// whatever the pairing does (a small column keeps its weight, or 1 when it is
+// left over), so it needs no replay at all.
+//
+// The zero aliasReplay is ready to use; it keeps its buffers between calls
+// and must not be used concurrently.
+type aliasReplay struct {
+	want  []uint64   // bit set of the columns still to resolve
+	small []uint64   // bit set of the small columns (pair)
+	cols  []uint32   // column of each alias draw
+	us    []float64  // threshold of each alias draw
+	drawn []uint64   // outcome of each alias draw
+	known []resolved // the resolved columns, in the order of resolution
+	// Per shot: whether it is an alias draw (its column in cols) or
+	// uniform (its outcome in direct), and its readout uniforms.
+	direct  []uint64
+	isAlias []bool
+	flips   []float64
+}
+
+// resolved is the final probability and alias of one column of the table.
+type resolved struct {
+	col   uint32
+	prob  float64
+	alias uint32
+}
+
+// readoutFixed reports whether nz's readout draws the same number of
+// uniforms whatever the outcome: every qubit has both flip rates zero or
+// both non-zero (Readout draws for a bit 0 only with Readout01 > 0, for a
+// bit 1 only with Readout10 > 0). It returns the number of uniforms per
+// shot.
+func readoutFixed(nz Noise, qubits int) (perShot int, ok bool) {
+	if nz.noReadout() {
+		return 0, true
+	}
+	for q := range qubits {
+		p01, p10 := nz.readoutRates(q)
+		if (p01 > 0) != (p10 > 0) {
+			return 0, false
+		}
+		perShot += b2i(p01 > 0)
+	}
+	return perShot, true
+}
+
+// drawShots appends to dst the shots DrawShots(dst, rng, a, qubits, shots,
+// nz) appends with a the alias table of the weights w, the same outcomes
+// from the same draws of rng, leaving a untouched when it can do without
+// it. It replays the table (resolve) when shots ≤ replayMaxShots and the
+// readout draws as many uniforms whatever the outcome (readoutFixed), so
+// that every draw of rng can be taken before any outcome is known: a
+// uniform column and threshold, or a uniform outcome, then the readout
+// uniforms. Otherwise, or for weights that Alias.Reset refuses, it resets a
+// to w and calls DrawShots (which panics as it would).
+func (r *aliasReplay) drawShots(dst []uint64, rng *rand.Rand, w []float64, a *Alias, qubits, shots int, nz Noise) []uint64 {
+	perShot, fixed := readoutFixed(nz, qubits)
+	if shots > replayMaxShots || !fixed || qubits < 1 || qubits > 32 || len(w) != 1<<qubits {
+		a.Reset(w)
+		return DrawShots(dst, rng, a, qubits, shots, nz)
+	}
+	nz.check()
+	dim := uint64(1) << qubits
+	f := nz.fidelity()
+	r.cols, r.us, r.direct, r.isAlias, r.flips = r.cols[:0], r.us[:0], r.direct[:0], r.isAlias[:0], r.flips[:0]
+	for range shots {
+		if f == 1 || rng.Float64() < f {
+			// Alias.Draw: a column, then a threshold.
+			r.cols = append(r.cols, uint32(rng.Uint64N(dim)))
+			r.us = append(r.us, rng.Float64())
+			r.isAlias = append(r.isAlias, true)
+			r.direct = append(r.direct, 0)
+		} else {
+			r.isAlias = append(r.isAlias, false)
+			r.direct = append(r.direct, rng.Uint64N(dim))
+		}
+		for range perShot {
+			r.flips = append(r.flips, rng.Float64())
+		}
+	}
+	first := len(dst)
+	dst = append(dst, r.direct...)
+	out := dst[first:]
+	if len(r.cols) > 0 {
+		r.drawn = r.drawn[:0]
+		if !r.resolve(w, r.cols, r.us, &r.drawn) {
+			a.Reset(w) // panics: resolve refuses exactly what Reset refuses
+		}
+		j := 0
+		for k := range out {
+			if r.isAlias[k] {
+				out[k] = r.drawn[j]
+				j++
+			}
+		}
+	}
+	if perShot > 0 {
+		flips := r.flips
+		for k, x := range out {
+			for q := range qubits {
+				p01, p10 := nz.readoutRates(q)
+				if p01 == 0 { // then p10 == 0 too (readoutFixed)
+					continue
+				}
+				// As Readout, with the uniform drawn for this qubit.
+				u, bit := flips[0], uint64(1)<<q
+				flips = flips[1:]
+				if x&bit == 0 {
+					if u < p01 {
+						x |= bit
+					}
+				} else if u < p10 {
+					x &^= bit
+				}
+			}
+			out[k] = x
+		}
+	}
+	return dst
+}
+
+// resolve appends to *out, for each j, the outcome that Draw on
+// NewAlias(w) gives when it takes the column cols[j] and the threshold
+// us[j], and returns true. It returns false, appending nothing, for weights
+// that Alias.Reset might refuse (it refuses a weight negative, NaN or
+// infinite, or a total that is not positive and finite; resolve also
+// refuses a weight −0, which no probability is, to test one sign bit): the
+// caller then builds the table. The cost is one pass over w for the total,
+// the same sequential sum as Reset's, one for the bit set of the small
+// columns, and the pairing down to the lowest column that its threshold does
+// not settle.
+func (r *aliasReplay) resolve(w []float64, cols []uint32, us []float64, out *[]uint64) bool {
+	n := len(w)
+	if n == 0 || n > MaxAliasOutcomes {
+		return false
+	}
+	// Reset's sum, in the same order. A NaN or +Inf weight makes the sum
+	// NaN or +Inf; a negative weight shows in the sign bits.
+	var sum float64
+	var signs uint64
+	for _, v := range w {
+		sum += v
+		signs |= math.Float64bits(v)
+	}
+	if signs>>63 != 0 || !(sum > 0) || math.IsInf(sum, 1) {
+		return false
+	}
+	scale := float64(n) / sum
+	words := (n + 63) / 64
+	if cap(r.want) < words {
+		r.want = make([]uint64, words)
+		r.small = make([]uint64, words)
+	}
+	want := r.want[:words]
+	pending := 0
+	for j, c := range cols {
+		if p := w[c] * scale; p < 1 && us[j] < p {
+			continue // a small column below its weight gives itself
+		}
+		if want[c/64]&(1<<(c%64)) == 0 {
+			want[c/64] |= 1 << (c % 64)
+			pending++
+		}
+	}
+	r.known = r.known[:0]
+	if pending > 0 {
+		r.pair(w, scale, want, pending)
+	}
+	heaviest := -1
+	for j, c := range cols {
+		x := uint64(c)
+		if p := w[c] * scale; !(p < 1 && us[j] < p) {
+			var left bool
+			if x, left = r.outcome(c, us[j]); left && w[c] == 0 {
+				// Reset's finish: a left-over column of weight zero gives
+				// the first heaviest outcome.
+				if heaviest < 0 {
+					heaviest = 0
+					for i, v := range w {
+						if v > w[heaviest] {
+							heaviest = i
+						}
+					}
+				}
+				x = uint64(heaviest)
+			}
+		}
+		*out = append(*out, x)
+	}
+	for _, c := range cols { // every bit set is one of theirs
+		want[c/64] = 0
+	}
+	return true
+}
+
+// outcome returns the draw of column c with threshold u from the columns
+// that pair finished; for a column it did not reach, left over with
+// probability 1 (Reset's finish, unless its weight is zero), it returns c
+// and left true.
+func (r *aliasReplay) outcome(c uint32, u float64) (x uint64, left bool) {
+	for _, k := range r.known {
+		if k.col == c {
+			if u < k.prob {
+				return uint64(c), false
+			}
+			return uint64(k.alias), false
+		}
+	}
+	return uint64(c), true
+}
+
+// validBits returns the bit set of the columns that exist in word k.
+func validBits(n, k int) uint64 {
+	if rest := n - 64*k; rest < 64 {
+		return 1<<rest - 1
+	}
+	return ^uint64(0)
+}
+
+// pair runs the pairing of Alias.Reset on the weights w scaled by scale,
+// recording in r.known the final probability and alias of each column
+// marked in want as it is finished, until the pending marked columns are all
+// finished or the pairing ends (the rest are left over).
+func (r *aliasReplay) pair(w []float64, scale float64, want []uint64, pending int) {
+	n := len(w)
+	words := len(want)
+	small := r.small[:words]
+	for k := range small {
+		lo := 64 * k
+		var m uint64
+		for b, v := range w[lo:min(lo+64, n)] {
+			m |= (math.Float64bits(v*scale-1) >> 63) << (b & 63)
+		}
+		small[k] = m
+	}
+	// Two iterators from the top down: the small columns (sw, sm: the word
+	// and its bits still to visit) and the large ones (lw, lm).
+	sw, lw := words, words
+	var sm, lm uint64
+	nextLarge := func() int {
+		for lm == 0 {
+			if lw == 0 {
+				return -1
+			}
+			lw--
+			lm = validBits(n, lw) &^ small[lw]
+		}
+		b := 63 - bits.LeadingZeros64(lm)
+		lm &^= 1 << b
+		return 64*lw + b
+	}
+	l := nextLarge()
+	if l < 0 {
+		return // no large column: every column is left over
+	}
+	res := w[l] * scale // the residual of the current large column l
+	for {
+		for sm == 0 {
+			if sw == 0 {
+				return // no small column left: the large ones are left over
+			}
+			sw--
+			sm = small[sw]
+		}
+		b := 63 - bits.LeadingZeros64(sm)
+		sm &^= 1 << b
+		s := 64*sw + b
+		ps := w[s] * scale
+		if want[sw]&(1<<b) != 0 {
+			r.known = append(r.known, resolved{uint32(s), ps, uint32(l)})
+			if pending--; pending == 0 {
+				return
+			}
+		}
+		res -= 1 - ps
+		for res < 1 {
+			// l moves to the top of the small stack and is finished next,
+			// against the next large column.
+			next := nextLarge()
+			if next < 0 {
+				return // l is left over
+			}
+			if want[l/64]&(1<<(l%64)) != 0 {
+				r.known = append(r.known, resolved{uint32(l), res, uint32(next)})
+				if pending--; pending == 0 {
+					return
+				}
+			}
+			res = w[next]*scale - (1 - res)
+			l = next
+		}
+	}
+}

@@ -4,6 +4,7 @@ import (
 	"math"
 	"math/bits"
 	"math/rand/v2"
+	"sort"
 )
 
 // replayMaxShots is the largest number of shots aliasReplay draws without an
@@ -36,12 +37,15 @@ const replayMaxShots = 64
 // The zero aliasReplay is ready to use; it keeps its buffers between calls
 // and must not be used concurrently.
 type aliasReplay struct {
-	want  []uint64   // bit set of the columns still to resolve
-	small []uint64   // bit set of the small columns (pair)
-	cols  []uint32   // column of each alias draw
-	us    []float64  // threshold of each alias draw
-	drawn []uint64   // outcome of each alias draw
-	known []resolved // the resolved columns, in the order of resolution
+	want  []uint64 // bit set of the columns still to resolve
+	small []uint64 // bit set of the small columns (pair, estimate)
+	// dblk[k], eblk[k]: the deficits and excesses of the blocks of 64
+	// columns from k up (estimate).
+	dblk, eblk []float64
+	cols       []uint32   // column of each alias draw
+	us         []float64  // threshold of each alias draw
+	drawn      []uint64   // outcome of each alias draw
+	known      []resolved // the resolved columns, in the order of resolution
 	// Per shot: whether it is an alias draw (its column in cols) or
 	// uniform (its outcome in direct), and its readout uniforms.
 	direct  []uint64
@@ -167,11 +171,14 @@ func (r *aliasReplay) resolve(w []float64, cols []uint32, us []float64, out *[]u
 	}
 	// Reset's sum, in the same order. A NaN or +Inf weight makes the sum
 	// NaN or +Inf; a negative weight shows in the sign bits.
-	var sum float64
+	var sum, heaviest float64
 	var signs uint64
 	for _, v := range w {
 		sum += v
 		signs |= math.Float64bits(v)
+		if v > heaviest {
+			heaviest = v
+		}
 	}
 	if signs>>63 != 0 || !(sum > 0) || math.IsInf(sum, 1) {
 		return false
@@ -193,11 +200,17 @@ func (r *aliasReplay) resolve(w []float64, cols []uint32, us []float64, out *[]u
 			pending++
 		}
 	}
+	if pending > 0 && r.estimate(w, scale, heaviest*scale, cols, us, out) {
+		for _, c := range cols {
+			want[c/64] = 0
+		}
+		return true
+	}
 	r.known = r.known[:0]
 	if pending > 0 {
 		r.pair(w, scale, want, pending)
 	}
-	heaviest := -1
+	first := -1 // the first heaviest outcome
 	for j, c := range cols {
 		x := uint64(c)
 		if p := w[c] * scale; !(p < 1 && us[j] < p) {
@@ -205,15 +218,15 @@ func (r *aliasReplay) resolve(w []float64, cols []uint32, us []float64, out *[]u
 			if x, left = r.outcome(c, us[j]); left && w[c] == 0 {
 				// Reset's finish: a left-over column of weight zero gives
 				// the first heaviest outcome.
-				if heaviest < 0 {
-					heaviest = 0
+				if first < 0 {
+					first = 0
 					for i, v := range w {
-						if v > w[heaviest] {
-							heaviest = i
+						if v > w[first] {
+							first = i
 						}
 					}
 				}
-				x = uint64(heaviest)
+				x = uint64(first)
 			}
 		}
 		*out = append(*out, x)
@@ -321,4 +334,215 @@ func (r *aliasReplay) pair(w []float64, scale float64, want []uint64, pending in
 			l = next
 		}
 	}
+}
+
+// estimate appends the outcomes of the draws (cols[j], us[j]) as resolve
+// does and returns true when it can prove them from sums, without the
+// pairing's sequential chain; it returns false, appending nothing, when a
+// comparison falls too close to call, and resolve then replays the pairing.
+//
+// With the scaled weights p_i in the order of the pairing, small columns
+// s_1, s_2, … (deficits d = 1 − p) and large ones l_1, l_2, … (excesses
+// e = p − 1), let D_k = d_{s_1} + … + d_{s_k} and E_m = e_{l_1} + … + e_{l_m}.
+// In exact arithmetic the residual of l_m after the small pops up to s_k is
+// p_{l_m} − (D_k − E_{m−1}) = 1 + E_m − D_k: so l_m is the current large
+// column when s_k is popped for the least m with E_m ≥ D_{k−1} (that is its
+// alias), and l_m leaves the large stack, with final probability
+// 1 − (D_k − E_m) and alias l_{m+1}, after the first small pop with
+// D_k > E_m. The pairing computes the same residuals in floating point, one
+// subtraction at a time; each rounding moves a residual by at most u·(|1−x|
+// + |result|), u = 2^−53, and the roundings only add up (a subtraction
+// passes on the error of its operands unchanged), so after its at most 2n
+// steps on values below pmax+2 a residual is within 4n·u·(pmax+2) of its
+// exact value; the sums here, over blocks of 64 then across blocks, are
+// within n·u·(pmax+2)·(blocks+140) of theirs (the classic bound of recursive
+// summation, at most N·u times the sum of the magnitudes, on each level).
+// Every comparison that decides an outcome (E_{m−1} < D_{k−1} ≤ E_m,
+// D_{k−1} ≤ E_m < D_k and the threshold against the final probability) is
+// made with a margin of twice the sum of both bounds, so the pairing's own
+// comparisons, on values within that margin of these, come out the same. A
+// small column whose threshold is below its weight gives itself (resolve's
+// rule); a comparison within the margin, or an outcome at the end of the
+// pairing (left-over columns, which rounding decides), returns false.
+func (r *aliasReplay) estimate(w []float64, scale, pmax float64, cols []uint32, us []float64, out *[]uint64) bool {
+	n := len(w)
+	words := (n + 63) / 64
+	if cap(r.dblk) < words+1 {
+		r.dblk = make([]float64, words+1)
+		r.eblk = make([]float64, words+1)
+	}
+	small := r.small[:words]
+	// dblk[k], eblk[k]: the deficits and excesses of blocks k and above,
+	// so that those of the blocks above k are dblk[k+1], eblk[k+1].
+	dblk, eblk := r.dblk[:words+1], r.eblk[:words+1]
+	dblk[words], eblk[words] = 0, 0
+	for k := words - 1; k >= 0; k-- {
+		lo := 64 * k
+		ws := w[lo:min(lo+64, n)]
+		var m uint64
+		// Four lanes of deficits and excesses, so that the additions do
+		// not wait on each other; x·1 = x and x·0 = 0 exactly.
+		var d0, d1, d2, d3, e0, e1, e2, e3 float64
+		b := 0
+		for ; b+4 <= len(ws); b += 4 {
+			x0, x1, x2, x3 := ws[b]*scale-1, ws[b+1]*scale-1, ws[b+2]*scale-1, ws[b+3]*scale-1
+			s0, s1 := math.Float64bits(x0)>>63, math.Float64bits(x1)>>63
+			s2, s3 := math.Float64bits(x2)>>63, math.Float64bits(x3)>>63
+			m |= (s0 | s1<<1 | s2<<2 | s3<<3) << (b & 63)
+			f0, f1, f2, f3 := float64(s0), float64(s1), float64(s2), float64(s3)
+			d0, d1, d2, d3 = d0-x0*f0, d1-x1*f1, d2-x2*f2, d3-x3*f3
+			e0, e1, e2, e3 = e0+x0*(1-f0), e1+x1*(1-f1), e2+x2*(1-f2), e3+x3*(1-f3)
+		}
+		for ; b < len(ws); b++ { // fewer than 4 outcomes
+			x := ws[b]*scale - 1
+			sb := math.Float64bits(x) >> 63
+			m |= sb << (b & 63)
+			d0 -= x * float64(sb)
+			e0 += x * float64(1-sb)
+		}
+		small[k] = m
+		dblk[k] = dblk[k+1] + ((d0 + d1) + (d2 + d3))
+		eblk[k] = eblk[k+1] + ((e0 + e1) + (e2 + e3))
+	}
+	// margin: twice the two bounds of the comment above.
+	const u = 0x1p-53
+	margin := 2 * u * (pmax + 2) * float64(n) * (float64(words) + 144)
+	start := len(*out)
+	fail := func() bool { *out = (*out)[:start]; return false }
+	for j, c := range cols {
+		i := int(c)
+		p := w[i] * scale
+		if p < 1 && us[j] < p {
+			*out = append(*out, uint64(c))
+			continue
+		}
+		k := i / 64
+		if p < 1 {
+			// Deficit of the smalls above c, then the least m with
+			// E_m ≥ it.
+			dprev := dblk[k+1] + r.blockSum(w, scale, k, i+1, true)
+			l, ok := r.crossing(w, scale, eblk, dprev, margin)
+			if !ok {
+				return fail()
+			}
+			*out = append(*out, uint64(l))
+			continue
+		}
+		// Large: E_m with c = l_m, then the first small pop with D_k > E_m.
+		em := eblk[k+1] + r.blockSum(w, scale, k, i+1, false) + (p - 1)
+		_, dk, ok := r.crossingAt(w, scale, dblk, em, margin)
+		if !ok {
+			return fail()
+		}
+		prob := 1 - (dk - em)
+		switch {
+		case us[j] < prob-margin:
+			*out = append(*out, uint64(c))
+		case us[j] > prob+margin:
+			next := r.largeBelow(i, n)
+			if next < 0 {
+				return fail()
+			}
+			*out = append(*out, uint64(next))
+		default:
+			return fail()
+		}
+	}
+	return true
+}
+
+// blockSum returns the deficits (small) or excesses (!small) of the
+// columns of block k from index from up, added from the top down.
+func (r *aliasReplay) blockSum(w []float64, scale float64, k, from int, small bool) float64 {
+	var s float64
+	for i := min(64*k+64, len(w)) - 1; i >= from; i-- {
+		x := w[i]*scale - 1
+		if small && x < 0 {
+			s -= x
+		} else if !small && x >= 0 {
+			s += x
+		}
+	}
+	return s
+}
+
+// crossing returns the first large column l_m (from the top) with
+// E_m ≥ target, cum[k] holding the excesses of blocks k and above, and
+// whether E_m > target + margin and, unless l_m is the first large column
+// (current from the start), E_{m−1} < target − margin.
+func (r *aliasReplay) crossing(w []float64, scale float64, cum []float64, target, margin float64) (int, bool) {
+	words := len(cum) - 1
+	// The highest block k whose total from k up reaches target: cum[k] is
+	// non-increasing in k.
+	k := sort.Search(words, func(k int) bool { return cum[k] < target }) - 1
+	if k < 0 {
+		return -1, false
+	}
+	acc := cum[k+1]
+	for i := min(64*k+64, len(w)) - 1; i >= 64*k; i-- {
+		x := w[i]*scale - 1
+		if x < 0 {
+			continue
+		}
+		next := acc + x
+		if next >= target {
+			return i, next > target+margin && (acc < target-margin || r.firstLarge(i, len(w)))
+		}
+		acc = next
+	}
+	return -1, false
+}
+
+// crossingAt returns the first small column s_k (from the top) whose
+// cumulative deficit D_k exceeds target, and D_k, with D_{k−1} <
+// target − margin and D_k > target + margin; cum[k] holds the deficits of
+// blocks k and above.
+func (r *aliasReplay) crossingAt(w []float64, scale float64, cum []float64, target, margin float64) (int, float64, bool) {
+	words := len(cum) - 1
+	k := sort.Search(words, func(k int) bool { return cum[k] <= target }) - 1
+	if k < 0 {
+		return -1, 0, false
+	}
+	acc := cum[k+1]
+	for i := min(64*k+64, len(w)) - 1; i >= 64*k; i-- {
+		x := w[i]*scale - 1
+		if x >= 0 {
+			continue
+		}
+		next := acc - x
+		if next > target {
+			return i, next, acc < target-margin && next > target+margin
+		}
+		acc = next
+	}
+	return -1, 0, false
+}
+
+// firstLarge reports whether no column above i is large.
+func (r *aliasReplay) firstLarge(i, n int) bool {
+	k := i / 64
+	if validBits(n, k)&^r.small[k]&^(1<<(i%64+1)-1) != 0 {
+		return false
+	}
+	for k++; k < (n+63)/64; k++ {
+		if validBits(n, k)&^r.small[k] != 0 {
+			return false
+		}
+	}
+	return true
+}
+
+// largeBelow returns the highest large column below i, −1 for none, from
+// the bit sets estimate computed.
+func (r *aliasReplay) largeBelow(i, n int) int {
+	k := i / 64
+	m := (validBits(n, k) &^ r.small[k]) & (1<<(i%64) - 1)
+	for m == 0 {
+		if k == 0 {
+			return -1
+		}
+		k--
+		m = validBits(n, k) &^ r.small[k]
+	}
+	return 64*k + 63 - bits.LeadingZeros64(m)
 }

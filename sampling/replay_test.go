@@ -177,3 +177,49 @@ func TestReplayDrawShots(t *testing.T) {
 		}
 	}
 }
+
+// TestReplayEstimate checks the shortcut of the replay (estimate) on
+// Porter–Thomas weights of 2^16 outcomes, the size of the noisy target:
+// draws of ten uniform columns and thresholds against the built table, and
+// that the shortcut proves nearly all of them (a refusal costs the full
+// pairing; the margin, about 1e-7 here, refuses a draw with a probability
+// of that order per comparison, so 1% of refusals means a wrong bound).
+func TestReplayEstimate(t *testing.T) {
+	rng := rand.New(rand.NewPCG(16, 16))
+	var r aliasReplay
+	w := make([]float64, 1<<16)
+	refused := 0
+	const trials = 200
+	for trial := range trials {
+		for i := range w {
+			w[i] = rng.ExpFloat64()
+		}
+		a := NewAlias(w)
+		cols, us := make([]uint32, 10), make([]float64, 10)
+		for j := range cols {
+			cols[j], us[j] = uint32(rng.IntN(len(w))), rng.Float64()
+		}
+		var sum, heaviest float64
+		for _, v := range w {
+			sum += v
+			heaviest = max(heaviest, v)
+		}
+		scale := float64(len(w)) / sum
+		if cap(r.small) < len(w)/64 {
+			r.small = make([]uint64, len(w)/64)
+		}
+		var got []uint64
+		if !r.estimate(w, scale, heaviest*scale, cols, us, &got) {
+			refused++
+			continue
+		}
+		for j := range cols {
+			if want := aliasDrawOf(a, cols[j], us[j]); got[j] != want {
+				t.Fatalf("trial %d: column %d, threshold %v: estimate %d, table %d", trial, cols[j], us[j], got[j], want)
+			}
+		}
+	}
+	if refused > trials/100 {
+		t.Errorf("estimate refused %d of %d draws of ten", refused, trials)
+	}
+}

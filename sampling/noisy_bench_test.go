@@ -57,17 +57,19 @@ func noisySamplingRound(b *testing.B) {
 }
 
 // BenchmarkNoisyReplayAB (TEMPORARY) alternates the table per trajectory
-// (old) and the replay (new), saved states.
+// (old) and the replay (new), with saved states and from |0…0⟩.
 func BenchmarkNoisyReplayAB(b *testing.B) {
-	for range 3 {
+	for range 4 {
 		for _, v := range []struct {
-			name string
-			off  bool
-		}{{"table", true}, {"replay", false}} {
+			name  string
+			off   bool
+			saved int64
+		}{{"saved-table", true, 0}, {"saved-replay", false, 0}, {"start-table", true, -1}, {"start-replay", false, -1}} {
 			b.Run(v.name, func(b *testing.B) {
 				replayOff = v.off
 				defer func() { replayOff = false }()
 				c := demoNoisyConfig(1)
+				c.SavedStateBytes = v.saved
 				t0 := cpuNow()
 				for b.Loop() {
 					if _, err := Run(context.Background(), c, func(*Result) error { return nil }); err != nil {

@@ -2,9 +2,6 @@ package sampling
 
 import (
 	"context"
-	"math"
-	"math/rand/v2"
-	"syscall"
 	"testing"
 
 	"mixdepth/circuits"
@@ -52,71 +49,6 @@ func noisySamplingRound(b *testing.B) {
 					b.Fatal(err)
 				}
 			}
-		})
-	}
-}
-
-// BenchmarkNoisyReplayAB (TEMPORARY) alternates the table per trajectory
-// (old) and the replay (new), with saved states and from |0…0⟩.
-func BenchmarkNoisyReplayAB(b *testing.B) {
-	for range 4 {
-		for _, v := range []struct {
-			name  string
-			off   bool
-			saved int64
-		}{{"saved-table", true, 0}, {"saved-replay", false, 0}, {"start-table", true, -1}, {"start-replay", false, -1}} {
-			b.Run(v.name, func(b *testing.B) {
-				replayOff = v.off
-				defer func() { replayOff = false }()
-				c := demoNoisyConfig(1)
-				c.SavedStateBytes = v.saved
-				t0 := cpuNow()
-				for b.Loop() {
-					if _, err := Run(context.Background(), c, func(*Result) error { return nil }); err != nil {
-						b.Fatal(err)
-					}
-				}
-				b.ReportMetric((cpuNow()-t0)/float64(b.N), "cpu-s/op")
-			})
-		}
-	}
-}
-
-// cpuNow (TEMPORARY) is the process's user+system CPU seconds.
-func cpuNow() float64 {
-	var ru syscall.Rusage
-	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
-		return math.NaN()
-	}
-	return float64(ru.Utime.Nano()+ru.Stime.Nano()) / 1e9
-}
-
-// BenchmarkTrajectoryShotsAB (TEMPORARY): 10 shots from 2^16 Porter–Thomas
-// weights, table then draws against the replay, alternated.
-func BenchmarkTrajectoryShotsAB(b *testing.B) {
-	rng := rand.New(rand.NewPCG(1, 2))
-	w := make([]float64, 1<<16)
-	for i := range w {
-		w[i] = rng.ExpFloat64()
-	}
-	var a Alias
-	var r aliasReplay
-	dst := make([]uint64, 0, 16)
-	for range 3 {
-		b.Run("table", func(b *testing.B) {
-			t0 := cpuNow()
-			for b.Loop() {
-				a.Reset(w)
-				dst = DrawShots(dst[:0], rng, &a, 16, 10, Ideal)
-			}
-			b.ReportMetric((cpuNow()-t0)/float64(b.N)*1e6, "cpu-µs/op")
-		})
-		b.Run("replay", func(b *testing.B) {
-			t0 := cpuNow()
-			for b.Loop() {
-				dst = r.drawShots(dst[:0], rng, w, &a, 16, 10, Ideal)
-			}
-			b.ReportMetric((cpuNow()-t0)/float64(b.N)*1e6, "cpu-µs/op")
 		})
 	}
 }

@@ -159,22 +159,55 @@ func TestReplayDrawShots(t *testing.T) {
 	for i := range w {
 		w[i] = rng.ExpFloat64()
 	}
+	// A weight −0, which resolve refuses and the table takes: drawShots
+	// then picks from the table with the draws it took.
+	negZero := slices.Clone(w)
+	negZero[5] = math.Copysign(0, -1)
 	var r aliasReplay
 	var a Alias
-	for name, nz := range noises {
-		for _, shots := range []int{1, 10, replayMaxShots, replayMaxShots + 1} {
-			for seed := range uint64(5) {
-				s1, s2 := rand.New(rand.NewPCG(seed, 1)), rand.New(rand.NewPCG(seed, 1))
-				want := DrawShots([]uint64{7}, s1, NewAlias(w), 6, shots, nz)
-				got := r.drawShots([]uint64{7}, s2, w, &a, 6, shots, nz)
-				if !slices.Equal(got, want) {
-					t.Fatalf("%s, %d shots, seed %d: replay %v, table %v", name, shots, seed, got, want)
-				}
-				if s1.Uint64() != s2.Uint64() {
-					t.Fatalf("%s, %d shots, seed %d: the streams end at different places", name, shots, seed)
+	for _, w := range [][]float64{w, negZero} {
+		for name, nz := range noises {
+			for _, shots := range []int{1, 10, replayMaxShots, replayMaxShots + 1} {
+				for seed := range uint64(5) {
+					s1, s2 := rand.New(rand.NewPCG(seed, 1)), rand.New(rand.NewPCG(seed, 1))
+					want := DrawShots([]uint64{7}, s1, NewAlias(w), 6, shots, nz)
+					got := r.drawShots([]uint64{7}, s2, w, &a, 6, shots, nz)
+					if !slices.Equal(got, want) {
+						t.Fatalf("%s, %d shots, seed %d: replay %v, table %v", name, shots, seed, got, want)
+					}
+					if s1.Uint64() != s2.Uint64() {
+						t.Fatalf("%s, %d shots, seed %d: the streams end at different places", name, shots, seed)
+					}
 				}
 			}
 		}
+	}
+}
+
+// BenchmarkTrajectoryShots draws a trajectory's ten shots from 2^16
+// Porter–Thomas weights (the noisy target's size) through the table (Reset
+// then DrawShots) and through the replay, alternated over three rounds.
+func BenchmarkTrajectoryShots(b *testing.B) {
+	rng := rand.New(rand.NewPCG(1, 2))
+	w := make([]float64, 1<<16)
+	for i := range w {
+		w[i] = rng.ExpFloat64()
+	}
+	var a Alias
+	var r aliasReplay
+	dst := make([]uint64, 0, 16)
+	for range 3 {
+		b.Run("table", func(b *testing.B) {
+			for b.Loop() {
+				a.Reset(w)
+				dst = DrawShots(dst[:0], rng, &a, 16, 10, Ideal)
+			}
+		})
+		b.Run("replay", func(b *testing.B) {
+			for b.Loop() {
+				dst = r.drawShots(dst[:0], rng, w, &a, 16, 10, Ideal)
+			}
+		})
 	}
 }
 

@@ -249,7 +249,8 @@ func keyedStream(tag string, seed uint64, instance, depth int) *rand.Rand {
 
 // bytesPerInstance is the memory one instance in flight needs: the state,
 // the ideal probabilities and their alias table, and with gate errors one
-// more probability vector and alias table for the trajectories, the saved
+// more probability vector and alias table for the trajectories (the table
+// only when aliasReplay cannot do without it), the saved
 // ideal states (at most savedStates), plus the recorded shots.
 func (c *Config) bytesPerInstance() float64 {
 	dim := float64(uint64(1) << c.Qubits)
@@ -485,9 +486,6 @@ func Run(ctx context.Context, c *Config, emit func(*Result) error) (done []int, 
 	}
 	return done, ctx.Err()
 }
-
-// replayOff (TEMPORARY, for A/B benchmarks) builds the table per trajectory.
-var replayOff bool
 
 // worker holds the buffers of one goroutine.
 type worker struct {
@@ -803,12 +801,8 @@ func (w *worker) instance(ctx context.Context, id int) (r *Result, ok bool) {
 					}
 				}
 				w.noisy = w.st.Probabilities(w.noisy, w.workers)
-				if replayOff {
-					w.noisyTable.Reset(w.noisy)
-					out = DrawShots(out, shots, &w.noisyTable, c.Qubits, k, c.Noise)
-					continue
-				}
-				// The same shots as DrawShots from the table of w.noisy.
+				// The shots DrawShots draws from the table of w.noisy,
+				// mostly without building it (aliasReplay).
 				out = w.replay.drawShots(out, shots, w.noisy, &w.noisyTable, c.Qubits, k, c.Noise)
 				continue
 			}

@@ -129,7 +129,13 @@ func (a *Alias) Draw(rng *rand.Rand) int {
 		panic("sampling: Draw from an empty alias table")
 	}
 	i := int(rng.Uint64N(uint64(n)))
-	if rng.Float64() < a.prob[i] {
+	return a.pick(i, rng.Float64())
+}
+
+// pick returns the outcome of column i for the threshold u: i when u is
+// below the column's probability, else its alias.
+func (a *Alias) pick(i int, u float64) int {
+	if u < a.prob[i] {
 		return i
 	}
 	return int(a.alias[i])

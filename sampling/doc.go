@@ -5,7 +5,11 @@
 // tables with the cross-entropy benchmarks.
 //
 // Sampling. Each shot is drawn in O(1) from a Walker alias table (Alias) of
-// the output distribution, built once per distribution in O(D), D = 2^n.
+// the output distribution, built once per distribution in O(D), D = 2^n. A
+// trajectory with errors, which draws only its few shots from its own
+// distribution, gets the same outcomes from the same draws without the
+// table (aliasReplay): from sums of the distribution that prove each
+// outcome, or by repeating the table's pairing up to the outcomes it needs.
 // Noise (Noise) has three independent parts: Pauli errors after two-qubit
 // gates, simulated by quantum trajectories (each instance runs
 // T = min(shots, Config.Trajectories) trajectories, default 100, with the

@@ -249,7 +249,8 @@ func keyedStream(tag string, seed uint64, instance, depth int) *rand.Rand {
 
 // bytesPerInstance is the memory one instance in flight needs: the state,
 // the ideal probabilities and their alias table, and with gate errors one
-// more probability vector and alias table for the trajectories, the saved
+// more probability vector and alias table for the trajectories (the table
+// only when aliasReplay cannot do without it), the saved
 // ideal states (at most savedStates), plus the recorded shots.
 func (c *Config) bytesPerInstance() float64 {
 	dim := float64(uint64(1) << c.Qubits)
@@ -494,11 +495,16 @@ type worker struct {
 	ideal, noisy []float64
 	idealTable   Alias
 	noisyTable   Alias
+	// replay draws a trajectory's few shots without building noisyTable.
+	replay aliasReplay
 	// saved[j] is the ideal state after the first at[j] gates of the
 	// current instance (checkpointsFor); buffers grow up to
 	// Config.savedStates.
 	at    []int
 	saved [][]complex128
+	// uses[j] counts the trajectories still to start from saved[j]: the
+	// last one swaps buffers with it instead of copying it.
+	uses []int
 	// pairs[k] holds the qubits (A, B) of gate k of the current instance.
 	pairs [][2]int
 	// dressing holds the single-qubit error rates and matrices, nil
@@ -645,22 +651,48 @@ func (w *worker) runIdeal(ctx context.Context, circ *Circuit) bool {
 	return true
 }
 
+// setCheckpoints sets w.at to at most m checkpoints for the trajectories
+// with branch points points (checkpointsFor) and w.uses to the number of
+// trajectories that will start from each.
+func (w *worker) setCheckpoints(points []int, m int) {
+	w.at = checkpointsFor(points, m)
+	w.uses = append(w.uses[:0], make([]int, len(w.at))...)
+	for _, b := range points {
+		if j := w.checkpoint(b); b >= 0 && j >= 0 {
+			w.uses[j]++
+		}
+	}
+}
+
+// checkpoint returns the index j of the last saved state at or before
+// the branch point b (w.at[j] ≤ b), −1 for none.
+func (w *worker) checkpoint(b int) int {
+	j, found := slices.BinarySearch(w.at, b)
+	if !found {
+		j--
+	}
+	return j
+}
+
 // runTrajectory sets w.st to the state of the trajectory whose first error
 // is gate first, with the errors paulis and singles: from the last saved
 // ideal state at or before its branch point (or |0…0⟩) with the Paulis
 // before that state applied to it, the remaining gates with
 // their errors in the order of Circuit.runNoisy, then the final layer.
 func (w *worker) runTrajectory(ctx context.Context, circ *Circuit, first int, paulis []uint8, singles *singleErrors) bool {
-	j, found := slices.BinarySearch(w.at, w.branchPoint(first, paulis, singles))
-	if !found {
-		j--
-	}
+	j := w.checkpoint(w.branchPoint(first, paulis, singles))
 	from := 0
 	if j < 0 {
 		w.st.Reset()
 	} else {
 		from = w.at[j]
-		copy(w.st.Amp, w.saved[j])
+		if w.uses[j]--; w.uses[j] == 0 {
+			// The last trajectory from this state takes its buffer, and
+			// leaves its own in its place, never read again.
+			w.st.Amp, w.saved[j] = w.saved[j], w.st.Amp
+		} else {
+			copy(w.st.Amp, w.saved[j])
+		}
 		// Between first and the branch point every error is a Pauli.
 		for k := first; k < from; k++ {
 			if paulis[k] != 0 {
@@ -727,7 +759,7 @@ func (w *worker) instance(ctx context.Context, id int) (r *Result, ok bool) {
 				w.pairs = append(w.pairs, [2]int{g.A, g.B})
 			}
 		}
-		w.at = checkpointsFor(w.branchPoints(circ, rates, singles, id, r.Trajectories), c.savedStates())
+		w.setCheckpoints(w.branchPoints(circ, rates, singles, id, r.Trajectories), c.savedStates())
 		if !w.runIdeal(ctx, circ) {
 			return nil, false
 		}
@@ -769,8 +801,10 @@ func (w *worker) instance(ctx context.Context, id int) (r *Result, ok bool) {
 					}
 				}
 				w.noisy = w.st.Probabilities(w.noisy, w.workers)
-				w.noisyTable.Reset(w.noisy)
-				table = &w.noisyTable
+				// The shots DrawShots draws from the table of w.noisy,
+				// mostly without building it (aliasReplay).
+				out = w.replay.drawShots(out, shots, w.noisy, &w.noisyTable, c.Qubits, k, c.Noise)
+				continue
 			}
 			out = DrawShots(out, shots, table, c.Qubits, k, c.Noise)
 		}

@@ -164,7 +164,7 @@ func trajectoryAmplitudes(t *testing.T, c *Config) (checked, differ int) {
 				w.pairs = append(w.pairs, [2]int{g.A, g.B})
 			}
 		}
-		w.at = checkpointsFor(w.branchPoints(circ, rates, singles, id, trajectories), 1000)
+		w.setCheckpoints(w.branchPoints(circ, rates, singles, id, trajectories), 1000)
 		w.runIdeal(ctx, circ)
 		errs := ErrorStream(c.Seed, id, c.Depth)
 		singleRng := SingleErrorStream(c.Seed, id, c.Depth)

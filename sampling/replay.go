@@ -96,12 +96,12 @@ func readoutFixed(nz Noise, qubits int) (perShot int, ok bool) {
 // uniforms. Otherwise, or for weights that Alias.Reset refuses, it resets a
 // to w and calls DrawShots (which panics as it would).
 func (r *aliasReplay) drawShots(dst []uint64, rng *rand.Rand, w []float64, a *Alias, qubits, shots int, nz Noise) []uint64 {
+	nz.check() // as DrawShots does, before readoutFixed reads the rates
 	perShot, fixed := readoutFixed(nz, qubits)
 	if shots > replayMaxShots || !fixed || qubits < 1 || qubits > 32 || len(w) != 1<<qubits {
 		a.Reset(w)
 		return DrawShots(dst, rng, a, qubits, shots, nz)
 	}
-	nz.check()
 	dim := uint64(1) << qubits
 	f := nz.fidelity()
 	r.cols, r.us, r.direct, r.isAlias, r.flips = r.cols[:0], r.us[:0], r.direct[:0], r.isAlias[:0], r.flips[:0]
@@ -195,6 +195,11 @@ func (r *aliasReplay) resolve(w []float64, cols []uint32, us []float64, out *[]u
 		return false
 	}
 	scale := float64(n) / sum
+	if math.IsInf(scale, 1) {
+		// A subnormal total: a zero weight would scale to NaN, which
+		// Reset counts as large and the sign test here as small.
+		return false
+	}
 	words := (n + 63) / 64
 	if cap(r.want) < words {
 		r.want = make([]uint64, words)

@@ -128,6 +128,24 @@ func TestReplayRefuses(t *testing.T) {
 			t.Errorf("resolve took %v", w)
 		}
 	}
+	// Weights of subnormal total, which Reset takes: n/Σw overflows, a
+	// zero weight scales to NaN, and Reset counts it as large (a left-over
+	// column that gives the first heaviest outcome), so resolve must leave
+	// these to the table rather than treat the NaN as small. Found by a
+	// review: {0, 5e-324, 5e-324}, column 0, threshold 0 gave 2 against the
+	// table's 1.
+	for _, w := range [][]float64{{0, 5e-324, 5e-324}, {5e-324, 0, 0, 5e-324}} {
+		a := NewAlias(w)
+		var out []uint64
+		cols, us := []uint32{0, 1}, []float64{0, 0}
+		if r.resolve(w, cols, us, &out) {
+			for j, c := range cols {
+				if want := aliasDrawOf(a, c, us[j]); out[j] != want {
+					t.Errorf("weights %v, column %d: resolve gives %d, the table %d", w, c, out[j], want)
+				}
+			}
+		}
+	}
 }
 
 // TestReplayDrawShots compares drawShots with DrawShots on a fresh table,

@@ -627,7 +627,9 @@ func b2i(b bool) int {
 // into w.saved[j].
 func (w *worker) runIdeal(ctx context.Context, circ *Circuit) bool {
 	for len(w.saved) < len(w.at) {
-		w.saved = append(w.saved, make([]complex128, len(w.st.Amp)))
+		// As the state's own vector: the last trajectory from a saved
+		// state takes its buffer (runTrajectory).
+		w.saved = append(w.saved, sim.NewAmplitudes(w.st.Qubits))
 	}
 	w.st.Reset()
 	k, j := 0, 0

@@ -41,6 +41,16 @@ func NewState(n int, extra float64) (*State, error) {
 	return s, nil
 }
 
+// NewAmplitudes returns a zeroed buffer of 2^n amplitudes allocated as a
+// state vector's are (on Linux, with the advice to back it with
+// transparent huge pages), for copies of a state that may later become the
+// state's own vector. It does not check the memory; NewState does.
+func NewAmplitudes(n int) []complex128 {
+	amp := make([]complex128, 1<<n)
+	adviseHugePages(amp)
+	return amp
+}
+
 // Reset sets the state to |0…0⟩.
 func (s *State) Reset() {
 	clear(s.Amp)

@@ -57,15 +57,20 @@ func applyOneByOne(s *sim.State, ops []sim.Op, workers int) {
 // operations, so a correct fusion differs by ≲ 1e-14 while any wrong order,
 // position or product gives O(2^−n/2) or more. Sizes cover one whole-state
 // pass (n ≤ BlockQubits), block passes with one and two workers, and a
-// layered grid circuit with its final single-qubit layer and its undo.
+// layered grid circuit with its final single-qubit layer and its undo;
+// block passes of every shape blockSize chooses (k from 14 to 16 with
+// k − 10 low qubits), whatever this machine's cache.
 func TestRunMatchesOneByOne(t *testing.T) {
 	defer func(v int) { *sim.FuseMinQubits = v }(*sim.FuseMinQubits)
-	*sim.FuseMinQubits = sim.BlockQubits + 1 // block passes from 15 qubits on
 	rng := rand.New(rand.NewPCG(51, 52))
-	for _, tc := range []struct{ n, count, workers int }{
-		{2, 30, 1}, {3, 60, 1}, {7, 200, 1}, {sim.BlockQubits, 150, 1},
-		{sim.BlockQubits + 1, 150, 1}, {17, 120, 2}, {18, 80, 3},
-	} {
+	type testCase struct{ n, count, workers, k int }
+	cases := []testCase{{2, 30, 1, 14}, {3, 60, 1, 14}, {7, 200, 1, 14}}
+	for k := 14; k <= 16; k++ {
+		cases = append(cases, testCase{k, 150, 1, k}, testCase{k + 1, 150, 1, k}, testCase{k + 3, 120, 2, k}, testCase{k + 4, 80, 3, k})
+	}
+	for _, tc := range cases {
+		restore := sim.SetBlock(tc.k, tc.k-10)
+		*sim.FuseMinQubits = tc.k + 1 // block passes above k qubits
 		ops := randomOps(rng, tc.n, tc.count)
 		ref, fused := newState(t, tc.n), newState(t, tc.n)
 		randomState(rng, ref)
@@ -78,8 +83,9 @@ func TestRunMatchesOneByOne(t *testing.T) {
 		if err := fused.Run(context.Background(), ops, tc.workers); err != nil {
 			t.Fatal(err)
 		}
+		restore()
 		if d := maxDiff(ref.Amp, fused.Amp); d > 1e-12 {
-			t.Errorf("n=%d ops=%d workers=%d: fused and one-by-one differ by %g", tc.n, tc.count, tc.workers, d)
+			t.Errorf("n=%d ops=%d workers=%d blocks of %d qubits: fused and one-by-one differ by %g", tc.n, tc.count, tc.workers, tc.k, d)
 		}
 	}
 }
@@ -90,7 +96,8 @@ func TestRunMatchesOneByOne(t *testing.T) {
 // Tolerance as in TestRunMatchesOneByOne.
 func TestRunLayeredWithFinalLayer(t *testing.T) {
 	defer func(v int) { *sim.FuseMinQubits = v }(*sim.FuseMinQubits)
-	*sim.FuseMinQubits = sim.BlockQubits + 1
+	defer sim.SetBlock(14, 4)() // the block shape the case was written for
+	*sim.FuseMinQubits = sim.BlockQubits() + 1
 	g, err := circuits.ParseGraph("grid:4x5")
 	if err != nil {
 		t.Fatal(err)
@@ -180,7 +187,7 @@ type visitCase struct {
 // by default.
 func visitCases(rng *rand.Rand) []visitCase {
 	low := func(n, count int) []sim.Op { // gates within the lowest BlockQubits qubits
-		ops := randomOps(rng, sim.BlockQubits, count)
+		ops := randomOps(rng, sim.BlockQubits(), count)
 		for i := range ops {
 			ops[i].A, ops[i].B = ops[i].A%n, ops[i].B%n
 		}
@@ -195,7 +202,7 @@ func visitCases(rng *rand.Rand) []visitCase {
 				return o
 			}
 			edge := low(n, 20)
-			for q := 0; q < sim.BlockQubits; q += 2 { // all of them: later gates are blocked
+			for q := 0; q < sim.BlockQubits(); q += 2 { // all of them: later gates are blocked
 				edge = append(edge, gate(q, q+1))
 			}
 			short := append(slices.Clone(edge), gate(12, n-1), gate(13, n-1)) // block {0..10, 12, 13, n−1}
@@ -208,7 +215,7 @@ func visitCases(rng *rand.Rand) []visitCase {
 			)
 		}
 		cs = append(cs,
-			visitCase{"whole state", sim.BlockQubits, randomOps(rng, sim.BlockQubits, 40), workers, false, false},
+			visitCase{"whole state", sim.BlockQubits(), randomOps(rng, sim.BlockQubits(), 40), workers, false, false},
 			visitCase{"below a chunk", 10, randomOps(rng, 10, 40), workers, false, false},
 		)
 	}
@@ -224,10 +231,11 @@ func visitCases(rng *rand.Rand) []visitCase {
 // where the cases expect it (sim.VisitFolds), so both paths are tested.
 func TestRunVisitChunks(t *testing.T) {
 	defer func(v int) { *sim.FuseMinQubits = v }(*sim.FuseMinQubits)
-	*sim.FuseMinQubits = sim.BlockQubits + 1
+	defer sim.SetBlock(14, 4)() // visitCases are written for blocks of 14 qubits
+	*sim.FuseMinQubits = sim.BlockQubits() + 1
 	rng := rand.New(rand.NewPCG(61, 62))
 	for _, tc := range visitCases(rng) {
-		if *sim.FuseMinQubits = sim.BlockQubits + 1; tc.n == 21 {
+		if *sim.FuseMinQubits = sim.BlockQubits() + 1; tc.n == 21 {
 			*sim.FuseMinQubits = 21 // the default
 		}
 		if got := sim.VisitFolds(tc.n, tc.ops); got != tc.folds && !tc.either {
@@ -277,9 +285,10 @@ func TestRunVisitChunks(t *testing.T) {
 // ProbabilityBlocks computes them), bit for bit.
 func TestRunVisitChunks64(t *testing.T) {
 	defer func(v int) { *sim.FuseMinQubits = v }(*sim.FuseMinQubits)
+	defer sim.SetBlock(14, 4)() // visitCases are written for blocks of 14 qubits
 	rng := rand.New(rand.NewPCG(63, 64))
 	for _, tc := range visitCases(rng) {
-		if *sim.FuseMinQubits = sim.BlockQubits + 1; tc.n == 21 {
+		if *sim.FuseMinQubits = sim.BlockQubits() + 1; tc.n == 21 {
 			*sim.FuseMinQubits = 21
 		}
 		ref, err := sim.NewState64(tc.n, 0)
@@ -352,6 +361,26 @@ func reportVisits(t *testing.T, name string, bad []string, seen []int) {
 	for c, k := range seen {
 		if k != 1 {
 			t.Errorf("%s: chunk %d visited %d times", name, c, k)
+		}
+	}
+}
+
+// TestBlockSize: the block shape follows the second-level cache — half of
+// it for a block of complex128, from 14 to 16 qubits, 10 of them free of
+// the low run — and sysfs sizes parse as Linux writes them ("2048K"; the
+// sysfs format is common practice, from the kernel's cacheinfo).
+func TestBlockSize(t *testing.T) {
+	for _, c := range []struct {
+		l2     int64
+		k, low int
+	}{{0, 14, 4}, {256 << 10, 14, 4}, {512 << 10, 14, 4}, {1 << 20, 15, 5}, {2 << 20, 16, 6}, {32 << 20, 16, 6}} {
+		if k, low := sim.BlockSize(c.l2); k != c.k || low != c.low {
+			t.Errorf("blockSize(%d) = (%d, %d), want (%d, %d)", c.l2, k, low, c.k, c.low)
+		}
+	}
+	for s, want := range map[string]int64{"2048K": 2 << 20, "1M": 1 << 20, "512K": 512 << 10, "": 0, "abc": 0, "-4K": 0} {
+		if got := sim.CacheBytes(s); got != want {
+			t.Errorf("cacheBytes(%q) = %d, want %d", s, got, want)
 		}
 	}
 }

@@ -76,8 +76,8 @@ func kernelsMatch(t *testing.T, rng *rand.Rand, run func(avx bool, n int, amp []
 	}
 	// A fused circuit on blocks (n > BlockQubits), normalised amplitudes.
 	defer func(v int) { fuseMinQubits = v }(fuseMinQubits)
-	fuseMinQubits = BlockQubits + 1
-	n := BlockQubits + 2
+	fuseMinQubits = blockQubits + 1
+	n := blockQubits + 2
 	amp := make([]complex128, 1<<n)
 	amp[0] = 1
 	var ops []Op
@@ -157,8 +157,8 @@ func TestKernels64PortableMatchVector(t *testing.T) {
 			}
 		}
 		defer func(v int) { fuseMinQubits = v }(fuseMinQubits)
-		fuseMinQubits = BlockQubits + 1
-		n := BlockQubits + 2
+		fuseMinQubits = blockQubits + 1
+		n := blockQubits + 2
 		amp := make([]complex64, 1<<n)
 		amp[0] = 1
 		ops := make([]Op, 0, 40)
@@ -271,13 +271,26 @@ func TestX2BitIdentical(t *testing.T) {
 // in the last bit. The reference always takes the existing one-gate kernels
 // (useX2 off); Run takes the new one, the old one, and, with the dispatch
 // forced off, the portable Go kernels (against a portable reference).
+//
+// It runs with blocks of 14 qubits (4 low) and of 16 (6 low), the smallest
+// and largest shapes blockSize chooses, whatever this machine's cache.
 func TestRunBitIdenticalToApply2(t *testing.T) {
+	defer func(k, low int) { blockQubits, blockLow = k, low }(blockQubits, blockLow)
+	for _, k := range []int{14, 16} {
+		blockQubits, blockLow = k, k-10
+		testRunBitIdentical(t)
+	}
+}
+
+// testRunBitIdentical is TestRunBitIdenticalToApply2 with the block shape
+// in blockQubits and blockLow.
+func testRunBitIdentical(t *testing.T) {
 	defer func(v int) { fuseMinQubits = v }(fuseMinQubits)
-	fuseMinQubits = BlockQubits + 1
+	fuseMinQubits = blockQubits + 1
 	has, has512 := useAVX, useAVX512
 	defer func() { useAVX, useAVX512, useX2, useX2Low = has, has512, true, true }()
 	rng := rand.New(rand.NewPCG(73, 74))
-	const n = BlockQubits + 3
+	const n = 17
 	var line, grid []Op
 	for layer := range 12 {
 		for a := layer % 2; a+1 < n; a += 2 {
@@ -323,7 +336,7 @@ func TestRunBitIdenticalToApply2(t *testing.T) {
 			useAVX, useAVX512, useX2, useX2Low = mode.avx && has, mode.avx && has512, false, mode.low
 			ref := &State{Qubits: n, Amp: append([]complex128(nil), amp...)}
 			var gates int
-			for _, p := range planPasses(n, circ.ops, BlockQubits) {
+			for _, p := range planPasses(n, circ.ops, blockQubits) {
 				for _, o := range p.ops {
 					ref.Apply2(o.a, o.b, &o.m, 1)
 					gates++
@@ -340,8 +353,8 @@ func TestRunBitIdenticalToApply2(t *testing.T) {
 				}
 				for i := range s.Amp {
 					if s.Amp[i] != ref.Amp[i] {
-						t.Fatalf("%s %s workers=%d: amplitude %d is %v fused, %v gate by gate",
-							circ.name, mode.name, workers, i, s.Amp[i], ref.Amp[i])
+						t.Fatalf("blocks of %d: %s %s workers=%d: amplitude %d is %v fused, %v gate by gate",
+							blockQubits, circ.name, mode.name, workers, i, s.Amp[i], ref.Amp[i])
 					}
 				}
 			}
@@ -357,7 +370,7 @@ func TestRunBitIdenticalToApply2(t *testing.T) {
 // ns/gate-amp is the compute cost per gate per amplitude, the quantity the
 // fused speed-up's ceiling is made of.
 func BenchmarkBlockPass(b *testing.B) {
-	const k = BlockQubits
+	k := blockQubits
 	rng := rand.New(rand.NewPCG(81, 82))
 	var ops []Op
 	for layer := range 20 {
@@ -499,7 +512,7 @@ var fusedRounds = flag.Int("rounds", 3, "rounds of BenchmarkFusedTargets")
 // and two runs pairs (lo ≥ 2). -count repeats the modes in turn, so the
 // runs of x2 and x2-8 alternate.
 func BenchmarkKernelClass(b *testing.B) {
-	const k = BlockQubits
+	k := blockQubits
 	rng := rand.New(rand.NewPCG(83, 84))
 	x := benchBlock(rng, k)
 	defer func() { useX2, useX2Low, useX4 = true, true, true }()
@@ -538,7 +551,7 @@ func BenchmarkKernelClass(b *testing.B) {
 // ns per gate per amplitude and of the ratio old/new of the same round. Pin
 // it to one core (taskset).
 func BenchmarkKernelAB(b *testing.B) {
-	const k = BlockQubits
+	k := blockQubits
 	rng := rand.New(rand.NewPCG(85, 86))
 	x := benchBlock(rng, k)
 	groups := 1 << (k - 2)

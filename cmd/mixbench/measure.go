@@ -48,7 +48,7 @@ func measure(ctx context.Context, log io.Writer, cfg benchConfig) (*report, erro
 		return nil
 	}
 	workers := cfg.workers
-	r := &report{Machine: cpuModel(), Cores: runtime.NumCPU(), GoVersion: runtime.Version()}
+	r := &report{Machine: cpuModel(), Cores: runtime.NumCPU(), GoVersion: runtime.Version(), BlockQubits: sim.BlockQubits()}
 	logf("triad bandwidth on %d goroutines…", workers)
 	r.Load = loadAverage()
 	r.Bandwidth = triad(workers, 10)

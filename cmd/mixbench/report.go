@@ -8,19 +8,22 @@ import (
 
 // report is the --json document. Field names are an interface.
 type report struct {
-	Machine   string      `json:"machine"`
-	Cores     int         `json:"cores"`
-	GoVersion string      `json:"go_version"`
-	Bandwidth float64     `json:"bandwidth_gbs"`
-	Load      string      `json:"load_average"`
-	Gates     []gateRow   `json:"gates"`
-	Moments   []momentRow `json:"moments"`
-	MPS       []mpsRow    `json:"mps_updates"`
-	Scan      *scanResult `json:"scan,omitempty"`
-	Ratio     *float64    `json:"numpy_ratio"`
-	Notes     []string    `json:"notes,omitempty"`
-	Single    []gateRow   `json:"single_precision,omitempty"`
-	Fused     []fusedRow  `json:"fused,omitempty"`
+	Machine   string  `json:"machine"`
+	Cores     int     `json:"cores"`
+	GoVersion string  `json:"go_version"`
+	Bandwidth float64 `json:"bandwidth_gbs"`
+	Load      string  `json:"load_average"`
+	// BlockQubits is the block size of the fused passes that sim chose
+	// from this machine's second-level cache.
+	BlockQubits int         `json:"fused_block_qubits"`
+	Gates       []gateRow   `json:"gates"`
+	Moments     []momentRow `json:"moments"`
+	MPS         []mpsRow    `json:"mps_updates"`
+	Scan        *scanResult `json:"scan,omitempty"`
+	Ratio       *float64    `json:"numpy_ratio"`
+	Notes       []string    `json:"notes,omitempty"`
+	Single      []gateRow   `json:"single_precision,omitempty"`
+	Fused       []fusedRow  `json:"fused,omitempty"`
 	// Targets are the performance targets of issue 16, each a ratio
 	// measured in this run.
 	Targets []target `json:"targets,omitempty"`
@@ -94,6 +97,7 @@ func roundList(r []float64) string {
 func printTable(w io.Writer, r *report) {
 	fmt.Fprintf(w, "machine: %s, %d cores, %s\n", r.Machine, r.Cores, r.GoVersion)
 	fmt.Fprintf(w, "load average at start: %s\n", r.Load)
+	fmt.Fprintf(w, "fused passes: blocks of 2^%d amplitudes (chosen from the second-level cache)\n", r.BlockQubits)
 	fmt.Fprintf(w, "triad bandwidth: %.1f GB/s (STREAM convention, 24 bytes per element; best of the run)\n", r.Bandwidth)
 	fmt.Fprintf(w, "fraction = effective GB/s / the row's own triad (best of rounds alternating with the row's timings)\n\n")
 	fmt.Fprintf(w, "two-qubit gates, complex128 (32·2^n bytes per gate), mean over position classes\n")

@@ -224,12 +224,12 @@ func fusedOn(ctx context.Context, spec string, workers int) (fusedRow, error) {
 
 // cacheBound returns the seconds per gate per amplitude of the fused
 // kernels when memory costs nothing: every worker runs a brickwork on its
-// own state of sim.BlockQubits qubits, which stays in its core's cache (one
+// own state of sim.BlockQubits() qubits, which stays in its core's cache (one
 // pass over the whole state, the fused kernels of sim.State.Run), all at
 // once. A fused pass over a large state cannot beat this rate, so
 // one-by-one time over it bounds the fused speed-up on this machine.
 func cacheBound(ctx context.Context, workers int) float64 {
-	const n = sim.BlockQubits
+	n := sim.BlockQubits()
 	rng := rand.New(rand.NewPCG(6, 7))
 	var ops []sim.Op
 	for layer := range 20 {
@@ -243,7 +243,7 @@ func cacheBound(ctx context.Context, workers int) float64 {
 	for w := range states {
 		var err error
 		if states[w], err = sim.NewState(n, 0); err != nil {
-			panic(err) // 2^14 amplitudes always fit
+			panic(err) // 2^16 amplitudes (1 MiB) at most always fit
 		}
 		randomFill(states[w].Amp, 1)
 	}

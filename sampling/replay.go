@@ -96,6 +96,12 @@ func readoutFixed(nz Noise, qubits int) (perShot int, ok bool) {
 // uniforms. Otherwise, or for weights that Alias.Reset refuses, it resets a
 // to w and calls DrawShots (which panics as it would).
 func (r *aliasReplay) drawShots(dst []uint64, rng *rand.Rand, w []float64, a *Alias, qubits, shots int, nz Noise) []uint64 {
+	return r.drawShotsTotals(dst, rng, w, totalsOf(w), a, qubits, shots, nz)
+}
+
+// drawShotsTotals is drawShots with the totals t of w (totalsOf) already
+// known, as weightsOf gives them in the same pass that writes w.
+func (r *aliasReplay) drawShotsTotals(dst []uint64, rng *rand.Rand, w []float64, t weightTotals, a *Alias, qubits, shots int, nz Noise) []uint64 {
 	nz.check() // as DrawShots does, before readoutFixed reads the rates
 	perShot, fixed := readoutFixed(nz, qubits)
 	if shots > replayMaxShots || !fixed || qubits < 1 || qubits > 32 || len(w) != 1<<qubits {
@@ -125,7 +131,7 @@ func (r *aliasReplay) drawShots(dst []uint64, rng *rand.Rand, w []float64, a *Al
 	out := dst[first:]
 	if len(r.cols) > 0 {
 		r.drawn = r.drawn[:0]
-		if !r.resolve(w, r.cols, r.us, &r.drawn) {
+		if !r.resolveTotals(w, t, r.cols, r.us, &r.drawn) {
 			// Weights resolve does not take: the table's draws from the
 			// same columns and thresholds (Reset panics on what it refuses).
 			a.Reset(w)
@@ -176,21 +182,66 @@ func (r *aliasReplay) drawShots(dst []uint64, rng *rand.Rand, w []float64, a *Al
 // the same sequential sum as Reset's, and estimate's pass, or pair's when
 // estimate cannot prove every outcome.
 func (r *aliasReplay) resolve(w []float64, cols []uint32, us []float64, out *[]uint64) bool {
+	return r.resolveTotals(w, totalsOf(w), cols, us, out)
+}
+
+// weightTotals are the totals of a weight vector that resolve needs before
+// anything else: Reset's sum, in Reset's order, the heaviest weight (0 for
+// none above 0) and the OR of the weights' bits (a sign bit set for a
+// negative weight or −0).
+type weightTotals struct {
+	sum, heaviest float64
+	signs         uint64
+}
+
+// totalsOf returns the totals of w. The sum is one chain of dependent
+// additions (the rounding of each depends on the one before), so its
+// latency, not the other work of the loop, sets the pass's time.
+func totalsOf(w []float64) weightTotals {
+	var t weightTotals
+	for _, v := range w {
+		t.sum += v
+		t.signs |= math.Float64bits(v)
+		if v > t.heaviest {
+			t.heaviest = v
+		}
+	}
+	return t
+}
+
+// weightsOf writes the probabilities |amp|² into dst (allocated when
+// short) and returns it with their totals, in one pass: the squares as
+// sim.State.Probabilities computes them (each rounded on its own, then
+// added), so that w is the same bit for bit, and the totals as totalsOf
+// computes them. The squares cost nothing beside the sum's chain of
+// additions, which totalsOf would wait on in a pass of its own.
+func weightsOf(amp []complex128, dst []float64) ([]float64, weightTotals) {
+	if len(dst) < len(amp) {
+		dst = make([]float64, len(amp))
+	}
+	dst = dst[:len(amp)]
+	var t weightTotals
+	for i, a := range amp {
+		v := float64(real(a)*real(a)) + float64(imag(a)*imag(a))
+		dst[i] = v
+		t.sum += v
+		t.signs |= math.Float64bits(v)
+		if v > t.heaviest {
+			t.heaviest = v
+		}
+	}
+	return dst, t
+}
+
+// resolveTotals is resolve with the totals t of w (totalsOf) already known.
+func (r *aliasReplay) resolveTotals(w []float64, t weightTotals, cols []uint32, us []float64, out *[]uint64) bool {
 	n := len(w)
 	if n == 0 || n > MaxAliasOutcomes {
 		return false
 	}
 	// Reset's sum, in the same order. A NaN or +Inf weight makes the sum
 	// NaN or +Inf; a negative weight shows in the sign bits.
-	var sum, heaviest float64
-	var signs uint64
-	for _, v := range w {
-		sum += v
-		signs |= math.Float64bits(v)
-		if v > heaviest {
-			heaviest = v
-		}
-	}
+	sum, heaviest, signs := t.sum, t.heaviest, t.signs
 	if signs>>63 != 0 || !(sum > 0) || math.IsInf(sum, 1) {
 		return false
 	}
@@ -397,17 +448,26 @@ func (r *aliasReplay) estimate(w []float64, scale, pmax float64, cols []uint32, 
 		ws := w[lo:min(lo+64, n)]
 		var m uint64
 		// Four lanes of deficits and excesses, so that the additions do
-		// not wait on each other; x·1 = x and x·0 = 0 exactly.
+		// not wait on each other. Each lane takes x or +0 by a mask of
+		// x's sign (no branch: small or large is a coin flip here, and no
+		// conversion of the sign to a float, which cost more than the
+		// sums); adding or subtracting +0 leaves a lane as it is.
 		var d0, d1, d2, d3, e0, e1, e2, e3 float64
 		b := 0
 		for ; b+4 <= len(ws); b += 4 {
 			x0, x1, x2, x3 := ws[b]*scale-1, ws[b+1]*scale-1, ws[b+2]*scale-1, ws[b+3]*scale-1
-			s0, s1 := math.Float64bits(x0)>>63, math.Float64bits(x1)>>63
-			s2, s3 := math.Float64bits(x2)>>63, math.Float64bits(x3)>>63
-			m |= (s0 | s1<<1 | s2<<2 | s3<<3) << (b & 63)
-			f0, f1, f2, f3 := float64(s0), float64(s1), float64(s2), float64(s3)
-			d0, d1, d2, d3 = d0-x0*f0, d1-x1*f1, d2-x2*f2, d3-x3*f3
-			e0, e1, e2, e3 = e0+x0*(1-f0), e1+x1*(1-f1), e2+x2*(1-f2), e3+x3*(1-f3)
+			u0, u1, u2, u3 := math.Float64bits(x0), math.Float64bits(x1), math.Float64bits(x2), math.Float64bits(x3)
+			// k: all ones for a small column (x < 0), else zero.
+			k0, k1, k2, k3 := uint64(int64(u0)>>63), uint64(int64(u1)>>63), uint64(int64(u2)>>63), uint64(int64(u3)>>63)
+			m |= (u0>>63 | u1>>63<<1 | u2>>63<<2 | u3>>63<<3) << (b & 63)
+			d0 -= math.Float64frombits(u0 & k0)
+			d1 -= math.Float64frombits(u1 & k1)
+			d2 -= math.Float64frombits(u2 & k2)
+			d3 -= math.Float64frombits(u3 & k3)
+			e0 += math.Float64frombits(u0 &^ k0)
+			e1 += math.Float64frombits(u1 &^ k1)
+			e2 += math.Float64frombits(u2 &^ k2)
+			e3 += math.Float64frombits(u3 &^ k3)
 		}
 		for ; b < len(ws); b++ { // fewer than 4 outcomes
 			x := ws[b]*scale - 1

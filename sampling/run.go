@@ -642,7 +642,7 @@ func (w *worker) runIdeal(ctx context.Context, circ *Circuit) bool {
 			w.st.Apply2(g.A, g.B, &g.M, w.workers)
 			k++
 			if j < len(w.at) && w.at[j] == k {
-				copy(w.saved[j], w.st.Amp)
+				copyAmplitudes(w.saved[j], w.st.Amp, w.workers)
 				j++
 			}
 		}
@@ -651,6 +651,25 @@ func (w *worker) runIdeal(ctx context.Context, circ *Circuit) bool {
 		w.st.Apply1(q, &circ.Final[q], w.workers)
 	}
 	return true
+}
+
+// copyAmplitudes copies src into dst (of the same length), split into
+// contiguous halves, quarters… across workers goroutines for states of at
+// least sim.ParallelQubits qubits, as the gates are: a saved state's copy
+// goes to memory no recent pass has touched, and one core alone does not
+// reach the bandwidth of the copy.
+func copyAmplitudes(dst, src []complex128, workers int) {
+	if workers <= 1 || len(src) < 1<<sim.ParallelQubits {
+		copy(dst, src)
+		return
+	}
+	var wg sync.WaitGroup
+	chunk := (len(src) + workers - 1) / workers
+	for lo := 0; lo < len(src); lo += chunk {
+		hi := min(lo+chunk, len(src))
+		wg.Go(func() { copy(dst[lo:hi], src[lo:hi]) })
+	}
+	wg.Wait()
 }
 
 // setCheckpoints sets w.at to at most m checkpoints for the trajectories
@@ -693,7 +712,7 @@ func (w *worker) runTrajectory(ctx context.Context, circ *Circuit, first int, pa
 			// leaves its own in its place, never read again.
 			w.st.Amp, w.saved[j] = w.saved[j], w.st.Amp
 		} else {
-			copy(w.st.Amp, w.saved[j])
+			copyAmplitudes(w.st.Amp, w.saved[j], w.workers)
 		}
 		// Between first and the branch point every error is a Pauli.
 		for k := first; k < from; k++ {
@@ -802,10 +821,12 @@ func (w *worker) instance(ctx context.Context, id int) (r *Result, ok bool) {
 						return nil, false
 					}
 				}
-				w.noisy = w.st.Probabilities(w.noisy, w.workers)
-				// The shots DrawShots draws from the table of w.noisy,
+				// The probabilities with their sum, in one pass (weightsOf),
+				// and the shots DrawShots draws from the table of w.noisy,
 				// mostly without building it (aliasReplay).
-				out = w.replay.drawShots(out, shots, w.noisy, &w.noisyTable, c.Qubits, k, c.Noise)
+				var tot weightTotals
+				w.noisy, tot = weightsOf(w.st.Amp, w.noisy)
+				out = w.replay.drawShotsTotals(out, shots, w.noisy, tot, &w.noisyTable, c.Qubits, k, c.Noise)
 				continue
 			}
 			out = DrawShots(out, shots, table, c.Qubits, k, c.Noise)

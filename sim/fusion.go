@@ -40,9 +40,9 @@ var blockQubits, blockLow = blockSize(secondLevelCache())
 // that gather it and write it back), k from 14 (256 KiB, the size every
 // current x86 and Arm core holds) to 16; the low qubits leave 10 for gates
 // (blockLow = k − 10), so a larger block gathers longer runs rather than
-// taking more qubits' gates per pass. Measured on grid:4x6 and grid:5x5
-// brickworks of 20 layers on 2 MiB-L2 Sapphire Rapids class cores (see
-// DEVELOPERS.md): (16, 6) ran 1.19–1.25 times faster than (14, 4),
+// taking more qubits' gates per pass. Measured on grid:4x6, grid:5x5 and
+// line:26 brickworks of 20 layers on 2 MiB-L2 Sapphire Rapids class cores
+// (see DEVELOPERS.md): (16, 6) ran 1.19–1.25 times faster than (14, 4),
 // because a pass of (14, 4) gathers 2^14-amplitude blocks in runs of 256
 // bytes, 1024 runs per block from as many places, which the memory system
 // serves at about half its streaming rate.

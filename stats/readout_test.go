@@ -375,6 +375,26 @@ func TestReadoutPaths(t *testing.T) {
 			}
 			sumsAsm, ksAsm = sums, ks
 		}
+		// The parallel forms of gather, select_ and collect on every state,
+		// and the serial ones, must give the same statistic bit for bit
+		// (their terms are the same, whatever the order in which the
+		// searchers meet the leaves).
+		for _, par := range []bool{false, true} {
+			sv, sb := ksParallelValues, ksParallelBins
+			if par {
+				ksParallelValues, ksParallelBins = 0, 0
+			} else {
+				ksParallelValues, ksParallelBins = math.MaxInt64, math.MaxInt
+			}
+			_, ks, kept := readoutRun(NewHaarKS(d, 2, 0), st.a)
+			ksParallelValues, ksParallelBins = sv, sb
+			if math.Float64bits(ks) != math.Float64bits(ksAsm) {
+				t.Errorf("%s n=%d: statistic %.17g with parallel=%v, %.17g by default", st.name, st.n, ks, par, ksAsm)
+			}
+			if !slices.Equal(keptGo, kept) {
+				t.Errorf("%s n=%d: the collect pass kept %d values with parallel=%v, %d by default", st.name, st.n, len(kept), par, len(keptGo))
+			}
+		}
 		const block = 4096
 		for k, z := range sumsAsm {
 			if want := Collision(p[k*block : min((k+1)*block, d)]); z != want {

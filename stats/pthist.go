@@ -1129,8 +1129,12 @@ func (r *ksRefiner) collect(pass ProbabilityPass, apass AmplitudePass, cands []i
 		r.vals = make([][]float64, r.workers) // worker w alone touches vals[w] and vslot[w]
 		r.vslot = make([][]int32, r.workers)
 	}
+	if len(r.gcnt) < r.workers {
+		r.gcnt, r.gpos = make([][]int64, r.workers), make([][]int64, r.workers)
+	}
 	for w := range r.vals {
 		r.vals[w], r.vslot[w] = r.vals[w][:0], r.vslot[w][:0]
+		r.gcnt[w] = ksInts(r.gcnt[w], len(cands))
 	}
 	// A value is kept when its level-0 bin is active (one byte of act0 for
 	// the uniform bins, the bitmap for the outer ones) and its leaf is a
@@ -1140,8 +1144,10 @@ func (r *ksRefiner) collect(pass ProbabilityPass, apass AmplitudePass, cands []i
 		k := ksKey(v)
 		if i := r.bin0(k); r.active[i>>6]>>(i&63)&1 != 0 {
 			if j := r.descend(i, k); r.state[j] == ksCollect {
+				sl := r.slot[j]
 				r.vals[w] = append(r.vals[w], v)
-				r.vslot[w] = append(r.vslot[w], r.slot[j])
+				r.vslot[w] = append(r.vslot[w], sl)
+				r.gcnt[w][sl]++
 			}
 		}
 	}
@@ -1239,24 +1245,13 @@ var ksParallelValues int64 = 1 << 15
 
 // group writes the values of r.vals to all grouped by candidate leaf, the
 // values of the leaf of slot c from r.offs[c] on, in the order of the
-// workers and, within one, of the pass, on goroutines goroutines: each
-// counts and then places the values of its workers.
+// workers and, within one, of the pass, on goroutines goroutines, each of
+// which places the values of its workers; r.gcnt holds each worker's count
+// per slot, taken in the pass.
 func (r *ksRefiner) group(all []float64, ncand, goroutines int) {
-	if len(r.gcnt) < r.workers {
-		r.gcnt, r.gpos = make([][]int64, r.workers), make([][]int64, r.workers)
-	}
 	for w := range r.workers {
-		r.gcnt[w] = ksInts(r.gcnt[w], ncand)
 		r.gpos[w] = ksInts(r.gpos[w], ncand)
 	}
-	ksParallel(goroutines, func(g int) {
-		for w := g; w < r.workers; w += goroutines {
-			c := r.gcnt[w]
-			for _, sl := range r.vslot[w] {
-				c[sl]++
-			}
-		}
-	})
 	for c, p := range r.offs {
 		for w := range r.workers {
 			r.gpos[w][c] = p

@@ -314,6 +314,10 @@ func readoutRun(h *HaarKS, a []float64) (sums []float64, ks float64, kept []floa
 // (Haar) states of 10 to 20 qubits (24 unless -short), stabiliser-like
 // states (many equal probabilities and exact zeros), and a Haar state whose
 // small amplitudes are scaled to give subnormal or zero probabilities.
+// The parallel forms of the steps between the passes (ksParallel) and the
+// serial ones, forced on every state, must give the default's statistic
+// and kept values bit for bit (common practice: two forms of one
+// computation compared).
 func TestReadoutPaths(t *testing.T) {
 	rng := rand.New(rand.NewPCG(53, 54))
 	type state struct {

@@ -4,6 +4,10 @@ import (
 	"math"
 	"math/bits"
 	"slices"
+	"sync"
+	"sync/atomic"
+
+	"mixdepth/internal/crash"
 )
 
 // ProbabilityPass hands every one of D probabilities to visit exactly once
@@ -409,15 +413,16 @@ func (h *HaarKS) finish(pass ProbabilityPass, apass AmplitudePass) (ks float64, 
 func (h *HaarKS) reset() {
 	r := h.r
 	for w := range h.counts {
-		clear(h.counts[w])
+		if !r.gathered {
+			clear(h.counts[w])
+		}
 		h.nans[w] = false
 	}
+	// gather sets the counts of the level-0 nodes and the values below
+	// them, so they need no clearing.
 	r.nodes = r.nodes[:r.n0]
 	r.state = r.state[:r.n0]
-	for i := range r.nodes {
-		r.nodes[i].count, r.nodes[i].below = 0, 0
-	}
-	r.lower, r.best, r.nan = 0, 0, false
+	r.lower, r.best, r.nan, r.gathered = 0, 0, false, false
 }
 
 // ksKey maps a float64 to a uint64 in the same order (for non-NaN values):
@@ -490,17 +495,25 @@ type ksRefiner struct {
 	actLo, actHi int
 	// filt is the collect pass's filter of the last markActive.
 	filt ksFilter
-	ups  []ksUpper // select_'s buffer
+	// ups and sbest are select_'s buffers and best and lower per goroutine.
+	ups   [][]ksUpper
+	sbest [][2]float64
 	// vals, all and offs are the collect pass's buffers, kept for the next
 	// state.
 	vals [][]float64
 	all  []float64
 	offs []int64
-	slot []int32      // a candidate leaf's position in the collect pass's list
-	tmp  []float64    // refine's scratch
-	ints []int64      // refine's counts, a stack
-	subs []ksUpper    // refine's sub-bins, a stack
-	fsub [][2]float64 // the CDF at their smallest and largest keys
+	slot []int32 // a candidate leaf's position in the collect pass's list
+	// vslot holds, per worker, the slot of each value of vals; gcnt and
+	// gpos are the grouping's counts and positions per worker and slot.
+	vslot      [][]int32
+	gcnt, gpos [][]int64
+	// srch are the searchers of the candidate leaves, one per worker;
+	// floor is the bits of the largest max(best, lower) any has published.
+	srch  []ksSearcher
+	floor atomic.Uint64
+	// gathered is set when gather has cleared the first-pass counters.
+	gathered bool
 	// kept holds each worker's values kept by ksFilterPairs in a block.
 	kept [][]float64
 	// runs, gaps and order are markActive's buffers for the filter's
@@ -659,47 +672,108 @@ func (r *ksRefiner) bin0(k uint64) int {
 	return 3 + int(e>>8+(d&ksMant)>>(e&63))
 }
 
-// gather adds the level-0 counts of the workers into the nodes and makes
-// every level-0 node a counted leaf.
+// gather sets the counts of the level-0 nodes to the sums of the workers'
+// first-pass counters, clears those counters for the next state, and makes
+// every level-0 node a counted leaf. From ksParallelBins fine bins on, the
+// octaves are shared among one goroutine per worker (ksParallel), which
+// also set the counts of values below their nodes once the totals of the
+// shares are known: on one core this took about 1 ms at 2^14 bins per
+// octave, the reset's clearing of the counters 0.6 ms more.
 func (r *ksRefiner) gather(counts [][]uint32, nans []bool) {
 	for w := range counts {
 		r.nan = r.nan || nans[w]
-		c := counts[w]
+	}
+	b := 52 - r.shift
+	goroutines := 1
+	if r.nbf >= ksParallelBins {
+		goroutines = min(r.workers, ksOctaves)
+	}
+	// Goroutine g takes the octaves [share(g), share(g+1)), the nodes from
+	// 3 + first(share(g)) on.
+	share := func(g int) int { return g * ksOctaves / goroutines }
+	first := func(o int) int {
+		if o == ksOctaves {
+			return r.nb0
+		}
+		return int(r.oct[o] >> 8)
+	}
+	var totals [ksOctaves + 1]int64
+	u := r.nodes[3 : 3+r.nb0]
+	ksParallel(goroutines, func(g int) {
+		var t int64
+		for o := share(g); o < share(g+1); o++ {
+			// The fine counters of each octave's bins: a bin of octave o
+			// holds 2^(bits of the finest octave − bits of o) of them.
+			e := r.oct[o]
+			run := 1 << (b - (52 - uint(e&63)))
+			uo := u[e>>8 : int(e>>8)+1<<b/run]
+			for i := range uo {
+				uo[i].count = 0
+			}
+			for _, c := range counts {
+				fo := c[3+o<<b : 3+(o+1)<<b]
+				if run == 1 {
+					for i, v := range fo {
+						uo[i].count += int64(v)
+					}
+				} else {
+					for i := range uo {
+						var s int64
+						for _, v := range fo[i*run : (i+1)*run] {
+							s += int64(v)
+						}
+						uo[i].count += s
+					}
+				}
+				clear(fo)
+			}
+			for i := range uo {
+				t += uo[i].count
+			}
+		}
+		totals[g+1] = t
+	})
+	// The outer nodes, and the counter past the last that the AVX-512
+	// count kernel increments for the values it hands to countOuter.
+	for i := range 3 {
+		r.nodes[i].count = 0
+	}
+	r.nodes[r.n0-1].count = 0
+	for _, c := range counts {
 		for i := range 3 {
 			r.nodes[i].count += int64(c[i])
 		}
 		r.nodes[r.n0-1].count += int64(c[3+r.nbf])
-		// The fine counters of each octave's bins: a bin of octave o holds
-		// 2^(bits of the finest octave − bits of o) of them.
-		b := 52 - r.shift
-		f, u := c[3:3+r.nbf], r.nodes[3:3+r.nb0]
-		for o := range ksOctaves {
-			e := r.oct[o]
-			run := 1 << (b - (52 - uint(e&63)))
-			fo := f[o<<b : (o+1)<<b]
-			uo := u[e>>8 : int(e>>8)+len(fo)/run]
-			if run == 1 {
-				for i, v := range fo {
-					uo[i].count += int64(v)
-				}
-				continue
-			}
-			for i := range uo {
-				var t int64
-				for _, v := range fo[i*run : (i+1)*run] {
-					t += int64(v)
-				}
-				uo[i].count += t
-			}
-		}
+		clear(c[:3])
+		clear(c[3+r.nbf:])
 	}
 	var below int64
-	for i := range r.nodes {
+	for i := range 3 {
 		r.nodes[i].below = below
 		below += r.nodes[i].count
+	}
+	totals[0] = below
+	for g := range goroutines {
+		totals[g+1] += totals[g]
+	}
+	ksParallel(goroutines, func(g int) {
+		below := totals[g]
+		for i := 3 + first(share(g)); i < 3+first(share(g+1)); i++ {
+			r.nodes[i].below = below
+			below += r.nodes[i].count
+		}
+	})
+	r.nodes[r.n0-1].below = totals[goroutines]
+	for i := range r.state {
 		r.state[i] = ksCount
 	}
+	r.gathered = true
 }
+
+// ksParallelBins is the number of fine bins (gather) or nodes (select_)
+// from which those share their loops among the workers (a variable, as
+// ksParallelValues).
+var ksParallelBins = 1 << 16
 
 // bounds returns L_j and U_j of non-empty node i.
 func (r *ksRefiner) bounds(i int) (lower, upper float64) {
@@ -716,33 +790,52 @@ func (r *ksRefiner) bounds(i int) (lower, upper float64) {
 }
 
 // select_ turns the leaves counted in the last pass into candidates or idle
-// nodes and returns the candidates with their total count.
+// nodes and returns the candidates with their total count. From
+// ksParallelBins nodes on, the nodes are shared among one goroutine per
+// worker, each with its own list of bounds (ups[g]); the lists are read in
+// node order, so the candidates are those of one loop.
 func (r *ksRefiner) select_() (cands []int32, total int64) {
-	// One pass over the nodes takes both bounds of each counted leaf; the
-	// second goes over the non-empty ones only.
-	ups := r.ups[:0]
-	for i := range r.state {
-		if r.state[i] != ksCount {
-			continue
-		}
-		r.state[i] = ksIdle
-		nd := &r.nodes[i]
-		if nd.count == 0 {
-			continue
-		}
-		l, u := r.bounds(i)
-		if nd.hi-nd.lo == 1 {
-			r.best = max(r.best, l) // one distinct value: the bound is a term
-		} else {
-			ups = append(ups, ksUpper{i: int32(i), u: u})
-		}
-		r.lower = max(r.lower, l)
+	goroutines := 1
+	if len(r.state) >= ksParallelBins {
+		goroutines = r.workers
 	}
-	r.ups = ups
-	for _, e := range ups {
-		if e.u >= r.lower-ksSlack {
-			cands = append(cands, e.i)
-			total += r.nodes[e.i].count
+	if len(r.ups) < goroutines {
+		r.ups = append(r.ups, make([][]ksUpper, goroutines-len(r.ups))...)
+		r.sbest = make([][2]float64, goroutines)
+	}
+	ksParallel(goroutines, func(g int) {
+		// One pass over the nodes takes both bounds of each counted leaf;
+		// the second goes over the non-empty ones only.
+		ups := r.ups[g][:0]
+		best, lower := r.best, r.lower
+		for i := g * len(r.state) / goroutines; i < (g+1)*len(r.state)/goroutines; i++ {
+			if r.state[i] != ksCount {
+				continue
+			}
+			r.state[i] = ksIdle
+			nd := &r.nodes[i]
+			if nd.count == 0 {
+				continue
+			}
+			l, u := r.bounds(i)
+			if nd.hi-nd.lo == 1 {
+				best = max(best, l) // one distinct value: the bound is a term
+			} else {
+				ups = append(ups, ksUpper{i: int32(i), u: u})
+			}
+			lower = max(lower, l)
+		}
+		r.ups[g], r.sbest[g] = ups, [2]float64{best, lower}
+	})
+	for g := range goroutines {
+		r.best, r.lower = max(r.best, r.sbest[g][0]), max(r.lower, r.sbest[g][1])
+	}
+	for _, ups := range r.ups[:goroutines] {
+		for _, e := range ups {
+			if e.u >= r.lower-ksSlack {
+				cands = append(cands, e.i)
+				total += r.nodes[e.i].count
+			}
 		}
 	}
 	return cands, total
@@ -851,6 +944,11 @@ func (r *ksRefiner) leaf(k uint64) int {
 	if r.active[i>>6]>>(i&63)&1 == 0 {
 		return -1
 	}
+	return r.descend(i, k)
+}
+
+// descend walks from node i, which holds key k, down to its leaf.
+func (r *ksRefiner) descend(i int, k uint64) int {
 	for r.state[i] == ksSplit {
 		nd := &r.nodes[i]
 		i = int(nd.child) + int((k-nd.lo)>>nd.shift)
@@ -990,11 +1088,15 @@ const ksMaxDense = 1 << 20
 // collect gathers the values of the candidate leaves and takes the exact
 // terms of the statistic from them, in a pass over the probabilities or,
 // when apass is not nil, over the amplitudes. The pass rejects most values
-// with one byte of a table of the active level-0 bins. The values
-// are then grouped by leaf (their counts are known), and each leaf is
-// sorted and searched by bisection only while its bound can exceed the
-// best term found, leaves with the largest bounds first: most candidate
-// leaves need no sort and no CDF evaluation per value.
+// with one byte of a table of the active level-0 bins, and keeps with each
+// value its leaf's place in cands. The values are then grouped by leaf
+// (their counts are known), and each leaf is sorted and searched by
+// bisection only while its bound can exceed the best term found, leaves
+// with the largest bounds first: most candidate leaves need no sort and no
+// CDF evaluation per value. From ksParallelValues values on, the grouping
+// and the search run on one goroutine per worker (ksParallel): at 2^24
+// amplitudes they take some 8 ms on one core (about 380 thousand values in
+// a thousand leaves), as long as a third of the collect pass on two.
 func (r *ksRefiner) collect(pass ProbabilityPass, apass AmplitudePass, cands []int32) {
 	for _, ci := range cands {
 		r.state[ci] = ksCollect
@@ -1010,73 +1112,72 @@ func (r *ksRefiner) collect(pass ProbabilityPass, apass AmplitudePass, cands []i
 		}
 		return 0
 	})
+	// slot[i] is leaf i's position in cands; off[c] is the first place of
+	// the values of cands[c] in all.
+	if len(r.slot) < len(r.nodes) {
+		r.slot = make([]int32, len(r.nodes))
+	}
+	var total int64
+	off := r.offs[:0]
+	for i, ci := range cands {
+		r.slot[ci] = int32(i)
+		off = append(off, total)
+		total += r.nodes[ci].count
+	}
+	r.offs = off
 	if r.vals == nil {
-		r.vals = make([][]float64, r.workers) // worker w alone touches vals[w]
+		r.vals = make([][]float64, r.workers) // worker w alone touches vals[w] and vslot[w]
+		r.vslot = make([][]int32, r.workers)
+	}
+	if len(r.gcnt) < r.workers {
+		r.gcnt, r.gpos = make([][]int64, r.workers), make([][]int64, r.workers)
 	}
 	for w := range r.vals {
-		r.vals[w] = r.vals[w][:0]
+		r.vals[w], r.vslot[w] = r.vals[w][:0], r.vslot[w][:0]
+		r.gcnt[w] = ksInts(r.gcnt[w], len(cands))
 	}
 	// A value is kept when its level-0 bin is active (one byte of act0 for
 	// the uniform bins, the bitmap for the outer ones) and its leaf is a
 	// candidate.
 	pos, shift, act := r.lo0&^(1<<63), r.shift, r.act0
-	keep := func(buf []float64, v float64) []float64 {
+	keep := func(w int, v float64) {
 		k := ksKey(v)
 		if i := r.bin0(k); r.active[i>>6]>>(i&63)&1 != 0 {
-			if j := r.leaf(k); j >= 0 && r.state[j] == ksCollect {
-				buf = append(buf, v)
+			if j := r.descend(i, k); r.state[j] == ksCollect {
+				sl := r.slot[j]
+				r.vals[w] = append(r.vals[w], v)
+				r.vslot[w] = append(r.vslot[w], sl)
+				r.gcnt[w][sl]++
 			}
 		}
-		return buf
 	}
 	if apass != nil {
 		r.filterPass(apass, func(w int, kept []float64) {
-			buf := r.vals[w]
 			for _, v := range kept {
-				buf = keep(buf, v)
+				keep(w, v)
 			}
-			r.vals[w] = buf
 		})
 	} else {
 		pass(func(w int, p []float64) {
-			buf := r.vals[w]
 			for {
 				p = p[ksSkip(p, pos, shift, act):]
 				if len(p) == 0 {
 					break
 				}
-				buf = keep(buf, p[0])
+				keep(w, p[0])
 				p = p[1:]
 			}
-			r.vals[w] = buf
 		})
 	}
-	// Group the values by leaf: slot[i] is leaf i's position in cands.
-	var total int64
-	off := r.offs[:0]
-	for _, ci := range cands {
-		off = append(off, total)
-		total += r.nodes[ci].count
-	}
-	r.offs = off
 	if int64(cap(r.all)) < total {
 		r.all = make([]float64, total)
 	}
 	all := r.all[:total]
-	if len(r.slot) < len(r.nodes) {
-		r.slot = make([]int32, len(r.nodes))
+	goroutines := 1
+	if total >= ksParallelValues {
+		goroutines = r.workers
 	}
-	for i, ci := range cands {
-		r.slot[ci] = int32(i)
-	}
-	fill := slices.Clone(off)
-	for _, vs := range r.vals {
-		for _, v := range vs {
-			c := r.slot[r.leaf(ksKey(v))]
-			all[fill[c]] = v
-			fill[c]++
-		}
-	}
+	r.group(all, len(cands), goroutines)
 	// Leaves by decreasing upper bound.
 	order := make([]int, len(cands))
 	ub := make([]float64, len(cands))
@@ -1093,20 +1194,149 @@ func (r *ksRefiner) collect(pass ProbabilityPass, apass AmplitudePass, cands []i
 		}
 		return 0
 	})
-	for _, i := range order {
-		if ub[i] < max(r.best, r.lower)-ksSlack {
-			break
+	// The searchers take the leaves in that order, each the next one left;
+	// a leaf whose bound is below the floor of all that the others found
+	// is passed over, and so are all after it. Each term the searchers
+	// take is an exact term, and the leaf of the supremum is never passed
+	// over, so the largest of their terms is the statistic whatever the
+	// order in which they meet the leaves.
+	if len(r.srch) < r.workers {
+		r.srch = make([]ksSearcher, r.workers)
+		for g := range r.srch {
+			r.srch[g] = ksSearcher{dim: r.dim, cdf: r.cdf, floor: &r.floor}
 		}
-		nd := &r.nodes[cands[i]]
-		vs := all[off[i] : off[i]+nd.count]
-		if cap(r.tmp) < len(vs) {
-			r.tmp = make([]float64, len(vs))
+	}
+	r.floor.Store(math.Float64bits(max(r.best, r.lower)))
+	var next atomic.Int64
+	ksParallel(goroutines, func(g int) {
+		s := &r.srch[g]
+		s.best, s.lower = r.best, r.lower
+		for {
+			k := int(next.Add(1)) - 1
+			if k >= len(order) {
+				return
+			}
+			i := order[k]
+			if ub[i] < s.cut() {
+				return
+			}
+			nd := &r.nodes[cands[i]]
+			vs := all[off[i] : off[i]+nd.count]
+			if cap(s.tmp) < len(vs) {
+				s.tmp = make([]float64, len(vs))
+			}
+			ft, fu := r.cdf(ksValue(nd.lo)), r.cdf(ksValue(nd.hi-1))
+			if int(cands[i]) < r.n0 {
+				ft, fu = r.f0[cands[i]][0], r.f0[cands[i]][1]
+			}
+			s.refine(vs, s.tmp[:len(vs)], nd.below, nd.lo, nd.hi, ft, fu)
+			s.publish()
 		}
-		ft, fu := r.cdf(ksValue(nd.lo)), r.cdf(ksValue(nd.hi-1))
-		if int(cands[i]) < r.n0 {
-			ft, fu = r.f0[cands[i]][0], r.f0[cands[i]][1]
+	})
+	for g := range goroutines {
+		r.best, r.lower = max(r.best, r.srch[g].best), max(r.lower, r.srch[g].lower)
+	}
+}
+
+// ksParallelValues is the number of collected values from which collect
+// groups and searches them on one goroutine per worker (a variable so that
+// the tests can compare both forms on small states).
+var ksParallelValues int64 = 1 << 15
+
+// group writes the values of r.vals to all grouped by candidate leaf, the
+// values of the leaf of slot c from r.offs[c] on, in the order of the
+// workers and, within one, of the pass, on goroutines goroutines, each of
+// which places the values of its workers; r.gcnt holds each worker's count
+// per slot, taken in the pass.
+func (r *ksRefiner) group(all []float64, ncand, goroutines int) {
+	for w := range r.workers {
+		r.gpos[w] = ksInts(r.gpos[w], ncand)
+	}
+	for c, p := range r.offs {
+		for w := range r.workers {
+			r.gpos[w][c] = p
+			p += r.gcnt[w][c]
 		}
-		r.refine(vs, r.tmp[:len(vs)], nd.below, nd.lo, nd.hi, ft, fu)
+	}
+	ksParallel(goroutines, func(g int) {
+		for w := g; w < r.workers; w += goroutines {
+			p := r.gpos[w]
+			for i, sl := range r.vslot[w] {
+				all[p[sl]] = r.vals[w][i]
+				p[sl]++
+			}
+		}
+	})
+}
+
+// ksInts returns n zeros, in c when it has the room.
+func ksInts(c []int64, n int) []int64 {
+	if cap(c) < n {
+		return make([]int64, n)
+	}
+	c = c[:n]
+	clear(c)
+	return c
+}
+
+// ksParallel runs f(0), …, f(n−1) at once, f(0) on the calling goroutine,
+// and returns when all have returned; a panic in any of them is raised
+// again here, with its own stack (crash.Carrier). n ≤ 1 runs f(0) alone.
+func ksParallel(n int, f func(g int)) {
+	if n <= 1 {
+		f(0)
+		return
+	}
+	var wg sync.WaitGroup
+	var carry crash.Carrier
+	for g := 1; g < n; g++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			defer carry.Catch()
+			f(g)
+		}()
+	}
+	func() {
+		defer carry.Catch()
+		f(0)
+	}()
+	wg.Wait()
+	carry.Rethrow()
+}
+
+// ksSearcher takes the exact terms of candidate leaves (refine, search)
+// on one goroutine of collect, with scratch of its own. best is the
+// largest exact term it found, lower its running lower bound L.
+type ksSearcher struct {
+	dim         int
+	cdf         func(float64) float64
+	best, lower float64
+	// floor holds the bits of the largest max(best, lower) that any
+	// searcher of the collect has published (ksRefiner.floor): both are
+	// non-negative, so the bits order as the values.
+	floor *atomic.Uint64
+	tmp   []float64    // refine's scratch
+	ints  []int64      // refine's counts, a stack
+	subs  []ksUpper    // refine's sub-bins, a stack
+	fsub  [][2]float64 // the CDF at their smallest and largest keys
+}
+
+// cut returns the bound below which a region cannot hold the supremum:
+// the largest of this searcher's best and lower and of the shared floor,
+// less ksSlack.
+func (r *ksSearcher) cut() float64 {
+	return max(r.best, r.lower, math.Float64frombits(r.floor.Load())) - ksSlack
+}
+
+// publish raises the shared floor to max(best, lower).
+func (r *ksSearcher) publish() {
+	v := math.Float64bits(max(r.best, r.lower))
+	for {
+		old := r.floor.Load()
+		if v <= old || r.floor.CompareAndSwap(old, v) {
+			return
+		}
 	}
 }
 
@@ -1162,7 +1392,7 @@ const ksRefineBits = 5
 // bin's keys: every sub-bin's CDF values lie between them, so a sub-bin
 // whose bound from them is already too small is passed over without
 // evaluating the CDF at its edges.
-func (r *ksRefiner) refine(vs, tmp []float64, below int64, lo, hi uint64, pft, pfu float64) {
+func (r *ksSearcher) refine(vs, tmp []float64, below int64, lo, hi uint64, pft, pfu float64) {
 	if len(vs) <= ksRefineSort {
 		slices.Sort(vs)
 		r.search(vs, below, 0, len(vs), r.cdf(vs[0]), r.cdf(vs[len(vs)-1]))
@@ -1200,7 +1430,7 @@ func (r *ksRefiner) refine(vs, tmp []float64, below int64, lo, hi uint64, pft, p
 			continue
 		}
 		after, before := float64(below+cnt[i+1])/d, float64(below+cnt[i])/d
-		if max(after-pft, pfu-before) < max(r.best, r.lower)-ksSlack {
+		if max(after-pft, pfu-before) < r.cut() {
 			continue
 		}
 		klo := lo + uint64(i)<<shift
@@ -1235,7 +1465,7 @@ func (r *ksRefiner) refine(vs, tmp []float64, below int64, lo, hi uint64, pft, p
 		return 0
 	})
 	for _, sb := range subs {
-		if sb.u < max(r.best, r.lower)-ksSlack {
+		if sb.u < r.cut() {
 			break
 		}
 		i := int(sb.i)
@@ -1439,9 +1669,9 @@ const ksSearchLeaf = 8
 // (below+b)/D − fa and fb − (below+a)/D (F and the ranks are monotone), so
 // a run whose bound is below the best term is skipped and a long one is
 // halved.
-func (r *ksRefiner) search(vs []float64, below int64, a, b int, fa, fb float64) {
+func (r *ksSearcher) search(vs []float64, below int64, a, b int, fa, fb float64) {
 	d := float64(r.dim)
-	if max(float64(below+int64(b))/d-fa, fb-float64(below+int64(a))/d) < r.best-ksSlack {
+	if max(float64(below+int64(b))/d-fa, fb-float64(below+int64(a))/d) < max(r.best, math.Float64frombits(r.floor.Load()))-ksSlack {
 		return
 	}
 	if b-a <= ksSearchLeaf {

@@ -314,6 +314,10 @@ func readoutRun(h *HaarKS, a []float64) (sums []float64, ks float64, kept []floa
 // (Haar) states of 10 to 20 qubits (24 unless -short), stabiliser-like
 // states (many equal probabilities and exact zeros), and a Haar state whose
 // small amplitudes are scaled to give subnormal or zero probabilities.
+// The parallel forms of the steps between the passes (ksParallel) and the
+// serial ones, forced on every state, must give the default's statistic
+// and kept values bit for bit (common practice: two forms of one
+// computation compared).
 func TestReadoutPaths(t *testing.T) {
 	rng := rand.New(rand.NewPCG(53, 54))
 	type state struct {
@@ -374,6 +378,26 @@ func TestReadoutPaths(t *testing.T) {
 				t.Errorf("%s n=%d: the collect pass kept %d values with the %s kernel, %d with the Go loop (or other values)", st.name, st.n, len(kept), k, len(keptGo))
 			}
 			sumsAsm, ksAsm = sums, ks
+		}
+		// The parallel forms of gather, select_ and collect on every state,
+		// and the serial ones, must give the same statistic bit for bit
+		// (their terms are the same, whatever the order in which the
+		// searchers meet the leaves).
+		for _, par := range []bool{false, true} {
+			sv, sb := ksParallelValues, ksParallelBins
+			if par {
+				ksParallelValues, ksParallelBins = 0, 0
+			} else {
+				ksParallelValues, ksParallelBins = math.MaxInt64, math.MaxInt
+			}
+			_, ks, kept := readoutRun(NewHaarKS(d, 2, 0), st.a)
+			ksParallelValues, ksParallelBins = sv, sb
+			if math.Float64bits(ks) != math.Float64bits(ksAsm) {
+				t.Errorf("%s n=%d: statistic %.17g with parallel=%v, %.17g by default", st.name, st.n, ks, par, ksAsm)
+			}
+			if !slices.Equal(keptGo, kept) {
+				t.Errorf("%s n=%d: the collect pass kept %d values with parallel=%v, %d by default", st.name, st.n, len(kept), par, len(keptGo))
+			}
 		}
 		const block = 4096
 		for k, z := range sumsAsm {

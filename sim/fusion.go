@@ -98,11 +98,12 @@ func (o *Op) mask() uint64 {
 // Which gates a pass can take depends on the qubits its block starts with:
 // in circuit order the first gates of a layer claim the block, scattered
 // over the chip, and little of the next layers fits. So each pass tries
-// as seeds the qubits of each of the first planSeeds remaining gates (and
-// none) and keeps the seed whose pass takes the most gates. On 20-layer
-// brickworks with blocks of 16 qubits (6 low) this cut the passes from 21
-// to 14 on grid:5x5, 16 to 13 on line:26, 13 to 11 on grid:4x6 and 25 to
-// 20 on grid:5x6.
+// as seeds the qubits of each one or two of the first planSeeds remaining
+// gates (and none) and keeps the seed whose pass takes the most gates. On
+// 20-layer brickworks with blocks of 16 qubits (6 low) this cut the passes
+// from 16 to 10 on line:26, 21 to 13 on grid:5x5, 13 to 11 on grid:4x6, 25
+// to 19 on grid:5x6 and 32 to 25 on grid:6x6 (seeds of one gate of the
+// first 40: 13, 14, 11, 20, 26).
 func planPasses(n int, ops []Op, k int) []pass {
 	if n <= k {
 		return []pass{newPass(n, allMask(n), ops)}
@@ -113,18 +114,21 @@ func planPasses(n int, ops []Op, k int) []pass {
 	var in, out []Op
 	for len(remaining) > 0 {
 		seed := base
-		most, _ := takeGates(remaining, base, k, nil, nil)
-		for i := range min(planSeeds, len(remaining)) {
-			s := base | remaining[i].mask()
-			if s == base || bits.OnesCount64(s) > k {
-				continue
-			}
-			if c, _ := takeGates(remaining, s, k, nil, nil); c > most {
-				seed, most = s, c
+		most, _ := takeGates(n, remaining, base, k, nil, nil)
+		m := min(planSeeds, len(remaining))
+		for i := range m {
+			for j := i; j < m; j++ {
+				s := base | remaining[i].mask() | remaining[j].mask()
+				if bits.OnesCount64(s) > k {
+					continue
+				}
+				if c, _ := takeGates(n, remaining, s, k, nil, nil); c > most {
+					seed, most = s, c
+				}
 			}
 		}
 		in, out = in[:0], out[:0]
-		_, sel := takeGates(remaining, seed, k, &in, &out)
+		_, sel := takeGates(n, remaining, seed, k, &in, &out)
 		// Pad the block with the lowest free qubits: longer contiguous runs
 		// cost nothing.
 		for q := 0; bits.OnesCount64(sel) < k; q++ {
@@ -136,17 +140,19 @@ func planPasses(n int, ops []Op, k int) []pass {
 	return passes
 }
 
-// planSeeds is the number of remaining gates whose qubits planPasses tries
-// as a pass's seed (40 found the fewest passes on the brickworks above;
-// 10 left 17 on grid:5x5).
-const planSeeds = 40
+// planSeeds is the number of remaining gates whose qubits, one or two
+// gates at a time, planPasses tries as a pass's seed: 210 greedy trials per
+// pass, each stopping once every qubit is blocked (takeGates).
+const planSeeds = 20
 
-// takeGates runs the greedy selection of a pass whose block starts with
-// the qubits sel: it returns the number of gates taken and the block's
-// qubits, and, when in and out are not nil, appends the gates taken to in
-// and the others to out.
-func takeGates(remaining []Op, sel uint64, k int, in, out *[]Op) (taken int, block uint64) {
+// takeGates runs the greedy selection of a pass on n qubits whose block
+// starts with the qubits sel: it returns the number of gates taken and the
+// block's qubits, and, when in and out are not nil, appends the gates
+// taken to in and the others to out. Once every qubit is blocked no later
+// gate can be taken, so a count (in nil) stops there.
+func takeGates(n int, remaining []Op, sel uint64, k int, in, out *[]Op) (taken int, block uint64) {
 	var blocked uint64
+	all := allMask(n)
 	for i := range remaining {
 		op := &remaining[i]
 		q := op.mask()
@@ -161,6 +167,8 @@ func takeGates(remaining []Op, sel uint64, k int, in, out *[]Op) (taken int, blo
 		blocked |= q
 		if out != nil {
 			*out = append(*out, *op)
+		} else if blocked == all {
+			break
 		}
 	}
 	return taken, sel

@@ -1021,7 +1021,7 @@ func (r *ksRefiner) split(pass ProbabilityPass, apass AmplitudePass, cands []int
 	route := func(w int, p []float64) {
 		c := counts[w]
 		if !r.sused[w] {
-			c = ksCounters(c, slots)
+			c = ksZeros(c, slots)
 			counts[w], r.sused[w] = c, true
 		}
 		if !dense {
@@ -1034,7 +1034,7 @@ func (r *ksRefiner) split(pass ProbabilityPass, apass AmplitudePass, cands []int
 		}
 		dc := dcounts[w]
 		if !r.dused[w] {
-			dc = ksCounters(dc, dlen)
+			dc = ksZeros(dc, dlen)
 			dcounts[w], r.dused[w] = dc, true
 		}
 		for _, v := range p {
@@ -1072,10 +1072,11 @@ func (r *ksRefiner) split(pass ProbabilityPass, apass AmplitudePass, cands []int
 	}
 }
 
-// ksCounters returns n zero counters, in c when it has the room.
-func ksCounters(c []uint32, n int) []uint32 {
+// ksZeros returns n zeros (counters, positions), in c when it has the
+// room.
+func ksZeros[T uint32 | int64](c []T, n int) []T {
 	if cap(c) < n {
-		return make([]uint32, n)
+		return make([]T, n)
 	}
 	c = c[:n]
 	clear(c)
@@ -1134,7 +1135,7 @@ func (r *ksRefiner) collect(pass ProbabilityPass, apass AmplitudePass, cands []i
 	}
 	for w := range r.vals {
 		r.vals[w], r.vslot[w] = r.vals[w][:0], r.vslot[w][:0]
-		r.gcnt[w] = ksInts(r.gcnt[w], len(cands))
+		r.gcnt[w] = ksZeros(r.gcnt[w], len(cands))
 	}
 	// A value is kept when its level-0 bin is active (one byte of act0 for
 	// the uniform bins, the bitmap for the outer ones) and its leaf is a
@@ -1250,7 +1251,7 @@ var ksParallelValues int64 = 1 << 15
 // per slot, taken in the pass.
 func (r *ksRefiner) group(all []float64, ncand, goroutines int) {
 	for w := range r.workers {
-		r.gpos[w] = ksInts(r.gpos[w], ncand)
+		r.gpos[w] = ksZeros(r.gpos[w], ncand)
 	}
 	for c, p := range r.offs {
 		for w := range r.workers {
@@ -1267,16 +1268,6 @@ func (r *ksRefiner) group(all []float64, ncand, goroutines int) {
 			}
 		}
 	})
-}
-
-// ksInts returns n zeros, in c when it has the room.
-func ksInts(c []int64, n int) []int64 {
-	if cap(c) < n {
-		return make([]int64, n)
-	}
-	c = c[:n]
-	clear(c)
-	return c
 }
 
 // ksParallel runs f(0), …, f(n−1) at once, f(0) on the calling goroutine,

@@ -22,3 +22,16 @@ func ExampleState_AmplitudeBlocks() {
 	})
 	// Output: chunk at 0: [0.7071 0.0000 0.0000 0.0000 0.0000 0.0000 0.0000 0.7071]
 }
+
+// Passes counts the sweeps over memory that Run makes, without running:
+// on 22 qubits a staircase of gates (0,1), (1,2), …, (20,21) takes two
+// fused passes, while the same gates run one at a time on 10 qubits (below
+// the fused sizes) take one sweep each.
+func ExamplePasses() {
+	var stairs []sim.Op
+	for q := 0; q+1 < 22; q++ {
+		stairs = append(stairs, sim.Op{A: q, B: q + 1})
+	}
+	fmt.Println(sim.Passes(22, stairs), sim.Passes(10, stairs[:9]))
+	// Output: 2 9
+}

@@ -368,6 +368,29 @@ func (s *State64) RunVisit(ctx context.Context, ops []Op, workers int, visit fun
 	})
 }
 
+// Passes returns the number of sweeps over the memory of an n-qubit state
+// that Run makes for ops, with the block size of this machine
+// (BlockQubits): one per fused pass over blocks, and one per gate (after
+// single-qubit gates are folded in) when the state is too small to fuse or
+// a pass spans every qubit. It reads no amplitudes, so a planner can count
+// the memory traffic of a circuit, or of the same gates cut at read-out
+// depths, before running it (each cut ends a pass). It panics as Run does
+// on invalid ops.
+func Passes(n int, ops []Op) int {
+	checkOps(n, ops)
+	sweeps := 0
+	for _, p := range planPasses(n, ops, passQubits(n)) {
+		switch {
+		case len(p.ops) == 0:
+		case len(p.qubits) == n:
+			sweeps += len(p.ops)
+		default:
+			sweeps++
+		}
+	}
+	return sweeps
+}
+
 // visitFolds reports whether runOpsVisit folds a chunk visit into the last pass
 // of ops on n qubits (for the tests).
 func visitFolds(n int, ops []Op) bool {

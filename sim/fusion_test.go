@@ -385,3 +385,45 @@ func TestBlockSize(t *testing.T) {
 		}
 	}
 }
+
+// TestPasses checks the sweeps Passes counts against hand derivations from
+// the planning rules (Run's documentation), for every block shape
+// blockSize can choose.
+func TestPasses(t *testing.T) {
+	two := func(a, b int) sim.Op { return sim.Op{A: a, B: b} }
+	one := func(q int) sim.Op { return sim.Op{Single: true, A: q} }
+	// 10 qubits, below the fused sizes: one sweep per gate after folding.
+	// The single-qubit gate on 0 folds into (0, 1), that on 2 into the
+	// first (1, 2), and the second (1, 2) is multiplied into it: 2 sweeps.
+	small := []sim.Op{one(0), two(0, 1), two(1, 2), one(2), two(1, 2)}
+	if got := sim.Passes(10, small); got != 2 {
+		t.Errorf("10 qubits, 5 ops: Passes = %d, want 2", got)
+	}
+	if got := sim.Passes(10, nil); got != 0 {
+		t.Errorf("no ops: Passes = %d, want 0", got)
+	}
+	for _, shape := range [][2]int{{14, 4}, {15, 5}, {16, 6}} {
+		restore := sim.SetBlock(shape[0], shape[1])
+		k := shape[0]
+		// 22 qubits, gates on the lowest 14 only: one block holds them all.
+		var low []sim.Op
+		for q := 0; q+1 < 14; q += 2 {
+			low = append(low, two(q, q+1), two(q+1, (q+2)%14))
+		}
+		if got := sim.Passes(22, low); got != 1 {
+			t.Errorf("k = %d, gates on qubits 0..13: Passes = %d, want 1", k, got)
+		}
+		// The staircase (0,1), (1,2), …, (20,21): the first pass takes the
+		// k−1 gates on qubits 0..k−1; (k−1, k) does not fit and blocks
+		// every later gate. The other 22−k gates act on 23−k ≤ 9 qubits,
+		// which fit beside the low qubits of a second block.
+		var stairs []sim.Op
+		for q := 0; q+1 < 22; q++ {
+			stairs = append(stairs, two(q, q+1))
+		}
+		if got := sim.Passes(22, stairs); got != 2 {
+			t.Errorf("k = %d, staircase on 22 qubits: Passes = %d, want 2", k, got)
+		}
+		restore()
+	}
+}

@@ -57,6 +57,29 @@ func scanTime(ctx context.Context, cfg scan.Config, depths []int) (float64, erro
 	return seconds(func() error { _, _, err := scan.Run(ctx, &cfg); return err })
 }
 
+// gatePasses returns the sweeps over the state that the gates of instance 0
+// of cfg take when the scan reads out the given depths: the gates between
+// two read-out depths run as one sequence (sim.Passes), as scan.Run runs
+// them. cfg's ensemble must have no final single-qubit layer (haar).
+func gatePasses(cfg *scan.Config, depths []int) int {
+	b := circuits.NewBuilder(cfg.Schedule, cfg.Ensemble, cfg.Seed, 0)
+	var gates []circuits.Gate
+	var ops []sim.Op
+	passes := 0
+	for step, next := 1, 0; next < len(depths); step++ {
+		gates = b.Next(gates[:0])
+		for _, g := range gates {
+			ops = append(ops, sim.Op{A: g.A, B: g.B, M: g.M})
+		}
+		if step == depths[next] {
+			passes += sim.Passes(cfg.Graph.Qubits, ops)
+			ops = ops[:0]
+			next++
+		}
+	}
+	return passes
+}
+
 // depthsFrom returns from, from+step, …, to.
 func depthsFrom(from, to, step int) []int {
 	var d []int
@@ -94,8 +117,9 @@ func measureTargets(ctx context.Context, logf func(string, ...any), workers, rou
 	if err != nil {
 		return nil, err
 	}
+	pAll, pLast := gatePasses(cfg, depthsFrom(1, 20, 1)), gatePasses(cfg, []int{20})
 	out = append(out, newTarget("scan_depths_1_20_over_20", r, 1.3, true,
-		fmt.Sprintf("grid:4x6, 2 instances, haar: depths 1:20 %.2f s, depth 20 alone %.2f s", all, last)))
+		fmt.Sprintf("grid:4x6, 2 instances, haar: depths 1:20 %.2f s, depth 20 alone %.2f s; gate passes over the state per instance %d and %d (sim.Passes: each read-out depth ends a fused pass)", all, last, pAll, pLast)))
 
 	// Read-out at n = 24 over one triad pass over the state's bytes.
 	logf("target: read-out at n = 24 over a triad pass…")
